@@ -1,0 +1,47 @@
+// Structure of a code: degree distributions, girth and short cycles, redundant rows, and for
+// small dimensions the exact weight enumerator and minimum distance.
+#pragma once
+
+#include <cstddef>
+#include <cstdint>
+#include <map>
+#include <optional>
+#include <vector>
+
+#include "tannery/code/code.hpp"
+#include "tannery/code/gf2.hpp"
+
+namespace tannery {
+
+// Degree -> number of nodes. The edge-perspective coefficients used in density evolution are
+// lambda_d = d * count_d / E (variables) and rho_d = d * count_d / E (checks).
+struct DegreeProfile {
+  std::map<std::size_t, std::size_t> variable;
+  std::map<std::size_t, std::size_t> check;
+  std::size_t edges = 0;
+};
+DegreeProfile degree_profile(const Code& code);
+
+struct CycleCensus {
+  std::optional<std::size_t> girth;  // length of a shortest cycle; empty when the graph is a forest
+  std::uint64_t count = 0;           // number of distinct cycles of that length
+};
+// Exact girth by breadth-first search from every variable node, each search cut at the
+// shortest cycle found so far; cycles of that length are counted by shortest-path counts.
+// Roughly O(n * neighbourhood of radius girth/2).
+CycleCensus cycle_census(const Code& code);
+
+struct RowRedundancy {
+  std::vector<std::size_t> empty;                              // checks with no variable
+  std::vector<std::pair<std::size_t, std::size_t>> repeated;  // (first, later copy)
+};
+RowRedundancy row_redundancy(const Code& code);
+
+// Number of codewords of each Hamming weight 0..n, by enumerating all 2^k codewords in Gray-code
+// order (k <= max_dimension, at most 30). Empty when k is larger.
+std::optional<std::vector<std::uint64_t>> weight_enumerator(const Code& code, const Encoder& encoder,
+                                                            std::size_t max_dimension = 24);
+// Smallest nonzero weight with a codeword; empty when k = 0.
+std::optional<std::size_t> minimum_distance(const std::vector<std::uint64_t>& enumerator);
+
+}  // namespace tannery

@@ -1,0 +1,51 @@
+// Constructions of parity-check matrices, deterministic for a given seed.
+#pragma once
+
+#include <cstddef>
+#include <cstdint>
+#include <vector>
+
+#include "tannery/code/code.hpp"
+
+namespace tannery {
+
+// Random (dv, dc)-regular code of length n (Gallager's ensemble, built by matching edge
+// sockets at random) with every 4-cycle and double edge removed by re-wiring edge pairs.
+// Requires n * dv divisible by dc. Throws Error when the cycles cannot be removed.
+Code construct_regular(std::size_t n, std::size_t dv, std::size_t dc, std::uint64_t seed);
+
+// Hamming code with r parity bits: n = 2^r - 1, column j (1-based) is j in binary. r in [2, 20].
+Code construct_hamming(std::size_t r);
+// Repetition code of length n: checks x0 + xi = 0.
+Code construct_repetition(std::size_t n);
+// Single parity-check code of length n.
+Code construct_single_parity(std::size_t n);
+
+// Lifts a base graph (0/1 pattern, rows x cols, row-major) into a quasi-cyclic code with lifting
+// size z, choosing each circulant shift to avoid 4-cycles (required) and then 6-cycles (attempted),
+// by the block conditions s1 - s2 + s3 - s4 (+ s5 - s6) = 0 mod Z. Throws Error when no shift
+// avoids 4-cycles.
+QuasiCyclic lift_base_graph(std::size_t rows, std::size_t cols, const std::vector<std::uint8_t>& pattern,
+                            std::size_t z, std::uint64_t seed);
+
+// Small deterministic generator for constructions (splitmix64).
+class SplitMix {
+ public:
+  explicit SplitMix(std::uint64_t seed) : state_(seed) {}
+  std::uint64_t next() noexcept {
+    std::uint64_t z = (state_ += 0x9e3779b97f4a7c15ull);
+    z = (z ^ (z >> 30)) * 0xbf58476d1ce4e5b9ull;
+    z = (z ^ (z >> 27)) * 0x94d049bb133111ebull;
+    return z ^ (z >> 31);
+  }
+  // Uniform in [0, bound) by Lemire's multiply-shift (bias below 2^-32 for bound < 2^32).
+  std::size_t below(std::size_t bound) noexcept {
+    __extension__ using u128 = unsigned __int128;
+    return static_cast<std::size_t>((static_cast<u128>(next()) * bound) >> 64);
+  }
+
+ private:
+  std::uint64_t state_;
+};
+
+}  // namespace tannery

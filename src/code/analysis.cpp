@@ -1,0 +1,196 @@
+#include "tannery/code/analysis.hpp"
+
+#include <algorithm>
+#include <bit>
+#include <limits>
+
+#include "tannery/error.hpp"
+
+namespace tannery {
+
+DegreeProfile degree_profile(const Code& code) {
+  DegreeProfile p;
+  for (std::size_t v = 0; v < code.n(); ++v) ++p.variable[code.variable_degree(v)];
+  for (std::size_t c = 0; c < code.m(); ++c) ++p.check[code.check_degree(c)];
+  p.edges = code.edges();
+  return p;
+}
+
+namespace {
+
+// Breadth-first search over the bipartite graph (variables 0..n-1, checks n..n+m-1) that reuses
+// its arrays between roots; only touched entries are reset.
+class Searcher {
+ public:
+  explicit Searcher(const Code& code)
+      : code_(code),
+        depth_(code.n() + code.m(), kUnseen),
+        paths_(code.n() + code.m(), 0),
+        via_(code.n() + code.m(), 0) {}
+
+  // Length of the shortest cycle through root, or SIZE_MAX, looking no further than cycles
+  // shorter than bound.
+  std::size_t shortest_cycle(std::uint32_t root, std::size_t bound) {
+    start(root);
+    std::size_t best = SIZE_MAX;
+    for (std::size_t head = 0; head < order_.size(); ++head) {
+      const std::uint32_t x = order_[head];
+      const std::size_t t = depth_[x];
+      if (2 * t + 2 >= std::min(best, bound)) break;
+      for_each_neighbour(x, [&](std::uint32_t y, std::uint32_t edge) {
+        if (edge == via_[x] && x != root) return;
+        if (depth_[y] == kUnseen) {
+          visit(y, t + 1, edge);
+        } else if (depth_[y] >= t) {
+          best = std::min<std::size_t>(best, t + depth_[y] + 1);
+        }
+      });
+    }
+    reset();
+    return best;
+  }
+
+  // Number of cycles of length girth through root (girth being the graph's girth).
+  std::uint64_t cycles_through(std::uint32_t root, std::size_t girth) {
+    start(root);
+    paths_[root] = 1;
+    const std::size_t half = girth / 2;
+    std::uint64_t pairs = 0;
+    for (std::size_t head = 0; head < order_.size(); ++head) {
+      const std::uint32_t x = order_[head];
+      const std::size_t t = depth_[x];
+      if (t == half) {
+        pairs += paths_[x] * (paths_[x] - 1) / 2;
+        continue;
+      }
+      for_each_neighbour(x, [&](std::uint32_t y, std::uint32_t) {
+        if (depth_[y] == kUnseen) visit(y, t + 1, 0);
+        if (depth_[y] == t + 1) paths_[y] += paths_[x];
+      });
+    }
+    reset();
+    return pairs;
+  }
+
+ private:
+  static constexpr std::uint32_t kUnseen = std::numeric_limits<std::uint32_t>::max();
+
+  template <class F>
+  void for_each_neighbour(std::uint32_t x, F&& f) {
+    const std::size_t n = code_.n();
+    if (x < n) {
+      for (std::uint32_t e : code_.variable_edges(x)) {
+        f(static_cast<std::uint32_t>(n + code_.edge_check(e)), e);
+      }
+    } else {
+      const std::size_t c = x - n;
+      for (std::uint32_t e = code_.check_begin(c); e < code_.check_end(c); ++e) {
+        f(code_.edge_variable(e), e);
+      }
+    }
+  }
+  void start(std::uint32_t root) {
+    order_.clear();
+    visit(root, 0, 0);
+  }
+  void visit(std::uint32_t y, std::size_t depth, std::uint32_t edge) {
+    depth_[y] = static_cast<std::uint32_t>(depth);
+    via_[y] = edge;
+    order_.push_back(y);
+  }
+  void reset() {
+    for (std::uint32_t x : order_) {
+      depth_[x] = kUnseen;
+      paths_[x] = 0;
+    }
+  }
+
+  const Code& code_;
+  std::vector<std::uint32_t> depth_;
+  std::vector<std::uint64_t> paths_;
+  std::vector<std::uint32_t> via_;
+  std::vector<std::uint32_t> order_;
+};
+
+}  // namespace
+
+CycleCensus cycle_census(const Code& code) {
+  Searcher search(code);
+  std::size_t girth = SIZE_MAX;
+  for (std::uint32_t v = 0; v < code.n(); ++v) {
+    girth = std::min(girth, search.shortest_cycle(v, girth));
+  }
+  CycleCensus census;
+  if (girth == SIZE_MAX) return census;
+  census.girth = girth;
+  std::uint64_t through = 0;
+  for (std::uint32_t v = 0; v < code.n(); ++v) through += search.cycles_through(v, girth);
+  census.count = through / (girth / 2);  // each cycle passes girth/2 variable nodes
+  return census;
+}
+
+RowRedundancy row_redundancy(const Code& code) {
+  RowRedundancy r;
+  std::vector<std::size_t> order(code.m());
+  for (std::size_t c = 0; c < code.m(); ++c) {
+    order[c] = c;
+    if (code.check_degree(c) == 0) r.empty.push_back(c);
+  }
+  auto less = [&](std::size_t a, std::size_t b) {
+    auto x = code.check_variables(a), y = code.check_variables(b);
+    if (std::lexicographical_compare(x.begin(), x.end(), y.begin(), y.end())) return true;
+    if (std::lexicographical_compare(y.begin(), y.end(), x.begin(), x.end())) return false;
+    return a < b;
+  };
+  std::sort(order.begin(), order.end(), less);
+  std::size_t group_first = order.empty() ? 0 : order[0];
+  for (std::size_t i = 1; i < order.size(); ++i) {
+    auto a = code.check_variables(order[i - 1]), b = code.check_variables(order[i]);
+    if (!b.empty() && std::equal(a.begin(), a.end(), b.begin(), b.end())) {
+      r.repeated.emplace_back(group_first, order[i]);
+    } else {
+      group_first = order[i];
+    }
+  }
+  std::sort(r.repeated.begin(), r.repeated.end(),
+            [](const auto& x, const auto& y) { return x.second < y.second; });
+  return r;
+}
+
+std::optional<std::vector<std::uint64_t>> weight_enumerator(const Code& code, const Encoder& encoder,
+                                                            std::size_t max_dimension) {
+  const std::size_t k = encoder.k(), n = code.n();
+  if (k > std::min<std::size_t>(max_dimension, 30)) return std::nullopt;
+  const std::size_t words = (n + 63) / 64;
+  std::vector<std::uint64_t> basis(k * words, 0);
+  std::vector<std::uint8_t> info(k, 0), word(n);
+  for (std::size_t j = 0; j < k; ++j) {
+    info[j] = 1;
+    encoder.encode(info, word);
+    info[j] = 0;
+    for (std::size_t i = 0; i < n; ++i) {
+      if (word[i]) basis[j * words + i / 64] |= std::uint64_t{1} << (i % 64);
+    }
+  }
+  std::vector<std::uint64_t> counts(n + 1, 0), current(words, 0);
+  counts[0] = 1;
+  for (std::uint64_t step = 1; step < (std::uint64_t{1} << k); ++step) {
+    const std::size_t j = static_cast<std::size_t>(std::countr_zero(step));  // Gray code flip
+    std::size_t weight = 0;
+    for (std::size_t w = 0; w < words; ++w) {
+      current[w] ^= basis[j * words + w];
+      weight += static_cast<std::size_t>(std::popcount(current[w]));
+    }
+    ++counts[weight];
+  }
+  return counts;
+}
+
+std::optional<std::size_t> minimum_distance(const std::vector<std::uint64_t>& enumerator) {
+  for (std::size_t w = 1; w < enumerator.size(); ++w) {
+    if (enumerator[w] != 0) return w;
+  }
+  return std::nullopt;
+}
+
+}  // namespace tannery

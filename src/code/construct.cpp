@@ -1,0 +1,163 @@
+#include "tannery/code/construct.hpp"
+
+#include <algorithm>
+#include <fmt/format.h>
+
+#include "tannery/error.hpp"
+
+namespace tannery {
+
+Code construct_regular(std::size_t n, std::size_t dv, std::size_t dc, std::uint64_t seed) {
+  if (dv < 1 || dc < 2 || n < dc) throw Error("regular code needs dv >= 1, dc >= 2 and n >= dc");
+  if ((n * dv) % dc != 0) {
+    throw Error(fmt::format("n * dv = {} is not divisible by dc = {}", n * dv, dc));
+  }
+  const std::size_t m = n * dv / dc, edges = n * dv;
+  // Edge e belongs to variable e / dv; check_of[e] is a random arrangement of check sockets.
+  std::vector<std::uint32_t> check_of(edges);
+  for (std::size_t e = 0; e < edges; ++e) check_of[e] = static_cast<std::uint32_t>(e / dc);
+  SplitMix rng(seed);
+  for (std::size_t i = edges; i > 1; --i) std::swap(check_of[i - 1], check_of[rng.below(i)]);
+
+  // Variables on each check, kept up to date while re-wiring.
+  std::vector<std::vector<std::uint32_t>> members(m);
+  for (std::size_t e = 0; e < edges; ++e) members[check_of[e]].push_back(static_cast<std::uint32_t>(e / dv));
+  auto move = [&](std::size_t e, std::uint32_t to) {
+    auto& from = members[check_of[e]];
+    from.erase(std::find(from.begin(), from.end(), static_cast<std::uint32_t>(e / dv)));
+    members[to].push_back(static_cast<std::uint32_t>(e / dv));
+    check_of[e] = to;
+  };
+  // An edge of v is bad when its check repeats among v's checks, or when it shares a second
+  // variable with another check of v (a 4-cycle).
+  // stamp[u] says which scan last reached u and via[u] through which edge of the scanned variable.
+  std::vector<std::uint64_t> stamp(n, 0);
+  std::vector<std::size_t> via(n, 0);
+  std::uint64_t scan = 0;
+  auto bad_edge = [&](std::size_t v) -> std::ptrdiff_t {
+    ++scan;
+    for (std::size_t a = 0; a < dv; ++a) {
+      for (std::size_t b = 0; b < a; ++b) {
+        if (check_of[v * dv + a] == check_of[v * dv + b]) return static_cast<std::ptrdiff_t>(v * dv + a);
+      }
+    }
+    for (std::size_t a = 0; a < dv; ++a) {
+      for (std::uint32_t u : members[check_of[v * dv + a]]) {
+        if (u == v) continue;
+        if (stamp[u] == scan && via[u] != a) return static_cast<std::ptrdiff_t>(v * dv + a);
+        stamp[u] = scan;
+        via[u] = a;
+      }
+    }
+    return -1;
+  };
+  constexpr std::size_t kPasses = 200;
+  for (std::size_t pass = 0;; ++pass) {
+    std::size_t repaired = 0;
+    for (std::size_t v = 0; v < n; ++v) {
+      const std::ptrdiff_t e = bad_edge(v);
+      if (e < 0) continue;
+      // Swap check sockets with a random edge of another variable.
+      const std::size_t other = rng.below(edges);
+      if (other / dv == v) continue;
+      const std::uint32_t c1 = check_of[static_cast<std::size_t>(e)], c2 = check_of[other];
+      move(static_cast<std::size_t>(e), c2);
+      move(other, c1);
+      ++repaired;
+    }
+    if (repaired == 0) break;
+    if (pass == kPasses) {
+      throw Error(fmt::format("could not remove all 4-cycles from a ({}, {})-regular code of length {} "
+                              "in {} passes; try a larger length or another seed", dv, dc, n, kPasses));
+    }
+  }
+  std::vector<std::vector<std::uint32_t>> checks(m);
+  for (std::size_t e = 0; e < edges; ++e) checks[check_of[e]].push_back(static_cast<std::uint32_t>(e / dv));
+  return Code::from_checks(n, checks);
+}
+
+Code construct_hamming(std::size_t r) {
+  if (r < 2 || r > 20) throw Error(fmt::format("Hamming code needs 2 <= r <= 20, got {}", r));
+  const std::size_t n = (std::size_t{1} << r) - 1;
+  std::vector<std::vector<std::uint32_t>> checks(r);
+  for (std::size_t j = 0; j < n; ++j) {
+    for (std::size_t i = 0; i < r; ++i) {
+      if (((j + 1) >> i) & 1u) checks[i].push_back(static_cast<std::uint32_t>(j));
+    }
+  }
+  return Code::from_checks(n, checks);
+}
+
+Code construct_repetition(std::size_t n) {
+  if (n < 2) throw Error("repetition code needs n >= 2");
+  std::vector<std::vector<std::uint32_t>> checks;
+  for (std::uint32_t i = 1; i < n; ++i) checks.push_back({0, i});
+  return Code::from_checks(n, checks);
+}
+
+Code construct_single_parity(std::size_t n) {
+  if (n < 2) throw Error("single parity-check code needs n >= 2");
+  std::vector<std::uint32_t> all(n);
+  for (std::size_t i = 0; i < n; ++i) all[i] = static_cast<std::uint32_t>(i);
+  return Code::from_checks(n, {all});
+}
+
+QuasiCyclic lift_base_graph(std::size_t rows, std::size_t cols, const std::vector<std::uint8_t>& pattern,
+                            std::size_t z, std::uint64_t seed) {
+  if (pattern.size() != rows * cols) throw Error("base pattern size does not match its dimensions");
+  if (z < 2) throw Error("lifting size must be at least 2");
+  QuasiCyclic base{rows, cols, z, std::vector<std::int64_t>(rows * cols, -1)};
+  const auto zz = static_cast<std::int64_t>(z);
+  auto mod = [zz](std::int64_t x) { return ((x % zz) + zz) % zz; };
+  SplitMix rng(seed);
+  // Counts, for a candidate shift at (i, j), the block 4-cycles and 6-cycles it closes with the
+  // shifts already chosen.
+  auto conflicts = [&](std::size_t i, std::size_t j, std::int64_t s, bool six) {
+    std::size_t count = 0;
+    for (std::size_t i2 = 0; i2 < rows; ++i2) {
+      if (i2 == i || base.shift(i2, j) < 0) continue;
+      for (std::size_t j2 = 0; j2 < cols; ++j2) {
+        if (j2 == j || base.shift(i, j2) < 0) continue;
+        // 4-cycle: (i,j) -> (i2,j) -> (i2,j2) -> (i,j2)
+        if (base.shift(i2, j2) >= 0 &&
+            mod(s - base.shift(i2, j) + base.shift(i2, j2) - base.shift(i, j2)) == 0) {
+          count += 1000000;
+        }
+        if (!six) continue;
+        // 6-cycle through a third block row i3: (i,j) (i2,j) (i2,j3) (i3,j3) (i3,j2) (i,j2)
+        for (std::size_t i3 = 0; i3 < rows; ++i3) {
+          if (i3 == i || i3 == i2 || base.shift(i3, j2) < 0) continue;
+          for (std::size_t j3 = 0; j3 < cols; ++j3) {
+            if (j3 == j || j3 == j2 || base.shift(i2, j3) < 0 || base.shift(i3, j3) < 0) continue;
+            if (mod(s - base.shift(i2, j) + base.shift(i2, j3) - base.shift(i3, j3) +
+                    base.shift(i3, j2) - base.shift(i, j2)) == 0) {
+              ++count;
+            }
+          }
+        }
+      }
+    }
+    return count;
+  };
+  for (std::size_t j = 0; j < cols; ++j) {
+    for (std::size_t i = 0; i < rows; ++i) {
+      if (!pattern[i * cols + j]) continue;
+      const std::int64_t offset = static_cast<std::int64_t>(rng.below(z));
+      std::int64_t best = -1;
+      std::size_t best_count = SIZE_MAX;
+      for (std::int64_t t = 0; t < zz && best_count > 0; ++t) {
+        const std::int64_t s = mod(offset + t);
+        const std::size_t count = conflicts(i, j, s, true);
+        if (count < best_count) best = s, best_count = count;
+      }
+      if (best_count >= 1000000) {
+        throw Error(fmt::format("no circulant shift for base entry ({}, {}) avoids 4-cycles at Z = {}; "
+                                "use a larger lifting size", i + 1, j + 1, z));
+      }
+      base.shifts[i * cols + j] = best;
+    }
+  }
+  return base;
+}
+
+}  // namespace tannery
