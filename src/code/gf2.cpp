@@ -36,32 +36,64 @@ namespace {
 
 enum class Role : std::uint8_t { undecided, free, pivot };
 
-}  // namespace
+// How to continue when peeling stalls: free the bit found in the most live checks (ideal for
+// codes with a dual-diagonal parity part), or a bit of a live check of lowest degree (better
+// for random regular codes).
+enum class Stall { widest_column, lowest_row };
 
-Encoder::Encoder(const Code& code) : n_(code.n()) {
+// Result of peeling: check pivot i determines variable cols[i] from the variables
+// others[start[i] .. start[i+1]); leftover checks are the equations no pivot took.
+struct Triangulation {
+  std::vector<std::uint32_t> cols, start{0}, others, free_cols, leftover;
+};
+
+// Lazy bucket queue of node ids by a degree that only decreases; stale entries are skipped.
+class Buckets {
+ public:
+  explicit Buckets(std::size_t max_degree) : lists_(max_degree + 1) {}
+  void push(std::size_t degree, std::uint32_t id) { lists_[degree].push_back(id); }
+  // Pops a live id of the highest (or lowest) degree; valid(id, degree) says whether it is live.
+  template <class Valid>
+  std::uint32_t pop(bool highest, Valid valid) {
+    for (std::size_t step = 0; step < lists_.size(); ++step) {
+      const std::size_t d = highest ? lists_.size() - 1 - step : step;
+      auto& list = lists_[d];
+      while (!list.empty()) {
+        const std::uint32_t id = list.back();
+        list.pop_back();
+        if (valid(id, d)) return id;
+      }
+    }
+    return UINT32_MAX;
+  }
+
+ private:
+  std::vector<std::vector<std::uint32_t>> lists_;
+};
+
+Triangulation peel(const Code& code, Stall stall) {
   const std::size_t n = code.n(), m = code.m();
+  Triangulation t;
   std::vector<Role> role(n, Role::undecided);
-  std::vector<std::uint32_t> row_degree(m), col_degree(n);
+  std::vector<std::uint32_t> row_degree(m), col_degree(n), stack;
   std::vector<bool> active(m, true);
-  std::vector<std::uint32_t> leftover, stack;
-  std::size_t max_degree = 0;
-  for (std::size_t c = 0; c < m; ++c) max_degree = std::max(max_degree, code.check_degree(c));
-  std::vector<std::vector<std::uint32_t>> buckets(max_degree + 1);
-  std::size_t lowest = max_degree + 1;  // no bucket below this holds a live entry
+  std::size_t max_col = 0, max_row = 0;
+  for (std::size_t v = 0; v < n; ++v) max_col = std::max(max_col, code.variable_degree(v));
+  for (std::size_t c = 0; c < m; ++c) max_row = std::max(max_row, code.check_degree(c));
+  Buckets cols(max_col), rows(max_row);
 
-  auto file_row = [&](std::uint32_t r) {
-    const std::uint32_t d = row_degree[r];
+  auto file_row = [&](std::uint32_t c) {
+    const std::uint32_t d = row_degree[c];
     if (d == 0) {
-      active[r] = false;
-      leftover.push_back(r);
+      active[c] = false;
+      t.leftover.push_back(c);
     } else if (d == 1) {
-      stack.push_back(r);
-    } else {
-      buckets[d].push_back(r);
-      lowest = std::min<std::size_t>(lowest, d);
+      stack.push_back(c);
+    } else if (stall == Stall::lowest_row) {
+      rows.push(d, c);
     }
   };
-  // Marks variable v decided (free or pivot) and updates the degrees of the checks holding it.
+  // Marks variable v decided and updates the degrees of the live checks holding it.
   auto decide = [&](std::uint32_t v, Role r) {
     role[v] = r;
     for (std::uint32_t e : code.variable_edges(v)) {
@@ -74,17 +106,19 @@ Encoder::Encoder(const Code& code) : n_(code.n()) {
   auto retire = [&](std::uint32_t c) {
     active[c] = false;
     for (std::uint32_t v : code.check_variables(c)) {
-      if (role[v] == Role::undecided) --col_degree[v];
+      if (role[v] == Role::undecided && --col_degree[v] > 0) cols.push(col_degree[v], v);
     }
   };
-
-  for (std::size_t v = 0; v < n; ++v) col_degree[v] = static_cast<std::uint32_t>(code.variable_degree(v));
+  for (std::size_t v = 0; v < n; ++v) {
+    col_degree[v] = static_cast<std::uint32_t>(code.variable_degree(v));
+    cols.push(col_degree[v], static_cast<std::uint32_t>(v));
+  }
   for (std::size_t c = 0; c < m; ++c) {
     row_degree[c] = static_cast<std::uint32_t>(code.check_degree(c));
     file_row(static_cast<std::uint32_t>(c));
   }
-
-  pivot_start_.push_back(0);
+  auto live_col = [&](std::uint32_t v, std::size_t d) { return role[v] == Role::undecided && col_degree[v] == d; };
+  auto live_row = [&](std::uint32_t c, std::size_t d) { return active[c] && row_degree[c] == d; };
   for (;;) {
     if (!stack.empty()) {
       const std::uint32_t c = stack.back();
@@ -93,54 +127,54 @@ Encoder::Encoder(const Code& code) : n_(code.n()) {
       std::uint32_t target = 0;
       for (std::uint32_t v : code.check_variables(c)) {
         if (role[v] == Role::undecided) target = v;
-        else pivot_others_.push_back(v);
+        else t.others.push_back(v);
       }
       retire(c);
-      pivot_cols_.push_back(target);
-      pivot_start_.push_back(static_cast<std::uint32_t>(pivot_others_.size()));
+      t.cols.push_back(target);
+      t.start.push_back(static_cast<std::uint32_t>(t.others.size()));
       decide(target, Role::pivot);
       continue;
     }
-    // Peeling stalled: take a live check of lowest degree and free all but one of its bits,
-    // keeping as pivot the bit that appears in the fewest other live checks.
-    std::uint32_t chosen = UINT32_MAX;
-    while (lowest <= max_degree && chosen == UINT32_MAX) {
-      auto& bucket = buckets[lowest];
-      while (!bucket.empty()) {
-        const std::uint32_t c = bucket.back();
-        bucket.pop_back();
-        if (active[c] && row_degree[c] == lowest) {
-          chosen = c;
-          break;
-        }
+    // Stalled: free one bit, then peel again. Freeing one bit at a time lets a check that drops
+    // to one undetermined bit be peeled before another free bit leaves it with none (which would
+    // grow the dense part).
+    std::uint32_t widest = UINT32_MAX;
+    if (stall == Stall::widest_column) {
+      widest = cols.pop(true, live_col);
+    } else if (const std::uint32_t c = rows.pop(false, live_row); c != UINT32_MAX) {
+      for (std::uint32_t v : code.check_variables(c)) {
+        if (role[v] == Role::undecided && (widest == UINT32_MAX || col_degree[v] > col_degree[widest])) widest = v;
       }
-      if (chosen == UINT32_MAX) ++lowest;
+      rows.push(row_degree[c], c);  // still live; it will be peeled or picked again
     }
-    if (chosen == UINT32_MAX) break;
-    std::uint32_t keep = UINT32_MAX;
-    for (std::uint32_t v : code.check_variables(chosen)) {
-      if (role[v] == Role::undecided && (keep == UINT32_MAX || col_degree[v] < col_degree[keep])) {
-        keep = v;
-      }
-    }
-    for (std::uint32_t v : code.check_variables(chosen)) {
-      if (role[v] == Role::undecided && v != keep) {
-        free_cols_.push_back(v);
-        decide(v, Role::free);
-      }
-    }
+    if (widest == UINT32_MAX) break;
+    t.free_cols.push_back(widest);
+    decide(widest, Role::free);
   }
   for (std::size_t v = 0; v < n; ++v) {
-    if (role[v] == Role::undecided) {
-      role[v] = Role::free;
-      free_cols_.push_back(static_cast<std::uint32_t>(v));
-    }
+    if (role[v] == Role::undecided) t.free_cols.push_back(static_cast<std::uint32_t>(v));
   }
+  return t;
+}
+
+}  // namespace
+
+Encoder::Encoder(const Code& code) : n_(code.n()) {
+  // The dense remainder costs O(leftover^2 * free / 64); keep the peeling that leaves less.
+  Triangulation t = peel(code, Stall::widest_column);
+  if (!t.leftover.empty()) {
+    Triangulation other = peel(code, Stall::lowest_row);
+    if (other.leftover.size() < t.leftover.size()) t = std::move(other);
+  }
+  pivot_cols_ = std::move(t.cols);
+  pivot_start_ = std::move(t.start);
+  pivot_others_ = std::move(t.others);
+  free_cols_ = std::move(t.free_cols);
+  const std::vector<std::uint32_t>& leftover = t.leftover;
+  const std::size_t n = code.n();
 
   // Express each leftover check over the free bits by substituting the triangular part in
   // reverse order, 64 leftover checks at a time (one bit lane each).
-  std::vector<std::uint32_t> free_index(n, UINT32_MAX);
-  for (std::size_t f = 0; f < free_cols_.size(); ++f) free_index[free_cols_[f]] = static_cast<std::uint32_t>(f);
   BitMatrix dense(leftover.size(), free_cols_.size());
   std::vector<std::uint64_t> lanes(n);
   for (std::size_t base = 0; base < leftover.size(); base += 64) {
@@ -170,26 +204,33 @@ Encoder::Encoder(const Code& code) : n_(code.n()) {
     gap_cols_.push_back(free_cols_[gap_pivots[j]]);
     is_gap[gap_pivots[j]] = true;
   }
+  std::vector<std::pair<std::uint32_t, std::uint32_t>> info;  // (position, free index)
   for (std::size_t f = 0; f < free_cols_.size(); ++f) {
-    if (!is_gap[f]) info_positions_.push_back(free_cols_[f]);
+    if (!is_gap[f]) info.emplace_back(free_cols_[f], static_cast<std::uint32_t>(f));
   }
-  std::sort(info_positions_.begin(), info_positions_.end());
+  std::sort(info.begin(), info.end());
+  for (auto [position, f] : info) {
+    info_positions_.push_back(position);
+    info_free_index_.push_back(f);
+  }
 }
 
 void Encoder::encode(std::span<const std::uint8_t> info, std::span<std::uint8_t> codeword) const {
   TANNERY_ASSERT(info.size() == k() && codeword.size() == n_);
   std::fill(codeword.begin(), codeword.end(), std::uint8_t{0});
   for (std::size_t i = 0; i < info.size(); ++i) codeword[info_positions_[i]] = info[i] & 1u;
-  // Gap bits depend on information bits only (row-echelon form has zeros at other pivots).
+  // Gap bits depend on information bits only (row-echelon form has zeros at other pivots):
+  // each is the parity of a dense row ANDed with the information bits packed by free index.
+  thread_local std::vector<std::uint64_t> packed;
+  packed.assign(gap_rows_.words_per_row(), 0);
+  for (std::size_t i = 0; i < info.size(); ++i) {
+    packed[info_free_index_[i] >> 6] |= std::uint64_t{info[i] & 1u} << (info_free_index_[i] & 63);
+  }
   for (std::size_t j = 0; j < gap_cols_.size(); ++j) {
     const std::uint64_t* row = gap_rows_.row(j);
-    std::uint8_t parity = 0;
-    for (std::size_t w = 0; w < gap_rows_.words_per_row(); ++w) {
-      for (std::uint64_t bits = row[w]; bits != 0; bits &= bits - 1) {
-        parity ^= codeword[free_cols_[w * 64 + static_cast<std::size_t>(std::countr_zero(bits))]];
-      }
-    }
-    codeword[gap_cols_[j]] = parity;
+    std::uint64_t acc = 0;
+    for (std::size_t w = 0; w < packed.size(); ++w) acc ^= row[w] & packed[w];
+    codeword[gap_cols_[j]] = static_cast<std::uint8_t>(std::popcount(acc) & 1);
   }
   for (std::size_t i = 0; i < pivot_cols_.size(); ++i) {
     std::uint8_t parity = 0;

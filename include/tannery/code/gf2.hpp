@@ -3,8 +3,9 @@
 // The encoder works on the sparse graph first and only falls back to dense bit-packed
 // elimination for a small remainder: checks are peeled into a triangular system the way an
 // erasure decoder peels (a check with one undetermined bit determines it); when peeling
-// stalls, the bits of a lowest-degree check that appear in most other checks are declared
-// free. The checks left without a pivot form a dense system over the free bits (64-bit words),
+// stalls, one bit is declared
+// free (the bit in most live checks, or one from a lowest-degree check: both are tried and the
+// smaller remainder kept). The checks left without a pivot form a dense system over the free bits (64-bit words),
 // reduced to row-echelon form. Free bits not pivoted there carry the information.
 // For standard LDPC codes the dense remainder is tiny, so a 32 400 x 64 800 matrix takes well
 // under a second (see the README for the measurement).
@@ -60,7 +61,7 @@ class Encoder {
   const std::vector<std::uint32_t>& info_positions() const noexcept { return info_positions_; }
 
   // info: k bytes (0/1) -> codeword: n bytes (0/1) with H c = 0 and c[info_positions[i]] = info[i].
-  // O(E + dense part); no allocation.
+  // O(E + gap x free / 64); allocates only a per-thread scratch row on first use.
   void encode(std::span<const std::uint8_t> info, std::span<std::uint8_t> codeword) const;
 
  private:
@@ -73,6 +74,7 @@ class Encoder {
   // Dense part: gap_cols_[j] = parity over free bits selected by row j of gap_rows_.
   std::vector<std::uint32_t> free_cols_;  // all free variables; bit f of a gap row is free_cols_[f]
   std::vector<std::uint32_t> gap_cols_;
+  std::vector<std::uint32_t> info_free_index_;  // information bit i is free bit info_free_index_[i]
   BitMatrix gap_rows_;
 };
 

@@ -1,0 +1,59 @@
+// Helpers shared by the unit tests: shipped codes, random sparse codes, dense reference algebra.
+#pragma once
+
+#include <cstdint>
+#include <string>
+#include <vector>
+
+#include "tannery/code/code.hpp"
+#include "tannery/code/construct.hpp"
+#include "tannery/io/matrix_io.hpp"
+
+namespace tannery::test {
+
+inline const std::vector<std::string>& shipped_codes() {
+  static const std::vector<std::string> names = {"hamming-7-4.tanner", "hamming-15-11.tanner",
+                                                 "repetition-5.tanner", "parity-8.tanner",
+                                                 "regular-3-6-n2016.tanner", "qc-rate-half-z54.qc"};
+  return names;
+}
+inline Code shipped(const std::string& file) {
+  return read_code_file(std::string(TANNERY_CODES_DIR) + "/" + file);
+}
+
+// Random m x n matrix, each entry 1 with probability about density (seeded, reproducible).
+inline Code random_code(std::size_t m, std::size_t n, double density, std::uint64_t seed) {
+  SplitMix rng(seed);
+  std::vector<std::vector<std::uint32_t>> checks(m);
+  const auto threshold = static_cast<std::uint64_t>(density * 18446744073709551615.0);
+  for (std::size_t c = 0; c < m; ++c) {
+    for (std::size_t v = 0; v < n; ++v) {
+      if (rng.next() < threshold) checks[c].push_back(static_cast<std::uint32_t>(v));
+    }
+  }
+  return Code::from_checks(n, checks);
+}
+
+// Rank over GF(2) by plain Gaussian elimination on rows of bools: an independent reference.
+inline std::size_t naive_rank(const Code& code) {
+  std::vector<std::vector<bool>> rows(code.m(), std::vector<bool>(code.n(), false));
+  for (std::size_t c = 0; c < code.m(); ++c) {
+    for (auto v : code.check_variables(c)) rows[c][v] = true;
+  }
+  std::size_t rank = 0;
+  for (std::size_t col = 0; col < code.n() && rank < rows.size(); ++col) {
+    std::size_t p = rank;
+    while (p < rows.size() && !rows[p][col]) ++p;
+    if (p == rows.size()) continue;
+    std::swap(rows[p], rows[rank]);
+    for (std::size_t r = 0; r < rows.size(); ++r) {
+      if (r != rank && rows[r][col]) {
+        for (std::size_t j = 0; j < code.n(); ++j) rows[r][j] = rows[r][j] != rows[rank][j];
+      }
+    }
+    ++rank;
+  }
+  return rank;
+}
+
+}  // namespace tannery::test
