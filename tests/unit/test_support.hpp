@@ -57,3 +57,33 @@ inline std::size_t naive_rank(const Code& code) {
 }
 
 }  // namespace tannery::test
+
+#include <cmath>
+
+namespace tannery::test {
+
+// Standard normal samples by Box-Muller on SplitMix uniforms (test-only noise source).
+class Gaussian {
+ public:
+  explicit Gaussian(std::uint64_t seed) : rng_(seed) {}
+  double operator()() {
+    const double u1 = (static_cast<double>(rng_.next() >> 11) + 1.0) * 0x1.0p-53;  // (0, 1]
+    const double u2 = static_cast<double>(rng_.next() >> 11) * 0x1.0p-53;
+    return std::sqrt(-2.0 * std::log(u1)) * std::cos(6.283185307179586 * u2);
+  }
+
+ private:
+  SplitMix rng_;
+};
+
+// Channel LLRs of a BPSK-modulated codeword (0 -> +1) over AWGN with noise deviation sigma.
+inline std::vector<double> awgn_llrs(const std::vector<std::uint8_t>& word, double sigma, Gaussian& g) {
+  std::vector<double> llr(word.size());
+  for (std::size_t i = 0; i < word.size(); ++i) {
+    const double y = (word[i] ? -1.0 : 1.0) + sigma * g();
+    llr[i] = 2.0 * y / (sigma * sigma);
+  }
+  return llr;
+}
+
+}  // namespace tannery::test

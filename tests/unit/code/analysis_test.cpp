@@ -97,7 +97,7 @@ TEST_CASE("girth and shortest-cycle counts match brute force", "[analysis]") {
   CHECK(census.count == brute_force_6_cycles(regular));
 }
 
-TEST_CASE("trees have no girth; a single cycle is found exactly", "[analysis]") {
+TEST_CASE("trees have no girth, a single cycle is found exactly", "[analysis]") {
   CHECK_FALSE(cycle_census(construct_repetition(6)).girth.has_value());
   // Checks {0,1},{1,2},{2,0}: one cycle through 3 variables and 3 checks, length 6.
   const Code ring = Code::from_checks(3, {{0, 1}, {1, 2}, {0, 2}});

@@ -1,0 +1,85 @@
+// One batch API over every decoder. A decoder is built once from (code, settings) and then
+// decodes batches of frames of channel LLRs, L = log P(bit = 0) / P(bit = 1) (positive means 0),
+// into hard decisions, optional posterior LLRs and a per-frame outcome. Decoders keep their
+// scratch memory between batches (no allocation after the first batch of a given size) and are
+// not shared between threads: use one per thread.
+//
+// These are the scalar reference decoders: plain code in double precision whose job is to be
+// obviously right; faster kernels are tested against them.
+#pragma once
+
+#include <cstddef>
+#include <cstdint>
+#include <memory>
+#include <optional>
+#include <span>
+#include <string>
+#include <string_view>
+
+#include "tannery/code/code.hpp"
+
+namespace tannery {
+
+enum class Algorithm { sum_product, min_sum, normalized_min_sum, offset_min_sum, bit_flip, ml };
+enum class Schedule { flooding, layered };
+
+std::string_view algorithm_name(Algorithm a);
+std::optional<Algorithm> parse_algorithm(std::string_view name);
+std::string_view schedule_name(Schedule s);
+std::optional<Schedule> parse_schedule(std::string_view name);
+
+struct DecoderSettings {
+  Algorithm algorithm = Algorithm::sum_product;
+  Schedule schedule = Schedule::flooding;
+  int iterations = 50;        // maximum iterations (ignored by ml)
+  bool early_stop = true;     // stop a frame once its hard decisions satisfy every check
+  double alpha = 0.75;        // normalized min-sum: check messages scaled by alpha, 0 < alpha <= 1
+  double beta = 0.5;          // offset min-sum: check magnitudes reduced by beta >= 0 (floored at 0)
+  int flip_threshold = 0;     // bit-flip: other checks that must disagree to flip; 0 = majority
+
+  bool operator==(const DecoderSettings&) const = default;
+};
+
+// Throws Error for impossible settings (ml above k = 24, a layered bit-flip, alpha outside (0, 1]...).
+void validate(const DecoderSettings& settings, const Code& code);
+// One line such as "sum-product, flooding, 50 iterations, early stop".
+std::string describe(const DecoderSettings& settings);
+
+struct FrameOutcome {
+  int iterations = 0;                // iterations run (ml: 1)
+  bool converged = false;            // hard decisions satisfy every check
+  std::uint32_t syndrome_weight = 0;  // unsatisfied checks at exit
+};
+
+// Magnitude at which channel LLRs and messages are clipped: ±Inf and huge inputs become
+// certainties of this size (a probability of error near e^-1e5, zero in double precision),
+// so no NaN or Inf can arise inside the decoders.
+inline constexpr double kLlrLimit = 1e5;
+
+class Decoder {
+ public:
+  virtual ~Decoder() = default;
+
+  // Decodes outcome.size() frames. llr and hard hold frames x n values; posterior is frames x n
+  // or empty (not wanted). A NaN input throws Error naming the frame (first_frame + index in
+  // the batch) and the position; nothing is decoded then.
+  void decode(std::span<const double> llr, std::span<std::uint8_t> hard, std::span<double> posterior,
+              std::span<FrameOutcome> outcome, std::size_t first_frame = 0);
+
+  const Code& code() const noexcept { return code_; }
+  const DecoderSettings& settings() const noexcept { return settings_; }
+
+ protected:
+  Decoder(const Code& code, const DecoderSettings& settings) : code_(code), settings_(settings) {}
+  // One frame; posterior is empty when not wanted. Inputs are NaN-free.
+  virtual FrameOutcome decode_frame(std::span<const double> llr, std::span<std::uint8_t> hard,
+                                    std::span<double> posterior) = 0;
+
+  const Code& code_;
+  DecoderSettings settings_;
+};
+
+// Validates the settings and builds the decoder; code must outlive it.
+std::unique_ptr<Decoder> make_decoder(const Code& code, const DecoderSettings& settings);
+
+}  // namespace tannery
