@@ -2,6 +2,7 @@
 #pragma once
 
 #include <CLI/CLI.hpp>
+#include <atomic>
 
 namespace tannery::cli {
 
@@ -42,4 +43,35 @@ struct CodeInput {
 namespace tannery::cli {
 // Output matrix format from --to, else from the file extension, else (stdout) tannery's own.
 MatrixFormat output_format(const std::string& to, const std::string& path);
+}  // namespace tannery::cli
+
+#include "tannery/decode/decoder.hpp"
+
+namespace tannery::cli {
+
+// The decoder option group shared by every subcommand that decodes.
+struct DecoderOptions {
+  std::string algorithm = "sum-product";
+  std::string schedule = "flooding";
+  int iterations = 50;
+  bool no_early_stop = false;
+  double alpha = 0.75;
+  double beta = 0.5;
+  int flip_threshold = 0;
+  CLI::Option* alpha_option = nullptr;
+  CLI::Option* beta_option = nullptr;
+  CLI::Option* threshold_option = nullptr;
+
+  void add_to(CLI::App& sub);
+  // Settings from the options; refuses parameters that the chosen algorithm does not use.
+  DecoderSettings settings() const;
+};
+
+void add_simulate(CLI::App& app);
+void add_plot(CLI::App& app);
+
+// Set by SIGINT/SIGTERM once install_interrupt_handler() ran; a second signal kills at once.
+extern std::atomic<bool> g_interrupted;
+void install_interrupt_handler();
+
 }  // namespace tannery::cli

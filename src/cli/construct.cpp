@@ -35,8 +35,9 @@ Code build(const ConstructOptions& o) {
       const double exact = static_cast<double>(o.variable_degree) / (1.0 - o.rate);
       dc = static_cast<std::size_t>(std::llround(exact));
       if (o.rate <= 0 || o.rate >= 1 || std::abs(exact - static_cast<double>(dc)) > 1e-9) {
-        throw Error(fmt::format("rate {} with variable degree {} gives no integer check degree; pass --check-degree",
-                                o.rate, o.variable_degree));
+        throw Error(fmt::format(
+            "rate {} with variable degree {} gives no integer check degree; pass --check-degree",
+            o.rate, o.variable_degree));
       }
     }
     return construct_regular(need_length(), o.variable_degree, dc, o.seed);
@@ -45,13 +46,15 @@ Code build(const ConstructOptions& o) {
     const std::size_t n = need_length();
     std::size_t r = 0;
     while ((std::size_t{1} << r) - 1 < n) ++r;
-    if ((std::size_t{1} << r) - 1 != n) throw Error(fmt::format("Hamming length must be 2^r - 1, got {}", n));
+    if ((std::size_t{1} << r) - 1 != n)
+      throw Error(fmt::format("Hamming length must be 2^r - 1, got {}", n));
     return construct_hamming(r);
   }
   if (o.kind == "repetition") return construct_repetition(need_length());
   if (o.kind == "parity") return construct_single_parity(need_length());
   // lift
-  if (o.base.empty() || o.lifting == 0) throw Error("construct lift needs --base FILE and --lifting Z");
+  if (o.base.empty() || o.lifting == 0)
+    throw Error("construct lift needs --base FILE and --lifting Z");
   const Code pattern = read_code_file(o.base, ReadOptions{MatrixFormat::dense, std::nullopt});
   std::vector<std::uint8_t> cells(pattern.m() * pattern.n(), 0);
   for (std::size_t c = 0; c < pattern.m(); ++c) {
@@ -65,14 +68,17 @@ Code build(const ConstructOptions& o) {
 
 void add_construct(CLI::App& app) {
   auto o = std::make_shared<ConstructOptions>();
-  auto* sub = app.add_subcommand("construct", "Build a parity-check matrix (deterministic for a seed)");
+  auto* sub =
+      app.add_subcommand("construct", "Build a parity-check matrix (deterministic for a seed)");
   sub->footer(
       "Examples:\n"
-      "  tannery construct regular --length 2016 --variable-degree 3 --check-degree 6 --seed 7 -o my.tanner\n"
+      "  tannery construct regular --length 2016 --variable-degree 3 --check-degree 6 --seed 7 -o "
+      "my.tanner\n"
       "  tannery construct lift --base pattern.dense --lifting 54 -o my.qc\n"
       "  tannery construct hamming --length 15 -o h15.tanner");
   sub->add_option("KIND", o->kind,
-                  "regular: random (dv,dc)-regular code without 4-cycles; lift: quasi-cyclic lifting of a 0/1 "
+                  "regular: random (dv,dc)-regular code without 4-cycles; lift: quasi-cyclic "
+                  "lifting of a 0/1 "
                   "base graph; hamming, repetition, parity: classic codes")
       ->required()
       ->check(CLI::IsMember({"regular", "lift", "hamming", "repetition", "parity"}));
@@ -81,9 +87,12 @@ void add_construct(CLI::App& app) {
       ->check(CLI::IsMember({"tannery", "alist", "mtx", "qc", "dense"}));
   sub->add_option("--seed", o->seed, "seed of the construction")->capture_default_str();
   sub->add_option("--length", o->length, "code length n (bits)");
-  sub->add_option("--variable-degree", o->variable_degree, "variable-node degree dv (regular)")->capture_default_str();
-  sub->add_option("--check-degree", o->check_degree, "check-node degree dc (regular; default from --rate)");
-  sub->add_option("--rate", o->rate, "design rate 1 - dv/dc (regular, when --check-degree is not given)")
+  sub->add_option("--variable-degree", o->variable_degree, "variable-node degree dv (regular)")
+      ->capture_default_str();
+  sub->add_option("--check-degree", o->check_degree,
+                  "check-node degree dc (regular; default from --rate)");
+  sub->add_option("--rate", o->rate,
+                  "design rate 1 - dv/dc (regular, when --check-degree is not given)")
       ->capture_default_str();
   sub->add_option("--base", o->base, "0/1 base graph (dense format) to lift");
   sub->add_option("--lifting", o->lifting, "lifting size Z (circulant size) for lift");
@@ -94,8 +103,8 @@ void add_construct(CLI::App& app) {
     write_code_file(code, format, o->output);
     if (o->output != "-") {
       const CycleCensus cycles = cycle_census(code);
-      fmt::print(stderr, "wrote {} ({} format): n = {}, m = {}, edges = {}, girth = {}\n", o->output,
-                 format_name(format), code.n(), code.m(), code.edges(),
+      fmt::print(stderr, "wrote {} ({} format): n = {}, m = {}, edges = {}, girth = {}\n",
+                 o->output, format_name(format), code.n(), code.m(), code.edges(),
                  cycles.girth ? fmt::format("{}", *cycles.girth) : std::string("none"));
     }
   });

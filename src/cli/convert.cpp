@@ -22,18 +22,25 @@ MatrixFormat output_format(const std::string& to, const std::string& path) {
   if (!to.empty()) return *parse_format_name(to);
   if (auto f = format_from_extension(path)) return *f;
   if (path == "-") return MatrixFormat::tannery;
-  throw Error(fmt::format("{}: cannot tell the output format from the extension; pass --to "
-                          "(tannery, alist, mtx, qc or dense)", path));
+  throw Error(
+      fmt::format("{}: cannot tell the output format from the extension; pass --to "
+                  "(tannery, alist, mtx, qc or dense)",
+                  path));
 }
 
 void add_convert(CLI::App& app) {
   auto o = std::make_shared<ConvertOptions>();
   auto* sub = app.add_subcommand("convert", "Convert a parity-check matrix between formats");
-  sub->footer("Example:\n  tannery convert codes/qc-rate-half-z54.qc big.alist\n  tannery convert H.mtx - --to dense");
+  sub->footer(
+      "Example:\n  tannery convert codes/qc-rate-half-z54.qc big.alist\n  tannery convert H.mtx - "
+      "--to dense");
   o->input.add_to(*sub, true, "");
-  sub->add_option("OUT", o->output, "output file ('-' = stdout); format from --to or the extension "
-                                    "(.tanner .alist .mtx .qc .dense)")->required();
-  sub->add_option("--to", o->to, "output format")->check(CLI::IsMember({"tannery", "alist", "mtx", "qc", "dense"}));
+  sub->add_option("OUT", o->output,
+                  "output file ('-' = stdout); format from --to or the extension "
+                  "(.tanner .alist .mtx .qc .dense)")
+      ->required();
+  sub->add_option("--to", o->to, "output format")
+      ->check(CLI::IsMember({"tannery", "alist", "mtx", "qc", "dense"}));
   sub->callback([o] {
     const Code code = o->input.load();
     write_code_file(code, output_format(o->to, o->output), o->output);

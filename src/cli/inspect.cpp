@@ -33,7 +33,8 @@ nlohmann::json degree_json(const std::map<std::size_t, std::size_t>& counts) {
   for (auto [d, c] : counts) j[std::to_string(d)] = c;
   return j;
 }
-nlohmann::json edge_fraction_json(const std::map<std::size_t, std::size_t>& counts, std::size_t edges) {
+nlohmann::json edge_fraction_json(const std::map<std::size_t, std::size_t>& counts,
+                                  std::size_t edges) {
   nlohmann::json j = nlohmann::json::object();
   for (auto [d, c] : counts) {
     if (d > 0) j[std::to_string(d)] = static_cast<double>(d * c) / static_cast<double>(edges);
@@ -50,9 +51,12 @@ void print_json(const InspectOptions& o, const Report& r) {
   j["rank"] = r.encoder.rank();
   j["k"] = r.encoder.k();
   j["rate"] = code.n() ? static_cast<double>(r.encoder.k()) / static_cast<double>(code.n()) : 0.0;
-  j["design_rate"] = code.n() ? 1.0 - static_cast<double>(code.m()) / static_cast<double>(code.n()) : 0.0;
+  j["design_rate"] =
+      code.n() ? 1.0 - static_cast<double>(code.m()) / static_cast<double>(code.n()) : 0.0;
   j["edges"] = code.edges();
-  j["density"] = code.n() && code.m() ? static_cast<double>(code.edges()) / static_cast<double>(code.n() * code.m()) : 0.0;
+  j["density"] = code.n() && code.m()
+                     ? static_cast<double>(code.edges()) / static_cast<double>(code.n() * code.m())
+                     : 0.0;
   j["variable_degrees"] = degree_json(r.degrees.variable);
   j["check_degrees"] = degree_json(r.degrees.check);
   j["lambda"] = edge_fraction_json(r.degrees.variable, code.edges());
@@ -66,13 +70,15 @@ void print_json(const InspectOptions& o, const Report& r) {
   j["min_distance"] = r.distance ? nlohmann::json(*r.distance) : nlohmann::json(nullptr);
   j["weight_enumerator"] = r.enumerator ? nlohmann::json(*r.enumerator) : nlohmann::json(nullptr);
   if (const auto& qc = code.quasi_cyclic()) {
-    j["quasi_cyclic"] = {{"block_rows", qc->block_rows}, {"block_cols", qc->block_cols}, {"lifting", qc->lifting}};
+    j["quasi_cyclic"] = {
+        {"block_rows", qc->block_rows}, {"block_cols", qc->block_cols}, {"lifting", qc->lifting}};
   } else {
     j["quasi_cyclic"] = nullptr;
   }
   j["info_positions_head"] = std::vector<std::uint32_t>(
       r.encoder.info_positions().begin(),
-      r.encoder.info_positions().begin() + static_cast<std::ptrdiff_t>(std::min<std::size_t>(16, r.encoder.k())));
+      r.encoder.info_positions().begin() +
+          static_cast<std::ptrdiff_t>(std::min<std::size_t>(16, r.encoder.k())));
   fmt::print("{}\n", j.dump(2));
 }
 
@@ -81,7 +87,8 @@ std::string degree_lines(const std::map<std::size_t, std::size_t>& counts, std::
   std::string out;
   for (auto [d, c] : counts) {
     out += fmt::format("  {:>4}  {:>9} nodes  {:6.2f}% of nodes  {}_{} = {:.6f}\n", d, c,
-                       nodes ? 100.0 * static_cast<double>(c) / static_cast<double>(nodes) : 0.0, symbol, d,
+                       nodes ? 100.0 * static_cast<double>(c) / static_cast<double>(nodes) : 0.0,
+                       symbol, d,
                        edges ? static_cast<double>(d * c) / static_cast<double>(edges) : 0.0);
   }
   return out;
@@ -92,8 +99,11 @@ std::string polynomial(const std::vector<std::uint64_t>& a) {
   for (std::size_t w = 0; w < a.size(); ++w) {
     if (a[w] == 0) continue;
     if (!out.empty()) out += " + ";
-    if (w == 0) out += fmt::format("{}", a[w]);
-    else out += fmt::format("{}{}", a[w] == 1 ? "" : fmt::format("{}", a[w]), w == 1 ? "z" : fmt::format("z^{}", w));
+    if (w == 0)
+      out += fmt::format("{}", a[w]);
+    else
+      out += fmt::format("{}{}", a[w] == 1 ? "" : fmt::format("{}", a[w]),
+                         w == 1 ? "z" : fmt::format("z^{}", w));
   }
   return out;
 }
@@ -104,31 +114,41 @@ void print_text(const InspectOptions& o, const Report& r) {
   std::string s;
   s += fmt::format("code           {}\n", o.input.code);
   s += fmt::format("length n       {}\nchecks m       {}\n", code.n(), code.m());
-  s += fmt::format("rank           {}   ({} redundant rows)\n", r.encoder.rank(), code.m() - r.encoder.rank());
+  s += fmt::format("rank           {}   ({} redundant rows)\n", r.encoder.rank(),
+                   code.m() - r.encoder.rank());
   s += fmt::format("dimension k    {}\n", r.encoder.k());
-  s += fmt::format("rate k/n       {:.6f}   design rate 1 - m/n = {:.6f}\n", n ? static_cast<double>(r.encoder.k()) / n : 0.0,
+  s += fmt::format("rate k/n       {:.6f}   design rate 1 - m/n = {:.6f}\n",
+                   n ? static_cast<double>(r.encoder.k()) / n : 0.0,
                    n ? 1.0 - static_cast<double>(code.m()) / n : 0.0);
   s += fmt::format("edges          {}   density {:.6g}\n", code.edges(),
-                   code.n() && code.m() ? static_cast<double>(code.edges()) / (n * static_cast<double>(code.m())) : 0.0);
+                   code.n() && code.m()
+                       ? static_cast<double>(code.edges()) / (n * static_cast<double>(code.m()))
+                       : 0.0);
   s += "variable degrees (node perspective; edge perspective lambda_d)\n";
   s += degree_lines(r.degrees.variable, code.n(), code.edges(), "lambda");
   s += "check degrees (node perspective; edge perspective rho_d)\n";
   s += degree_lines(r.degrees.check, code.m(), code.edges(), "rho");
   if (r.cycles.girth) {
-    s += fmt::format("girth          {}   ({} cycles of length {})\n", *r.cycles.girth, r.cycles.count, *r.cycles.girth);
+    s += fmt::format("girth          {}   ({} cycles of length {})\n", *r.cycles.girth,
+                     r.cycles.count, *r.cycles.girth);
   } else {
     s += "girth          none (the Tanner graph is a forest)\n";
   }
   if (const auto& qc = code.quasi_cyclic()) {
-    s += fmt::format("quasi-cyclic   {} x {} base blocks, lifting size Z = {}\n", qc->block_rows, qc->block_cols, qc->lifting);
+    s += fmt::format("quasi-cyclic   {} x {} base blocks, lifting size Z = {}\n", qc->block_rows,
+                     qc->block_cols, qc->lifting);
   }
-  if (!r.redundancy.empty.empty()) s += fmt::format("empty rows     {}\n", fmt::join(r.redundancy.empty, " "));
-  for (auto [a, b] : r.redundancy.repeated) s += fmt::format("repeated row   {} repeats row {}\n", b, a);
+  if (!r.redundancy.empty.empty())
+    s += fmt::format("empty rows     {}\n", fmt::join(r.redundancy.empty, " "));
+  for (auto [a, b] : r.redundancy.repeated)
+    s += fmt::format("repeated row   {} repeats row {}\n", b, a);
   if (r.enumerator) {
-    s += r.distance ? fmt::format("min distance   {}\n", *r.distance) : "min distance   none (k = 0)\n";
+    s += r.distance ? fmt::format("min distance   {}\n", *r.distance)
+                    : "min distance   none (k = 0)\n";
     s += fmt::format("weight enumerator  A(z) = {}\n", polynomial(*r.enumerator));
   } else {
-    s += fmt::format("min distance   not computed (k = {} > {}; enumeration is exhaustive)\n", r.encoder.k(), o.max_dimension);
+    s += fmt::format("min distance   not computed (k = {} > {}; enumeration is exhaustive)\n",
+                     r.encoder.k(), o.max_dimension);
   }
   fmt::print("{}", s);
 }
@@ -142,20 +162,24 @@ void run(const InspectOptions& o) {
   r.redundancy = row_redundancy(r.code);
   r.enumerator = weight_enumerator(r.code, r.encoder, o.max_dimension);
   if (r.enumerator) r.distance = minimum_distance(*r.enumerator);
-  if (o.json) print_json(o, r);
-  else print_text(o, r);
+  if (o.json)
+    print_json(o, r);
+  else
+    print_text(o, r);
 }
 
 }  // namespace
 
 void add_inspect(CLI::App& app) {
   auto o = std::make_shared<InspectOptions>();
-  auto* sub = app.add_subcommand("inspect", "Structure of a code: rank, rate, degrees, girth, minimum distance");
+  auto* sub = app.add_subcommand(
+      "inspect", "Structure of a code: rank, rate, degrees, girth, minimum distance");
   sub->footer("Example:\n  tannery inspect hamming-7-4\n  tannery inspect my-code.alist --json");
   o->input.add_to(*sub, true, kDefaultCode);
   sub->add_flag("--json", o->json, "print one JSON object instead of text");
-  sub->add_option("--max-dimension", o->max_dimension,
-                  "enumerate all 2^k codewords for the weight enumerator only when k is at most this (bits)")
+  sub->add_option(
+         "--max-dimension", o->max_dimension,
+         "enumerate all 2^k codewords for the weight enumerator only when k is at most this (bits)")
       ->capture_default_str()
       ->check(CLI::Range(0, 30));
   sub->callback([o] { run(*o); });

@@ -1,18 +1,21 @@
+#include <fmt/format.h>
 #include <cstdio>
 #include <exception>
-#include <fmt/format.h>
 
 #include "commands.hpp"
 #include "tannery/error.hpp"
 
 int main(int argc, char** argv) {
-  CLI::App app{"tannery: design, inspect, decode and simulate error-correcting codes on Tanner graphs"};
+  CLI::App app{
+      "tannery: design, inspect, decode and simulate error-correcting codes on Tanner graphs"};
   app.set_version_flag("--version", "tannery " TANNERY_VERSION);
   app.require_subcommand(1);
   app.footer("Run 'tannery SUBCOMMAND --help' for the options and an example of each subcommand.");
   tannery::cli::add_inspect(app);
   tannery::cli::add_convert(app);
   tannery::cli::add_construct(app);
+  tannery::cli::add_simulate(app);
+  tannery::cli::add_plot(app);
   try {
     app.parse(argc, argv);
   } catch (const CLI::CallForHelp& e) {

@@ -157,7 +157,8 @@ RowRedundancy row_redundancy(const Code& code) {
   return r;
 }
 
-std::optional<std::vector<std::uint64_t>> weight_enumerator(const Code& code, const Encoder& encoder,
+std::optional<std::vector<std::uint64_t>> weight_enumerator(const Code& code,
+                                                            const Encoder& encoder,
                                                             std::size_t max_dimension) {
   const std::size_t k = encoder.k(), n = code.n();
   if (k > std::min<std::size_t>(max_dimension, 30)) return std::nullopt;

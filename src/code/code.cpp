@@ -1,7 +1,7 @@
 #include "tannery/code/code.hpp"
 
-#include <algorithm>
 #include <fmt/format.h>
+#include <algorithm>
 
 #include "tannery/error.hpp"
 
@@ -14,8 +14,8 @@ constexpr std::size_t kMaxEdges = std::size_t{1} << 31;
 
 Code Code::from_checks(std::size_t n, const std::vector<std::vector<std::uint32_t>>& checks) {
   if (n >= kMaxEdges || checks.size() >= kMaxEdges) {
-    throw Error(fmt::format("code too large: n = {}, m = {} (limit {})", n, checks.size(),
-                            kMaxEdges - 1));
+    throw Error(
+        fmt::format("code too large: n = {}, m = {} (limit {})", n, checks.size(), kMaxEdges - 1));
   }
   Code code;
   code.n_ = n;

@@ -1,7 +1,7 @@
 #include "tannery/code/construct.hpp"
 
-#include <algorithm>
 #include <fmt/format.h>
+#include <algorithm>
 
 #include "tannery/error.hpp"
 
@@ -21,7 +21,8 @@ Code construct_regular(std::size_t n, std::size_t dv, std::size_t dc, std::uint6
 
   // Variables on each check, kept up to date while re-wiring.
   std::vector<std::vector<std::uint32_t>> members(m);
-  for (std::size_t e = 0; e < edges; ++e) members[check_of[e]].push_back(static_cast<std::uint32_t>(e / dv));
+  for (std::size_t e = 0; e < edges; ++e)
+    members[check_of[e]].push_back(static_cast<std::uint32_t>(e / dv));
   auto move = [&](std::size_t e, std::uint32_t to) {
     auto& from = members[check_of[e]];
     from.erase(std::find(from.begin(), from.end(), static_cast<std::uint32_t>(e / dv)));
@@ -38,7 +39,8 @@ Code construct_regular(std::size_t n, std::size_t dv, std::size_t dc, std::uint6
     ++scan;
     for (std::size_t a = 0; a < dv; ++a) {
       for (std::size_t b = 0; b < a; ++b) {
-        if (check_of[v * dv + a] == check_of[v * dv + b]) return static_cast<std::ptrdiff_t>(v * dv + a);
+        if (check_of[v * dv + a] == check_of[v * dv + b])
+          return static_cast<std::ptrdiff_t>(v * dv + a);
       }
     }
     for (std::size_t a = 0; a < dv; ++a) {
@@ -67,12 +69,15 @@ Code construct_regular(std::size_t n, std::size_t dv, std::size_t dc, std::uint6
     }
     if (repaired == 0) break;
     if (pass == kPasses) {
-      throw Error(fmt::format("could not remove all 4-cycles from a ({}, {})-regular code of length {} "
-                              "in {} passes; try a larger length or another seed", dv, dc, n, kPasses));
+      throw Error(
+          fmt::format("could not remove all 4-cycles from a ({}, {})-regular code of length {} "
+                      "in {} passes; try a larger length or another seed",
+                      dv, dc, n, kPasses));
     }
   }
   std::vector<std::vector<std::uint32_t>> checks(m);
-  for (std::size_t e = 0; e < edges; ++e) checks[check_of[e]].push_back(static_cast<std::uint32_t>(e / dv));
+  for (std::size_t e = 0; e < edges; ++e)
+    checks[check_of[e]].push_back(static_cast<std::uint32_t>(e / dv));
   return Code::from_checks(n, checks);
 }
 
@@ -102,8 +107,9 @@ Code construct_single_parity(std::size_t n) {
   return Code::from_checks(n, {all});
 }
 
-QuasiCyclic lift_base_graph(std::size_t rows, std::size_t cols, const std::vector<std::uint8_t>& pattern,
-                            std::size_t z, std::uint64_t seed) {
+QuasiCyclic lift_base_graph(std::size_t rows, std::size_t cols,
+                            const std::vector<std::uint8_t>& pattern, std::size_t z,
+                            std::uint64_t seed) {
   if (pattern.size() != rows * cols) throw Error("base pattern size does not match its dimensions");
   if (z < 2) throw Error("lifting size must be at least 2");
   QuasiCyclic base{rows, cols, z, std::vector<std::int64_t>(rows * cols, -1)};
@@ -151,8 +157,10 @@ QuasiCyclic lift_base_graph(std::size_t rows, std::size_t cols, const std::vecto
         if (count < best_count) best = s, best_count = count;
       }
       if (best_count >= 1000000) {
-        throw Error(fmt::format("no circulant shift for base entry ({}, {}) avoids 4-cycles at Z = {}; "
-                                "use a larger lifting size", i + 1, j + 1, z));
+        throw Error(
+            fmt::format("no circulant shift for base entry ({}, {}) avoids 4-cycles at Z = {}; "
+                        "use a larger lifting size",
+                        i + 1, j + 1, z));
       }
       base.shifts[i * cols + j] = best;
     }

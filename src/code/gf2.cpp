@@ -117,7 +117,9 @@ Triangulation peel(const Code& code, Stall stall) {
     row_degree[c] = static_cast<std::uint32_t>(code.check_degree(c));
     file_row(static_cast<std::uint32_t>(c));
   }
-  auto live_col = [&](std::uint32_t v, std::size_t d) { return role[v] == Role::undecided && col_degree[v] == d; };
+  auto live_col = [&](std::uint32_t v, std::size_t d) {
+    return role[v] == Role::undecided && col_degree[v] == d;
+  };
   auto live_row = [&](std::uint32_t c, std::size_t d) { return active[c] && row_degree[c] == d; };
   for (;;) {
     if (!stack.empty()) {
@@ -126,8 +128,10 @@ Triangulation peel(const Code& code, Stall stall) {
       if (!active[c] || row_degree[c] != 1) continue;
       std::uint32_t target = 0;
       for (std::uint32_t v : code.check_variables(c)) {
-        if (role[v] == Role::undecided) target = v;
-        else t.others.push_back(v);
+        if (role[v] == Role::undecided)
+          target = v;
+        else
+          t.others.push_back(v);
       }
       retire(c);
       t.cols.push_back(target);
@@ -143,7 +147,9 @@ Triangulation peel(const Code& code, Stall stall) {
       widest = cols.pop(true, live_col);
     } else if (const std::uint32_t c = rows.pop(false, live_row); c != UINT32_MAX) {
       for (std::uint32_t v : code.check_variables(c)) {
-        if (role[v] == Role::undecided && (widest == UINT32_MAX || col_degree[v] > col_degree[widest])) widest = v;
+        if (role[v] == Role::undecided &&
+            (widest == UINT32_MAX || col_degree[v] > col_degree[widest]))
+          widest = v;
       }
       rows.push(row_degree[c], c);  // still live; it will be peeled or picked again
     }
@@ -181,13 +187,15 @@ Encoder::Encoder(const Code& code) : n_(code.n()) {
     std::fill(lanes.begin(), lanes.end(), 0);
     const std::size_t count = std::min<std::size_t>(64, leftover.size() - base);
     for (std::size_t b = 0; b < count; ++b) {
-      for (std::uint32_t v : code.check_variables(leftover[base + b])) lanes[v] ^= std::uint64_t{1} << b;
+      for (std::uint32_t v : code.check_variables(leftover[base + b]))
+        lanes[v] ^= std::uint64_t{1} << b;
     }
     for (std::size_t i = pivot_cols_.size(); i-- > 0;) {
       const std::uint64_t w = lanes[pivot_cols_[i]];
       if (w == 0) continue;
       lanes[pivot_cols_[i]] = 0;
-      for (std::uint32_t j = pivot_start_[i]; j < pivot_start_[i + 1]; ++j) lanes[pivot_others_[j]] ^= w;
+      for (std::uint32_t j = pivot_start_[i]; j < pivot_start_[i + 1]; ++j)
+        lanes[pivot_others_[j]] ^= w;
     }
     for (std::size_t f = 0; f < free_cols_.size(); ++f) {
       for (std::uint64_t w = lanes[free_cols_[f]]; w != 0; w &= w - 1) {
@@ -234,7 +242,8 @@ void Encoder::encode(std::span<const std::uint8_t> info, std::span<std::uint8_t>
   }
   for (std::size_t i = 0; i < pivot_cols_.size(); ++i) {
     std::uint8_t parity = 0;
-    for (std::uint32_t j = pivot_start_[i]; j < pivot_start_[i + 1]; ++j) parity ^= codeword[pivot_others_[j]];
+    for (std::uint32_t j = pivot_start_[i]; j < pivot_start_[i + 1]; ++j)
+      parity ^= codeword[pivot_others_[j]];
     codeword[pivot_cols_[i]] = parity;
   }
 }

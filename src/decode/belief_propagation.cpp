@@ -9,19 +9,25 @@ namespace tannery::detail {
 
 namespace {
 
+// log(1 + e^-x) for x >= 0; below 2e-22 beyond x = 50, where it is dropped.
+double softplus_negative(double x) {
+  return x > 50 ? 0.0 : std::log1p(std::exp(-x));
+}
+
 // a ⊞ b = 2 atanh(tanh(a/2) tanh(b/2)), in the form that is exact and overflow-free for any
 // finite a, b: sign(a) sign(b) min(|a|, |b|) + log1p(e^-|a+b|) - log1p(e^-|a-b|).
 double boxplus(double a, double b) {
   const double s = (a < 0) != (b < 0) ? -1.0 : 1.0;
-  return s * std::min(std::abs(a), std::abs(b)) + std::log1p(std::exp(-std::abs(a + b))) -
-         std::log1p(std::exp(-std::abs(a - b)));
+  return s * std::min(std::abs(a), std::abs(b)) + softplus_negative(std::abs(a + b)) -
+         softplus_negative(std::abs(a - b));
 }
 
 class BeliefPropagation final : public Decoder {
  public:
   BeliefPropagation(const Code& code, const DecoderSettings& settings) : Decoder(code, settings) {
     std::size_t max_degree = 0;
-    for (std::size_t c = 0; c < code.m(); ++c) max_degree = std::max(max_degree, code.check_degree(c));
+    for (std::size_t c = 0; c < code.m(); ++c)
+      max_degree = std::max(max_degree, code.check_degree(c));
     v2c_.resize(code.edges());
     c2v_.resize(code.edges());
     channel_.resize(code.n());
@@ -43,8 +49,10 @@ class BeliefPropagation final : public Decoder {
       std::fill(c2v_.begin(), c2v_.end(), 0.0);
     }
     for (int it = 1; it <= settings_.iterations; ++it) {
-      if (settings_.schedule == Schedule::flooding) flooding_iteration();
-      else layered_iteration();
+      if (settings_.schedule == Schedule::flooding)
+        flooding_iteration();
+      else
+        layered_iteration();
       for (std::size_t v = 0; v < code.n(); ++v) hard[v] = total_[v] < 0 ? 1 : 0;
       outcome.iterations = it;
       outcome.syndrome_weight = static_cast<std::uint32_t>(syndrome_weight(code, hard));
@@ -121,7 +129,8 @@ class BeliefPropagation final : public Decoder {
     for (std::size_t i = 0; i < d; ++i) {
       double magnitude = i == at ? min2 : min1;
       if (settings_.algorithm == Algorithm::normalized_min_sum) magnitude *= settings_.alpha;
-      if (settings_.algorithm == Algorithm::offset_min_sum) magnitude = std::max(magnitude - settings_.beta, 0.0);
+      if (settings_.algorithm == Algorithm::offset_min_sum)
+        magnitude = std::max(magnitude - settings_.beta, 0.0);
       out[i] = (negative != (in[i] < 0)) ? -magnitude : magnitude;
     }
   }
@@ -131,7 +140,8 @@ class BeliefPropagation final : public Decoder {
 
 }  // namespace
 
-std::unique_ptr<Decoder> make_belief_propagation(const Code& code, const DecoderSettings& settings) {
+std::unique_ptr<Decoder> make_belief_propagation(const Code& code,
+                                                 const DecoderSettings& settings) {
   return std::make_unique<BeliefPropagation>(code, settings);
 }
 

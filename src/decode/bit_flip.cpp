@@ -24,7 +24,8 @@ class BitFlip final : public Decoder {
       for (std::size_t c = 0; c < code.m(); ++c) {
         std::uint8_t parity = 0;
         for (std::uint32_t e = code.check_begin(c); e < code.check_end(c); ++e) parity ^= v2c_[e];
-        for (std::uint32_t e = code.check_begin(c); e < code.check_end(c); ++e) c2v_[e] = parity ^ v2c_[e];
+        for (std::uint32_t e = code.check_begin(c); e < code.check_end(c); ++e)
+          c2v_[e] = parity ^ v2c_[e];
       }
       for (std::size_t v = 0; v < code.n(); ++v) {
         const auto edges = code.variable_edges(v);
@@ -40,8 +41,9 @@ class BitFlip final : public Decoder {
           posterior[v] = r ? -margin : margin;
         }
         const std::size_t threshold =
-            settings_.flip_threshold > 0 ? static_cast<std::size_t>(settings_.flip_threshold)
-                                         : (edges.size() - 1) / 2 + 1;  // strict majority of the others
+            settings_.flip_threshold > 0
+                ? static_cast<std::size_t>(settings_.flip_threshold)
+                : (edges.size() - 1) / 2 + 1;  // strict majority of the others
         for (std::uint32_t e : edges) {
           const std::size_t others_against = against - (c2v_[e] != r);
           v2c_[e] = others_against >= threshold && edges.size() > 1 ? r ^ 1 : r;

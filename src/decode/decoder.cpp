@@ -1,7 +1,7 @@
 #include "tannery/decode/decoder.hpp"
 
-#include <cmath>
 #include <fmt/format.h>
+#include <cmath>
 
 #include "decoders.hpp"
 #include "tannery/code/gf2.hpp"
@@ -38,7 +38,9 @@ std::optional<Algorithm> parse_algorithm(std::string_view name) {
   }
   return std::nullopt;
 }
-std::string_view schedule_name(Schedule s) { return s == Schedule::flooding ? "flooding" : "layered"; }
+std::string_view schedule_name(Schedule s) {
+  return s == Schedule::flooding ? "flooding" : "layered";
+}
 std::optional<Schedule> parse_schedule(std::string_view name) {
   for (auto [value, n] : kSchedules) {
     if (n == name) return value;
@@ -50,16 +52,23 @@ void validate(const DecoderSettings& s, const Code& code) {
   if (s.algorithm != Algorithm::ml && (s.iterations < 1 || s.iterations > 1'000'000)) {
     throw Error(fmt::format("iterations must be between 1 and 1000000, got {}", s.iterations));
   }
-  if (s.schedule == Schedule::layered && (s.algorithm == Algorithm::bit_flip || s.algorithm == Algorithm::ml)) {
-    throw Error(fmt::format("{} has no layered schedule; use --schedule flooding", algorithm_name(s.algorithm)));
+  if (s.schedule == Schedule::layered &&
+      (s.algorithm == Algorithm::bit_flip || s.algorithm == Algorithm::ml)) {
+    throw Error(fmt::format("{} has no layered schedule; use --schedule flooding",
+                            algorithm_name(s.algorithm)));
   }
-  if (!(s.alpha > 0 && s.alpha <= 1)) throw Error(fmt::format("alpha must be in (0, 1], got {}", s.alpha));
-  if (!(s.beta >= 0 && std::isfinite(s.beta))) throw Error(fmt::format("beta must be >= 0, got {}", s.beta));
+  if (!(s.alpha > 0 && s.alpha <= 1))
+    throw Error(fmt::format("alpha must be in (0, 1], got {}", s.alpha));
+  if (!(s.beta >= 0 && std::isfinite(s.beta)))
+    throw Error(fmt::format("beta must be >= 0, got {}", s.beta));
   if (s.flip_threshold < 0) throw Error("flip threshold must be >= 0");
   if (s.algorithm == Algorithm::ml) {
     const std::size_t k = Encoder(code).k();
     if (k > 24) {
-      throw Error(fmt::format("ml decoding enumerates all 2^k codewords and is limited to k <= 24; this code has k = {}", k));
+      throw Error(
+          fmt::format("ml decoding enumerates all 2^k codewords and is limited to k <= 24; this "
+                      "code has k = {}",
+                      k));
     }
   }
 }
@@ -70,20 +79,23 @@ std::string describe(const DecoderSettings& s) {
   if (s.algorithm == Algorithm::normalized_min_sum) text += fmt::format(" alpha={}", s.alpha);
   if (s.algorithm == Algorithm::offset_min_sum) text += fmt::format(" beta={}", s.beta);
   if (s.algorithm == Algorithm::bit_flip) {
-    text += s.flip_threshold ? fmt::format(" threshold={}", s.flip_threshold) : std::string(" threshold=majority");
+    text += s.flip_threshold ? fmt::format(" threshold={}", s.flip_threshold)
+                             : std::string(" threshold=majority");
   }
   return text + fmt::format(", {}, {} iterations{}", schedule_name(s.schedule), s.iterations,
                             s.early_stop ? ", early stop" : ", no early stop");
 }
 
-void Decoder::decode(std::span<const double> llr, std::span<std::uint8_t> hard, std::span<double> posterior,
-                     std::span<FrameOutcome> outcome, std::size_t first_frame) {
+void Decoder::decode(std::span<const double> llr, std::span<std::uint8_t> hard,
+                     std::span<double> posterior, std::span<FrameOutcome> outcome,
+                     std::size_t first_frame) {
   const std::size_t n = code_.n(), frames = outcome.size();
   TANNERY_ASSERT(llr.size() == frames * n && hard.size() == frames * n);
   TANNERY_ASSERT(posterior.empty() || posterior.size() == frames * n);
   for (std::size_t i = 0; i < llr.size(); ++i) {
     if (std::isnan(llr[i])) {
-      throw Error(fmt::format("frame {}, position {}: channel LLR is NaN", first_frame + i / n, i % n));
+      throw Error(
+          fmt::format("frame {}, position {}: channel LLR is NaN", first_frame + i / n, i % n));
     }
   }
   for (std::size_t f = 0; f < frames; ++f) {
@@ -95,9 +107,12 @@ void Decoder::decode(std::span<const double> llr, std::span<std::uint8_t> hard, 
 std::unique_ptr<Decoder> make_decoder(const Code& code, const DecoderSettings& settings) {
   validate(settings, code);
   switch (settings.algorithm) {
-    case Algorithm::bit_flip: return detail::make_bit_flip(code, settings);
-    case Algorithm::ml: return detail::make_ml(code, settings);
-    default: return detail::make_belief_propagation(code, settings);
+    case Algorithm::bit_flip:
+      return detail::make_bit_flip(code, settings);
+    case Algorithm::ml:
+      return detail::make_ml(code, settings);
+    default:
+      return detail::make_belief_propagation(code, settings);
   }
 }
 

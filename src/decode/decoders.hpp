@@ -11,6 +11,8 @@ std::unique_ptr<Decoder> make_belief_propagation(const Code& code, const Decoder
 std::unique_ptr<Decoder> make_bit_flip(const Code& code, const DecoderSettings& settings);
 std::unique_ptr<Decoder> make_ml(const Code& code, const DecoderSettings& settings);
 
-inline double clip_llr(double x) { return x > kLlrLimit ? kLlrLimit : (x < -kLlrLimit ? -kLlrLimit : x); }
+inline double clip_llr(double x) {
+  return x > kLlrLimit ? kLlrLimit : (x < -kLlrLimit ? -kLlrLimit : x);
+}
 
 }  // namespace tannery::detail

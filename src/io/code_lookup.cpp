@@ -1,9 +1,9 @@
 #include "tannery/io/code_lookup.hpp"
 
+#include <fmt/format.h>
 #include <algorithm>
 #include <cstdlib>
 #include <filesystem>
-#include <fmt/format.h>
 
 #include "tannery/error.hpp"
 
@@ -47,7 +47,8 @@ std::string resolve_code_path(const std::string& name_or_path) {
   if (name_or_path == "-" || fs::exists(name_or_path, ec)) return name_or_path;
   for (const auto& dir : code_dirs()) {
     for (const auto& entry : fs::directory_iterator(dir, ec)) {
-      if (entry.path().stem() == name_or_path && is_matrix_file(entry.path())) return entry.path().string();
+      if (entry.path().stem() == name_or_path && is_matrix_file(entry.path()))
+        return entry.path().string();
     }
   }
   throw Error(fmt::format("{}: no such file, and no shipped code of that name (shipped: {})",

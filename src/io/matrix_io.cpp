@@ -1,15 +1,15 @@
 #include "tannery/io/matrix_io.hpp"
 
+#include <fmt/format.h>
+#include <unistd.h>
 #include <algorithm>
 #include <cstdio>
 #include <filesystem>
-#include <fmt/format.h>
 #include <fstream>
 #include <iostream>
 #include <iterator>
 #include <map>
 #include <sstream>
-#include <unistd.h>
 
 #include "tannery/error.hpp"
 #include "text_reader.hpp"
@@ -31,8 +31,10 @@ struct FormatInfo {
   std::string_view extension;
 };
 constexpr FormatInfo kFormats[] = {
-    {MatrixFormat::tannery, "tannery", ".tanner"}, {MatrixFormat::alist, "alist", ".alist"},
-    {MatrixFormat::mtx, "mtx", ".mtx"},            {MatrixFormat::qc, "qc", ".qc"},
+    {MatrixFormat::tannery, "tannery", ".tanner"},
+    {MatrixFormat::alist, "alist", ".alist"},
+    {MatrixFormat::mtx, "mtx", ".mtx"},
+    {MatrixFormat::qc, "qc", ".qc"},
     {MatrixFormat::dense, "dense", ".dense"},
 };
 
@@ -55,7 +57,8 @@ std::int64_t keyed(const TextReader& in, const Line& line, std::string_view toke
                    std::string_view key) {
   if (token.size() <= key.size() + 1 || token.substr(0, key.size()) != key ||
       token[key.size()] != '=') {
-    in.fail(line.number, fmt::format("expected {}=<count> in the header, found {}", key, quote(token)));
+    in.fail(line.number,
+            fmt::format("expected {}=<count> in the header, found {}", key, quote(token)));
   }
   return in.integer_in(line, token.substr(key.size() + 1), 0, kMaxDim, key);
 }
@@ -87,7 +90,8 @@ Code read_tannery(TextReader& in) {
     check_row(in, line.number, row, checks.size() - 1, false);
   }
   if (checks.size() != m) {
-    in.fail(in.line_number(), fmt::format("header says m={} checks but the file has {}", m, checks.size()));
+    in.fail(in.line_number(),
+            fmt::format("header says m={} checks but the file has {}", m, checks.size()));
   }
   return Code::from_checks(n, checks);
 }
@@ -116,16 +120,20 @@ Code read_alist(TextReader& in) {
   const auto m = static_cast<std::size_t>(in.integer_in(line, line.tokens[1], 0, kMaxDim, "m"));
   line = expect_line(in, "maximum degrees line");
   if (line.tokens.size() != 2) in.fail(line.number, "alist: expected the two maximum degrees");
-  const auto max_col = in.integer_in(line, line.tokens[0], 0, static_cast<std::int64_t>(m), "maximum column degree");
-  const auto max_row = in.integer_in(line, line.tokens[1], 0, static_cast<std::int64_t>(n), "maximum row degree");
+  const auto max_col =
+      in.integer_in(line, line.tokens[0], 0, static_cast<std::int64_t>(m), "maximum column degree");
+  const auto max_row =
+      in.integer_in(line, line.tokens[1], 0, static_cast<std::int64_t>(n), "maximum row degree");
   auto degrees = [&](std::size_t count, std::int64_t max, std::string_view what) {
     Line l = expect_line(in, what);
     if (l.tokens.size() != count) {
-      in.fail(l.number, fmt::format("alist: {} has {} entries, expected {}", what, l.tokens.size(), count));
+      in.fail(l.number,
+              fmt::format("alist: {} has {} entries, expected {}", what, l.tokens.size(), count));
     }
     std::vector<std::size_t> d;
     d.reserve(count);
-    for (auto t : l.tokens) d.push_back(static_cast<std::size_t>(in.integer_in(l, t, 0, max, "degree")));
+    for (auto t : l.tokens)
+      d.push_back(static_cast<std::size_t>(in.integer_in(l, t, 0, max, "degree")));
     return d;
   };
   // Empty codes put no tokens on the degree lines.
@@ -140,9 +148,10 @@ Code read_alist(TextReader& in) {
       if (v == 0) continue;  // padding
       entries.push_back(static_cast<std::uint32_t>(v - 1));
     }
-    if (entries.size() != degree || l.tokens.size() > static_cast<std::size_t>(std::max<std::int64_t>(max_degree, 1))) {
-      in.fail(l.number, fmt::format("alist: {} {} has {} entries, its degree is {}", what, index + 1,
-                                    entries.size(), degree));
+    if (entries.size() != degree ||
+        l.tokens.size() > static_cast<std::size_t>(std::max<std::int64_t>(max_degree, 1))) {
+      in.fail(l.number, fmt::format("alist: {} {} has {} entries, its degree is {}", what,
+                                    index + 1, entries.size(), degree));
     }
     check_row(in, l.number, entries, index, true);
     return std::pair{entries, l.number};
@@ -151,7 +160,8 @@ Code read_alist(TextReader& in) {
   for (std::size_t v = 0; v < n; ++v) cols[v] = list(v, col_deg[v], max_col, m, "column").first;
   std::vector<std::vector<std::uint32_t>> checks(m);
   std::vector<std::size_t> row_line(m);
-  for (std::size_t c = 0; c < m; ++c) std::tie(checks[c], row_line[c]) = list(c, row_deg[c], max_row, n, "row");
+  for (std::size_t c = 0; c < m; ++c)
+    std::tie(checks[c], row_line[c]) = list(c, row_deg[c], max_row, n, "row");
   if (in.next(line)) in.fail(line.number, "alist: unexpected data after the last row list");
   // The column lists must describe the same matrix as the row lists.
   std::size_t from_cols = 0;
@@ -159,8 +169,9 @@ Code read_alist(TextReader& in) {
     for (std::uint32_t c : cols[v]) {
       ++from_cols;
       if (!std::binary_search(checks[c].begin(), checks[c].end(), static_cast<std::uint32_t>(v))) {
-        in.fail(row_line[c], fmt::format("alist: column {} lists row {} but row {} does not list column {}",
-                                         v + 1, c + 1, c + 1, v + 1));
+        in.fail(row_line[c],
+                fmt::format("alist: column {} lists row {} but row {} does not list column {}",
+                            v + 1, c + 1, c + 1, v + 1));
       }
     }
   }
@@ -179,14 +190,17 @@ void write_alist(const Code& code, std::ostream& out) {
   for (std::size_t c = 0; c < code.m(); ++c) max_row = std::max(max_row, code.check_degree(c));
   out << code.n() << ' ' << code.m() << '\n' << max_col << ' ' << max_row << '\n';
   std::string line;
-  for (std::size_t v = 0; v < code.n(); ++v) line += fmt::format("{}{}", v ? " " : "", code.variable_degree(v));
+  for (std::size_t v = 0; v < code.n(); ++v)
+    line += fmt::format("{}{}", v ? " " : "", code.variable_degree(v));
   out << line << '\n';
   line.clear();
-  for (std::size_t c = 0; c < code.m(); ++c) line += fmt::format("{}{}", c ? " " : "", code.check_degree(c));
+  for (std::size_t c = 0; c < code.m(); ++c)
+    line += fmt::format("{}{}", c ? " " : "", code.check_degree(c));
   out << line << '\n';
   for (std::size_t v = 0; v < code.n(); ++v) {
     line.clear();
-    for (std::uint32_t e : code.variable_edges(v)) line += fmt::format("{} ", code.edge_check(e) + 1);
+    for (std::uint32_t e : code.variable_edges(v))
+      line += fmt::format("{} ", code.edge_check(e) + 1);
     for (std::size_t i = code.variable_degree(v); i < max_col; ++i) line += "0 ";
     if (!line.empty()) line.pop_back();
     out << line << '\n';
@@ -210,49 +224,67 @@ Code read_mtx(TextReader& in, std::string_view text) {
   std::string tag, object, layout, field, symmetry;
   words >> tag >> object >> layout >> field >> symmetry;
   for (auto* s : {&object, &layout, &field, &symmetry}) {
-    std::transform(s->begin(), s->end(), s->begin(), [](unsigned char ch) { return std::tolower(ch); });
+    std::transform(s->begin(), s->end(), s->begin(),
+                   [](unsigned char ch) { return std::tolower(ch); });
   }
-  if (tag != "%%MatrixMarket" || object != "matrix") in.fail(1, "expected a '%%MatrixMarket matrix' banner");
-  if (layout != "coordinate") in.fail(1, fmt::format("Matrix Market layout '{}' is not supported (use coordinate)", layout));
+  if (tag != "%%MatrixMarket" || object != "matrix")
+    in.fail(1, "expected a '%%MatrixMarket matrix' banner");
+  if (layout != "coordinate")
+    in.fail(1, fmt::format("Matrix Market layout '{}' is not supported (use coordinate)", layout));
   if (field != "pattern" && field != "integer" && field != "real") {
-    in.fail(1, fmt::format("Matrix Market field '{}' is not supported (use pattern, integer or real)", field));
+    in.fail(1,
+            fmt::format("Matrix Market field '{}' is not supported (use pattern, integer or real)",
+                        field));
   }
-  if (symmetry != "general") in.fail(1, fmt::format("Matrix Market symmetry '{}' is not supported (use general)", symmetry));
+  if (symmetry != "general")
+    in.fail(1, fmt::format("Matrix Market symmetry '{}' is not supported (use general)", symmetry));
   if (!in.next(line)) in.fail(in.line_number(), "Matrix Market: file ends before the size line");
-  if (line.tokens.size() != 3) in.fail(line.number, "Matrix Market: expected 'rows columns entries'");
+  if (line.tokens.size() != 3)
+    in.fail(line.number, "Matrix Market: expected 'rows columns entries'");
   const auto m = static_cast<std::size_t>(in.integer_in(line, line.tokens[0], 0, kMaxDim, "rows"));
-  const auto n = static_cast<std::size_t>(in.integer_in(line, line.tokens[1], 0, kMaxDim, "columns"));
-  const auto nnz = static_cast<std::size_t>(in.integer_in(line, line.tokens[2], 0, std::int64_t{1} << 31, "entries"));
+  const auto n =
+      static_cast<std::size_t>(in.integer_in(line, line.tokens[1], 0, kMaxDim, "columns"));
+  const auto nnz = static_cast<std::size_t>(
+      in.integer_in(line, line.tokens[2], 0, std::int64_t{1} << 31, "entries"));
   const std::size_t want = field == "pattern" ? 2 : 3;
   std::vector<std::vector<std::uint32_t>> checks(m);
   std::map<std::pair<std::uint32_t, std::uint32_t>, std::size_t> seen;
   std::size_t entries = 0;
   while (in.next(line)) {
     if (line.tokens.size() != want) {
-      in.fail(line.number, fmt::format("Matrix Market: expected {} numbers per entry, found {}", want, line.tokens.size()));
+      in.fail(line.number, fmt::format("Matrix Market: expected {} numbers per entry, found {}",
+                                       want, line.tokens.size()));
     }
-    if (++entries > nnz) in.fail(line.number, fmt::format("more entries than the {} declared", nnz));
-    const auto r = static_cast<std::uint32_t>(in.integer_in(line, line.tokens[0], 1, static_cast<std::int64_t>(m), "row") - 1);
-    const auto c = static_cast<std::uint32_t>(in.integer_in(line, line.tokens[1], 1, static_cast<std::int64_t>(n), "column") - 1);
+    if (++entries > nnz)
+      in.fail(line.number, fmt::format("more entries than the {} declared", nnz));
+    const auto r = static_cast<std::uint32_t>(
+        in.integer_in(line, line.tokens[0], 1, static_cast<std::int64_t>(m), "row") - 1);
+    const auto c = static_cast<std::uint32_t>(
+        in.integer_in(line, line.tokens[1], 1, static_cast<std::int64_t>(n), "column") - 1);
     if (want == 3) {
       const std::string_view value = line.tokens[2];
       const bool one = value == "1" || value == "1.0" || value == "1.";
       const bool zero = value == "0" || value == "0.0" || value == "0.";
-      if (!one && !zero) in.fail(line.number, fmt::format("value {} is not a binary entry (0 or 1)", quote(value)));
+      if (!one && !zero)
+        in.fail(line.number, fmt::format("value {} is not a binary entry (0 or 1)", quote(value)));
       if (zero) continue;
     }
     auto [it, fresh] = seen.emplace(std::pair{r, c}, line.number);
     if (!fresh) {
-      in.fail(line.number, fmt::format("entry ({}, {}) repeats the one on line {}", r + 1, c + 1, it->second));
+      in.fail(line.number,
+              fmt::format("entry ({}, {}) repeats the one on line {}", r + 1, c + 1, it->second));
     }
     checks[r].push_back(c);
   }
-  if (entries != nnz) in.fail(in.line_number(), fmt::format("size line declares {} entries but the file has {}", nnz, entries));
+  if (entries != nnz)
+    in.fail(in.line_number(),
+            fmt::format("size line declares {} entries but the file has {}", nnz, entries));
   return Code::from_checks(n, checks);
 }
 
 void write_mtx(const Code& code, std::ostream& out) {
-  out << "%%MatrixMarket matrix coordinate pattern general\n% parity-check matrix written by tannery\n";
+  out << "%%MatrixMarket matrix coordinate pattern general\n% parity-check matrix written by "
+         "tannery\n";
   out << code.m() << ' ' << code.n() << ' ' << code.edges() << '\n';
   for (std::size_t c = 0; c < code.m(); ++c) {
     for (std::uint32_t v : code.check_variables(c)) out << c + 1 << ' ' << v + 1 << '\n';
@@ -285,8 +317,11 @@ Code read_qc(TextReader& in, std::optional<std::size_t> lifting) {
   while (in.next(line)) {
     if (auto z = lifting_token(line)) {
       if (z->empty()) in.fail(line.number, "malformed lifting line: expected 'Z = <size>'");
-      if (declared) in.fail(line.number, fmt::format("lifting size given twice (first on line {})", declared_line));
-      declared = static_cast<std::size_t>(in.integer_in(line, *z, 1, kMaxLifting, "lifting size Z"));
+      if (declared)
+        in.fail(line.number,
+                fmt::format("lifting size given twice (first on line {})", declared_line));
+      declared =
+          static_cast<std::size_t>(in.integer_in(line, *z, 1, kMaxLifting, "lifting size Z"));
       declared_line = line.number;
       continue;
     }
@@ -303,22 +338,27 @@ Code read_qc(TextReader& in, std::optional<std::size_t> lifting) {
   }
   if (base.block_rows == 0) in.fail(in.line_number(), "base table has no rows");
   if (declared && lifting && *declared != *lifting) {
-    in.fail(declared_line, fmt::format("file says Z = {} but Z = {} was requested", *declared, *lifting));
+    in.fail(declared_line,
+            fmt::format("file says Z = {} but Z = {} was requested", *declared, *lifting));
   }
   if (!declared && !lifting) {
-    in.fail(in.line_number(), "base table needs a lifting size: add a line 'Z = <size>' or pass --lifting");
+    in.fail(in.line_number(),
+            "base table needs a lifting size: add a line 'Z = <size>' or pass --lifting");
   }
   base.lifting = declared ? *declared : *lifting;
-  if (base.block_cols * base.lifting > kMaxCodeDimension || base.block_rows * base.lifting > kMaxCodeDimension) {
-    in.fail(declared ? declared_line : in.line_number(),
-            fmt::format("lifted size {} x {} exceeds the limit of {}", base.block_rows * base.lifting,
-                        base.block_cols * base.lifting, kMaxCodeDimension));
+  if (base.block_cols * base.lifting > kMaxCodeDimension ||
+      base.block_rows * base.lifting > kMaxCodeDimension) {
+    in.fail(
+        declared ? declared_line : in.line_number(),
+        fmt::format("lifted size {} x {} exceeds the limit of {}", base.block_rows * base.lifting,
+                    base.block_cols * base.lifting, kMaxCodeDimension));
   }
   for (std::size_t i = 0; i < base.shifts.size(); ++i) {
     if (base.shifts[i] >= static_cast<std::int64_t>(base.lifting)) {
       in.fail(row_lines[i / base.block_cols],
               fmt::format("base table entry (row {}, column {}) has shift {} >= Z = {}",
-                          i / base.block_cols + 1, i % base.block_cols + 1, base.shifts[i], base.lifting));
+                          i / base.block_cols + 1, i % base.block_cols + 1, base.shifts[i],
+                          base.lifting));
     }
   }
   return Code::from_quasi_cyclic(base);
@@ -326,7 +366,9 @@ Code read_qc(TextReader& in, std::optional<std::size_t> lifting) {
 
 void write_qc(const Code& code, std::ostream& out) {
   if (!code.quasi_cyclic()) {
-    throw Error("this code has no quasi-cyclic structure to write as a base table (read it from a qc file or construct it by lifting)");
+    throw Error(
+        "this code has no quasi-cyclic structure to write as a base table (read it from a qc file "
+        "or construct it by lifting)");
   }
   const QuasiCyclic& base = *code.quasi_cyclic();
   out << fmt::format("# quasi-cyclic base table: {} x {} blocks, -1 = zero block\nZ = {}\n",
@@ -335,7 +377,8 @@ void write_qc(const Code& code, std::ostream& out) {
   for (std::size_t i = 0; i < base.block_rows; ++i) {
     std::string line;
     for (std::size_t j = 0; j < base.block_cols; ++j) {
-      line += fmt::format("{}{:>{}}", j ? " " : "", base.shift(i, j), std::max<std::size_t>(width, 2));
+      line +=
+          fmt::format("{}{:>{}}", j ? " " : "", base.shift(i, j), std::max<std::size_t>(width, 2));
     }
     out << line << '\n';
   }
@@ -367,7 +410,8 @@ Code read_dense(TextReader& in) {
   while (in.next(line)) {
     const std::vector<bool> bits = dense_bits(in, line);
     if (checks.empty()) n = bits.size();
-    if (bits.size() != n) in.fail(line.number, fmt::format("row has {} columns, the first row has {}", bits.size(), n));
+    if (bits.size() != n)
+      in.fail(line.number, fmt::format("row has {} columns, the first row has {}", bits.size(), n));
     if (checks.size() >= kMaxCodeDimension) in.fail(line.number, "too many rows");
     auto& row = checks.emplace_back();
     for (std::size_t j = 0; j < bits.size(); ++j) {
@@ -445,16 +489,22 @@ Code parse_code(std::string_view text, const std::string& source, const ReadOpti
   const MatrixFormat format = options.format ? *options.format : detect_format(text, source);
   detail::reject_binary(text, source);
   if (format != MatrixFormat::qc && options.lifting) {
-    throw Error(fmt::format("{}: a lifting size only applies to quasi-cyclic base tables, not to {} files",
-                            source, format_name(format)));
+    throw Error(
+        fmt::format("{}: a lifting size only applies to quasi-cyclic base tables, not to {} files",
+                    source, format_name(format)));
   }
   TextReader in(text, source, format == MatrixFormat::mtx ? '%' : '#');
   switch (format) {
-    case MatrixFormat::tannery: return read_tannery(in);
-    case MatrixFormat::alist: return read_alist(in);
-    case MatrixFormat::mtx: return read_mtx(in, text);
-    case MatrixFormat::qc: return read_qc(in, options.lifting);
-    case MatrixFormat::dense: return read_dense(in);
+    case MatrixFormat::tannery:
+      return read_tannery(in);
+    case MatrixFormat::alist:
+      return read_alist(in);
+    case MatrixFormat::mtx:
+      return read_mtx(in, text);
+    case MatrixFormat::qc:
+      return read_qc(in, options.lifting);
+    case MatrixFormat::dense:
+      return read_dense(in);
   }
   throw Error("unknown matrix format");
 }
@@ -465,17 +515,20 @@ std::string read_text_file(const std::string& path, std::size_t max_bytes) {
     data.assign(std::istreambuf_iterator<char>(std::cin), std::istreambuf_iterator<char>());
   } else {
     std::error_code ec;
-    if (std::filesystem::is_directory(path, ec)) throw Error(fmt::format("{}: is a directory, not a file", path));
+    if (std::filesystem::is_directory(path, ec))
+      throw Error(fmt::format("{}: is a directory, not a file", path));
     std::ifstream file(path, std::ios::binary);
     if (!file) throw Error(fmt::format("{}: cannot open file", path));
     const auto size = std::filesystem::file_size(path, ec);
     if (!ec && size > max_bytes) {
-      throw Error(fmt::format("{}: file is {} bytes, more than the limit of {}", path, size, max_bytes));
+      throw Error(
+          fmt::format("{}: file is {} bytes, more than the limit of {}", path, size, max_bytes));
     }
     data.assign(std::istreambuf_iterator<char>(file), std::istreambuf_iterator<char>());
     if (file.bad()) throw Error(fmt::format("{}: read error", path));
   }
-  if (data.size() > max_bytes) throw Error(fmt::format("{}: input larger than {} bytes", path, max_bytes));
+  if (data.size() > max_bytes)
+    throw Error(fmt::format("{}: input larger than {} bytes", path, max_bytes));
   return data;
 }
 
@@ -486,11 +539,16 @@ Code read_code_file(const std::string& path, const ReadOptions& options) {
 
 void write_code(const Code& code, MatrixFormat format, std::ostream& out) {
   switch (format) {
-    case MatrixFormat::tannery: return write_tannery(code, out);
-    case MatrixFormat::alist: return write_alist(code, out);
-    case MatrixFormat::mtx: return write_mtx(code, out);
-    case MatrixFormat::qc: return write_qc(code, out);
-    case MatrixFormat::dense: return write_dense(code, out);
+    case MatrixFormat::tannery:
+      return write_tannery(code, out);
+    case MatrixFormat::alist:
+      return write_alist(code, out);
+    case MatrixFormat::mtx:
+      return write_mtx(code, out);
+    case MatrixFormat::qc:
+      return write_qc(code, out);
+    case MatrixFormat::dense:
+      return write_dense(code, out);
   }
 }
 

@@ -1,7 +1,7 @@
 #include "text_reader.hpp"
 
-#include <charconv>
 #include <fmt/format.h>
+#include <charconv>
 
 #include "tannery/error.hpp"
 
@@ -25,9 +25,11 @@ bool TextReader::next(Line& line, bool keep_blank) {
     line.tokens.clear();
     std::size_t i = 0;
     while (i < raw.size()) {
-      while (i < raw.size() && (raw[i] == ' ' || raw[i] == '\t' || raw[i] == '\r' || raw[i] == ',')) ++i;
+      while (i < raw.size() && (raw[i] == ' ' || raw[i] == '\t' || raw[i] == '\r' || raw[i] == ','))
+        ++i;
       std::size_t j = i;
-      while (j < raw.size() && raw[j] != ' ' && raw[j] != '\t' && raw[j] != '\r' && raw[j] != ',') ++j;
+      while (j < raw.size() && raw[j] != ' ' && raw[j] != '\t' && raw[j] != '\r' && raw[j] != ',')
+        ++j;
       if (j > i) line.tokens.push_back(raw.substr(i, j - i));
       i = j;
     }
@@ -44,8 +46,10 @@ std::int64_t TextReader::integer(const Line& line, std::string_view token) const
   std::int64_t value = 0;
   const char* end = token.data() + token.size();
   auto [ptr, ec] = std::from_chars(token.data(), end, value);
-  if (ec == std::errc::result_out_of_range) fail(line.number, fmt::format("number {} is too large", quote(token)));
-  if (ec != std::errc() || ptr != end) fail(line.number, fmt::format("expected an integer, found {}", quote(token)));
+  if (ec == std::errc::result_out_of_range)
+    fail(line.number, fmt::format("number {} is too large", quote(token)));
+  if (ec != std::errc() || ptr != end)
+    fail(line.number, fmt::format("expected an integer, found {}", quote(token)));
   return value;
 }
 
@@ -74,8 +78,10 @@ std::string quote(std::string_view token) {
   std::string out = "'";
   for (std::size_t i = 0; i < token.size() && i < 24; ++i) {
     const auto b = static_cast<unsigned char>(token[i]);
-    if (b >= 0x20 && b < 0x7f) out += static_cast<char>(b);
-    else out += fmt::format("\\x{:02x}", b);
+    if (b >= 0x20 && b < 0x7f)
+      out += static_cast<char>(b);
+    else
+      out += fmt::format("\\x{:02x}", b);
   }
   if (token.size() > 24) out += "...";
   return out + "'";

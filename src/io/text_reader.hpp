@@ -10,7 +10,7 @@
 namespace tannery::detail {
 
 struct Line {
-  std::size_t number = 0;               // 1-based
+  std::size_t number = 0;                // 1-based
   std::vector<std::string_view> tokens;  // whitespace-separated, comment stripped
 };
 

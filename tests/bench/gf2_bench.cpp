@@ -19,7 +19,8 @@ Code staircase_code(std::size_t m, std::size_t n, std::uint64_t seed) {
     const std::size_t weight = 5 + rng.below(24);  // info weight 5..28, plus 2 parity bits
     while (checks[r].size() < weight) {
       const auto v = static_cast<std::uint32_t>(rng.below(k));
-      if (std::find(checks[r].begin(), checks[r].end(), v) == checks[r].end()) checks[r].push_back(v);
+      if (std::find(checks[r].begin(), checks[r].end(), v) == checks[r].end())
+        checks[r].push_back(v);
     }
     checks[r].push_back(static_cast<std::uint32_t>(k + r));
     if (r > 0) checks[r].push_back(static_cast<std::uint32_t>(k + r - 1));
@@ -55,7 +56,8 @@ void BM_encode_regular36_64800(benchmark::State& state) {
     enc.encode(info, word);
     benchmark::DoNotOptimize(word.data());
   }
-  state.counters["frames/s"] = benchmark::Counter(static_cast<double>(state.iterations()), benchmark::Counter::kIsRate);
+  state.counters["frames/s"] =
+      benchmark::Counter(static_cast<double>(state.iterations()), benchmark::Counter::kIsRate);
 }
 
 }  // namespace

@@ -12,8 +12,8 @@
 namespace tannery::test {
 
 inline const std::vector<std::string>& shipped_codes() {
-  static const std::vector<std::string> names = {"hamming-7-4.tanner", "hamming-15-11.tanner",
-                                                 "repetition-5.tanner", "parity-8.tanner",
+  static const std::vector<std::string> names = {"hamming-7-4.tanner",       "hamming-15-11.tanner",
+                                                 "repetition-5.tanner",      "parity-8.tanner",
                                                  "regular-3-6-n2016.tanner", "qc-rate-half-z54.qc"};
   return names;
 }
@@ -77,7 +77,8 @@ class Gaussian {
 };
 
 // Channel LLRs of a BPSK-modulated codeword (0 -> +1) over AWGN with noise deviation sigma.
-inline std::vector<double> awgn_llrs(const std::vector<std::uint8_t>& word, double sigma, Gaussian& g) {
+inline std::vector<double> awgn_llrs(const std::vector<std::uint8_t>& word, double sigma,
+                                     Gaussian& g) {
   std::vector<double> llr(word.size());
   for (std::size_t i = 0; i < word.size(); ++i) {
     const double y = (word[i] ? -1.0 : 1.0) + sigma * g();

@@ -32,14 +32,15 @@ struct CycleCensus {
 CycleCensus cycle_census(const Code& code);
 
 struct RowRedundancy {
-  std::vector<std::size_t> empty;                              // checks with no variable
+  std::vector<std::size_t> empty;                             // checks with no variable
   std::vector<std::pair<std::size_t, std::size_t>> repeated;  // (first, later copy)
 };
 RowRedundancy row_redundancy(const Code& code);
 
 // Number of codewords of each Hamming weight 0..n, by enumerating all 2^k codewords in Gray-code
 // order (k <= max_dimension, at most 30). Empty when k is larger.
-std::optional<std::vector<std::uint64_t>> weight_enumerator(const Code& code, const Encoder& encoder,
+std::optional<std::vector<std::uint64_t>> weight_enumerator(const Code& code,
+                                                            const Encoder& encoder,
                                                             std::size_t max_dimension = 24);
 // Smallest nonzero weight with a codeword; empty when k = 0.
 std::optional<std::size_t> minimum_distance(const std::vector<std::uint64_t>& enumerator);

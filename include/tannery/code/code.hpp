@@ -21,7 +21,7 @@ namespace tannery {
 struct QuasiCyclic {
   std::size_t block_rows = 0;
   std::size_t block_cols = 0;
-  std::size_t lifting = 0;            // Z
+  std::size_t lifting = 0;           // Z
   std::vector<std::int64_t> shifts;  // block_rows x block_cols, row-major, -1 = zero block
 
   std::int64_t shift(std::size_t i, std::size_t j) const { return shifts[i * block_cols + j]; }
@@ -37,8 +37,8 @@ class Code {
   // Expands a base table of circulant shifts (see QuasiCyclic); shifts must be -1 or in [0, Z).
   static Code from_quasi_cyclic(const QuasiCyclic& base);
 
-  std::size_t n() const noexcept { return n_; }       // variables (code length)
-  std::size_t m() const noexcept { return m_; }       // checks (rows of H)
+  std::size_t n() const noexcept { return n_; }  // variables (code length)
+  std::size_t m() const noexcept { return m_; }  // checks (rows of H)
   std::size_t edges() const noexcept { return edge_var_.size(); }
 
   std::uint32_t check_begin(std::size_t c) const noexcept { return check_start_[c]; }

@@ -25,8 +25,9 @@ Code construct_single_parity(std::size_t n);
 // size z, choosing each circulant shift to avoid 4-cycles (required) and then 6-cycles (attempted),
 // by the block conditions s1 - s2 + s3 - s4 (+ s5 - s6) = 0 mod Z. Throws Error when no shift
 // avoids 4-cycles.
-QuasiCyclic lift_base_graph(std::size_t rows, std::size_t cols, const std::vector<std::uint8_t>& pattern,
-                            std::size_t z, std::uint64_t seed);
+QuasiCyclic lift_base_graph(std::size_t rows, std::size_t cols,
+                            const std::vector<std::uint8_t>& pattern, std::size_t z,
+                            std::uint64_t seed);
 
 // Small deterministic generator for constructions (splitmix64).
 class SplitMix {

@@ -5,8 +5,8 @@
 // erasure decoder peels (a check with one undetermined bit determines it); when peeling
 // stalls, one bit is declared
 // free (the bit in most live checks, or one from a lowest-degree check: both are tried and the
-// smaller remainder kept). The checks left without a pivot form a dense system over the free bits (64-bit words),
-// reduced to row-echelon form. Free bits not pivoted there carry the information.
+// smaller remainder kept). The checks left without a pivot form a dense system over the free bits
+// (64-bit words), reduced to row-echelon form. Free bits not pivoted there carry the information.
 // For standard LDPC codes the dense remainder is tiny, so a 32 400 x 64 800 matrix takes well
 // under a second (see the README for the measurement).
 #pragma once
@@ -34,7 +34,9 @@ class BitMatrix {
   bool get(std::size_t r, std::size_t c) const noexcept {
     return (row(r)[c >> 6] >> (c & 63)) & 1u;
   }
-  void set(std::size_t r, std::size_t c) noexcept { row(r)[c >> 6] |= std::uint64_t{1} << (c & 63); }
+  void set(std::size_t r, std::size_t c) noexcept {
+    row(r)[c >> 6] |= std::uint64_t{1} << (c & 63);
+  }
   void flip(std::size_t r, std::size_t c) noexcept {
     row(r)[c >> 6] ^= std::uint64_t{1} << (c & 63);
   }

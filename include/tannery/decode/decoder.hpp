@@ -31,23 +31,24 @@ std::optional<Schedule> parse_schedule(std::string_view name);
 struct DecoderSettings {
   Algorithm algorithm = Algorithm::sum_product;
   Schedule schedule = Schedule::flooding;
-  int iterations = 50;        // maximum iterations (ignored by ml)
-  bool early_stop = true;     // stop a frame once its hard decisions satisfy every check
-  double alpha = 0.75;        // normalized min-sum: check messages scaled by alpha, 0 < alpha <= 1
-  double beta = 0.5;          // offset min-sum: check magnitudes reduced by beta >= 0 (floored at 0)
-  int flip_threshold = 0;     // bit-flip: other checks that must disagree to flip; 0 = majority
+  int iterations = 50;     // maximum iterations (ignored by ml)
+  bool early_stop = true;  // stop a frame once its hard decisions satisfy every check
+  double alpha = 0.75;     // normalized min-sum: check messages scaled by alpha, 0 < alpha <= 1
+  double beta = 0.5;       // offset min-sum: check magnitudes reduced by beta >= 0 (floored at 0)
+  int flip_threshold = 0;  // bit-flip: other checks that must disagree to flip; 0 = majority
 
   bool operator==(const DecoderSettings&) const = default;
 };
 
-// Throws Error for impossible settings (ml above k = 24, a layered bit-flip, alpha outside (0, 1]...).
+// Throws Error for impossible settings (ml above k = 24, a layered bit-flip, alpha outside (0,
+// 1]...).
 void validate(const DecoderSettings& settings, const Code& code);
 // One line such as "sum-product, flooding, 50 iterations, early stop".
 std::string describe(const DecoderSettings& settings);
 
 struct FrameOutcome {
-  int iterations = 0;                // iterations run (ml: 1)
-  bool converged = false;            // hard decisions satisfy every check
+  int iterations = 0;                 // iterations run (ml: 1)
+  bool converged = false;             // hard decisions satisfy every check
   std::uint32_t syndrome_weight = 0;  // unsatisfied checks at exit
 };
 
@@ -63,8 +64,9 @@ class Decoder {
   // Decodes outcome.size() frames. llr and hard hold frames x n values; posterior is frames x n
   // or empty (not wanted). A NaN input throws Error naming the frame (first_frame + index in
   // the batch) and the position; nothing is decoded then.
-  void decode(std::span<const double> llr, std::span<std::uint8_t> hard, std::span<double> posterior,
-              std::span<FrameOutcome> outcome, std::size_t first_frame = 0);
+  void decode(std::span<const double> llr, std::span<std::uint8_t> hard,
+              std::span<double> posterior, std::span<FrameOutcome> outcome,
+              std::size_t first_frame = 0);
 
   const Code& code() const noexcept { return code_; }
   const DecoderSettings& settings() const noexcept { return settings_; }

@@ -29,8 +29,8 @@ std::optional<MatrixFormat> parse_format_name(std::string_view name);
 std::optional<MatrixFormat> format_from_extension(std::string_view path);
 
 struct ReadOptions {
-  std::optional<MatrixFormat> format;   // detect from content when empty
-  std::optional<std::size_t> lifting;   // Z for base tables that do not state it
+  std::optional<MatrixFormat> format;  // detect from content when empty
+  std::optional<std::size_t> lifting;  // Z for base tables that do not state it
 };
 
 // Content-based detection; throws Error (naming source) when nothing fits.

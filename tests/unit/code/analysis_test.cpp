@@ -67,7 +67,8 @@ TEST_CASE("Hamming (15,11): d_min 3 with 35 codewords of weight 3", "[analysis]"
 TEST_CASE("repetition and single parity-check enumerators", "[analysis]") {
   // Textbook: repetition code {0^n, 1^n}; SPC code: all even-weight words, A_w = C(n, w).
   CHECK(enumerator_of(construct_repetition(5)) == std::vector<std::uint64_t>{1, 0, 0, 0, 0, 1});
-  CHECK(enumerator_of(construct_single_parity(6)) == std::vector<std::uint64_t>{1, 0, 15, 0, 15, 0, 1});
+  CHECK(enumerator_of(construct_single_parity(6)) ==
+        std::vector<std::uint64_t>{1, 0, 15, 0, 15, 0, 1});
 }
 
 TEST_CASE("enumeration is refused above the dimension limit", "[analysis]") {
@@ -121,7 +122,8 @@ TEST_CASE("base table has a 4-cycle exactly when s1 - s2 + s3 - s4 = 0 mod Z", "
       for (std::size_t i2 = i1 + 1; i2 < rows; ++i2)
         for (std::size_t j1 = 0; j1 < cols; ++j1)
           for (std::size_t j2 = j1 + 1; j2 < cols; ++j2) {
-            const auto a = base.shift(i1, j1), b = base.shift(i2, j1), c = base.shift(i2, j2), d = base.shift(i1, j2);
+            const auto a = base.shift(i1, j1), b = base.shift(i2, j1), c = base.shift(i2, j2),
+                       d = base.shift(i1, j2);
             if (a < 0 || b < 0 || c < 0 || d < 0) continue;
             const auto zz = static_cast<std::int64_t>(z);
             if ((((a - b + c - d) % zz) + zz) % zz == 0) condition = true;

@@ -41,7 +41,8 @@ TEST_CASE("edge ids are stable: check-major, variables increasing", "[code]") {
 }
 
 TEST_CASE("duplicate and out-of-range entries are errors naming the check", "[code]") {
-  CHECK_THROWS_WITH(Code::from_checks(4, {{0, 1}, {2, 3, 2}}), Catch::Contains("check 1 lists variable 2 twice"));
+  CHECK_THROWS_WITH(Code::from_checks(4, {{0, 1}, {2, 3, 2}}),
+                    Catch::Contains("check 1 lists variable 2 twice"));
   CHECK_THROWS_WITH(Code::from_checks(4, {{0, 4}}), Catch::Contains("variable 4"));
 }
 

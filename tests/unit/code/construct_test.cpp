@@ -16,7 +16,8 @@ TEST_CASE("regular construction: exact degrees, no 4-cycles, deterministic", "[c
   CHECK_FALSE(a == construct_regular(504, 3, 6, 10));
 }
 
-TEST_CASE("lifting reaches girth 6 at least, checked by the independent girth search", "[construct]") {
+TEST_CASE("lifting reaches girth 6 at least, checked by the independent girth search",
+          "[construct]") {
   std::vector<std::uint8_t> all_ones(3 * 6, 1);
   const QuasiCyclic base = lift_base_graph(3, 6, all_ones, 31, 4);
   const auto census = cycle_census(Code::from_quasi_cyclic(base));

@@ -60,7 +60,8 @@ TEST_CASE("an empty column is an information bit", "[gf2]") {
   const Code code = Code::from_checks(4, {{0, 1}, {1, 2}});
   const Encoder enc(code);
   CHECK(enc.k() == 2);
-  CHECK(std::find(enc.info_positions().begin(), enc.info_positions().end(), 3u) != enc.info_positions().end());
+  CHECK(std::find(enc.info_positions().begin(), enc.info_positions().end(), 3u) !=
+        enc.info_positions().end());
 }
 
 TEST_CASE("dense reduction gives row-echelon pivots", "[gf2]") {

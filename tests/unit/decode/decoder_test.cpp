@@ -20,12 +20,14 @@ struct Run {
 
 Run run(const Code& code, const DecoderSettings& s, const std::vector<double>& llr) {
   const std::size_t frames = llr.size() / code.n();
-  Run r{std::vector<std::uint8_t>(llr.size()), std::vector<double>(llr.size()), std::vector<FrameOutcome>(frames)};
+  Run r{std::vector<std::uint8_t>(llr.size()), std::vector<double>(llr.size()),
+        std::vector<FrameOutcome>(frames)};
   make_decoder(code, s)->decode(llr, r.hard, r.posterior, r.outcome);
   return r;
 }
 
-DecoderSettings settings(Algorithm a, Schedule sch = Schedule::flooding, int iterations = 50, bool early = true) {
+DecoderSettings settings(Algorithm a, Schedule sch = Schedule::flooding, int iterations = 50,
+                         bool early = true) {
   DecoderSettings s;
   s.algorithm = a;
   s.schedule = sch;
@@ -48,8 +50,8 @@ Code random_tree(std::size_t checks, std::uint64_t seed) {
   return Code::from_checks(n, rows);
 }
 
-// Exact bitwise MAP LLRs by enumerating every codeword: log sum_{c_i=0} w(c) - log sum_{c_i=1} w(c),
-// with w(c) = exp(-sum_{c_j = 1} L_j) (the likelihood up to a constant).
+// Exact bitwise MAP LLRs by enumerating every codeword: log sum_{c_i=0} w(c) - log sum_{c_i=1}
+// w(c), with w(c) = exp(-sum_{c_j = 1} L_j) (the likelihood up to a constant).
 std::vector<double> exact_marginals(const Code& code, const std::vector<double>& llr) {
   const Encoder enc(code);
   std::vector<std::uint8_t> info(enc.k()), word(code.n());
@@ -70,7 +72,8 @@ std::vector<double> exact_marginals(const Code& code, const std::vector<double>&
   return out;
 }
 
-std::vector<double> random_llrs(std::size_t count, std::uint64_t seed, double mean = 1.0, double spread = 2.0) {
+std::vector<double> random_llrs(std::size_t count, std::uint64_t seed, double mean = 1.0,
+                                double spread = 2.0) {
   test::Gaussian g(seed);
   std::vector<double> llr(count);
   for (auto& x : llr) x = mean + spread * g();
@@ -80,8 +83,8 @@ std::vector<double> random_llrs(std::size_t count, std::uint64_t seed, double me
 }  // namespace
 
 TEST_CASE("on a tree, sum-product posteriors are the exact MAP marginals", "[decode]") {
-  // Kschischang, Frey, Loeliger, "Factor graphs and the sum-product algorithm", IEEE Trans. IT 2001:
-  // on a cycle-free factor graph the sum-product algorithm computes the exact marginals once
+  // Kschischang, Frey, Loeliger, "Factor graphs and the sum-product algorithm", IEEE Trans. IT
+  // 2001: on a cycle-free factor graph the sum-product algorithm computes the exact marginals once
   // messages have crossed the graph (iterations >= its diameter).
   for (std::uint64_t seed = 1; seed <= 8; ++seed) {
     const Code tree = random_tree(6, seed);
@@ -90,15 +93,20 @@ TEST_CASE("on a tree, sum-product posteriors are the exact MAP marginals", "[dec
     const auto llr = random_llrs(tree.n(), seed * 31);
     const auto exact = exact_marginals(tree, llr);
     for (auto schedule : {Schedule::flooding, Schedule::layered}) {
-      const Run r = run(tree, settings(Algorithm::sum_product, schedule, 2 * static_cast<int>(tree.m()) + 2, false), llr);
+      const Run r =
+          run(tree,
+              settings(Algorithm::sum_product, schedule, 2 * static_cast<int>(tree.m()) + 2, false),
+              llr);
       INFO("seed " << seed << " schedule " << schedule_name(schedule));
-      for (std::size_t i = 0; i < tree.n(); ++i) CHECK(r.posterior[i] == Approx(exact[i]).margin(1e-9));
+      for (std::size_t i = 0; i < tree.n(); ++i)
+        CHECK(r.posterior[i] == Approx(exact[i]).margin(1e-9));
     }
   }
 }
 
 TEST_CASE("repetition code: the posterior is the sum of the channel LLRs", "[decode]") {
-  // Textbook: for a repetition code the bitwise MAP LLR of every bit is the sum of all channel LLRs.
+  // Textbook: for a repetition code the bitwise MAP LLR of every bit is the sum of all channel
+  // LLRs.
   const Code code = construct_repetition(5);
   const std::vector<double> llr{0.5, -1.25, 2.0, 0.75, -0.3};
   const double sum = 0.5 - 1.25 + 2.0 + 0.75 - 0.3;
@@ -108,7 +116,8 @@ TEST_CASE("repetition code: the posterior is the sum of the channel LLRs", "[dec
   }
 }
 
-TEST_CASE("single parity-check code: the posterior is L_i plus the boxplus of the others", "[decode]") {
+TEST_CASE("single parity-check code: the posterior is L_i plus the boxplus of the others",
+          "[decode]") {
   // Closed form (Hagenauer's tanh rule): L_i + 2 atanh(prod_{j != i} tanh(L_j / 2)).
   const Code code = construct_single_parity(6);
   const std::vector<double> llr{1.5, -0.7, 2.2, 0.4, -3.0, 0.9};
@@ -122,14 +131,16 @@ TEST_CASE("single parity-check code: the posterior is L_i plus the boxplus of th
   }
 }
 
-TEST_CASE("min-sum equals sum-product on degree-2 checks, alpha = 1 and beta = 0 equal min-sum", "[decode]") {
+TEST_CASE("min-sum equals sum-product on degree-2 checks, alpha = 1 and beta = 0 equal min-sum",
+          "[decode]") {
   // Common practice: with two inputs the boxplus of one other message is that message itself.
   const Code ring = Code::from_checks(5, {{0, 1}, {1, 2}, {2, 3}, {3, 4}, {4, 0}});
   const auto llr = random_llrs(5 * 4, 7);
   for (auto schedule : {Schedule::flooding, Schedule::layered}) {
     const Run sp = run(ring, settings(Algorithm::sum_product, schedule, 7, false), llr);
     const Run ms = run(ring, settings(Algorithm::min_sum, schedule, 7, false), llr);
-    for (std::size_t i = 0; i < llr.size(); ++i) CHECK(ms.posterior[i] == Approx(sp.posterior[i]).margin(1e-12));
+    for (std::size_t i = 0; i < llr.size(); ++i)
+      CHECK(ms.posterior[i] == Approx(sp.posterior[i]).margin(1e-12));
   }
   const Code code = test::shipped("regular-3-6-n2016.tanner");
   const auto noisy = random_llrs(code.n() * 3, 8, 1.2, 2.0);
@@ -166,8 +177,10 @@ TEST_CASE("exhaustive ML on Hamming (7,4) over the BSC", "[decode]") {
       const Run r = run(code, settings(Algorithm::ml), llr_of(flips));
       INFO("codeword " << u << " error pattern " << flips);
       CHECK(r.outcome[0].converged);
-      if (weight <= 1) CHECK(r.hard == word);
-      else CHECK(r.hard != word);
+      if (weight <= 1)
+        CHECK(r.hard == word);
+      else
+        CHECK(r.hard != word);
     }
   }
 }
@@ -179,7 +192,9 @@ TEST_CASE("ML posteriors are max-log LLRs and agree with the hard decision", "[d
   for (std::size_t i = 0; i < llr.size(); ++i) CHECK((r.posterior[i] < 0) == (r.hard[i] == 1));
 }
 
-TEST_CASE("layered and flooding agree at high SNR, layered needs far fewer iterations in the waterfall", "[decode]") {
+TEST_CASE(
+    "layered and flooding agree at high SNR, layered needs far fewer iterations in the waterfall",
+    "[decode]") {
   // Hocevar, "A reduced complexity decoder architecture via layered decoding of LDPC codes",
   // SiPS 2004: layered decoding converges in about half the iterations (common practice).
   const Code code = test::shipped("regular-3-6-n2016.tanner");
@@ -209,7 +224,8 @@ TEST_CASE("layered and flooding agree at high SNR, layered needs far fewer itera
   const Run f2 = run(code, settings(Algorithm::sum_product, Schedule::flooding), hard_llr);
   const Run l2 = run(code, settings(Algorithm::sum_product, Schedule::layered), hard_llr);
   double fi = 0, li = 0;
-  for (std::size_t i = 0; i < f2.outcome.size(); ++i) fi += f2.outcome[i].iterations, li += l2.outcome[i].iterations;
+  for (std::size_t i = 0; i < f2.outcome.size(); ++i)
+    fi += f2.outcome[i].iterations, li += l2.outcome[i].iterations;
   INFO("mean iterations flooding " << fi / 60 << " layered " << li / 60);
   CHECK(li < 0.7 * fi);
   CHECK(li > 0.3 * fi);
@@ -237,7 +253,8 @@ TEST_CASE("NaN inputs are rejected naming the frame and position", "[decode]") {
   std::vector<std::uint8_t> hard(14);
   std::vector<FrameOutcome> out(2);
   auto dec = make_decoder(code, settings(Algorithm::sum_product));
-  CHECK_THROWS_WITH(dec->decode(llr, hard, {}, out, 100), Catch::Contains("frame 101, position 2: channel LLR is NaN"));
+  CHECK_THROWS_WITH(dec->decode(llr, hard, {}, out, 100),
+                    Catch::Contains("frame 101, position 2: channel LLR is NaN"));
 }
 
 TEST_CASE("infinite and huge inputs never produce NaN or Inf", "[decode]") {
@@ -248,8 +265,8 @@ TEST_CASE("infinite and huge inputs never produce NaN or Inf", "[decode]") {
     const double x[] = {INFINITY, -INFINITY, 1e30, -1e30, 0.0, 1e-300, 3.0};
     llr[i] = x[i % 7];
   }
-  for (auto a : {Algorithm::sum_product, Algorithm::min_sum, Algorithm::normalized_min_sum, Algorithm::offset_min_sum,
-                 Algorithm::bit_flip}) {
+  for (auto a : {Algorithm::sum_product, Algorithm::min_sum, Algorithm::normalized_min_sum,
+                 Algorithm::offset_min_sum, Algorithm::bit_flip}) {
     for (auto schedule : {Schedule::flooding, Schedule::layered}) {
       if (a == Algorithm::bit_flip && schedule == Schedule::layered) continue;
       const Run r = run(code, settings(a, schedule, 20, false), llr);
@@ -271,16 +288,20 @@ TEST_CASE("a decoder is reusable and batches equal single frames", "[decode]") {
     std::vector<double> p1(code.n());
     std::vector<FrameOutcome> o1(1);
     dec->decode(std::span(llr).subspan(f * code.n(), code.n()), h1, p1, o1);
-    CHECK(std::equal(h1.begin(), h1.end(), hard.begin() + static_cast<std::ptrdiff_t>(f * code.n())));
-    CHECK(std::equal(p1.begin(), p1.end(), post.begin() + static_cast<std::ptrdiff_t>(f * code.n())));
+    CHECK(
+        std::equal(h1.begin(), h1.end(), hard.begin() + static_cast<std::ptrdiff_t>(f * code.n())));
+    CHECK(
+        std::equal(p1.begin(), p1.end(), post.begin() + static_cast<std::ptrdiff_t>(f * code.n())));
     CHECK(o1[0].iterations == out[f].iterations);
   }
 }
 
 TEST_CASE("impossible settings are refused with a clear message", "[decode]") {
   const Code big = test::shipped("regular-3-6-n2016.tanner");
-  CHECK_THROWS_WITH(make_decoder(big, settings(Algorithm::ml)), Catch::Contains("limited to k <= 24"));
-  CHECK_THROWS_WITH(make_decoder(big, settings(Algorithm::bit_flip, Schedule::layered)), Catch::Contains("no layered schedule"));
+  CHECK_THROWS_WITH(make_decoder(big, settings(Algorithm::ml)),
+                    Catch::Contains("limited to k <= 24"));
+  CHECK_THROWS_WITH(make_decoder(big, settings(Algorithm::bit_flip, Schedule::layered)),
+                    Catch::Contains("no layered schedule"));
   DecoderSettings s;
   s.alpha = 1.5;
   CHECK_THROWS_WITH(make_decoder(big, s), Catch::Contains("alpha must be in (0, 1]"));

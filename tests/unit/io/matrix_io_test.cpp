@@ -38,7 +38,8 @@ TEST_CASE("every format round-trips every shipped code exactly", "[io]") {
 
 TEST_CASE("every format round-trips random codes with empty rows and columns", "[io]") {
   for (std::uint64_t seed = 1; seed <= 20; ++seed) {
-    check_round_trip(test::random_code(4 + seed % 5, 5 + seed % 9, 0.25, seed), "seed " + std::to_string(seed));
+    check_round_trip(test::random_code(4 + seed % 5, 5 + seed % 9, 0.25, seed),
+                     "seed " + std::to_string(seed));
   }
 }
 
@@ -47,7 +48,9 @@ TEST_CASE("readers accept the common variants", "[io]") {
   // base tables with '-' and the lifting size on the command line, compact dense rows.
   const Code ref = Code::from_checks(3, {{0, 1}, {1, 2}});
   CHECK(parse_code("3 2\n2 2\n1 2 1\n2 2\n1\n1 2\n2\n1 2\n2 3\n", "a") == ref);
-  CHECK(parse_code("%%MatrixMarket matrix coordinate integer general\n% c\n2 3 5\n1 1 1\n1 2 1\n2 2 1\n2 3 1\n1 3 0\n", "m") == ref);
+  CHECK(parse_code("%%MatrixMarket matrix coordinate integer general\n% c\n2 3 5\n1 1 1\n1 2 1\n2 "
+                   "2 1\n2 3 1\n1 3 0\n",
+                   "m") == ref);
   CHECK(parse_code("110\n011\n", "d") == ref);
   const Code qc = parse_code("# base\n0 -\n1 2\n", "q", ReadOptions{std::nullopt, 3});
   CHECK(qc.n() == 6);
@@ -68,38 +71,140 @@ TEST_CASE("bad inputs give one-line errors with file and line", "[io][bad-input]
     const char* message;
   };
   const std::vector<Bad> table = {
-      {"non-numeric token", "tannery-h 1 n=4 m=1\n0 x 2\n", {}, {}, "bad:2: expected an integer, found 'x'"},
-      {"index out of range", "tannery-h 1 n=4 m=1\n0 4\n", {}, {}, "bad:2: variable index 4 is out of range [0, 3]"},
-      {"duplicate index", "tannery-h 1 n=4 m=1\n1 3 1\n", {}, {}, "bad:2: check 0 lists variable 1 twice"},
-      {"more rows than header", "tannery-h 1 n=4 m=1\n0\n1\n", {}, {}, "bad:3: more check lines than the header's m=1"},
-      {"fewer rows than header", "tannery-h 1 n=4 m=3\n0\n1\n", {}, {}, "header says m=3 checks but the file has 2"},
-      {"size too large", "tannery-h 1 n=99999999999 m=1\n0\n", {}, {}, "bad:1: n 99999999999 is out of range"},
+      {"non-numeric token",
+       "tannery-h 1 n=4 m=1\n0 x 2\n",
+       {},
+       {},
+       "bad:2: expected an integer, found 'x'"},
+      {"index out of range",
+       "tannery-h 1 n=4 m=1\n0 4\n",
+       {},
+       {},
+       "bad:2: variable index 4 is out of range [0, 3]"},
+      {"duplicate index",
+       "tannery-h 1 n=4 m=1\n1 3 1\n",
+       {},
+       {},
+       "bad:2: check 0 lists variable 1 twice"},
+      {"more rows than header",
+       "tannery-h 1 n=4 m=1\n0\n1\n",
+       {},
+       {},
+       "bad:3: more check lines than the header's m=1"},
+      {"fewer rows than header",
+       "tannery-h 1 n=4 m=3\n0\n1\n",
+       {},
+       {},
+       "header says m=3 checks but the file has 2"},
+      {"size too large",
+       "tannery-h 1 n=99999999999 m=1\n0\n",
+       {},
+       {},
+       "bad:1: n 99999999999 is out of range"},
       {"negative size", "tannery-h 1 n=-5 m=1\n0\n", {}, {}, "bad:1: n -5 is out of range"},
-      {"number overflow", "tannery-h 1 n=4 m=1\n99999999999999999999999\n", {}, {}, "bad:2: number '99999999999999999999999' is too large"},
-      {"unknown version", "tannery-h 2 n=4 m=1\n0\n", {}, {}, "bad:1: unsupported format version '2'"},
+      {"number overflow",
+       "tannery-h 1 n=4 m=1\n99999999999999999999999\n",
+       {},
+       {},
+       "bad:2: number '99999999999999999999999' is too large"},
+      {"unknown version",
+       "tannery-h 2 n=4 m=1\n0\n",
+       {},
+       {},
+       "bad:1: unsupported format version '2'"},
       {"empty file", "", {}, {}, "bad: empty file"},
       {"only comments", "# nothing\n\n", {}, {}, "bad: empty file"},
-      {"binary garbage", std::string("\x7f" "ELF\x02\x01\x01\x00\x00", 9), {}, {}, "bad:1: binary data (byte 0x02 at offset 4)"},
-      {"alist degree mismatch", "3 2\n2 2\n1 2 1\n2 2\n1 0\n1 2\n2 0\n1 2 3\n2 3\n", {}, {}, "bad:8: alist: row 1 has 3 entries, its degree is 2"},
-      {"alist rows and columns disagree", "3 2\n1 2\n1 1 1\n2 1\n1\n1\n2\n1 3\n2\n", {}, {}, "bad:8: alist: column 2 lists row 1 but row 1 does not list column 2"},
-      {"alist truncated", "3 2\n2 2\n1 2 1\n2 2\n1 0\n", {}, {}, "bad:5: file ends before the column 2"},
-      {"alist index out of range", "2 1\n1 2\n1 1\n2\n1\n1\n1 7\n", {}, {}, "bad:7: index 7 is out of range [0, 2]"},
-      {"mtx entry count", "%%MatrixMarket matrix coordinate pattern general\n2 2 3\n1 1\n2 2\n", {}, {}, "declares 3 entries but the file has 2"},
-      {"mtx duplicate entry", "%%MatrixMarket matrix coordinate pattern general\n2 2 2\n1 2\n1 2\n", {}, {}, "bad:4: entry (1, 2) repeats the one on line 3"},
-      {"mtx non-binary value", "%%MatrixMarket matrix coordinate integer general\n2 2 1\n1 2 2\n", {}, {}, "bad:3: value '2' is not a binary entry"},
-      {"mtx row out of range", "%%MatrixMarket matrix coordinate pattern general\n2 2 1\n3 1\n", {}, {}, "bad:3: row 3 is out of range [1, 2]"},
-      {"mtx huge declared size", "%%MatrixMarket matrix coordinate pattern general\n1000000000000 2 1\n1 1\n", {}, {}, "bad:2: rows 1000000000000 is out of range"},
-      {"mtx array layout", "%%MatrixMarket matrix array integer general\n2 2\n1\n0\n0\n1\n", {}, {}, "bad:1: Matrix Market layout 'array' is not supported"},
-      {"qc shift >= Z", "Z = 5\n0 1\n2 7\n", {}, {}, "bad:3: base table entry (row 2, column 2) has shift 7 >= Z = 5"},
+      {"binary garbage",
+       std::string("\x7f"
+                   "ELF\x02\x01\x01\x00\x00",
+                   9),
+       {},
+       {},
+       "bad:1: binary data (byte 0x02 at offset 4)"},
+      {"alist degree mismatch",
+       "3 2\n2 2\n1 2 1\n2 2\n1 0\n1 2\n2 0\n1 2 3\n2 3\n",
+       {},
+       {},
+       "bad:8: alist: row 1 has 3 entries, its degree is 2"},
+      {"alist rows and columns disagree",
+       "3 2\n1 2\n1 1 1\n2 1\n1\n1\n2\n1 3\n2\n",
+       {},
+       {},
+       "bad:8: alist: column 2 lists row 1 but row 1 does not list column 2"},
+      {"alist truncated",
+       "3 2\n2 2\n1 2 1\n2 2\n1 0\n",
+       {},
+       {},
+       "bad:5: file ends before the column 2"},
+      {"alist index out of range",
+       "2 1\n1 2\n1 1\n2\n1\n1\n1 7\n",
+       {},
+       {},
+       "bad:7: index 7 is out of range [0, 2]"},
+      {"mtx entry count",
+       "%%MatrixMarket matrix coordinate pattern general\n2 2 3\n1 1\n2 2\n",
+       {},
+       {},
+       "declares 3 entries but the file has 2"},
+      {"mtx duplicate entry",
+       "%%MatrixMarket matrix coordinate pattern general\n2 2 2\n1 2\n1 2\n",
+       {},
+       {},
+       "bad:4: entry (1, 2) repeats the one on line 3"},
+      {"mtx non-binary value",
+       "%%MatrixMarket matrix coordinate integer general\n2 2 1\n1 2 2\n",
+       {},
+       {},
+       "bad:3: value '2' is not a binary entry"},
+      {"mtx row out of range",
+       "%%MatrixMarket matrix coordinate pattern general\n2 2 1\n3 1\n",
+       {},
+       {},
+       "bad:3: row 3 is out of range [1, 2]"},
+      {"mtx huge declared size",
+       "%%MatrixMarket matrix coordinate pattern general\n1000000000000 2 1\n1 1\n",
+       {},
+       {},
+       "bad:2: rows 1000000000000 is out of range"},
+      {"mtx array layout",
+       "%%MatrixMarket matrix array integer general\n2 2\n1\n0\n0\n1\n",
+       {},
+       {},
+       "bad:1: Matrix Market layout 'array' is not supported"},
+      {"qc shift >= Z",
+       "Z = 5\n0 1\n2 7\n",
+       {},
+       {},
+       "bad:3: base table entry (row 2, column 2) has shift 7 >= Z = 5"},
       {"qc without Z", "0 -1\n1 2\n", {}, {}, "needs a lifting size"},
-      {"qc ragged row", "Z = 5\n0 1 -\n2 3\n", {}, {}, "bad:3: base table row has 2 entries, the first row has 3"},
-      {"qc Z too large", "Z = 99999999\n0 -1\n", {}, {}, "bad:1: lifting size Z 99999999 is out of range"},
+      {"qc ragged row",
+       "Z = 5\n0 1 -\n2 3\n",
+       {},
+       {},
+       "bad:3: base table row has 2 entries, the first row has 3"},
+      {"qc Z too large",
+       "Z = 99999999\n0 -1\n",
+       {},
+       {},
+       "bad:1: lifting size Z 99999999 is out of range"},
       {"qc Z conflicts", "Z = 5\n0 -1\n", {}, 7, "bad:1: file says Z = 5 but Z = 7 was requested"},
       {"qc shift below -1", "Z = 5\n0 -2\n", {}, {}, "bad:2: shift -2 is out of range"},
       {"qc malformed Z line", "Z = = 5\n0 -1\n", {}, {}, "bad:1: malformed lifting line"},
-      {"dense ragged", "0 1 1\n1 1\n", MatrixFormat::dense, {}, "bad:2: row has 2 columns, the first row has 3"},
-      {"dense non-binary", "0 1 2\n", MatrixFormat::dense, {}, "bad:1: dense matrix entry '2' is not 0 or 1"},
-      {"lifting on a non-qc file", "0 1\n1 1\n", {}, 4, "a lifting size only applies to quasi-cyclic base tables"},
+      {"dense ragged",
+       "0 1 1\n1 1\n",
+       MatrixFormat::dense,
+       {},
+       "bad:2: row has 2 columns, the first row has 3"},
+      {"dense non-binary",
+       "0 1 2\n",
+       MatrixFormat::dense,
+       {},
+       "bad:1: dense matrix entry '2' is not 0 or 1"},
+      {"lifting on a non-qc file",
+       "0 1\n1 1\n",
+       {},
+       4,
+       "a lifting size only applies to quasi-cyclic base tables"},
   };
   for (const auto& bad : table) {
     INFO(bad.what);
@@ -115,7 +220,8 @@ TEST_CASE("bad inputs give one-line errors with file and line", "[io][bad-input]
 }
 
 TEST_CASE("missing and unreadable files are errors naming the path", "[io][bad-input]") {
-  CHECK_THROWS_WITH(read_code_file("/nonexistent/h.alist"), Catch::Contains("/nonexistent/h.alist: cannot open file"));
+  CHECK_THROWS_WITH(read_code_file("/nonexistent/h.alist"),
+                    Catch::Contains("/nonexistent/h.alist: cannot open file"));
   CHECK_THROWS_WITH(read_code_file("/tmp"), Catch::Contains("/tmp: is a directory"));
 }
 
@@ -124,5 +230,6 @@ TEST_CASE("format names and extensions", "[io]") {
   CHECK(format_from_extension("x.qc") == MatrixFormat::qc);
   CHECK_FALSE(format_from_extension("x.txt").has_value());
   CHECK(parse_format_name("mtx") == MatrixFormat::mtx);
-  CHECK_THROWS_WITH(written(Code::from_checks(2, {{0, 1}}), MatrixFormat::qc), Catch::Contains("no quasi-cyclic structure"));
+  CHECK_THROWS_WITH(written(Code::from_checks(2, {{0, 1}}), MatrixFormat::qc),
+                    Catch::Contains("no quasi-cyclic structure"));
 }

@@ -1,0 +1,42 @@
+// Binary-input channels: BPSK over AWGN, the binary symmetric channel, the binary erasure
+// channel. Conventions: BPSK maps bit 0 to +1; L = log P(0)/P(1), positive means 0.
+#pragma once
+
+#include <cstdint>
+#include <optional>
+#include <span>
+#include <string_view>
+
+namespace tannery {
+
+enum class ChannelKind { awgn, bsc, bec };
+// How the AWGN sweep parameter is given: Eb/N0 or Es/N0, in dB.
+enum class SnrMeasure { ebn0, esn0 };
+
+std::string_view channel_name(ChannelKind kind);
+std::optional<ChannelKind> parse_channel(std::string_view name);
+
+// Noise standard deviation per real dimension for unit-energy BPSK:
+// sigma^2 = 1 / (2 R 10^(Eb/N0 / 10)) for Eb/N0, and 1 / (2 10^(Es/N0 / 10)) for Es/N0.
+double awgn_sigma(double snr_db, SnrMeasure measure, double rate);
+double esn0_db_from_ebn0(double ebn0_db, double rate);
+
+// A channel at one operating point: AWGN by sigma, BSC by crossover p, BEC by erasure
+// probability. The decoder may assume a different (mismatched) value for its LLRs.
+struct ChannelPoint {
+  ChannelKind kind = ChannelKind::awgn;
+  double value = 0;          // sigma (AWGN), p (BSC) or epsilon (BEC)
+  double assumed_value = 0;  // what the LLR computation assumes (equal unless mismatched)
+};
+
+// Validates a sweep value: p and epsilon in [0, 1], Eb/N0 finite. Throws Error.
+void check_channel_parameter(ChannelKind kind, double parameter);
+
+// Transmits one codeword and computes its channel LLRs. uniforms: 2 uniform draws per bit in
+// [0, 1) for AWGN (Box-Muller pairs), 1 per bit for BSC/BEC, supplied by the caller's RNG.
+// AWGN: y = (1 - 2c) + sigma z, L = 2 y / sigma_assumed^2; BSC: L = +-log((1-p)/p);
+// BEC: L = +-Inf when received, 0 when erased.
+void transmit(const ChannelPoint& channel, std::span<const std::uint8_t> codeword,
+              std::span<const double> gaussian_or_uniform, std::span<double> llr);
+
+}  // namespace tannery

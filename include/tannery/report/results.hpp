@@ -1,0 +1,55 @@
+// Results files: one JSON document per run (schema "tannery-results", version 1) holding
+// everything needed to reproduce it, plus a CSV view of the points and the text table.
+#pragma once
+
+#include <string>
+#include <string_view>
+#include <vector>
+
+#include "tannery/sim/simulator.hpp"
+#include "tannery/sim/stats.hpp"
+
+namespace tannery {
+
+inline constexpr int kResultsVersion = 1;
+
+struct CodeRecord {
+  std::string source;         // as given (path or shipped name)
+  std::string path;           // resolved file
+  std::string sha256;         // of the file's bytes
+  std::string matrix_sha256;  // of the matrix in tannery format (independent of the file format)
+  std::size_t n = 0, m = 0, k = 0, edges = 0;
+};
+
+struct RunRecord {
+  std::string tool_version;
+  std::string created;  // UTC, ISO 8601
+  CodeRecord code;
+  SimulationConfig config;
+  double rate_for_snr = 0;  // rate in the Eb/N0 conversion
+  unsigned threads_used = 0;
+  bool interrupted = false;
+  std::vector<PointResult> points;
+};
+
+struct PointStats {
+  Interval fer, ber;
+};
+PointStats point_stats(const PointResult& p, double confidence);
+
+// "ebn0_db", "esn0_db", "p" or "epsilon".
+std::string parameter_key(const ChannelSpec& channel);
+// Column heading: "Eb/N0 dB", "Es/N0 dB", "p", "epsilon".
+std::string parameter_heading(const ChannelSpec& channel);
+
+std::string results_json(const RunRecord& run);
+// Parses a results file; throws Error naming the source and the problem.
+RunRecord parse_results_json(std::string_view text, const std::string& source);
+std::string results_csv(const RunRecord& run);
+// The aligned table printed after a run.
+std::string results_table(const RunRecord& run);
+
+// Current UTC time as 2026-12-02T10:00:00Z.
+std::string utc_now();
+
+}  // namespace tannery

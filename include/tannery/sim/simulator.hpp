@@ -1,0 +1,139 @@
+// Monte Carlo error-rate simulation over a sweep of channel parameters.
+//
+// Frame pipeline: random information bits -> systematic encoder -> BPSK -> channel -> LLRs ->
+// decoder -> counts. Frames run in fixed-size chunks on worker threads; completed chunks are
+// added to the point's totals strictly in chunk order and the stop rules are evaluated after
+// each one, so work past the stopping chunk is discarded and the counts are identical for any
+// number of threads. A run interrupted at a chunk boundary resumes to exactly the counts of an
+// uninterrupted run. Only the wall-clock limit breaks this (it depends on the machine).
+#pragma once
+
+#include <atomic>
+#include <cstdint>
+#include <functional>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "tannery/channel/channel.hpp"
+#include "tannery/code/code.hpp"
+#include "tannery/code/gf2.hpp"
+#include "tannery/decode/decoder.hpp"
+
+namespace tannery {
+
+struct StopRules {
+  std::uint64_t frame_errors = 100;  // a point stops once it has at least this many frame errors
+  std::uint64_t max_frames = 1'000'000;  // ... or this many frames
+  double max_seconds = 0;                // ... or this much wall-clock time (0 = no limit)
+  double stop_below_fer = 0;             // the sweep stops after a point whose FER is below this
+  bool operator==(const StopRules&) const = default;
+};
+
+struct ChannelSpec {
+  ChannelKind kind = ChannelKind::awgn;
+  SnrMeasure measure = SnrMeasure::ebn0;  // AWGN: sweep values are Eb/N0 or Es/N0 in dB
+  bool design_rate = false;               // AWGN Eb/N0: use 1 - m/n instead of the true k/n
+  double snr_offset_db = 0;  // AWGN: LLRs computed for an SNR this much higher (mismatch)
+  std::optional<double>
+      assumed_crossover;  // BSC: LLR magnitude from this p instead of the true one
+  bool operator==(const ChannelSpec&) const = default;
+};
+
+struct SimulationConfig {
+  DecoderSettings decoder;
+  ChannelSpec channel;
+  std::vector<double> sweep;  // Eb/N0 or Es/N0 (dB), p or epsilon
+  StopRules stop;
+  std::uint64_t seed = 1;
+  std::uint32_t chunk_frames = 32;
+  unsigned threads = 0;           // 0 = all cores
+  bool all_zero = false;          // send the all-zero codeword (symmetric channel and decoder only)
+  double confidence = 0.95;       // level of the reported intervals
+  std::size_t keep_failures = 0;  // keep the channel LLRs of the first N failing frames per point
+  std::size_t failed_index_limit = 100'000;  // failed frame indices recorded per point
+};
+
+// Counts of one sweep point (only whole chunks, in order).
+struct PointResult {
+  double parameter = 0;
+  std::uint64_t frames = 0, frame_errors = 0, bit_errors = 0, bits = 0;
+  std::uint64_t coded_bit_errors = 0, coded_bits = 0, undetected_errors = 0, iterations = 0;
+  double bit_error_squares = 0;                    // sum over frames of (information bit errors)^2
+  std::vector<std::uint64_t> iteration_histogram;  // frames by iterations used
+  std::vector<std::uint64_t> failed_frames;        // indices of failed frames, increasing (capped)
+  std::uint64_t chunks = 0;
+  bool complete = false;
+  std::string stop_reason;  // why the point stopped (or "interrupted")
+  double seconds = 0;       // wall-clock time spent on the point
+
+  double fer() const {
+    return frames ? static_cast<double>(frame_errors) / static_cast<double>(frames) : 0;
+  }
+  double ber() const {
+    return bits ? static_cast<double>(bit_errors) / static_cast<double>(bits) : 0;
+  }
+  double mean_iterations() const {
+    return frames ? static_cast<double>(iterations) / static_cast<double>(frames) : 0;
+  }
+};
+
+// A failing frame kept for offline study.
+struct KeptFrame {
+  std::size_t point = 0;
+  std::uint64_t frame = 0;
+  std::vector<float> llr;
+};
+
+// Everything about one frame, regenerated from (seed, point, frame).
+struct FrameData {
+  std::vector<std::uint8_t> info, codeword, hard;
+  std::vector<double> llr, posterior;
+  FrameOutcome outcome;
+};
+
+struct Progress {
+  std::size_t point = 0;
+  PointResult totals;  // in-order totals so far
+  double seconds = 0;
+};
+
+class Simulator {
+ public:
+  // Validates the config (decoder settings, channel values) and prepares the encoder.
+  Simulator(const Code& code, SimulationConfig config);
+
+  const SimulationConfig& config() const noexcept { return config_; }
+  const Encoder& encoder() const noexcept { return encoder_; }
+  double rate() const noexcept;  // the rate used for Eb/N0 (true or design)
+  ChannelPoint channel_point(double parameter) const;
+
+  // Runs the sweep. previous (from a results file) holds points already simulated: complete ones
+  // are kept, a partial one continues from its next chunk. progress is called from the calling
+  // thread about five times a second; interrupt, when set, stops at the next chunk boundary.
+  std::vector<PointResult> run(std::vector<PointResult> previous,
+                               const std::function<void(const Progress&)>& progress,
+                               const std::atomic<bool>* interrupt);
+  // Frames kept by keep_failures during the last run, by point then frame index.
+  const std::vector<KeptFrame>& kept_frames() const noexcept { return kept_; }
+
+  FrameData replay(std::size_t point, std::uint64_t frame) const;
+
+ private:
+  struct Worker;
+  PointResult run_point(std::size_t index, PointResult start,
+                        const std::function<void(const Progress&)>& progress,
+                        const std::atomic<bool>* interrupt);
+
+  const Code& code_;
+  SimulationConfig config_;
+  Encoder encoder_;
+  std::vector<KeptFrame> kept_;
+};
+
+// Parses a sweep: a comma-separated list "1,1.5,2" and/or ranges "START:STEP:STOP" (inclusive,
+// tolerant to rounding). Throws Error on bad syntax, a zero or wrong-signed step, or > 10000
+// values.
+std::vector<double> parse_sweep(const std::string& text);
+
+}  // namespace tannery

@@ -1,0 +1,81 @@
+#include "tannery/channel/channel.hpp"
+
+#include <fmt/format.h>
+#include <cmath>
+#include <limits>
+
+#include "tannery/error.hpp"
+
+namespace tannery {
+
+std::string_view channel_name(ChannelKind kind) {
+  switch (kind) {
+    case ChannelKind::awgn:
+      return "awgn";
+    case ChannelKind::bsc:
+      return "bsc";
+    case ChannelKind::bec:
+      return "bec";
+  }
+  return "?";
+}
+
+std::optional<ChannelKind> parse_channel(std::string_view name) {
+  if (name == "awgn") return ChannelKind::awgn;
+  if (name == "bsc") return ChannelKind::bsc;
+  if (name == "bec") return ChannelKind::bec;
+  return std::nullopt;
+}
+
+double awgn_sigma(double snr_db, SnrMeasure measure, double rate) {
+  const double linear = std::pow(10.0, snr_db / 10.0);
+  return std::sqrt(1.0 / (2.0 * (measure == SnrMeasure::ebn0 ? rate : 1.0) * linear));
+}
+
+double esn0_db_from_ebn0(double ebn0_db, double rate) {
+  return ebn0_db + 10.0 * std::log10(rate);
+}
+
+void check_channel_parameter(ChannelKind kind, double parameter) {
+  if (!std::isfinite(parameter))
+    throw Error(fmt::format("channel parameter {} is not finite", parameter));
+  if (kind != ChannelKind::awgn && (parameter < 0 || parameter > 1)) {
+    throw Error(fmt::format("{} parameter must be a probability in [0, 1], got {}",
+                            channel_name(kind), parameter));
+  }
+}
+
+void transmit(const ChannelPoint& channel, std::span<const std::uint8_t> codeword,
+              std::span<const double> noise, std::span<double> llr) {
+  const std::size_t n = codeword.size();
+  switch (channel.kind) {
+    case ChannelKind::awgn: {
+      const double scale = 2.0 / (channel.assumed_value * channel.assumed_value);
+      for (std::size_t i = 0; i < n; ++i) {
+        const double y = (codeword[i] ? -1.0 : 1.0) + channel.value * noise[i];
+        llr[i] = scale * y;
+      }
+      return;
+    }
+    case ChannelKind::bsc: {
+      const double p = channel.assumed_value;
+      // p = 0 gives certainty; p = 1/2 gives no information; p > 1/2 flips the sign as it should.
+      const double magnitude =
+          p == 0 ? std::numeric_limits<double>::infinity()
+                 : (p == 1 ? -std::numeric_limits<double>::infinity() : std::log((1 - p) / p));
+      for (std::size_t i = 0; i < n; ++i) {
+        const std::uint8_t received = codeword[i] ^ (noise[i] < channel.value ? 1 : 0);
+        llr[i] = received ? -magnitude : magnitude;
+      }
+      return;
+    }
+    case ChannelKind::bec: {
+      const double inf = std::numeric_limits<double>::infinity();
+      for (std::size_t i = 0; i < n; ++i)
+        llr[i] = noise[i] < channel.value ? 0.0 : (codeword[i] ? -inf : inf);
+      return;
+    }
+  }
+}
+
+}  // namespace tannery

@@ -1,0 +1,58 @@
+// tannery plot RESULT.json... -o FILE.svg
+#include <fmt/format.h>
+
+#include "commands.hpp"
+#include "tannery/io/matrix_io.hpp"
+#include "tannery/report/plot.hpp"
+
+namespace tannery::cli {
+
+namespace {
+
+struct PlotCommand {
+  std::vector<std::string> inputs;
+  std::vector<std::string> labels;
+  std::string output;
+  std::string metric = "both";
+  bool no_references = false;
+  std::string title;
+};
+
+}  // namespace
+
+void add_plot(CLI::App& app) {
+  auto o = std::make_shared<PlotCommand>();
+  auto* sub =
+      app.add_subcommand("plot", "Draw error-rate curves of one or more results files as SVG");
+  sub->footer(
+      "Example:\n  tannery plot sp.json nms.json -o compare.svg --label sum-product --label 'NMS "
+      "0.75'");
+  sub->add_option("RESULT", o->inputs, "results files written by tannery simulate")->required();
+  sub->add_option("-o,--output", o->output, "SVG file to write ('-' = stdout)")->required();
+  sub->add_option("--label", o->labels,
+                  "legend label per results file, in order (default: the decoder)");
+  sub->add_option("--metric", o->metric, "fer, ber or both")
+      ->check(CLI::IsMember({"fer", "ber", "both"}))
+      ->capture_default_str();
+  sub->add_flag("--no-references", o->no_references,
+                "leave out the uncoded BPSK curve and the capacity limit");
+  sub->add_option("--title", o->title, "plot title");
+  sub->callback([o] {
+    std::vector<PlotRun> runs;
+    for (std::size_t i = 0; i < o->inputs.size(); ++i) {
+      RunRecord r = parse_results_json(read_text_file(o->inputs[i]), o->inputs[i]);
+      std::string label = i < o->labels.size()
+                              ? o->labels[i]
+                              : fmt::format("{} ({})", describe(r.config.decoder), r.code.source);
+      runs.push_back(PlotRun{std::move(label), std::move(r)});
+    }
+    PlotOptions options;
+    options.fer = o->metric != "ber";
+    options.ber = o->metric != "fer";
+    options.references = !o->no_references;
+    options.title = o->title;
+    write_file_atomically(o->output, plot_svg(runs, options));
+  });
+}
+
+}  // namespace tannery::cli

@@ -1,0 +1,374 @@
+// tannery simulate: error rates of a code and decoder over a channel across a sweep.
+#include <fmt/format.h>
+#include <unistd.h>
+#include <chrono>
+#include <cstdio>
+#include <sstream>
+#include <thread>
+
+#include "commands.hpp"
+#include "tannery/error.hpp"
+#include "tannery/io/capture.hpp"
+#include "tannery/io/code_lookup.hpp"
+#include "tannery/io/matrix_io.hpp"
+#include "tannery/report/plot.hpp"
+#include "tannery/report/results.hpp"
+#include "tannery/report/sha256.hpp"
+
+namespace tannery::cli {
+
+namespace {
+
+struct SimulateOptions {
+  CodeInput input;
+  DecoderOptions decoder;
+  std::string channel = "awgn";
+  std::string sweep;
+  std::string snr = "ebn0";
+  bool design_rate = false;
+  double snr_offset = 0;
+  std::optional<double> assumed_p;
+  std::uint64_t frame_errors = 100;
+  std::uint64_t max_frames = 100'000;
+  double max_seconds = 0;
+  double stop_below = 0;
+  std::uint64_t seed = 1;
+  unsigned threads = 0;
+  std::uint32_t chunk = 32;
+  double confidence = 0.95;
+  std::string output = "tannery-run.json";
+  std::string csv;
+  std::string plot = "tannery-run.svg";
+  std::string resume;
+  bool all_zero = false;
+  bool quiet = false;
+  std::string replay;
+  std::string replay_llr;
+  std::size_t save_failures = 0;
+  std::string failures = "tannery-failures.f32";
+};
+
+// Default sweeps: the waterfall of the shipped rate-1/2 codes, and ranges around the
+// capacity limits of rate 1/2 for the BSC and BEC.
+std::string default_sweep(ChannelKind kind) {
+  switch (kind) {
+    case ChannelKind::awgn:
+      return "1:0.25:1.75";
+    case ChannelKind::bsc:
+      return "0.08:-0.01:0.04";
+    case ChannelKind::bec:
+      return "0.46:-0.02:0.36";
+  }
+  return "";
+}
+
+CodeRecord code_record(const std::string& source, const Code& code, const Encoder& encoder) {
+  CodeRecord r;
+  r.source = source;
+  r.path = resolve_code_path(source);
+  r.sha256 = r.path == "-" ? std::string() : sha256_hex(read_text_file(r.path));
+  std::ostringstream canonical;
+  write_code(code, MatrixFormat::tannery, canonical);
+  r.matrix_sha256 = sha256_hex(canonical.str());
+  r.n = code.n();
+  r.m = code.m();
+  r.k = encoder.k();
+  r.edges = code.edges();
+  return r;
+}
+
+class ProgressLine {
+ public:
+  ProgressLine(bool enabled, const SimulationConfig& config, std::string heading)
+      : enabled_(enabled), config_(config), heading_(std::move(heading)) {}
+  void update(const Progress& p) {
+    if (!enabled_) return;
+    const PointResult& t = p.totals;
+    const double rate = p.seconds > 0 ? static_cast<double>(t.frames) / p.seconds : 0;
+    // Frames still needed: to reach the error target at the current FER, capped by max frames.
+    double remaining =
+        static_cast<double>(config_.stop.max_frames - std::min(t.frames, config_.stop.max_frames));
+    if (t.frame_errors > 0) {
+      const double need = static_cast<double>(config_.stop.frame_errors -
+                                              std::min(t.frame_errors, config_.stop.frame_errors));
+      remaining = std::min(remaining, need / t.fer());
+    }
+    const std::string eta = rate > 0 ? fmt::format("{:.0f} s", remaining / rate) : "?";
+    fmt::print(
+        stderr,
+        "\r  {} {:<8.4g} frames {:>10}  errors {:>6}  FER {:9.3e}  {:>8.0f} frames/s  ETA {:<8}",
+        heading_, config_.sweep[p.point], t.frames, t.frame_errors, t.fer(), rate, eta);
+    std::fflush(stderr);
+    last_point_ = p.point;
+    open_ = true;
+  }
+  void end_line() {
+    if (enabled_ && open_) fmt::print(stderr, "\n");
+    open_ = false;
+  }
+  std::size_t last_point() const { return last_point_; }
+
+ private:
+  bool enabled_;
+  const SimulationConfig& config_;
+  std::string heading_;
+  std::size_t last_point_ = SIZE_MAX;
+  bool open_ = false;
+};
+
+void write_outputs(const SimulateOptions& o, const RunRecord& record) {
+  if (!o.output.empty()) write_file_atomically(o.output, results_json(record));
+  if (!o.csv.empty()) write_file_atomically(o.csv, results_csv(record));
+  if (!o.plot.empty() && !record.points.empty()) {
+    write_file_atomically(
+        o.plot, plot_svg({PlotRun{describe(record.config.decoder), record}}, PlotOptions{}));
+  }
+}
+
+void print_throughput(const RunRecord& record, double wall) {
+  std::uint64_t frames = 0, iterations = 0;
+  for (const auto& p : record.points) frames += p.frames, iterations += p.iterations;
+  const double fps = wall > 0 ? static_cast<double>(frames) / wall : 0;
+  const double edge_rate =
+      wall > 0 ? static_cast<double>(iterations) * static_cast<double>(record.code.edges) / wall
+               : 0;
+  fmt::print(
+      "throughput: {:.0f} frames/s, {:.3f} coded Mbit/s, {:.3f} information Mbit/s, {:.3g} "
+      "edge-updates/s "
+      "({:.3g} per thread, {} threads)\n",
+      fps, fps * static_cast<double>(record.code.n) / 1e6,
+      fps * static_cast<double>(record.code.k) / 1e6, edge_rate, edge_rate / record.threads_used,
+      record.threads_used);
+}
+
+void replay(const SimulateOptions& o, const Code& code, const Simulator& sim) {
+  const auto colon = o.replay.find(':');
+  std::size_t point = 0;
+  std::uint64_t frame = 0;
+  try {
+    if (colon == std::string::npos) throw std::invalid_argument("");
+    point = std::stoul(o.replay.substr(0, colon));
+    frame = std::stoull(o.replay.substr(colon + 1));
+  } catch (const std::exception&) {
+    throw Error(fmt::format("--replay expects POINT:FRAME (indices from 0), got '{}'", o.replay));
+  }
+  const FrameData d = sim.replay(point, frame);
+  std::size_t info_errors = 0, coded_errors = 0;
+  for (std::size_t i = 0; i < code.n(); ++i) coded_errors += d.hard[i] != d.codeword[i];
+  for (std::uint32_t p : sim.encoder().info_positions()) info_errors += d.hard[p] != d.codeword[p];
+  fmt::print("replay of point {} ({} = {}), frame {}, seed {}:\n", point,
+             parameter_heading(sim.config().channel), sim.config().sweep[point], frame,
+             sim.config().seed);
+  fmt::print(
+      "  decoded {} after {} iterations, syndrome weight {}; {} coded and {} information bit "
+      "errors\n",
+      d.outcome.converged ? "to a codeword" : "without converging", d.outcome.iterations,
+      d.outcome.syndrome_weight, coded_errors, info_errors);
+  if (!o.replay_llr.empty()) {
+    std::vector<float> llr(d.llr.begin(), d.llr.end());
+    std::string bytes;
+    append_f32_le(bytes, llr);
+    write_file_atomically(o.replay_llr, bytes);
+    fmt::print("  channel LLRs written to {} (float32 little-endian, n = {})\n", o.replay_llr,
+               code.n());
+  }
+}
+
+void run(SimulateOptions o) {
+  RunRecord previous;
+  SimulationConfig config;
+  if (!o.resume.empty()) {
+    previous = parse_results_json(read_text_file(o.resume), o.resume);
+    config = previous.config;
+    o.input.code = previous.code.path;
+    if (o.output == "tannery-run.json") o.output = o.resume;
+  } else {
+    config.decoder = o.decoder.settings();
+    config.channel.kind = *parse_channel(o.channel);
+    config.channel.measure = o.snr == "esn0" ? SnrMeasure::esn0 : SnrMeasure::ebn0;
+    config.channel.design_rate = o.design_rate;
+    config.channel.snr_offset_db = o.snr_offset;
+    config.channel.assumed_crossover = o.assumed_p;
+    if (config.channel.kind != ChannelKind::awgn &&
+        (o.snr_offset != 0 || o.design_rate || o.snr != "ebn0")) {
+      throw Error("--snr, --design-rate and --snr-offset apply to --channel awgn only");
+    }
+    if (config.channel.kind != ChannelKind::bsc && o.assumed_p)
+      throw Error("--assumed-p applies to --channel bsc only");
+    config.sweep = parse_sweep(o.sweep.empty() ? default_sweep(config.channel.kind) : o.sweep);
+    config.stop = StopRules{o.frame_errors, o.max_frames, o.max_seconds, o.stop_below};
+    config.seed = o.seed;
+    config.chunk_frames = o.chunk;
+    config.all_zero = o.all_zero;
+    config.confidence = o.confidence;
+  }
+  config.threads = o.threads ? o.threads : std::max(1u, std::thread::hardware_concurrency());
+  config.keep_failures = o.save_failures;
+
+  const Code code = o.input.load();
+  Simulator sim(code, config);
+  if (!o.replay.empty()) return replay(o, code, sim);
+
+  RunRecord record;
+  record.tool_version = TANNERY_VERSION;
+  record.created = utc_now();
+  record.code = code_record(o.input.code, code, sim.encoder());
+  if (!o.resume.empty() && record.code.matrix_sha256 != previous.code.matrix_sha256) {
+    throw Error(fmt::format("resume: {} no longer holds the matrix the run used (SHA-256 differs)",
+                            o.input.code));
+  }
+  record.config = sim.config();
+  record.rate_for_snr = sim.rate();
+  record.threads_used = config.threads;
+
+  const bool live = !o.quiet && isatty(STDERR_FILENO);
+  if (!o.quiet) {
+    fmt::print("code {}: n = {}, k = {}, rate {:.4f}{}\n", o.input.code, code.n(),
+               sim.encoder().k(),
+               static_cast<double>(sim.encoder().k()) / static_cast<double>(code.n()),
+               config.channel.kind == ChannelKind::awgn
+                   ? fmt::format(" (Eb/N0 uses R = {:.4f}, {} rate)", sim.rate(),
+                                 config.channel.design_rate ? "design" : "true")
+                   : std::string());
+    fmt::print("decoder {}; channel {}; seed {}, chunks of {} frames, {} threads{}\n",
+               describe(config.decoder), channel_name(config.channel.kind), config.seed,
+               config.chunk_frames, config.threads, config.all_zero ? "; all-zero codeword" : "");
+    std::fflush(stdout);
+  }
+  ProgressLine line(live, sim.config(), parameter_heading(config.channel));
+  install_interrupt_handler();
+  const auto start = std::chrono::steady_clock::now();
+  std::vector<PointResult> points;
+  auto on_progress = [&](const Progress& p) {
+    if (p.point != line.last_point()) line.end_line();
+    line.update(p);
+  };
+  try {
+    points = sim.run(previous.points, on_progress, &g_interrupted);
+  } catch (...) {
+    line.end_line();
+    throw;
+  }
+  line.end_line();
+  const double wall =
+      std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
+  record.points = points;
+  record.interrupted = !points.empty() && !points.back().complete;
+  write_outputs(o, record);
+  if (!o.quiet) {
+    fmt::print("\n{}", results_table(record));
+    print_throughput(record, wall);
+    if (record.interrupted) {
+      fmt::print("interrupted: results so far saved; continue with --resume {}\n", o.output);
+    } else if (points.size() < config.sweep.size()) {
+      const PointResult& last = points.back();
+      fmt::print("sweep stopped early: {}\n",
+                 last.frame_errors == 0 ? fmt::format("no frame error in {} frames", last.frames)
+                                        : fmt::format("FER {:.3e} below --stop-below {}",
+                                                      last.fer(), config.stop.stop_below_fer));
+    }
+    for (const auto* f : {&o.output, &o.csv, &o.plot}) {
+      if (!f->empty()) fmt::print("wrote {}\n", *f);
+    }
+  }
+  if (o.save_failures > 0) {
+    std::string bytes,
+        index = "# point parameter frame (one line per float32 frame in the capture)\n";
+    for (const KeptFrame& f : sim.kept_frames()) {
+      append_f32_le(bytes, f.llr);
+      index += fmt::format("{} {} {}\n", f.point, config.sweep[f.point], f.frame);
+    }
+    write_file_atomically(o.failures, bytes);
+    write_file_atomically(o.failures + ".txt", index);
+    if (!o.quiet) {
+      fmt::print(
+          "saved {} failing frames' channel LLRs to {} (float32, n = {} per frame; index in "
+          "{}.txt)\n",
+          sim.kept_frames().size(), o.failures, code.n(), o.failures);
+    }
+  }
+  if (record.interrupted) throw CheckFailed{130};
+}
+
+}  // namespace
+
+void add_simulate(CLI::App& app) {
+  auto o = std::make_shared<SimulateOptions>();
+  auto* sub = app.add_subcommand("simulate",
+                                 "Estimate bit and frame error rates across a sweep (Monte Carlo)");
+  sub->footer(
+      "Examples:\n"
+      "  tannery simulate                                   # default: regular-3-6-n2016, "
+      "sum-product, AWGN 1..1.75 dB\n"
+      "  tannery simulate --code qc-rate-half-z54 --algorithm normalized-min-sum --schedule "
+      "layered \\\n"
+      "                   --sweep 1:0.5:3 --frame-errors 200 --output qc.json --plot qc.svg\n"
+      "  tannery simulate --channel bsc --sweep 0.02,0.03,0.04 --algorithm bit-flip\n"
+      "  tannery simulate --resume tannery-run.json          # continue an interrupted run\n"
+      "Counts are identical for any --threads: frames are pure functions of (seed, point, frame).");
+  o->input.add_to(*sub, false, kDefaultCode);
+  o->decoder.add_to(*sub);
+  auto* ch = sub->add_option_group("channel", "Channel options");
+  ch->add_option("--channel", o->channel,
+                 "awgn (BPSK over AWGN), bsc (crossover p) or bec (erasure probability)")
+      ->check(CLI::IsMember({"awgn", "bsc", "bec"}))
+      ->capture_default_str();
+  ch->add_option("--sweep", o->sweep,
+                 "sweep values: list 1,1.5,2 or range START:STEP:STOP; Eb/N0 in dB (awgn), p "
+                 "(bsc), epsilon (bec); "
+                 "default awgn 1:0.25:1.75, bsc 0.08:-0.01:0.04, bec 0.46:-0.02:0.36");
+  ch->add_option("--snr", o->snr, "awgn sweep measure: ebn0 (Eb/N0 in dB) or esn0 (Es/N0 in dB)")
+      ->check(CLI::IsMember({"ebn0", "esn0"}))
+      ->capture_default_str();
+  ch->add_flag("--design-rate", o->design_rate,
+               "Eb/N0 with the design rate 1 - m/n instead of the true rate k/n");
+  ch->add_option("--snr-offset", o->snr_offset,
+                 "decoder's noise estimate is off: LLRs computed for an SNR this many dB higher "
+                 "(awgn mismatch)");
+  ch->add_option("--assumed-p", o->assumed_p,
+                 "bsc: LLR magnitude log((1-p)/p) from this p instead of the true one");
+  ch->add_flag("--all-zero", o->all_zero,
+               "send the all-zero codeword instead of random data: valid only for symmetric "
+               "channels and decoders "
+               "(all here are), and it skips encoding");
+  auto* stop = sub->add_option_group("stop", "Stop rules");
+  stop->add_option("--frame-errors", o->frame_errors,
+                   "a point stops after at least this many frame errors")
+      ->capture_default_str();
+  stop->add_option("--max-frames", o->max_frames,
+                   "a point stops after this many frames; the sweep stops at a point "
+                   "with no error in that many")
+      ->capture_default_str();
+  stop->add_option("--max-seconds", o->max_seconds,
+                   "a point stops after this many seconds (wall clock: the one rule that makes "
+                   "counts machine-dependent)");
+  stop->add_option("--stop-below", o->stop_below,
+                   "the sweep stops after a point whose FER is below this");
+  sub->add_option("--seed", o->seed, "seed of the Philox streams")->capture_default_str();
+  sub->add_option("--threads", o->threads, "worker threads (default: all cores)");
+  sub->add_option("--chunk", o->chunk,
+                  "frames per chunk, the unit of work and of stop-rule evaluation")
+      ->check(CLI::Range(1, 1 << 20))
+      ->capture_default_str();
+  sub->add_option("--confidence", o->confidence, "level of the FER and BER intervals")
+      ->capture_default_str();
+  sub->add_option("--output", o->output, "results file (JSON; '' for none)")->capture_default_str();
+  sub->add_option("--csv", o->csv, "also write the points as CSV");
+  sub->add_option("--plot", o->plot, "SVG plot of FER and BER ('' for none)")
+      ->capture_default_str();
+  sub->add_option("--resume", o->resume,
+                  "continue the run recorded in this results file (its settings are used)");
+  sub->add_flag("--quiet", o->quiet, "print nothing but errors");
+  sub->add_option("--replay", o->replay,
+                  "decode one frame again, POINT:FRAME (indices from 0), and report it");
+  sub->add_option("--replay-llr", o->replay_llr,
+                  "with --replay: write that frame's channel LLRs (float32)");
+  sub->add_option("--save-failures", o->save_failures,
+                  "keep the channel LLRs of the first N failing frames per point");
+  sub->add_option("--failures", o->failures,
+                  "capture file for --save-failures (float32, n per frame)")
+      ->capture_default_str();
+  sub->callback([o] { run(*o); });
+}
+
+}  // namespace tannery::cli

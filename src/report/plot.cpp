@@ -1,0 +1,225 @@
+#include "tannery/report/plot.hpp"
+
+#include <fmt/format.h>
+#include <algorithm>
+#include <cmath>
+
+#include "tannery/error.hpp"
+#include "tannery/theory/capacity.hpp"
+
+namespace tannery {
+
+namespace {
+
+constexpr double kWidth = 960, kHeight = 560, kLeft = 80, kRight = 330, kTop = 50, kBottom = 60;
+constexpr const char* kColours[] = {"#1f5fa8", "#c0392b", "#2e8b57", "#8e44ad",
+                                    "#d68910", "#117a8b", "#6e2c00"};
+
+std::string escape(const std::string& s) {
+  std::string out;
+  for (char c : s) {
+    switch (c) {
+      case '<':
+        out += "&lt;";
+        break;
+      case '>':
+        out += "&gt;";
+        break;
+      case '&':
+        out += "&amp;";
+        break;
+      case '"':
+        out += "&quot;";
+        break;
+      default:
+        out += c;
+    }
+  }
+  return out;
+}
+
+struct Axes {
+  double x0, x1, y0, y1;  // y in log10
+  double px(double x) const { return kLeft + (x - x0) / (x1 - x0) * (kWidth - kLeft - kRight); }
+  double py(double v) const {
+    const double l = std::clamp(std::log10(std::max(v, 1e-300)), y0, y1);
+    return kTop + (y1 - l) / (y1 - y0) * (kHeight - kTop - kBottom);
+  }
+};
+
+// Capacity limit of the first run, in its own parameter, with a label; NaN when not applicable.
+std::pair<double, std::string> capacity_limit(const RunRecord& run) {
+  const double rate =
+      run.code.n ? static_cast<double>(run.code.k) / static_cast<double>(run.code.n) : 0;
+  if (rate <= 0 || rate >= 1) return {NAN, ""};
+  const ChannelSpec& c = run.config.channel;
+  switch (c.kind) {
+    case ChannelKind::awgn: {
+      double limit = biawgn_shannon_limit_ebn0_db(rate);
+      if (c.measure == SnrMeasure::esn0) limit = esn0_db_from_ebn0(limit, rate);
+      return {limit, fmt::format("BPSK Shannon limit, R = {:.3f}", rate)};
+    }
+    case ChannelKind::bsc:
+      return {bsc_limit_crossover(rate), fmt::format("BSC capacity limit, R = {:.3f}", rate)};
+    case ChannelKind::bec:
+      return {1 - rate, fmt::format("BEC capacity limit, R = {:.3f}", rate)};
+  }
+  return {NAN, ""};
+}
+
+}  // namespace
+
+std::string plot_svg(const std::vector<PlotRun>& runs, const PlotOptions& options) {
+  if (runs.empty()) throw Error("plot: no results to draw");
+  double xmin = INFINITY, xmax = -INFINITY, vmin = 1.0;
+  for (const auto& r : runs) {
+    for (const auto& p : r.run.points) {
+      xmin = std::min(xmin, p.parameter);
+      xmax = std::max(xmax, p.parameter);
+      const PointStats s = point_stats(p, r.run.config.confidence);
+      for (double v : {options.fer ? p.fer() : 1.0, options.ber ? p.ber() : 1.0,
+                       options.fer ? s.fer.low : 1.0, options.ber ? s.ber.low : 1.0}) {
+        if (v > 0) vmin = std::min(vmin, v);
+      }
+    }
+  }
+  if (!std::isfinite(xmin)) throw Error("plot: the results files have no points");
+  const RunRecord& first = runs.front().run;
+  const bool awgn_ebn0 = first.config.channel.kind == ChannelKind::awgn &&
+                         first.config.channel.measure == SnrMeasure::ebn0;
+  const auto [limit, limit_label] = options.references
+                                        ? capacity_limit(first)
+                                        : std::pair{static_cast<double>(NAN), std::string()};
+  if (std::isfinite(limit)) xmin = std::min(xmin, limit), xmax = std::max(xmax, limit);
+  const double span =
+      std::max(xmax - xmin, first.config.channel.kind == ChannelKind::awgn ? 1.0 : 0.01);
+  Axes ax{xmin - 0.05 * span, xmax + 0.05 * span, std::floor(std::log10(vmin)) - (vmin < 1 ? 0 : 1),
+          0};
+  if (ax.y0 >= ax.y1) ax.y0 = ax.y1 - 1;
+
+  std::string svg = fmt::format(
+      "<?xml version=\"1.0\" encoding=\"UTF-8\"?>\n"
+      "<svg xmlns=\"http://www.w3.org/2000/svg\" width=\"{0}\" height=\"{1}\" viewBox=\"0 0 {0} "
+      "{1}\" "
+      "font-family=\"sans-serif\" font-size=\"12\">\n<rect width=\"100%\" height=\"100%\" "
+      "fill=\"white\"/>\n",
+      kWidth, kHeight);
+  const std::string heading = parameter_heading(first.config.channel);
+  const std::string title =
+      options.title.empty() ? fmt::format("{}: error rates", first.code.source) : options.title;
+  svg += fmt::format("<text x=\"{}\" y=\"28\" font-size=\"15\" font-weight=\"bold\">{}</text>\n",
+                     kLeft, escape(title));
+  // Decade grid and labels.
+  for (double d = ax.y0; d <= ax.y1 + 1e-9; d += 1) {
+    const double y = ax.py(std::pow(10.0, d));
+    svg += fmt::format(
+        "<line x1=\"{:.1f}\" y1=\"{:.1f}\" x2=\"{:.1f}\" y2=\"{:.1f}\" stroke=\"#ccc\"/>\n", kLeft,
+        y, kWidth - kRight, y);
+    svg += fmt::format("<text x=\"{:.1f}\" y=\"{:.1f}\" text-anchor=\"end\">1e{}</text>\n",
+                       kLeft - 6, y + 4, static_cast<int>(d));
+    for (int m = 2; m < 10 && d < ax.y1; ++m) {
+      const double ym = ax.py(m * std::pow(10.0, d));
+      svg += fmt::format(
+          "<line x1=\"{:.1f}\" y1=\"{:.1f}\" x2=\"{:.1f}\" y2=\"{:.1f}\" stroke=\"#eee\"/>\n",
+          kLeft, ym, kWidth - kRight, ym);
+    }
+  }
+  const double raw_step = (ax.x1 - ax.x0) / 8;
+  const double magnitude = std::pow(10.0, std::floor(std::log10(raw_step)));
+  double step = magnitude;
+  for (double f : {1.0, 2.0, 2.5, 5.0, 10.0}) {
+    if (f * magnitude >= raw_step) {
+      step = f * magnitude;
+      break;
+    }
+  }
+  for (double x = std::ceil(ax.x0 / step) * step; x <= ax.x1 + 1e-12; x += step) {
+    const double px = ax.px(x);
+    svg += fmt::format(
+        "<line x1=\"{:.1f}\" y1=\"{:.1f}\" x2=\"{:.1f}\" y2=\"{:.1f}\" stroke=\"#ddd\"/>\n", px,
+        kTop, px, kHeight - kBottom);
+    svg += fmt::format("<text x=\"{:.1f}\" y=\"{:.1f}\" text-anchor=\"middle\">{:g}</text>\n", px,
+                       kHeight - kBottom + 18, std::round(x / step) * step);
+  }
+  svg += fmt::format(
+      "<rect x=\"{}\" y=\"{}\" width=\"{}\" height=\"{}\" fill=\"none\" stroke=\"black\"/>\n",
+      kLeft, kTop, kWidth - kLeft - kRight, kHeight - kTop - kBottom);
+  svg += fmt::format("<text x=\"{:.1f}\" y=\"{:.1f}\" text-anchor=\"middle\">{}</text>\n",
+                     (kLeft + kWidth - kRight) / 2, kHeight - 18, escape(heading));
+  svg += fmt::format(
+      "<text x=\"18\" y=\"{:.1f}\" text-anchor=\"middle\" transform=\"rotate(-90 18 "
+      "{:.1f})\">error rate</text>\n",
+      (kTop + kHeight - kBottom) / 2, (kTop + kHeight - kBottom) / 2);
+
+  std::vector<std::pair<std::string, std::string>> legend;  // (swatch svg, label)
+  if (options.references && awgn_ebn0) {
+    std::string points;
+    for (int i = 0; i <= 200; ++i) {
+      const double x = ax.x0 + (ax.x1 - ax.x0) * i / 200;
+      const double v = uncoded_bpsk_ber(x);
+      if (std::log10(v) < ax.y0) break;
+      points += fmt::format("{:.1f},{:.1f} ", ax.px(x), ax.py(v));
+    }
+    svg += fmt::format(
+        "<polyline points=\"{}\" fill=\"none\" stroke=\"#777\" stroke-dasharray=\"6 4\"/>\n",
+        points);
+    legend.emplace_back("stroke=\"#777\" stroke-dasharray=\"6 4\"", "uncoded BPSK BER");
+  }
+  if (std::isfinite(limit)) {
+    const double px = ax.px(limit);
+    svg += fmt::format(
+        "<line x1=\"{0:.1f}\" y1=\"{1}\" x2=\"{0:.1f}\" y2=\"{2}\" stroke=\"black\" "
+        "stroke-dasharray=\"2 3\"/>\n",
+        px, kTop, kHeight - kBottom);
+    legend.emplace_back("stroke=\"black\" stroke-dasharray=\"2 3\"",
+                        fmt::format("{} ({:.3g})", limit_label, limit));
+  }
+  std::size_t colour = 0;
+  for (const auto& r : runs) {
+    for (int metric = 0; metric < 2; ++metric) {
+      if ((metric == 0 && !options.fer) || (metric == 1 && !options.ber)) continue;
+      const char* c = kColours[colour++ % std::size(kColours)];
+      std::string line, marks;
+      for (const auto& p : r.run.points) {
+        const PointStats s = point_stats(p, r.run.config.confidence);
+        const double v = metric == 0 ? p.fer() : p.ber();
+        const Interval iv = metric == 0 ? s.fer : s.ber;
+        const double x = ax.px(p.parameter);
+        marks += fmt::format(
+            "<line x1=\"{0:.1f}\" y1=\"{1:.1f}\" x2=\"{0:.1f}\" y2=\"{2:.1f}\" stroke=\"{3}\"/>\n",
+            x, ax.py(iv.low), ax.py(iv.high), c);
+        if (v <= 0) continue;  // no errors: only the interval is drawn
+        line += fmt::format("{:.1f},{:.1f} ", x, ax.py(v));
+        marks +=
+            metric == 0
+                ? fmt::format("<circle cx=\"{:.1f}\" cy=\"{:.1f}\" r=\"3.5\" fill=\"{}\"/>\n", x,
+                              ax.py(v), c)
+                : fmt::format(
+                      "<rect x=\"{:.1f}\" y=\"{:.1f}\" width=\"7\" height=\"7\" fill=\"{}\"/>\n",
+                      x - 3.5, ax.py(v) - 3.5, c);
+      }
+      svg += fmt::format(
+          "<polyline points=\"{}\" fill=\"none\" stroke=\"{}\" stroke-width=\"1.6\"/>\n{}", line, c,
+          marks);
+      legend.emplace_back(fmt::format("stroke=\"{}\" stroke-width=\"2\"", c),
+                          fmt::format("{} {}", metric == 0 ? "FER" : "BER", r.label));
+    }
+  }
+  double ly = kTop + 10;
+  for (const auto& [style, label] : legend) {
+    const double lx = kWidth - kRight + 12;
+    svg += fmt::format("<line x1=\"{:.1f}\" y1=\"{:.1f}\" x2=\"{:.1f}\" y2=\"{:.1f}\" {}/>\n", lx,
+                       ly, lx + 24, ly, style);
+    svg += fmt::format("<text x=\"{:.1f}\" y=\"{:.1f}\" font-size=\"11\">{}</text>\n", lx + 30,
+                       ly + 4, escape(label));
+    ly += 18;
+  }
+  svg += fmt::format(
+      "<text x=\"{}\" y=\"{:.1f}\" font-size=\"10\" fill=\"#555\">bars: {:.0f}% confidence "
+      "intervals</text>\n",
+      kWidth - kRight + 12, ly + 6, first.config.confidence * 100);
+  svg += "</svg>\n";
+  return svg;
+}
+
+}  // namespace tannery

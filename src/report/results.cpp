@@ -1,0 +1,288 @@
+#include "tannery/report/results.hpp"
+
+#include <fmt/format.h>
+#include <chrono>
+#include <ctime>
+#include <nlohmann/json.hpp>
+
+#include "tannery/error.hpp"
+
+namespace tannery {
+
+using nlohmann::json;
+
+PointStats point_stats(const PointResult& p, double confidence) {
+  PointStats s;
+  s.fer = clopper_pearson(p.frame_errors, p.frames, confidence);
+  const std::uint64_t per_frame = p.frames ? p.bits / p.frames : 0;
+  s.ber = clustered_ber_interval(p.frames, per_frame, p.bit_errors, p.bit_error_squares, confidence,
+                                 s.fer.high);
+  return s;
+}
+
+std::string parameter_key(const ChannelSpec& c) {
+  switch (c.kind) {
+    case ChannelKind::awgn:
+      return c.measure == SnrMeasure::ebn0 ? "ebn0_db" : "esn0_db";
+    case ChannelKind::bsc:
+      return "p";
+    case ChannelKind::bec:
+      return "epsilon";
+  }
+  return "parameter";
+}
+
+std::string parameter_heading(const ChannelSpec& c) {
+  switch (c.kind) {
+    case ChannelKind::awgn:
+      return c.measure == SnrMeasure::ebn0 ? "Eb/N0 dB" : "Es/N0 dB";
+    case ChannelKind::bsc:
+      return "p";
+    case ChannelKind::bec:
+      return "epsilon";
+  }
+  return "parameter";
+}
+
+std::string utc_now() {
+  const std::time_t t = std::chrono::system_clock::to_time_t(std::chrono::system_clock::now());
+  std::tm tm{};
+  gmtime_r(&t, &tm);
+  char buf[32];
+  std::strftime(buf, sizeof buf, "%Y-%m-%dT%H:%M:%SZ", &tm);
+  return buf;
+}
+
+namespace {
+
+json point_json(const PointResult& p, const RunRecord& run, std::size_t edges) {
+  const PointStats s = point_stats(p, run.config.confidence);
+  json j;
+  j["parameter"] = p.parameter;
+  j["frames"] = p.frames;
+  j["frame_errors"] = p.frame_errors;
+  j["bit_errors"] = p.bit_errors;
+  j["bits"] = p.bits;
+  j["fer"] = p.fer();
+  j["ber"] = p.ber();
+  j["fer_low"] = s.fer.low;
+  j["fer_high"] = s.fer.high;
+  j["ber_low"] = s.ber.low;
+  j["ber_high"] = s.ber.high;
+  j["mean_iterations"] = p.mean_iterations();
+  j["coded_bit_errors"] = p.coded_bit_errors;
+  j["coded_bits"] = p.coded_bits;
+  j["undetected_errors"] = p.undetected_errors;
+  j["bit_error_squares"] = p.bit_error_squares;
+  j["iteration_histogram"] = p.iteration_histogram;
+  j["chunks"] = p.chunks;
+  j["complete"] = p.complete;
+  j["stop_reason"] = p.stop_reason;
+  j["seconds"] = p.seconds;
+  const double secs = p.seconds > 0 ? p.seconds : 1e-9;
+  j["frames_per_second"] = static_cast<double>(p.frames) / secs;
+  j["edge_updates_per_second"] =
+      static_cast<double>(p.iterations) * static_cast<double>(edges) / secs;
+  j["failed_frames"] = p.failed_frames;
+  return j;
+}
+
+template <class T>
+T get(const json& j, const char* key, const std::string& source, const std::string& where) {
+  if (!j.contains(key)) throw Error(fmt::format("{}: {} has no '{}'", source, where, key));
+  try {
+    return j.at(key).get<T>();
+  } catch (const json::exception&) {
+    throw Error(fmt::format("{}: {} has a '{}' of the wrong type", source, where, key));
+  }
+}
+
+}  // namespace
+
+std::string results_json(const RunRecord& run) {
+  const SimulationConfig& c = run.config;
+  json j;
+  j["format"] = "tannery-results";
+  j["version"] = kResultsVersion;
+  j["tool"] = {{"name", "tannery"}, {"version", run.tool_version}};
+  j["created"] = run.created;
+  j["code"] = {
+      {"source", run.code.source},
+      {"path", run.code.path},
+      {"sha256", run.code.sha256},
+      {"matrix_sha256", run.code.matrix_sha256},
+      {"n", run.code.n},
+      {"m", run.code.m},
+      {"k", run.code.k},
+      {"edges", run.code.edges},
+      {"rate",
+       run.code.n ? static_cast<double>(run.code.k) / static_cast<double>(run.code.n) : 0.0}};
+  j["decoder"] = {{"algorithm", algorithm_name(c.decoder.algorithm)},
+                  {"schedule", schedule_name(c.decoder.schedule)},
+                  {"iterations", c.decoder.iterations},
+                  {"early_stop", c.decoder.early_stop},
+                  {"alpha", c.decoder.alpha},
+                  {"beta", c.decoder.beta},
+                  {"flip_threshold", c.decoder.flip_threshold},
+                  {"description", describe(c.decoder)}};
+  j["channel"] = {
+      {"kind", channel_name(c.channel.kind)},
+      {"parameter", parameter_key(c.channel)},
+      {"design_rate", c.channel.design_rate},
+      {"rate_for_snr", run.rate_for_snr},
+      {"snr_offset_db", c.channel.snr_offset_db},
+      {"assumed_crossover",
+       c.channel.assumed_crossover ? json(*c.channel.assumed_crossover) : json(nullptr)}};
+  j["run"] = {{"seed", c.seed},
+              {"chunk_frames", c.chunk_frames},
+              {"all_zero", c.all_zero},
+              {"confidence", c.confidence},
+              {"sweep", c.sweep},
+              {"threads", run.threads_used},
+              {"interrupted", run.interrupted},
+              {"stop",
+               {{"frame_errors", c.stop.frame_errors},
+                {"max_frames", c.stop.max_frames},
+                {"max_seconds", c.stop.max_seconds},
+                {"stop_below_fer", c.stop.stop_below_fer}}}};
+  j["points"] = json::array();
+  for (const auto& p : run.points) j["points"].push_back(point_json(p, run, run.code.edges));
+  return j.dump(1) + "\n";
+}
+
+RunRecord parse_results_json(std::string_view text, const std::string& source) {
+  json j;
+  try {
+    j = json::parse(text);
+  } catch (const json::parse_error& e) {
+    throw Error(fmt::format("{}: not valid JSON (byte {})", source, e.byte));
+  }
+  if (!j.is_object() || j.value("format", "") != "tannery-results") {
+    throw Error(
+        fmt::format("{}: not a tannery results file (no \"format\": \"tannery-results\")", source));
+  }
+  if (j.value("version", 0) != kResultsVersion) {
+    throw Error(fmt::format("{}: results version {} is not supported (this tool reads {})", source,
+                            j.value("version", 0), kResultsVersion));
+  }
+  RunRecord r;
+  for (const char* section : {"tool", "code", "decoder", "channel", "run", "points"}) {
+    if (!j.contains(section)) throw Error(fmt::format("{}: missing section '{}'", source, section));
+  }
+  r.tool_version = get<std::string>(j["tool"], "version", source, "tool");
+  r.created = j.value("created", "");
+  const json& code = j["code"];
+  r.code.source = get<std::string>(code, "source", source, "code");
+  r.code.path = get<std::string>(code, "path", source, "code");
+  r.code.sha256 = get<std::string>(code, "sha256", source, "code");
+  r.code.matrix_sha256 = get<std::string>(code, "matrix_sha256", source, "code");
+  r.code.n = get<std::size_t>(code, "n", source, "code");
+  r.code.m = get<std::size_t>(code, "m", source, "code");
+  r.code.k = get<std::size_t>(code, "k", source, "code");
+  r.code.edges = get<std::size_t>(code, "edges", source, "code");
+  SimulationConfig& c = r.config;
+  const json& dec = j["decoder"];
+  const auto algorithm = parse_algorithm(get<std::string>(dec, "algorithm", source, "decoder"));
+  const auto schedule = parse_schedule(get<std::string>(dec, "schedule", source, "decoder"));
+  if (!algorithm || !schedule)
+    throw Error(fmt::format("{}: unknown decoder algorithm or schedule", source));
+  c.decoder.algorithm = *algorithm;
+  c.decoder.schedule = *schedule;
+  c.decoder.iterations = get<int>(dec, "iterations", source, "decoder");
+  c.decoder.early_stop = get<bool>(dec, "early_stop", source, "decoder");
+  c.decoder.alpha = get<double>(dec, "alpha", source, "decoder");
+  c.decoder.beta = get<double>(dec, "beta", source, "decoder");
+  c.decoder.flip_threshold = get<int>(dec, "flip_threshold", source, "decoder");
+  const json& ch = j["channel"];
+  const auto kind = parse_channel(get<std::string>(ch, "kind", source, "channel"));
+  if (!kind) throw Error(fmt::format("{}: unknown channel", source));
+  c.channel.kind = *kind;
+  c.channel.measure = get<std::string>(ch, "parameter", source, "channel") == "esn0_db"
+                          ? SnrMeasure::esn0
+                          : SnrMeasure::ebn0;
+  c.channel.design_rate = get<bool>(ch, "design_rate", source, "channel");
+  c.channel.snr_offset_db = get<double>(ch, "snr_offset_db", source, "channel");
+  if (ch.contains("assumed_crossover") && !ch["assumed_crossover"].is_null()) {
+    c.channel.assumed_crossover = get<double>(ch, "assumed_crossover", source, "channel");
+  }
+  r.rate_for_snr = get<double>(ch, "rate_for_snr", source, "channel");
+  const json& run = j["run"];
+  c.seed = get<std::uint64_t>(run, "seed", source, "run");
+  c.chunk_frames = get<std::uint32_t>(run, "chunk_frames", source, "run");
+  c.all_zero = get<bool>(run, "all_zero", source, "run");
+  c.confidence = get<double>(run, "confidence", source, "run");
+  c.sweep = get<std::vector<double>>(run, "sweep", source, "run");
+  r.threads_used = get<unsigned>(run, "threads", source, "run");
+  r.interrupted = get<bool>(run, "interrupted", source, "run");
+  const json& stop = get<json>(run, "stop", source, "run");
+  c.stop.frame_errors = get<std::uint64_t>(stop, "frame_errors", source, "stop rules");
+  c.stop.max_frames = get<std::uint64_t>(stop, "max_frames", source, "stop rules");
+  c.stop.max_seconds = get<double>(stop, "max_seconds", source, "stop rules");
+  c.stop.stop_below_fer = get<double>(stop, "stop_below_fer", source, "stop rules");
+  if (!j["points"].is_array()) throw Error(fmt::format("{}: 'points' is not an array", source));
+  for (std::size_t i = 0; i < j["points"].size(); ++i) {
+    const json& pj = j["points"][i];
+    const std::string where = fmt::format("point {}", i);
+    PointResult p;
+    p.parameter = get<double>(pj, "parameter", source, where);
+    p.frames = get<std::uint64_t>(pj, "frames", source, where);
+    p.frame_errors = get<std::uint64_t>(pj, "frame_errors", source, where);
+    p.bit_errors = get<std::uint64_t>(pj, "bit_errors", source, where);
+    p.bits = get<std::uint64_t>(pj, "bits", source, where);
+    p.coded_bit_errors = get<std::uint64_t>(pj, "coded_bit_errors", source, where);
+    p.coded_bits = get<std::uint64_t>(pj, "coded_bits", source, where);
+    p.undetected_errors = get<std::uint64_t>(pj, "undetected_errors", source, where);
+    p.bit_error_squares = get<double>(pj, "bit_error_squares", source, where);
+    p.iteration_histogram =
+        get<std::vector<std::uint64_t>>(pj, "iteration_histogram", source, where);
+    p.failed_frames = get<std::vector<std::uint64_t>>(pj, "failed_frames", source, where);
+    p.chunks = get<std::uint64_t>(pj, "chunks", source, where);
+    p.complete = get<bool>(pj, "complete", source, where);
+    p.stop_reason = get<std::string>(pj, "stop_reason", source, where);
+    p.seconds = get<double>(pj, "seconds", source, where);
+    for (std::size_t it = 0; it < p.iteration_histogram.size(); ++it) {
+      p.iterations += it * p.iteration_histogram[it];
+    }
+    if (p.frame_errors > p.frames || p.bit_errors > p.bits) {
+      throw Error(fmt::format("{}: {} has more errors than trials", source, where));
+    }
+    r.points.push_back(std::move(p));
+  }
+  return r;
+}
+
+std::string results_csv(const RunRecord& run) {
+  std::string out =
+      "parameter,frames,frame_errors,bit_errors,bits,fer,ber,fer_low,fer_high,ber_low,ber_high,"
+      "mean_iterations,"
+      "undetected_errors,seconds\n";
+  for (const auto& p : run.points) {
+    const PointStats s = point_stats(p, run.config.confidence);
+    out += fmt::format(
+        "{},{},{},{},{},{:.6e},{:.6e},{:.6e},{:.6e},{:.6e},{:.6e},{:.4f},{},{:.3f}\n", p.parameter,
+        p.frames, p.frame_errors, p.bit_errors, p.bits, p.fer(), p.ber(), s.fer.low, s.fer.high,
+        s.ber.low, s.ber.high, p.mean_iterations(), p.undetected_errors, p.seconds);
+  }
+  return out;
+}
+
+std::string results_table(const RunRecord& run) {
+  const int level = static_cast<int>(std::lround(run.config.confidence * 100));
+  std::string out =
+      fmt::format("{:>9} {:>10} {:>8} {:>10} {:>23} {:>10} {:>23} {:>7} {:>9}  {}\n",
+                  parameter_heading(run.config.channel), "frames", "errors", "FER",
+                  fmt::format("FER {}% interval", level), "BER",
+                  fmt::format("BER {}% interval", level), "iter", "frames/s", "stopped by");
+  for (const auto& p : run.points) {
+    const PointStats s = point_stats(p, run.config.confidence);
+    out += fmt::format(
+        "{:>9.4g} {:>10} {:>8} {:>10.3e} [{:9.3e}, {:9.3e}] {:>10.3e} [{:9.3e}, {:9.3e}] {:>7.2f} "
+        "{:>9.0f}  {}\n",
+        p.parameter, p.frames, p.frame_errors, p.fer(), s.fer.low, s.fer.high, p.ber(), s.ber.low,
+        s.ber.high, p.mean_iterations(),
+        p.seconds > 0 ? static_cast<double>(p.frames) / p.seconds : 0.0, p.stop_reason);
+  }
+  return out;
+}
+
+}  // namespace tannery

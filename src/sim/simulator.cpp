@@ -1,0 +1,344 @@
+#include "tannery/sim/simulator.hpp"
+
+#include <fmt/format.h>
+#include <algorithm>
+#include <chrono>
+#include <cmath>
+#include <condition_variable>
+#include <map>
+#include <mutex>
+#include <sstream>
+#include <thread>
+
+#include "tannery/error.hpp"
+#include "tannery/sim/random.hpp"
+
+namespace tannery {
+
+namespace {
+
+using Clock = std::chrono::steady_clock;
+
+double seconds_since(Clock::time_point start) {
+  return std::chrono::duration<double>(Clock::now() - start).count();
+}
+
+struct ChunkResult {
+  PointResult counts;
+  std::vector<KeptFrame> kept;
+};
+
+void accumulate(PointResult& total, const PointResult& chunk) {
+  total.frames += chunk.frames;
+  total.frame_errors += chunk.frame_errors;
+  total.bit_errors += chunk.bit_errors;
+  total.bits += chunk.bits;
+  total.coded_bit_errors += chunk.coded_bit_errors;
+  total.coded_bits += chunk.coded_bits;
+  total.undetected_errors += chunk.undetected_errors;
+  total.iterations += chunk.iterations;
+  total.bit_error_squares += chunk.bit_error_squares;
+  if (total.iteration_histogram.size() < chunk.iteration_histogram.size()) {
+    total.iteration_histogram.resize(chunk.iteration_histogram.size(), 0);
+  }
+  for (std::size_t i = 0; i < chunk.iteration_histogram.size(); ++i) {
+    total.iteration_histogram[i] += chunk.iteration_histogram[i];
+  }
+  total.chunks += 1;
+}
+
+}  // namespace
+
+// Per-thread state: a decoder and the buffers of one chunk, reused for every chunk.
+struct Simulator::Worker {
+  std::unique_ptr<Decoder> decoder;
+  std::vector<std::uint8_t> info, codewords, hard;
+  std::vector<double> llr, noise;
+  std::vector<FrameOutcome> outcomes;
+};
+
+Simulator::Simulator(const Code& code, SimulationConfig config)
+    : code_(code), config_(std::move(config)), encoder_(code) {
+  validate(config_.decoder, code_);
+  if (config_.sweep.empty()) throw Error("the sweep has no points");
+  for (double p : config_.sweep) check_channel_parameter(config_.channel.kind, p);
+  if (config_.chunk_frames == 0) throw Error("chunk size must be at least one frame");
+  if (config_.stop.max_frames == 0) throw Error("--max-frames must be at least 1");
+  if (!(config_.confidence > 0 && config_.confidence < 1))
+    throw Error("confidence must be in (0, 1)");
+  if (encoder_.k() == 0) throw Error("the code has dimension k = 0: nothing to simulate");
+  if (config_.channel.kind == ChannelKind::awgn && rate() <= 0)
+    throw Error("the rate for Eb/N0 must be positive");
+}
+
+double Simulator::rate() const noexcept {
+  const double n = static_cast<double>(code_.n());
+  return config_.channel.design_rate ? 1.0 - static_cast<double>(code_.m()) / n
+                                     : static_cast<double>(encoder_.k()) / n;
+}
+
+ChannelPoint Simulator::channel_point(double parameter) const {
+  const ChannelSpec& c = config_.channel;
+  ChannelPoint p{c.kind, parameter, parameter};
+  if (c.kind == ChannelKind::awgn) {
+    p.value = awgn_sigma(parameter, c.measure, rate());
+    p.assumed_value = awgn_sigma(parameter + c.snr_offset_db, c.measure, rate());
+  } else if (c.kind == ChannelKind::bsc && c.assumed_crossover) {
+    p.assumed_value = *c.assumed_crossover;
+  }
+  return p;
+}
+
+namespace {
+
+// Generates frame id through the channel: info bits, codeword, LLRs. noise is scratch of n.
+void make_frame(const FrameId& id, const ChannelPoint& channel, const Encoder& encoder,
+                bool all_zero, std::span<std::uint8_t> info, std::span<std::uint8_t> codeword,
+                std::span<double> noise, std::span<double> llr) {
+  if (all_zero) {
+    std::fill(info.begin(), info.end(), std::uint8_t{0});
+    std::fill(codeword.begin(), codeword.end(), std::uint8_t{0});
+  } else {
+    frame_bits(id, info);
+    encoder.encode(info, codeword);
+  }
+  if (channel.kind == ChannelKind::awgn)
+    frame_gaussians(id, noise);
+  else
+    frame_uniforms(id, noise);
+  transmit(channel, codeword, noise, llr);
+}
+
+}  // namespace
+
+PointResult Simulator::run_point(std::size_t index, PointResult total,
+                                 const std::function<void(const Progress&)>& progress,
+                                 const std::atomic<bool>* interrupt) {
+  const ChannelPoint channel = channel_point(total.parameter);
+  const std::uint64_t chunk = config_.chunk_frames;
+  const std::uint64_t max_chunks = (config_.stop.max_frames + chunk - 1) / chunk;
+  const std::size_t n = code_.n(), k = encoder_.k();
+  unsigned threads =
+      config_.threads ? config_.threads : std::max(1u, std::thread::hardware_concurrency());
+
+  std::mutex mutex;
+  std::condition_variable changed;
+  std::map<std::uint64_t, ChunkResult> done;
+  std::atomic<std::uint64_t> next{total.chunks};
+  std::atomic<bool> stop{false};
+  std::size_t kept_here = 0;
+  std::string reason;
+  unsigned running = threads;
+  const auto start = Clock::now();
+
+  // Stop rules over the in-order totals; true when the point is finished.
+  auto finished = [&] {
+    if (total.frame_errors >= config_.stop.frame_errors) return reason = "frame errors", true;
+    if (total.frames >= config_.stop.max_frames) return reason = "max frames", true;
+    return false;
+  };
+  if (finished()) {
+    total.complete = true;
+    total.stop_reason = reason;
+    return total;
+  }
+
+  auto work = [&](Worker& w) {
+    for (;;) {
+      if (stop.load()) break;
+      const std::uint64_t j = next.fetch_add(1);
+      if (j >= max_chunks) break;
+      const std::uint64_t first = j * chunk;
+      const std::size_t count =
+          static_cast<std::size_t>(std::min(chunk, config_.stop.max_frames - first));
+      w.info.resize(count * k);
+      w.codewords.resize(count * n);
+      w.hard.resize(count * n);
+      w.llr.resize(count * n);
+      w.noise.resize(n);
+      w.outcomes.resize(count);
+      for (std::size_t f = 0; f < count; ++f) {
+        make_frame(FrameId{config_.seed, static_cast<std::uint32_t>(index), first + f}, channel,
+                   encoder_, config_.all_zero, std::span(w.info).subspan(f * k, k),
+                   std::span(w.codewords).subspan(f * n, n), w.noise,
+                   std::span(w.llr).subspan(f * n, n));
+      }
+      w.decoder->decode(w.llr, w.hard, {}, w.outcomes, first);
+      ChunkResult r;
+      PointResult& c = r.counts;
+      c.frames = count;
+      c.bits = count * k;
+      c.coded_bits = count * n;
+      const auto& info_pos = encoder_.info_positions();
+      for (std::size_t f = 0; f < count; ++f) {
+        const std::uint8_t* sent = w.codewords.data() + f * n;
+        const std::uint8_t* got = w.hard.data() + f * n;
+        std::uint64_t coded = 0, info_errors = 0;
+        for (std::size_t i = 0; i < n; ++i) coded += sent[i] != got[i];
+        for (std::uint32_t p : info_pos) info_errors += sent[p] != got[p];
+        const FrameOutcome& o = w.outcomes[f];
+        c.iterations += static_cast<std::uint64_t>(o.iterations);
+        const auto it = static_cast<std::size_t>(o.iterations);
+        if (c.iteration_histogram.size() <= it) c.iteration_histogram.resize(it + 1, 0);
+        ++c.iteration_histogram[it];
+        if (coded == 0) continue;
+        ++c.frame_errors;
+        c.coded_bit_errors += coded;
+        c.bit_errors += info_errors;
+        c.bit_error_squares += static_cast<double>(info_errors) * static_cast<double>(info_errors);
+        c.undetected_errors += o.converged ? 1 : 0;
+        c.failed_frames.push_back(first + f);
+        if (r.kept.size() < config_.keep_failures) {
+          const double* l = w.llr.data() + f * n;
+          r.kept.push_back(KeptFrame{index, first + f, std::vector<float>(l, l + n)});
+        }
+      }
+      std::lock_guard lock(mutex);
+      done.emplace(j, std::move(r));
+      // Add every chunk that is next in order; evaluate the stop rules after each one.
+      for (auto it = done.find(total.chunks); it != done.end() && !stop.load();
+           it = done.find(total.chunks)) {
+        const ChunkResult& ready = it->second;
+        accumulate(total, ready.counts);
+        for (std::uint64_t f : ready.counts.failed_frames) {
+          if (total.failed_frames.size() < config_.failed_index_limit)
+            total.failed_frames.push_back(f);
+        }
+        for (const KeptFrame& kf : ready.kept) {
+          if (kept_here < config_.keep_failures) kept_.push_back(kf), ++kept_here;
+        }
+        done.erase(it);
+        if (finished()) stop = true;
+      }
+      changed.notify_all();
+    }
+    std::lock_guard lock(mutex);
+    --running;
+    changed.notify_all();
+  };
+
+  std::vector<std::unique_ptr<Worker>> workers;
+  std::vector<std::thread> pool;
+  for (unsigned t = 0; t < threads; ++t) {
+    workers.push_back(std::make_unique<Worker>());
+    workers.back()->decoder = make_decoder(code_, config_.decoder);
+  }
+  try {
+    for (unsigned t = 0; t < threads; ++t) pool.emplace_back(work, std::ref(*workers[t]));
+  } catch (...) {
+    stop = true;
+    for (auto& th : pool) th.join();
+    throw;
+  }
+  {
+    std::unique_lock lock(mutex);
+    while (running > 0) {
+      changed.wait_for(lock, std::chrono::milliseconds(200));
+      if (!stop && interrupt && interrupt->load()) stop = true, reason = "interrupted";
+      if (!stop && config_.stop.max_seconds > 0 &&
+          total.seconds + seconds_since(start) >= config_.stop.max_seconds) {
+        stop = true, reason = "time limit";
+      }
+      if (progress) progress(Progress{index, total, total.seconds + seconds_since(start)});
+    }
+  }
+  for (auto& th : pool) th.join();
+  total.seconds += seconds_since(start);
+  if (reason.empty()) finished();  // all chunks consumed: the max-frames rule
+  total.stop_reason = reason;
+  total.complete = reason != "interrupted";
+  return total;
+}
+
+std::vector<PointResult> Simulator::run(std::vector<PointResult> previous,
+                                        const std::function<void(const Progress&)>& progress,
+                                        const std::atomic<bool>* interrupt) {
+  kept_.clear();
+  std::vector<PointResult> results;
+  for (std::size_t i = 0; i < config_.sweep.size(); ++i) {
+    PointResult start;
+    start.parameter = config_.sweep[i];
+    if (i < previous.size()) {
+      if (previous[i].parameter != config_.sweep[i]) {
+        throw Error(fmt::format("resume: point {} of the results file is at {}, the sweep has {}",
+                                i, previous[i].parameter, config_.sweep[i]));
+      }
+      start = previous[i];
+    }
+    PointResult p = start.complete ? start : run_point(i, start, progress, interrupt);
+    results.push_back(p);
+    if (!p.complete) break;
+    if (config_.stop.stop_below_fer > 0 && p.fer() < config_.stop.stop_below_fer) break;
+    if (p.frame_errors == 0) break;
+  }
+  return results;
+}
+
+FrameData Simulator::replay(std::size_t point, std::uint64_t frame) const {
+  if (point >= config_.sweep.size()) {
+    throw Error(
+        fmt::format("replay: point {} does not exist (the sweep has {} points, counted from 0)",
+                    point, config_.sweep.size()));
+  }
+  const std::size_t n = code_.n();
+  FrameData d;
+  d.info.resize(encoder_.k());
+  d.codeword.resize(n);
+  d.hard.resize(n);
+  d.llr.resize(n);
+  d.posterior.resize(n);
+  std::vector<double> noise(n);
+  make_frame(FrameId{config_.seed, static_cast<std::uint32_t>(point), frame},
+             channel_point(config_.sweep[point]), encoder_, config_.all_zero, d.info, d.codeword,
+             noise, d.llr);
+  auto decoder = make_decoder(code_, config_.decoder);
+  decoder->decode(d.llr, d.hard, d.posterior, std::span(&d.outcome, 1), frame);
+  return d;
+}
+
+std::vector<double> parse_sweep(const std::string& text) {
+  std::vector<double> values;
+  auto number = [&](const std::string& token) {
+    std::size_t used = 0;
+    double v = 0;
+    try {
+      v = std::stod(token, &used);
+    } catch (...) {
+      used = 0;
+    }
+    if (used != token.size() || token.empty() || !std::isfinite(v)) {
+      throw Error(fmt::format(
+          "sweep: '{}' is not a number (use a list 1,1.5,2 or a range START:STEP:STOP)", token));
+    }
+    return v;
+  };
+  std::stringstream items(text);
+  std::string item;
+  while (std::getline(items, item, ',')) {
+    item.erase(
+        std::remove_if(item.begin(), item.end(), [](unsigned char c) { return std::isspace(c); }),
+        item.end());
+    if (item.find(':') == std::string::npos) {
+      values.push_back(number(item));
+      continue;
+    }
+    std::vector<std::string> parts;
+    std::stringstream range(item);
+    for (std::string part; std::getline(range, part, ':');) parts.push_back(part);
+    if (parts.size() != 3)
+      throw Error(fmt::format("sweep: range '{}' must be START:STEP:STOP", item));
+    const double a = number(parts[0]), step = number(parts[1]), b = number(parts[2]);
+    if (step == 0 || (b - a) / step < -1e-9) {
+      throw Error(fmt::format("sweep: range '{}' never reaches its end (step {})", item, step));
+    }
+    const double count = std::floor((b - a) / step + 1e-9);
+    if (count > 10000)
+      throw Error(fmt::format("sweep: range '{}' has more than 10000 points", item));
+    for (double i = 0; i <= count; ++i) values.push_back(std::round((a + i * step) * 1e9) / 1e9);
+  }
+  if (values.empty()) throw Error("sweep: no values given");
+  if (values.size() > 10000) throw Error("sweep: more than 10000 points");
+  return values;
+}
+
+}  // namespace tannery

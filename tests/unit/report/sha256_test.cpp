@@ -1,0 +1,15 @@
+#include <catch2/catch.hpp>
+
+#include "tannery/report/sha256.hpp"
+
+using namespace tannery;
+
+TEST_CASE("SHA-256 examples of FIPS 180-2", "[report]") {
+  // FIPS 180-2, appendix B.1 and B.2; the empty string from NIST's example values.
+  CHECK(sha256_hex("abc") == "ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad");
+  CHECK(sha256_hex("abcdbcdecdefdefgefghfghighijhijkijkljklmklmnlmnomnopnopq") ==
+        "248d6a61d20638b8e5c026930c3e6039a33ce45964ff2167f6ecedd419db06c1");
+  CHECK(sha256_hex("") == "e3b0c44298fc1c149afbf4c8996fb92427ae41e4649b934ca495991b7852b855");
+  CHECK(sha256_hex(std::string(1000000, 'a')) ==
+        "cdc76e5c9914fb9281a1c7e284d73e67f1809a48a497200e046d39ccc7112cd0");
+}

@@ -1,0 +1,191 @@
+#include <Random123/philox.h>
+#include <catch2/catch.hpp>
+#include <cmath>
+
+#include "tannery/code/construct.hpp"
+#include "tannery/sim/random.hpp"
+#include "tannery/sim/simulator.hpp"
+#include "tannery/sim/stats.hpp"
+#include "test_support.hpp"
+
+using namespace tannery;
+
+namespace {
+
+SimulationConfig config(ChannelKind kind, std::vector<double> sweep, std::uint64_t max_frames,
+                        std::uint64_t frame_errors = 1'000'000'000) {
+  SimulationConfig c;
+  c.channel.kind = kind;
+  c.sweep = std::move(sweep);
+  c.stop.max_frames = max_frames;
+  c.stop.frame_errors = frame_errors;
+  c.threads = 2;
+  c.seed = 2026;
+  return c;
+}
+
+std::vector<PointResult> run(const Code& code, const SimulationConfig& c) {
+  Simulator sim(code, c);
+  return sim.run({}, {}, nullptr);
+}
+
+// The true value must lie inside the run's own 99.9% interval.
+void check_ber_inside(const PointResult& p, double truth) {
+  const Interval iv = clustered_ber_interval(p.frames, p.bits / p.frames, p.bit_errors,
+                                             p.bit_error_squares, 0.999, 1.0);
+  INFO("parameter " << p.parameter << " BER " << p.ber() << " truth " << truth << " interval ["
+                    << iv.low << ", " << iv.high << "]");
+  CHECK(iv.low <= truth);
+  CHECK(truth <= iv.high);
+}
+
+bool same_counts(const PointResult& a, const PointResult& b) {
+  return a.parameter == b.parameter && a.frames == b.frames && a.frame_errors == b.frame_errors &&
+         a.bit_errors == b.bit_errors && a.bits == b.bits &&
+         a.coded_bit_errors == b.coded_bit_errors && a.undetected_errors == b.undetected_errors &&
+         a.iterations == b.iterations && a.iteration_histogram == b.iteration_histogram &&
+         a.failed_frames == b.failed_frames && a.bit_error_squares == b.bit_error_squares &&
+         a.chunks == b.chunks;
+}
+
+}  // namespace
+
+TEST_CASE("Philox4x32-10 known-answer vectors", "[random]") {
+  // Random123's kat_vectors for philox4x32 with 10 rounds (values from memory of that file).
+  r123::Philox4x32 rng;
+  const auto zero = rng({{0, 0, 0, 0}}, {{0, 0}});
+  CHECK(zero[0] == 0x6627e8d5u);
+  CHECK(zero[1] == 0xe169c58du);
+  CHECK(zero[2] == 0xbc57ac4cu);
+  CHECK(zero[3] == 0x9b00dbd8u);
+  const auto pi =
+      rng({{0x243f6a88, 0x85a308d3, 0x13198a2e, 0x03707344}}, {{0xa4093822, 0x299f31d0}});
+  CHECK(pi[0] == 0xd16cfe09u);
+  CHECK(pi[3] == 0x24126ea1u);
+}
+
+TEST_CASE("frame noise is a pure function of (seed, point, frame) with unit variance", "[random]") {
+  std::vector<double> a(4001), b(4001);
+  frame_gaussians(FrameId{7, 1, 99}, a);
+  frame_gaussians(FrameId{7, 1, 99}, b);
+  CHECK(a == b);
+  frame_gaussians(FrameId{7, 2, 99}, b);
+  CHECK(a != b);
+  double sum = 0, squares = 0;
+  const std::size_t count = 400'000;
+  std::vector<double> z(count);
+  frame_gaussians(FrameId{1, 0, 0}, z);
+  for (double x : z) sum += x, squares += x * x;
+  // Sample mean and variance of N(0,1): standard errors 1/sqrt(N) and sqrt(2/N); 5 sigma bounds.
+  CHECK(std::abs(sum / count) < 5 / std::sqrt(count));
+  CHECK(std::abs(squares / count - 1) < 5 * std::sqrt(2.0 / count));
+}
+
+TEST_CASE("uncoded BPSK over AWGN has BER Q(sqrt(2 Eb/N0))", "[sim]") {
+  // Proakis, Digital Communications: coherent BPSK bit error probability Q(sqrt(2 Eb/N0)).
+  const Code uncoded = Code::from_checks(128, {});  // no checks: k = n, rate 1
+  const auto points = run(uncoded, config(ChannelKind::awgn, {0, 2, 4, 6}, 3000));
+  REQUIRE(points.size() == 4);
+  for (const auto& p : points)
+    check_ber_inside(p, normal_tail(std::sqrt(2 * std::pow(10.0, p.parameter / 10))));
+}
+
+TEST_CASE("uncoded BSC has BER p", "[sim]") {
+  const Code uncoded = Code::from_checks(128, {});
+  const auto points = run(uncoded, config(ChannelKind::bsc, {0.2, 0.05, 0.01}, 3000));
+  REQUIRE(points.size() == 3);
+  for (const auto& p : points) check_ber_inside(p, p.parameter);
+}
+
+TEST_CASE("repetition code with sum-product over AWGN has BER Q(sqrt(2 Eb/N0))", "[sim]") {
+  // Soft combining of n copies (textbook): the sum of the LLRs has the SNR of one bit with energy
+  // Eb.
+  const auto points =
+      run(test::shipped("repetition-5.tanner"), config(ChannelKind::awgn, {0, 2, 4}, 40000));
+  for (const auto& p : points)
+    check_ber_inside(p, normal_tail(std::sqrt(2 * std::pow(10.0, p.parameter / 10))));
+}
+
+TEST_CASE("Hamming (7,4) with ML over the BSC has block error 1 - (1-p)^7 - 7p(1-p)^6", "[sim]") {
+  // Textbook (Lin & Costello): a perfect single-error-correcting code fails exactly on >= 2 errors.
+  SimulationConfig c = config(ChannelKind::bsc, {0.02, 0.05, 0.1}, 20000);
+  c.decoder.algorithm = Algorithm::ml;
+  const auto points = run(test::shipped("hamming-7-4.tanner"), c);
+  for (const auto& p : points) {
+    const double q = p.parameter;
+    const double truth = 1 - std::pow(1 - q, 7) - 7 * q * std::pow(1 - q, 6);
+    const Interval iv = clopper_pearson(p.frame_errors, p.frames, 0.999);
+    INFO("p " << q << " FER " << p.fer() << " truth " << truth);
+    CHECK(iv.low <= truth);
+    CHECK(truth <= iv.high);
+  }
+}
+
+TEST_CASE("the erasure channel decodes without NaN and stops by the rules", "[sim]") {
+  SimulationConfig c = config(ChannelKind::bec, {0.5, 0.3}, 2000, 50);
+  const auto points = run(test::shipped("qc-rate-half-z54.qc"), c);
+  REQUIRE(points.size() == 2);
+  CHECK(points[0].stop_reason == "frame errors");
+  CHECK(points[0].frame_errors >= 50);
+  CHECK(points[0].frame_errors < 50 + c.chunk_frames * 2);  // whole chunks, in order
+}
+
+TEST_CASE("counts are identical for 1 and 2 threads", "[sim]") {
+  const Code code = test::shipped("qc-rate-half-z54.qc");
+  SimulationConfig c = config(ChannelKind::awgn, {1.0, 1.5, 2.0}, 3000, 40);
+  c.decoder.algorithm = Algorithm::normalized_min_sum;
+  c.threads = 1;
+  const auto one = run(code, c);
+  c.threads = 2;
+  const auto two = run(code, c);
+  c.threads = 5;  // more threads than cores: still the same chunks in the same order
+  const auto five = run(code, c);
+  REQUIRE(one.size() == two.size());
+  for (std::size_t i = 0; i < one.size(); ++i) {
+    CHECK(same_counts(one[i], two[i]));
+    CHECK(same_counts(one[i], five[i]));
+  }
+}
+
+TEST_CASE("an interrupted and resumed run ends with the counts of an uninterrupted one", "[sim]") {
+  const Code code = test::shipped("qc-rate-half-z54.qc");
+  SimulationConfig c = config(ChannelKind::awgn, {1.25, 1.75}, 6000, 60);
+  c.decoder.algorithm = Algorithm::min_sum;
+  Simulator sim(code, c);
+  const auto full = sim.run({}, {}, nullptr);
+  std::atomic<bool> stop{false};
+  auto partial = sim.run(
+      {},
+      [&](const Progress& p) {
+        if (p.totals.frames > 0) stop = true;
+      },
+      &stop);
+  REQUIRE_FALSE(partial.back().complete);
+  CHECK(partial.back().stop_reason == "interrupted");
+  const auto resumed = sim.run(partial, {}, nullptr);
+  REQUIRE(resumed.size() == full.size());
+  for (std::size_t i = 0; i < full.size(); ++i) CHECK(same_counts(full[i], resumed[i]));
+}
+
+TEST_CASE("replay regenerates a frame exactly", "[sim]") {
+  const Code code = test::shipped("qc-rate-half-z54.qc");
+  SimulationConfig c = config(ChannelKind::awgn, {1.0}, 64, 1);
+  c.threads = 1;
+  Simulator sim(code, c);
+  const auto points = sim.run({}, {}, nullptr);
+  REQUIRE(!points[0].failed_frames.empty());
+  const FrameData d = sim.replay(0, points[0].failed_frames[0]);
+  CHECK(d.hard != d.codeword);
+  CHECK(sim.replay(0, 5).llr == sim.replay(0, 5).llr);
+}
+
+TEST_CASE("sweep syntax: lists and inclusive ranges", "[sim]") {
+  CHECK(parse_sweep("1,1.5, 2") == std::vector<double>{1, 1.5, 2});
+  CHECK(parse_sweep("1:0.25:2") == std::vector<double>{1, 1.25, 1.5, 1.75, 2});
+  CHECK(parse_sweep("0.08:-0.01:0.05") == std::vector<double>{0.08, 0.07, 0.06, 0.05});
+  CHECK(parse_sweep("0:0.1:0.3,5") == std::vector<double>{0, 0.1, 0.2, 0.3, 5});
+  CHECK_THROWS_WITH(parse_sweep("1:0:2"), Catch::Contains("never reaches"));
+  CHECK_THROWS_WITH(parse_sweep("1:-1:2"), Catch::Contains("never reaches"));
+  CHECK_THROWS_WITH(parse_sweep("1,x"), Catch::Contains("'x' is not a number"));
+  CHECK_THROWS_WITH(parse_sweep("0:0.0001:10"), Catch::Contains("more than 10000"));
+}
