@@ -16,6 +16,8 @@ int main(int argc, char** argv) {
   tannery::cli::add_construct(app);
   tannery::cli::add_simulate(app);
   tannery::cli::add_plot(app);
+  tannery::cli::add_decode(app);
+  tannery::cli::add_encode(app);
   try {
     app.parse(argc, argv);
   } catch (const CLI::CallForHelp& e) {

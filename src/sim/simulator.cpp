@@ -89,12 +89,9 @@ ChannelPoint Simulator::channel_point(double parameter) const {
   return p;
 }
 
-namespace {
-
-// Generates frame id through the channel: info bits, codeword, LLRs. noise is scratch of n.
-void make_frame(const FrameId& id, const ChannelPoint& channel, const Encoder& encoder,
-                bool all_zero, std::span<std::uint8_t> info, std::span<std::uint8_t> codeword,
-                std::span<double> noise, std::span<double> llr) {
+void generate_frame(const FrameId& id, const ChannelPoint& channel, const Encoder& encoder,
+                    bool all_zero, std::span<std::uint8_t> info, std::span<std::uint8_t> codeword,
+                    std::span<double> noise, std::span<double> llr) {
   if (all_zero) {
     std::fill(info.begin(), info.end(), std::uint8_t{0});
     std::fill(codeword.begin(), codeword.end(), std::uint8_t{0});
@@ -108,8 +105,6 @@ void make_frame(const FrameId& id, const ChannelPoint& channel, const Encoder& e
     frame_uniforms(id, noise);
   transmit(channel, codeword, noise, llr);
 }
-
-}  // namespace
 
 PointResult Simulator::run_point(std::size_t index, PointResult total,
                                  const std::function<void(const Progress&)>& progress,
@@ -158,10 +153,10 @@ PointResult Simulator::run_point(std::size_t index, PointResult total,
       w.noise.resize(n);
       w.outcomes.resize(count);
       for (std::size_t f = 0; f < count; ++f) {
-        make_frame(FrameId{config_.seed, static_cast<std::uint32_t>(index), first + f}, channel,
-                   encoder_, config_.all_zero, std::span(w.info).subspan(f * k, k),
-                   std::span(w.codewords).subspan(f * n, n), w.noise,
-                   std::span(w.llr).subspan(f * n, n));
+        generate_frame(FrameId{config_.seed, static_cast<std::uint32_t>(index), first + f}, channel,
+                       encoder_, config_.all_zero, std::span(w.info).subspan(f * k, k),
+                       std::span(w.codewords).subspan(f * n, n), w.noise,
+                       std::span(w.llr).subspan(f * n, n));
       }
       w.decoder->decode(w.llr, w.hard, {}, w.outcomes, first);
       ChunkResult r;
@@ -288,9 +283,9 @@ FrameData Simulator::replay(std::size_t point, std::uint64_t frame) const {
   d.llr.resize(n);
   d.posterior.resize(n);
   std::vector<double> noise(n);
-  make_frame(FrameId{config_.seed, static_cast<std::uint32_t>(point), frame},
-             channel_point(config_.sweep[point]), encoder_, config_.all_zero, d.info, d.codeword,
-             noise, d.llr);
+  generate_frame(FrameId{config_.seed, static_cast<std::uint32_t>(point), frame},
+                 channel_point(config_.sweep[point]), encoder_, config_.all_zero, d.info,
+                 d.codeword, noise, d.llr);
   auto decoder = make_decoder(code_, config_.decoder);
   decoder->decode(d.llr, d.hard, d.posterior, std::span(&d.outcome, 1), frame);
   return d;

@@ -1,12 +1,104 @@
-// Soft-bit capture files: consecutive frames of n values, little-endian binary.
+// Soft-bit capture files: consecutive frames of a fixed number of values.
+//
+// Binary encodings are little-endian with no header: f32 and f64 (IEEE 754), i8 and i16 (two's
+// complement integers multiplied by a scale factor, as fixed-point receivers emit them). A file
+// of f32 frames of n values reads as numpy.fromfile(path, dtype='<f4').reshape(-1, n). The text
+// encoding is numbers separated by whitespace or commas; line breaks carry no meaning.
 #pragma once
 
+#include <cstdint>
+#include <iosfwd>
+#include <optional>
 #include <span>
 #include <string>
+#include <string_view>
+#include <vector>
 
 namespace tannery {
 
-// Appends the values as float32 little-endian (readable as numpy.fromfile(path, dtype='<f4')).
+enum class SampleFormat { f32, f64, i8, i16, text };
+
+std::string_view sample_format_name(SampleFormat f);
+std::optional<SampleFormat> parse_sample_format(std::string_view name);
+std::size_t sample_bytes(SampleFormat f);  // 0 for text
+
+// Appends the values as float32 little-endian.
 void append_f32_le(std::string& out, std::span<const float> values);
+// Appends values in any encoding; integers are round(value / scale), saturated to their range.
+void append_samples(std::string& out, std::span<const double> values, SampleFormat format,
+                    double scale);
+
+// Reads frames of frame_values values, in constant memory. A bad value (NaN, not a number) or a
+// trailing partial frame ends the good data: read() returns the complete frames before it and
+// error() then holds a one-line message naming the byte offset, the frame and the value.
+class CaptureReader {
+ public:
+  CaptureReader(std::istream& in, std::string source, SampleFormat format, double scale,
+                std::size_t frame_values);
+
+  // Appends up to max_frames frames (frame_values doubles each, already scaled) to out, replacing
+  // its contents; returns the number of frames. 0 means the end (check error()).
+  std::size_t read(std::size_t max_frames, std::vector<double>& out);
+  const std::optional<std::string>& error() const noexcept { return error_; }
+  std::uint64_t frames_read() const noexcept { return frames_; }
+  std::uint64_t bytes_read() const noexcept { return offset_; }
+
+ private:
+  std::size_t read_binary(std::size_t max_frames, std::vector<double>& out);
+  std::size_t read_text(std::size_t max_frames, std::vector<double>& out);
+  bool next_token(std::string& token, std::uint64_t& at, std::uint64_t& line);
+  void fail_value(std::uint64_t byte, std::uint64_t index, const std::string& what);
+
+  std::istream& in_;
+  std::string source_;
+  SampleFormat format_;
+  double scale_;
+  std::size_t frame_values_;
+  std::uint64_t frames_ = 0;
+  std::uint64_t offset_ = 0;  // bytes consumed
+  std::uint64_t line_ = 1;
+  std::vector<char> raw_;
+  std::optional<std::string> error_;
+  bool done_ = false;
+};
+
+// Positions of a code that a capture does not carry: punctured (not transmitted: LLR 0) or
+// shortened (known to be 0: LLR +Inf). File format: lines "punctured LIST" or "shortened LIST",
+// LIST being indices (0-based) and ranges A-B separated by spaces or commas; '#' comments.
+struct PunctureMap {
+  enum State : std::uint8_t { sent, punctured, shortened };
+  std::vector<State> state;  // per code position
+  std::size_t transmitted() const;
+  // Expands one received frame (transmitted() values) to the code length.
+  void expand(std::span<const double> received, std::span<double> llr) const;
+};
+PunctureMap read_puncture_map(const std::string& path, std::size_t n);
+
+// Hard bits, one frame of a fixed length after another: text (characters 0/1, one frame per
+// line when written, whitespace ignored when read), packed (each frame padded to whole bytes,
+// first bit in the most significant bit) or bytes (one byte 0 or 1 per bit).
+enum class BitFormat { text, packed, bytes };
+std::optional<BitFormat> parse_bit_format(std::string_view name);
+void append_bits(std::string& out, std::span<const std::uint8_t> bits, BitFormat format);
+
+// Reads frames of frame_bits bits, like CaptureReader: a bad character or a partial frame ends
+// the good data and error() names the byte offset and frame.
+class BitFrameReader {
+ public:
+  BitFrameReader(std::istream& in, std::string source, BitFormat format, std::size_t frame_bits);
+  std::size_t read(std::size_t max_frames, std::vector<std::uint8_t>& out);
+  const std::optional<std::string>& error() const noexcept { return error_; }
+  std::uint64_t frames_read() const noexcept { return frames_; }
+
+ private:
+  std::istream& in_;
+  std::string source_;
+  BitFormat format_;
+  std::size_t frame_bits_;
+  std::uint64_t frames_ = 0, offset_ = 0;
+  std::vector<char> raw_;
+  std::optional<std::string> error_;
+  bool done_ = false;
+};
 
 }  // namespace tannery

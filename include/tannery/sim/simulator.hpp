@@ -19,6 +19,7 @@
 #include "tannery/code/code.hpp"
 #include "tannery/code/gf2.hpp"
 #include "tannery/decode/decoder.hpp"
+#include "tannery/sim/random.hpp"
 
 namespace tannery {
 
@@ -130,6 +131,12 @@ class Simulator {
   Encoder encoder_;
   std::vector<KeptFrame> kept_;
 };
+
+// Generates frame id through the channel: information bits (zeros when all_zero), codeword and
+// channel LLRs. noise is scratch of n values. The simulator, replay and demo captures share it.
+void generate_frame(const FrameId& id, const ChannelPoint& channel, const Encoder& encoder,
+                    bool all_zero, std::span<std::uint8_t> info, std::span<std::uint8_t> codeword,
+                    std::span<double> noise, std::span<double> llr);
 
 // Parses a sweep: a comma-separated list "1,1.5,2" and/or ranges "START:STEP:STOP" (inclusive,
 // tolerant to rounding). Throws Error on bad syntax, a zero or wrong-signed step, or > 10000

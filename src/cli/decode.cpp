@@ -1,0 +1,251 @@
+// tannery decode --code CODE INPUT: decode captured soft bits offline.
+#include <fmt/format.h>
+#include <chrono>
+#include <fstream>
+#include <iostream>
+#include <thread>
+
+#include "commands.hpp"
+#include "tannery/code/gf2.hpp"
+#include "tannery/error.hpp"
+#include "tannery/io/capture.hpp"
+#include "tannery/io/output_file.hpp"
+
+namespace tannery::cli {
+
+namespace {
+
+struct DecodeOptions {
+  CodeInput input;
+  DecoderOptions decoder;
+  std::string capture;
+  std::string input_format = "f32";
+  double scale = 1.0;
+  std::string meaning = "llr";
+  std::optional<double> noise_variance;
+  std::string puncture;
+  std::string output = "-";
+  std::string output_format = "text";
+  bool codeword = false;
+  std::string posterior;
+  std::string report;
+  std::string report_format;
+  bool strict = false;
+  unsigned threads = 0;
+};
+
+// Decodes frames [0, frames) of a batch on all threads; frame order is kept by construction.
+void decode_parallel(std::vector<std::unique_ptr<Decoder>>& decoders, std::size_t n,
+                     std::size_t frames, std::uint64_t first_frame, std::vector<double>& llr,
+                     std::vector<std::uint8_t>& hard, std::vector<double>& posterior,
+                     std::vector<FrameOutcome>& outcomes) {
+  const std::size_t threads = std::min(decoders.size(), frames);
+  const std::size_t per = (frames + threads - 1) / threads;
+  std::vector<std::thread> pool;
+  std::vector<std::exception_ptr> errors(threads);
+  for (std::size_t t = 0; t < threads; ++t) {
+    const std::size_t a = t * per, b = std::min(frames, a + per);
+    if (a >= b) break;
+    pool.emplace_back([&, t, a, b] {
+      try {
+        decoders[t]->decode(std::span(llr).subspan(a * n, (b - a) * n),
+                            std::span(hard).subspan(a * n, (b - a) * n),
+                            posterior.empty() ? std::span<double>()
+                                              : std::span(posterior).subspan(a * n, (b - a) * n),
+                            std::span(outcomes).subspan(a, b - a), first_frame + a);
+      } catch (...) {
+        errors[t] = std::current_exception();
+      }
+    });
+  }
+  for (auto& th : pool) th.join();
+  for (auto& e : errors) {
+    if (e) std::rethrow_exception(e);
+  }
+}
+
+void run(const DecodeOptions& o) {
+  const Code code = o.input.load();
+  const Encoder encoder(code);
+  const DecoderSettings settings = o.decoder.settings();
+  const std::size_t n = code.n();
+  const SampleFormat format = *parse_sample_format(o.input_format);
+  const BitFormat out_format = *parse_bit_format(o.output_format);
+  if (o.meaning == "samples" && !o.noise_variance) {
+    throw Error(
+        "--meaning samples needs --noise-variance (the noise variance sigma^2 per real sample)");
+  }
+  if (o.meaning != "samples" && o.noise_variance)
+    throw Error("--noise-variance applies to --meaning samples only");
+  if (o.noise_variance && !(*o.noise_variance > 0))
+    throw Error("--noise-variance must be positive");
+  const PunctureMap map = o.puncture.empty()
+                              ? PunctureMap{std::vector<PunctureMap::State>(n, PunctureMap::sent)}
+                              : read_puncture_map(o.puncture, n);
+  const std::size_t received = map.transmitted();
+  // LLR = factor * value: +1 for LLRs, -1 for LLRs with positive meaning 1, 2/sigma^2 for samples.
+  const double factor =
+      o.meaning == "llr" ? 1.0 : (o.meaning == "llr-inverted" ? -1.0 : 2.0 / *o.noise_variance);
+
+  std::ifstream file;
+  std::istream* in = &std::cin;
+  if (o.capture != "-") {
+    file.open(o.capture, std::ios::binary);
+    if (!file) throw Error(fmt::format("{}: cannot open file", o.capture));
+    in = &file;
+  }
+  CaptureReader reader(*in, o.capture == "-" ? "<stdin>" : o.capture, format, o.scale, received);
+
+  std::string report_format = o.report_format;
+  if (report_format.empty())
+    report_format = o.report.ends_with(".jsonl") || o.report.ends_with(".json") ? "jsonl" : "csv";
+  OutputFile bits_out(o.output, o.strict), posterior_out(o.posterior, o.strict),
+      report_out(o.report, o.strict);
+  if (report_format == "csv")
+    report_out.write("frame,converged,iterations,syndrome_weight,changed_bits\n");
+
+  const unsigned threads =
+      o.threads ? o.threads : std::max(1u, std::thread::hardware_concurrency());
+  std::vector<std::unique_ptr<Decoder>> decoders;
+  for (unsigned t = 0; t < threads; ++t) decoders.push_back(make_decoder(code, settings));
+  const std::size_t batch = 128 * threads;
+  std::vector<double> values, llr, posterior;
+  std::vector<std::uint8_t> hard, selected(o.codeword ? n : encoder.k());
+  std::vector<FrameOutcome> outcomes;
+  std::uint64_t frames = 0, failures = 0, iterations = 0;
+  const auto start = std::chrono::steady_clock::now();
+  std::string text;
+  for (std::size_t got; (got = reader.read(batch, values)) > 0;) {
+    llr.resize(got * n);
+    for (std::size_t f = 0; f < got; ++f) {
+      map.expand(std::span(values).subspan(f * received, received),
+                 std::span(llr).subspan(f * n, n));
+    }
+    for (double& x : llr) x *= factor;
+    hard.resize(got * n);
+    outcomes.resize(got);
+    posterior.resize(posterior_out.enabled() ? got * n : 0);
+    decode_parallel(decoders, n, got, frames, llr, hard, posterior, outcomes);
+    text.clear();
+    std::string report;
+    for (std::size_t f = 0; f < got; ++f) {
+      const std::uint8_t* h = hard.data() + f * n;
+      if (o.codeword)
+        std::copy(h, h + n, selected.begin());
+      else {
+        for (std::size_t i = 0; i < encoder.k(); ++i) selected[i] = h[encoder.info_positions()[i]];
+      }
+      append_bits(text, selected, out_format);
+      const FrameOutcome& r = outcomes[f];
+      std::size_t changed = 0;
+      for (std::size_t i = 0; i < n; ++i) changed += h[i] != (llr[f * n + i] < 0 ? 1 : 0);
+      failures += r.converged ? 0 : 1;
+      iterations += static_cast<std::uint64_t>(r.iterations);
+      if (report_out.enabled()) {
+        report += report_format == "csv"
+                      ? fmt::format("{},{},{},{},{}\n", frames + f, r.converged ? 1 : 0,
+                                    r.iterations, r.syndrome_weight, changed)
+                      : fmt::format(
+                            "{{\"frame\": {}, \"converged\": {}, \"iterations\": {}, "
+                            "\"syndrome_weight\": {}, "
+                            "\"changed_bits\": {}}}\n",
+                            frames + f, r.converged, r.iterations, r.syndrome_weight, changed);
+      }
+    }
+    bits_out.write(text);
+    report_out.write(report);
+    if (posterior_out.enabled()) {
+      std::string bytes;
+      std::vector<float> as_float(posterior.begin(), posterior.end());
+      append_f32_le(bytes, as_float);
+      posterior_out.write(bytes);
+    }
+    frames += got;
+  }
+  const double seconds =
+      std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
+  if (reader.error() && o.strict) {
+    bits_out.abandon();
+    posterior_out.abandon();
+    report_out.abandon();
+    throw Error(*reader.error() + " (--strict: nothing written)");
+  }
+  bits_out.commit();
+  posterior_out.commit();
+  report_out.commit();
+  const double fps = seconds > 0 ? static_cast<double>(frames) / seconds : 0;
+  fmt::print(stderr,
+             "decoded {} frames: {} did not converge; {:.0f} frames/s, {:.3f} coded Mbit/s, {:.3g} "
+             "edge-updates/s ({} threads)\n",
+             frames, failures, fps, fps * static_cast<double>(n) / 1e6,
+             seconds > 0
+                 ? static_cast<double>(iterations) * static_cast<double>(code.edges()) / seconds
+                 : 0.0,
+             threads);
+  if (reader.error()) {
+    throw Error(fmt::format("{}; the {} complete frames before it were decoded and written",
+                            *reader.error(), frames));
+  }
+}
+
+}  // namespace
+
+void add_decode(CLI::App& app) {
+  auto o = std::make_shared<DecodeOptions>();
+  auto* sub =
+      app.add_subcommand("decode", "Decode captured soft bits (LLRs or channel samples) offline");
+  sub->footer(
+      "Examples:\n"
+      "  tannery decode --code qc-rate-half-z54 capture.f32 --output bits.txt --report frames.csv\n"
+      "  tannery decode --code my.alist rx.i8 --input-format i8 --scale 0.125 --posterior "
+      "soft.f32\n"
+      "  tannery decode --code my.alist rx.txt --input-format text --meaning samples "
+      "--noise-variance 0.5\n"
+      "Binary inputs are little-endian frames of n values (n minus punctured/shortened "
+      "positions).");
+  o->input.add_to(*sub, false, "");
+  sub->add_option("INPUT", o->capture, "capture file ('-' = stdin)")->required();
+  sub->add_option("--input-format", o->input_format,
+                  "f32, f64 (IEEE little-endian), i8, i16 (integers times --scale), text (numbers "
+                  "separated by "
+                  "whitespace or commas)")
+      ->check(CLI::IsMember({"f32", "f64", "i8", "i16", "text"}))
+      ->capture_default_str();
+  sub->add_option("--scale", o->scale,
+                  "multiply every input value by this (e.g. the LSB of fixed-point LLRs)")
+      ->capture_default_str();
+  sub->add_option("--meaning", o->meaning,
+                  "llr (log P(0)/P(1), positive = 0), llr-inverted (positive = 1), samples (BPSK y "
+                  "with 0 -> +1; "
+                  "LLR = 2y/sigma^2)")
+      ->check(CLI::IsMember({"llr", "llr-inverted", "samples"}))
+      ->capture_default_str();
+  sub->add_option("--noise-variance", o->noise_variance,
+                  "sigma^2 per real sample, for --meaning samples");
+  sub->add_option("--puncture", o->puncture,
+                  "map of positions the capture lacks: lines 'punctured LIST' (LLR 0) or "
+                  "'shortened LIST' (known 0)");
+  sub->add_option("--output", o->output, "decoded bits ('-' = stdout)")->capture_default_str();
+  sub->add_option("--output-format", o->output_format,
+                  "text (0/1, a line per frame), packed (MSB first, frames padded "
+                  "to bytes) or bytes (one byte per bit)")
+      ->check(CLI::IsMember({"text", "packed", "bytes"}))
+      ->capture_default_str();
+  sub->add_flag("--codeword", o->codeword,
+                "write whole codewords (n bits) instead of the k information bits");
+  sub->add_option("--posterior", o->posterior,
+                  "write posterior LLRs as float32 little-endian, n per frame");
+  sub->add_option("--report", o->report,
+                  "per-frame report: frame, converged, iterations, syndrome weight, bits "
+                  "changed versus the channel's hard decisions");
+  sub->add_option("--report-format", o->report_format,
+                  "csv or jsonl (default: from the extension, else csv)")
+      ->check(CLI::IsMember({"csv", "jsonl"}));
+  sub->add_flag("--strict", o->strict,
+                "refuse the whole input if any part is bad (outputs appear only on success)");
+  sub->add_option("--threads", o->threads, "worker threads (default: all cores)");
+  o->decoder.add_to(*sub);
+  sub->callback([o] { run(*o); });
+}
+
+}  // namespace tannery::cli

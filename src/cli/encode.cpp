@@ -1,0 +1,148 @@
+// tannery encode --code CODE: information bits to codewords, or a demo capture through a channel.
+#include <fmt/format.h>
+#include <fstream>
+#include <iostream>
+
+#include "commands.hpp"
+#include "tannery/code/gf2.hpp"
+#include "tannery/error.hpp"
+#include "tannery/io/capture.hpp"
+#include "tannery/io/output_file.hpp"
+#include "tannery/sim/simulator.hpp"
+
+namespace tannery::cli {
+
+namespace {
+
+struct EncodeOptions {
+  CodeInput input;
+  std::string bits = "-";
+  std::string input_format = "text";
+  std::string output = "-";
+  std::string output_format;
+  std::uint64_t demo = 0;
+  std::string channel = "awgn";
+  double snr = 2.0;
+  std::uint64_t seed = 1;
+  std::string meaning = "llr";
+  double scale = 1.0;
+  std::string truth;
+};
+
+void encode_bits(const EncodeOptions& o, const Code& code, const Encoder& encoder) {
+  const BitFormat in_format = *parse_bit_format(o.input_format);
+  const BitFormat out_format =
+      *parse_bit_format(o.output_format.empty() ? "text" : o.output_format);
+  std::ifstream file;
+  std::istream* in = &std::cin;
+  if (o.bits != "-") {
+    file.open(o.bits, std::ios::binary);
+    if (!file) throw Error(fmt::format("{}: cannot open file", o.bits));
+    in = &file;
+  }
+  BitFrameReader reader(*in, o.bits == "-" ? "<stdin>" : o.bits, in_format, encoder.k());
+  OutputFile out(o.output, false);
+  std::vector<std::uint8_t> info, word(code.n());
+  std::string text;
+  for (std::size_t got; (got = reader.read(1024, info)) > 0;) {
+    text.clear();
+    for (std::size_t f = 0; f < got; ++f) {
+      encoder.encode(std::span(info).subspan(f * encoder.k(), encoder.k()), word);
+      append_bits(text, word, out_format);
+    }
+    out.write(text);
+  }
+  out.commit();
+  if (reader.error()) {
+    throw Error(fmt::format("{}; the {} complete frames before it were encoded and written",
+                            *reader.error(), reader.frames_read()));
+  }
+}
+
+// Random frames through a channel, written as a capture that tannery decode reads.
+void demo_capture(const EncodeOptions& o, const Code& code, const Encoder& encoder) {
+  const SampleFormat format =
+      *parse_sample_format(o.output_format.empty() ? "f32" : o.output_format);
+  const ChannelKind kind = *parse_channel(o.channel);
+  check_channel_parameter(kind, o.snr);
+  const double rate = static_cast<double>(encoder.k()) / static_cast<double>(code.n());
+  ChannelPoint channel{kind, o.snr, o.snr};
+  if (kind == ChannelKind::awgn)
+    channel.value = channel.assumed_value = awgn_sigma(o.snr, SnrMeasure::ebn0, rate);
+  if (o.meaning == "samples" && kind != ChannelKind::awgn)
+    throw Error("--meaning samples needs --channel awgn");
+  OutputFile out(o.output, false), truth(o.truth, false);
+  std::vector<std::uint8_t> info(encoder.k()), word(code.n());
+  std::vector<double> noise(code.n()), llr(code.n());
+  std::string bytes, bits;
+  for (std::uint64_t f = 0; f < o.demo; ++f) {
+    generate_frame(FrameId{o.seed, 0, f}, channel, encoder, false, info, word, noise, llr);
+    if (o.meaning == "samples") {
+      for (double& x : llr) x *= channel.value * channel.value / 2;  // back from 2y/sigma^2 to y
+    }
+    append_samples(bytes, llr, format, o.scale);
+    append_bits(bits, info, BitFormat::text);
+    if (bytes.size() > (1 << 20)) out.write(bytes), bytes.clear();
+    if (bits.size() > (1 << 20)) truth.write(bits), bits.clear();
+  }
+  out.write(bytes);
+  truth.write(bits);
+  out.commit();
+  truth.commit();
+  fmt::print(stderr, "wrote {} frames of n = {} ({}; {} at {} {}, seed {})\n", o.demo, code.n(),
+             sample_format_name(format), channel_name(kind), o.snr,
+             kind == ChannelKind::awgn ? "dB Eb/N0" : "", o.seed);
+}
+
+}  // namespace
+
+void add_encode(CLI::App& app) {
+  auto o = std::make_shared<EncodeOptions>();
+  auto* sub = app.add_subcommand(
+      "encode", "Encode information bits, or make a demo capture through a channel");
+  sub->footer(
+      "Examples:\n"
+      "  printf '0101\\n1111\\n' | tannery encode --code hamming-7-4\n"
+      "  tannery encode --code qc-rate-half-z54 --demo 1000 --snr 2.5 --seed 7 --output demo.f32 "
+      "--truth demo.bits");
+  o->input.add_to(*sub, false, "");
+  sub->add_option("INPUT", o->bits, "information bits, k per frame ('-' = stdin)")
+      ->capture_default_str();
+  sub->add_option("--input-format", o->input_format,
+                  "text (0/1, whitespace ignored), packed or bytes")
+      ->check(CLI::IsMember({"text", "packed", "bytes"}))
+      ->capture_default_str();
+  sub->add_option("--output", o->output, "output file ('-' = stdout)")->capture_default_str();
+  sub->add_option(
+      "--output-format", o->output_format,
+      "codewords: text, packed or bytes (default text); demo captures: f32, f64, i8, i16 or text "
+      "(default f32)");
+  sub->add_option("--demo", o->demo,
+                  "instead of reading bits: this many random frames through --channel");
+  sub->add_option("--channel", o->channel, "demo channel: awgn, bsc or bec")
+      ->check(CLI::IsMember({"awgn", "bsc", "bec"}))
+      ->capture_default_str();
+  sub->add_option(
+         "--snr", o->snr,
+         "demo channel parameter: Eb/N0 in dB (awgn, true rate k/n), p (bsc) or epsilon (bec)")
+      ->capture_default_str();
+  sub->add_option("--seed", o->seed, "demo seed (frames as tannery simulate's point 0)")
+      ->capture_default_str();
+  sub->add_option("--meaning", o->meaning, "demo values: llr or samples (BPSK y, awgn only)")
+      ->check(CLI::IsMember({"llr", "samples"}))
+      ->capture_default_str();
+  sub->add_option("--scale", o->scale,
+                  "demo: value multiplier for f32/f64/text, LSB size for i8/i16")
+      ->capture_default_str();
+  sub->add_option("--truth", o->truth, "demo: also write the sent information bits (text)");
+  sub->callback([o] {
+    const Code code = o->input.load();
+    const Encoder encoder(code);
+    if (o->demo > 0)
+      demo_capture(*o, code, encoder);
+    else
+      encode_bits(*o, code, encoder);
+  });
+}
+
+}  // namespace tannery::cli

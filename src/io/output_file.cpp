@@ -1,0 +1,76 @@
+#include "tannery/io/output_file.hpp"
+
+#include <fmt/format.h>
+#include <unistd.h>
+#include <filesystem>
+
+#include "tannery/error.hpp"
+
+namespace tannery {
+
+OutputFile::OutputFile(std::string path, bool hold_stdout) : path_(std::move(path)) {
+  if (path_.empty()) return;
+  if (path_ == "-" && !hold_stdout) {
+    file_ = stdout;
+    to_stdout_ = true;
+    return;
+  }
+  temp_ = path_ == "-"
+              ? fmt::format("/tmp/tannery-stdout.{}.{}", ::getpid(), static_cast<const void*>(this))
+              : fmt::format("{}.tmp.{}", path_, ::getpid());
+  file_ = std::fopen(temp_.c_str(), "wb");
+  if (!file_) throw Error(fmt::format("{}: cannot create file", path_ == "-" ? temp_ : path_));
+}
+
+OutputFile::~OutputFile() {
+  abandon();
+}
+
+void OutputFile::write(std::string_view data) {
+  if (!file_ || data.empty()) return;
+  if (std::fwrite(data.data(), 1, data.size(), file_) != data.size()) {
+    throw Error(fmt::format("{}: write failed", path_));
+  }
+}
+
+void OutputFile::commit() {
+  if (!file_) return;
+  if (to_stdout_) {
+    std::fflush(stdout);
+    file_ = nullptr;
+    return;
+  }
+  const bool ok = std::fflush(file_) == 0;
+  std::fclose(file_);
+  file_ = nullptr;
+  if (!ok) throw Error(fmt::format("{}: write failed", path_));
+  if (path_ == "-") {
+    std::FILE* in = std::fopen(temp_.c_str(), "rb");
+    char buffer[1 << 16];
+    for (std::size_t got; in && (got = std::fread(buffer, 1, sizeof buffer, in)) > 0;)
+      std::fwrite(buffer, 1, got, stdout);
+    if (in) std::fclose(in);
+    std::fflush(stdout);
+    std::remove(temp_.c_str());
+    return;
+  }
+  std::error_code ec;
+  std::filesystem::rename(temp_, path_, ec);
+  if (ec) {
+    std::remove(temp_.c_str());
+    throw Error(fmt::format("{}: cannot rename into place: {}", path_, ec.message()));
+  }
+}
+
+void OutputFile::abandon() {
+  if (!file_) return;
+  if (to_stdout_) {
+    std::fflush(stdout);
+  } else {
+    std::fclose(file_);
+    std::remove(temp_.c_str());
+  }
+  file_ = nullptr;
+}
+
+}  // namespace tannery

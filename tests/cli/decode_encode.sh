@@ -1,0 +1,122 @@
+# tannery encode / decode: round trips, every input encoding, bad captures, numpy layout.
+. "$(dirname "$0")/lib.sh"
+cd "$WORK"
+
+# Round trip encode -> channel -> decode on every shipped code, at an SNR where all frames decode.
+for code in hamming-7-4 hamming-15-11 repetition-5 parity-8 regular-3-6-n2016 qc-rate-half-z54; do
+  "$T" encode --code $code --demo 60 --snr 10 --seed 3 --output $code.f32 --truth $code.truth 2>/dev/null || fail "demo $code"
+  "$T" decode --code $code $code.f32 --output $code.got 2>/dev/null || fail "decode $code"
+  cmp -s $code.truth $code.got || fail "round trip on $code"
+done
+
+# Information bits in -> codewords out -> (as LLRs) -> decoded codewords equal the input.
+printf '1011\n0000\n1111\n' > info.txt
+expect_exit 0 "$T" encode --code hamming-7-4 info.txt --output words.txt
+[ "$(wc -l < words.txt)" = 3 ] || fail "three codewords"
+/usr/bin/python3 -c "
+import struct
+rows = [l.strip() for l in open('words.txt')]
+with open('words.f32', 'wb') as f:
+    for r in rows:
+        f.write(struct.pack('<7f', *[(-4.0 if c == '1' else 4.0) for c in r]))
+" || fail "python"
+expect_exit 0 "$T" decode --code hamming-7-4 words.f32 --codeword --output back.txt
+cmp -s words.txt back.txt || fail "codewords back"
+expect_exit 0 "$T" decode --code hamming-7-4 words.f32 --output info_back.txt
+cmp -s info.txt info_back.txt || fail "information bits back"
+
+# Every input encoding decodes to the same bits.
+C=qc-rate-half-z54
+"$T" encode --code $C --demo 40 --snr 4 --seed 9 --output d.f32 --truth d.truth 2>/dev/null
+"$T" encode --code $C --demo 40 --snr 4 --seed 9 --output d.f64 --output-format f64 2>/dev/null
+"$T" encode --code $C --demo 40 --snr 4 --seed 9 --output d.txt --output-format text 2>/dev/null
+"$T" encode --code $C --demo 40 --snr 4 --seed 9 --output d.i16 --output-format i16 --scale 0.001 2>/dev/null
+"$T" encode --code $C --demo 40 --snr 4 --seed 9 --output d.i8 --output-format i8 --scale 0.25 2>/dev/null
+"$T" encode --code $C --demo 40 --snr 4 --seed 9 --output d.y --output-format f32 --meaning samples 2>/dev/null
+expect_exit 0 "$T" decode --code $C d.f32 --output out.f32
+expect_exit 0 "$T" decode --code $C d.f64 --input-format f64 --output out.f64
+expect_exit 0 "$T" decode --code $C d.txt --input-format text --output out.txt
+expect_exit 0 "$T" decode --code $C d.i16 --input-format i16 --scale 0.001 --output out.i16
+expect_exit 0 "$T" decode --code $C d.i8 --input-format i8 --scale 0.25 --output out.i8
+# Eb/N0 4 dB at rate 1/2: sigma^2 = 1 / (2 * 0.5 * 10^0.4)
+expect_exit 0 "$T" decode --code $C d.y --meaning samples --noise-variance 0.3981071705534972 --output out.y
+cat d.f32 | "$T" decode --code $C - --output - --meaning llr > out.stdin 2>/dev/null || fail "stdin to stdout"
+for f in out.f32 out.f64 out.txt out.i16 out.i8 out.y out.stdin; do cmp -s d.truth $f || fail "encoding $f decodes differently"; done
+/usr/bin/python3 -c "
+import struct
+data = open('d.f32', 'rb').read()
+with open('inv.f32', 'wb') as f:
+    for (x,) in struct.iter_unpack('<f', data):
+        f.write(struct.pack('<f', -x))
+"
+expect_exit 0 "$T" decode --code $C inv.f32 --meaning llr-inverted --output out.inv
+cmp -s d.truth out.inv || fail "llr-inverted"
+
+# Outputs: packed and bytes layouts, report, posterior.
+expect_exit 0 "$T" decode --code $C d.f32 --output out.packed --output-format packed --report rep.jsonl --posterior post.f32
+[ "$(stat -c %s out.packed)" = $((40 * 41)) ] || fail "packed size (324 bits padded to 41 bytes per frame)"
+[ "$(wc -l < rep.jsonl)" = 40 ] || fail "report lines"
+head -1 rep.jsonl | grep -q '"frame": 0, "converged": true' || fail "jsonl report"
+[ "$(stat -c %s post.f32)" = $((40 * 648 * 4)) ] || fail "posterior size"
+expect_in "decoded 40 frames: 0 did not converge" "$WORK/err"
+
+# The binary layout reads with numpy.fromfile(path, dtype='<f4').reshape(-1, n) (python3-numpy).
+if /usr/bin/python3 -c "import numpy" 2>/dev/null; then
+  /usr/bin/python3 - <<'PY' || fail "numpy layout"
+import numpy
+a = numpy.fromfile("d.f32", dtype="<f4").reshape(-1, 648)
+t = numpy.loadtxt("d.txt").reshape(-1, 648)
+assert a.shape == (40, 648)
+assert numpy.allclose(a, t, rtol=1e-6, atol=1e-6)
+p = numpy.fromfile("post.f32", dtype="<f4").reshape(-1, 648)
+assert p.shape == (40, 648) and numpy.isfinite(p).all()
+PY
+else
+  echo "note: python3-numpy missing, numpy layout check skipped"
+fi
+
+# Bad captures: complete frames before the problem are decoded and written, then exit 2.
+head -c $((40 * 648 * 4 - 5)) d.f32 > trunc.f32
+expect_exit 2 "$T" decode --code $C trunc.f32 --output trunc.out
+expect_in "ends with a partial frame: 2587 bytes at byte 101088 after frame 39" "$WORK/err"
+expect_in "the 39 complete frames before it were decoded and written" "$WORK/err"
+[ "$(wc -l < trunc.out)" = 39 ] || fail "frames before the truncation were lost"
+head -39 d.truth | cmp -s - trunc.out || fail "frames before the truncation differ"
+/usr/bin/python3 -c "
+import struct
+b = bytearray(open('d.f32', 'rb').read())
+b[(3 * 648 + 17) * 4:(3 * 648 + 17) * 4 + 4] = struct.pack('<f', float('nan'))
+open('nan.f32', 'wb').write(b)
+b[(3 * 648 + 17) * 4:(3 * 648 + 17) * 4 + 4] = struct.pack('<f', float('inf'))
+open('inf.f32', 'wb').write(b)
+"
+expect_exit 2 "$T" decode --code $C nan.f32 --output nan.out
+expect_in "byte $(( (3 * 648 + 17) * 4 )) (frame 3, value 17): value is NaN" "$WORK/err"
+[ "$(wc -l < nan.out)" = 3 ] || fail "frames before the NaN were lost"
+expect_exit 0 "$T" decode --code $C inf.f32 --output inf.out  # +Inf is a legal certainty
+: > empty.f32
+expect_exit 2 "$T" decode --code $C empty.f32 --output empty.out
+expect_in "empty input: no frames" "$WORK/err"
+expect_exit 2 "$T" decode --code $C trunc.f32 --output strict.out --strict
+expect_in "(--strict: nothing written)" "$WORK/err"
+[ ! -e strict.out ] || fail "--strict left an output"
+printf '1 2 3\nx\n' > bad.txt
+expect_exit 2 "$T" decode --code hamming-7-4 bad.txt --input-format text --output bad.out
+expect_in "bad.txt: byte 6 (frame 0, value 3): line 2: 'x' is not a number" "$WORK/err"
+expect_exit 2 "$T" decode --code $C /nonexistent.f32
+expect_in "/nonexistent.f32: cannot open file" "$WORK/err"
+expect_exit 2 "$T" decode --code $C d.y --meaning samples
+expect_in "needs --noise-variance" "$WORK/err"
+
+# Punctured and shortened positions: drop them from the capture, restore with a map.
+printf 'punctured 0-9\nshortened 20,21\n' > map.txt
+/usr/bin/python3 -c "
+import numpy
+a = numpy.fromfile('d.f32', dtype='<f4').reshape(-1, 648)
+keep = [i for i in range(648) if not (i < 10 or i in (20, 21))]
+a[:, keep].astype('<f4').tofile('punct.f32')
+" 2>/dev/null && {
+  expect_exit 0 "$T" decode --code $C punct.f32 --puncture map.txt --codeword --output punct.out
+  expect_in "decoded 40 frames" "$WORK/err"
+}
+finish
