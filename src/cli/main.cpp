@@ -18,6 +18,7 @@ int main(int argc, char** argv) {
   tannery::cli::add_plot(app);
   tannery::cli::add_decode(app);
   tannery::cli::add_encode(app);
+  tannery::cli::add_compare(app);
   try {
     app.parse(argc, argv);
   } catch (const CLI::CallForHelp& e) {

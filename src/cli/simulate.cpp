@@ -13,6 +13,7 @@
 #include "tannery/io/matrix_io.hpp"
 #include "tannery/report/plot.hpp"
 #include "tannery/report/results.hpp"
+#include "tannery/report/scenario.hpp"
 #include "tannery/report/sha256.hpp"
 
 namespace tannery::cli {
@@ -46,7 +47,39 @@ struct SimulateOptions {
   std::string replay_llr;
   std::size_t save_failures = 0;
   std::string failures = "tannery-failures.f32";
+  std::string scenario;
 };
+
+// Fills every option the command line did not give from the scenario file.
+void apply_scenario(const Scenario& sc, SimulateOptions& o, const CLI::App& sub) {
+  auto given = [&](const char* name) { return sub.get_option(name)->count() > 0; };
+  const SimulationConfig& c = sc.config;
+  if (!given("--code")) o.input.code = sc.code;
+  if (!given("--algorithm")) o.decoder.algorithm = algorithm_name(c.decoder.algorithm);
+  if (!given("--schedule")) o.decoder.schedule = schedule_name(c.decoder.schedule);
+  if (!given("--iterations")) o.decoder.iterations = c.decoder.iterations;
+  if (!given("--no-early-stop")) o.decoder.no_early_stop = !c.decoder.early_stop;
+  if (!given("--alpha")) o.decoder.alpha = c.decoder.alpha;
+  if (!given("--beta")) o.decoder.beta = c.decoder.beta;
+  if (!given("--flip-threshold")) o.decoder.flip_threshold = c.decoder.flip_threshold;
+  if (!given("--channel")) o.channel = channel_name(c.channel.kind);
+  if (!given("--sweep")) {
+    o.sweep.clear();
+    for (double v : c.sweep) o.sweep += fmt::format("{}{}", o.sweep.empty() ? "" : ",", v);
+  }
+  if (!given("--snr")) o.snr = c.channel.measure == SnrMeasure::esn0 ? "esn0" : "ebn0";
+  if (!given("--design-rate")) o.design_rate = c.channel.design_rate;
+  if (!given("--snr-offset")) o.snr_offset = c.channel.snr_offset_db;
+  if (!given("--assumed-p")) o.assumed_p = c.channel.assumed_crossover;
+  if (!given("--frame-errors")) o.frame_errors = c.stop.frame_errors;
+  if (!given("--max-frames")) o.max_frames = c.stop.max_frames;
+  if (!given("--max-seconds")) o.max_seconds = c.stop.max_seconds;
+  if (!given("--stop-below")) o.stop_below = c.stop.stop_below_fer;
+  if (!given("--seed")) o.seed = c.seed;
+  if (!given("--chunk")) o.chunk = c.chunk_frames;
+  if (!given("--all-zero")) o.all_zero = c.all_zero;
+  if (!given("--confidence")) o.confidence = c.confidence;
+}
 
 // Default sweeps: the waterfall of the shipped rate-1/2 codes, and ranges around the
 // capacity limits of rate 1/2 for the BSC and BEC.
@@ -174,9 +207,12 @@ void replay(const SimulateOptions& o, const Code& code, const Simulator& sim) {
   }
 }
 
-void run(SimulateOptions o) {
+void run(SimulateOptions o, const CLI::App& sub) {
   RunRecord previous;
   SimulationConfig config;
+  if (!o.scenario.empty() && !o.resume.empty())
+    throw Error("--scenario and --resume exclude each other");
+  if (!o.scenario.empty()) apply_scenario(read_scenario(o.scenario), o, sub);
   if (!o.resume.empty()) {
     previous = parse_results_json(read_text_file(o.resume), o.resume);
     config = previous.config;
@@ -305,6 +341,7 @@ void add_simulate(CLI::App& app) {
       "                   --sweep 1:0.5:3 --frame-errors 200 --output qc.json --plot qc.svg\n"
       "  tannery simulate --channel bsc --sweep 0.02,0.03,0.04 --algorithm bit-flip\n"
       "  tannery simulate --resume tannery-run.json          # continue an interrupted run\n"
+      "  tannery simulate --scenario sims/qc-sum-product.toml --threads 2\n"
       "Counts are identical for any --threads: frames are pure functions of (seed, point, frame).");
   o->input.add_to(*sub, false, kDefaultCode);
   o->decoder.add_to(*sub);
@@ -368,7 +405,10 @@ void add_simulate(CLI::App& app) {
   sub->add_option("--failures", o->failures,
                   "capture file for --save-failures (float32, n per frame)")
       ->capture_default_str();
-  sub->callback([o] { run(*o); });
+  sub->add_option("--scenario", o->scenario,
+                  "run the simulation a scenario file (TOML) describes; options given here "
+                  "override its fields");
+  sub->callback([o, sub] { run(*o, *sub); });
 }
 
 }  // namespace tannery::cli

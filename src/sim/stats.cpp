@@ -108,4 +108,42 @@ Interval clustered_ber_interval(std::uint64_t frames, std::uint64_t bits_per_fra
   return {std::max(0.0, ber - half), std::min({1.0, ber + half, fer_high})};
 }
 
+namespace {
+
+double log_choose(double n, double k) {
+  return std::lgamma(n + 1) - std::lgamma(k + 1) - std::lgamma(n - k + 1);
+}
+
+// log(exp(a) + exp(b)) without overflow.
+double log_add(double a, double b) {
+  if (a < b) std::swap(a, b);
+  return b == -INFINITY ? a : a + std::log1p(std::exp(b - a));
+}
+
+}  // namespace
+
+double fisher_greater_p(std::uint64_t x1, std::uint64_t n1, std::uint64_t x2, std::uint64_t n2) {
+  const double total = static_cast<double>(n1 + n2), successes = static_cast<double>(x1 + x2);
+  const double draws = static_cast<double>(n1);
+  const std::uint64_t top = std::min(x1 + x2, n1);
+  const double log_all = log_choose(total, draws);
+  double log_p = -INFINITY;
+  for (std::uint64_t x = x1; x <= top; ++x) {
+    const double xd = static_cast<double>(x);
+    if (successes - xd > total - draws) continue;  // impossible split
+    log_p = log_add(
+        log_p, log_choose(successes, xd) + log_choose(total - successes, draws - xd) - log_all);
+  }
+  return std::min(1.0, std::exp(log_p));
+}
+
+double binomial_half_upper_p(std::uint64_t k, std::uint64_t n) {
+  if (k == 0) return 1.0;
+  double log_p = -INFINITY;
+  const double nd = static_cast<double>(n), log_half = nd * std::log(0.5);
+  for (std::uint64_t x = k; x <= n; ++x)
+    log_p = log_add(log_p, log_choose(nd, static_cast<double>(x)) + log_half);
+  return std::min(1.0, std::exp(log_p));
+}
+
 }  // namespace tannery

@@ -27,4 +27,10 @@ Interval clustered_ber_interval(std::uint64_t frames, std::uint64_t bits_per_fra
                                 std::uint64_t bit_errors, double bit_error_squares,
                                 double confidence, double fer_high);
 
+// One-sided p-value that the first of two binomial proportions is larger: Fisher's exact test,
+// P(X >= x1) for X hypergeometric with n1 + n2 trials, x1 + x2 successes and n1 draws.
+double fisher_greater_p(std::uint64_t x1, std::uint64_t n1, std::uint64_t x2, std::uint64_t n2);
+// P(X >= k) for X ~ Binomial(n, 1/2): the one-sided exact McNemar test on discordant pairs.
+double binomial_half_upper_p(std::uint64_t k, std::uint64_t n);
+
 }  // namespace tannery

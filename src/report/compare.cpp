@@ -1,0 +1,276 @@
+#include "tannery/report/compare.hpp"
+
+#include <fmt/format.h>
+#include <algorithm>
+#include <cmath>
+#include <nlohmann/json.hpp>
+
+#include "tannery/error.hpp"
+
+namespace tannery {
+
+std::string_view compare_mode_name(CompareMode mode) {
+  switch (mode) {
+    case CompareMode::automatic:
+      return "automatic";
+    case CompareMode::exact:
+      return "exact";
+    case CompareMode::paired:
+      return "paired";
+    case CompareMode::unpaired:
+      return "unpaired";
+  }
+  return "?";
+}
+
+namespace {
+
+bool same(double a, double b) {
+  return std::abs(a - b) <= 1e-9 * std::max(1.0, std::abs(a));
+}
+
+// Failed-frame indices are usable for pairing only when none was dropped by the cap.
+bool has_all_failures(const PointResult& p) {
+  return p.failed_frames.size() == p.frame_errors;
+}
+
+// One-sided z-test that the current BER is larger, with per-frame (clustered) variances.
+double ber_p(const PointResult& cur, const PointResult& ref) {
+  auto moments = [](const PointResult& p) {
+    const double nf = static_cast<double>(p.frames),
+                 k = p.frames ? static_cast<double>(p.bits) / nf : 1;
+    const double mean = static_cast<double>(p.bit_errors) / nf;
+    const double var =
+        p.frames > 1 ? std::max(0.0, (p.bit_error_squares - nf * mean * mean) / (nf - 1)) : 0;
+    return std::pair{mean / k, var / nf / (k * k)};
+  };
+  if (cur.frames == 0 || ref.frames == 0) return 1;
+  const auto [bc, vc] = moments(cur);
+  const auto [br, vr] = moments(ref);
+  if (vc + vr <= 0) return bc > br ? 0.0 : 1.0;
+  return normal_tail((bc - br) / std::sqrt(vc + vr));
+}
+
+std::string setting_differences(const RunRecord& a, const RunRecord& b) {
+  std::vector<std::string> d;
+  if (a.code.matrix_sha256 != b.code.matrix_sha256) d.push_back("code (matrix SHA-256)");
+  if (!(a.config.decoder == b.config.decoder)) {
+    d.push_back(
+        fmt::format("decoder ({} vs {})", describe(a.config.decoder), describe(b.config.decoder)));
+  }
+  if (!(a.config.channel == b.config.channel)) d.push_back("channel settings");
+  if (a.config.seed != b.config.seed)
+    d.push_back(fmt::format("seed ({} vs {})", a.config.seed, b.config.seed));
+  if (a.config.all_zero != b.config.all_zero) d.push_back("all-zero mode");
+  if (a.config.chunk_frames != b.config.chunk_frames) d.push_back("chunk size");
+  if (a.tool_version != b.tool_version)
+    d.push_back(fmt::format("tool version ({} vs {})", a.tool_version, b.tool_version));
+  std::string out;
+  for (const auto& s : d) out += (out.empty() ? "" : ", ") + s;
+  return out;
+}
+
+}  // namespace
+
+std::optional<double> fer_crossing(const std::vector<PointResult>& points, double target,
+                                   bool higher_is_better) {
+  std::vector<const PointResult*> sorted;
+  for (const auto& p : points) sorted.push_back(&p);
+  std::sort(sorted.begin(), sorted.end(), [&](auto* a, auto* b) {
+    return higher_is_better ? a->parameter < b->parameter : a->parameter > b->parameter;
+  });
+  for (std::size_t i = 1; i < sorted.size(); ++i) {
+    const PointResult &a = *sorted[i - 1], &b = *sorted[i];
+    if (a.fer() >= target && b.fer() < target) {
+      if (b.fer() <= 0) return b.parameter;  // no error at b: the crossing is at b at the latest
+      const double la = std::log10(a.fer()), lb = std::log10(b.fer()), lt = std::log10(target);
+      return a.parameter + (b.parameter - a.parameter) * (la - lt) / (la - lb);
+    }
+  }
+  return std::nullopt;
+}
+
+Comparison compare_runs(const RunRecord& cur, const RunRecord& ref, const CompareOptions& o) {
+  if (cur.config.channel.kind != ref.config.channel.kind ||
+      cur.config.channel.measure != ref.config.channel.measure) {
+    throw Error("the two runs sweep different channel parameters; nothing to compare");
+  }
+  Comparison c;
+  const std::string differences = setting_differences(cur, ref);
+  if (!differences.empty()) c.warnings.push_back("settings differ: " + differences);
+  for (const auto& p : cur.points) {
+    auto it = std::find_if(ref.points.begin(), ref.points.end(),
+                           [&](const auto& r) { return same(r.parameter, p.parameter); });
+    if (it == ref.points.end()) {
+      c.only_current.push_back(p.parameter);
+      continue;
+    }
+    PointComparison pc;
+    pc.parameter = p.parameter;
+    pc.current = p;
+    pc.reference = *it;
+    c.points.push_back(std::move(pc));
+  }
+  for (const auto& r : ref.points) {
+    if (std::none_of(cur.points.begin(), cur.points.end(),
+                     [&](const auto& p) { return same(r.parameter, p.parameter); })) {
+      c.only_reference.push_back(r.parameter);
+    }
+  }
+  if (c.points.empty()) throw Error("the two runs have no sweep point in common");
+
+  const bool same_seed = cur.config.seed == ref.config.seed &&
+                         cur.config.all_zero == ref.config.all_zero &&
+                         cur.config.chunk_frames == ref.config.chunk_frames;
+  const bool pairable =
+      same_seed && std::all_of(c.points.begin(), c.points.end(), [](const PointComparison& p) {
+        return has_all_failures(p.current) && has_all_failures(p.reference);
+      });
+  c.mode = o.mode;
+  if (c.mode == CompareMode::automatic) {
+    c.mode = same_seed && differences.empty()
+                 ? CompareMode::exact
+                 : (pairable ? CompareMode::paired : CompareMode::unpaired);
+  }
+  if (c.mode == CompareMode::paired && !pairable) {
+    throw Error(
+        "a paired comparison needs the same seed and chunk size and complete failed-frame lists in "
+        "both files");
+  }
+  c.level = (1 - o.confidence) / static_cast<double>(2 * c.points.size());
+  for (auto& pc : c.points) {
+    const PointResult &p = pc.current, &r = pc.reference;
+    pc.p_ber = ber_p(p, r);
+    if (c.mode == CompareMode::exact) {
+      pc.test = "exact";
+      const bool equal = p.frames == r.frames && p.frame_errors == r.frame_errors &&
+                         p.bit_errors == r.bit_errors &&
+                         p.iteration_histogram == r.iteration_histogram;
+      pc.regression = !equal;
+      pc.note = equal ? "identical counts" : "counts differ from the reference";
+      continue;
+    }
+    if (c.mode == CompareMode::paired) {
+      pc.test = "paired McNemar";
+      pc.overlap = std::min(p.frames, r.frames);
+      auto within = [&](const std::vector<std::uint64_t>& v) {
+        std::vector<std::uint64_t> out;
+        for (auto f : v)
+          if (f < pc.overlap) out.push_back(f);
+        return out;
+      };
+      const auto a = within(p.failed_frames), b = within(r.failed_frames);
+      std::vector<std::uint64_t> only_a, only_b;
+      std::set_difference(a.begin(), a.end(), b.begin(), b.end(), std::back_inserter(only_a));
+      std::set_difference(b.begin(), b.end(), a.begin(), a.end(), std::back_inserter(only_b));
+      pc.only_current = only_a.size();
+      pc.only_reference = only_b.size();
+      pc.p_fer = binomial_half_upper_p(pc.only_current, pc.only_current + pc.only_reference);
+    } else {
+      pc.test = "Fisher exact";
+      pc.p_fer = fisher_greater_p(p.frame_errors, p.frames, r.frame_errors, r.frames);
+    }
+    pc.regression = pc.p_fer < c.level || pc.p_ber < c.level;
+    pc.note = pc.regression ? (pc.p_fer < c.level ? "FER worse" : "BER worse")
+                            : "no evidence of a regression";
+  }
+  if (o.tolerance) {
+    const bool higher_better = cur.config.channel.kind == ChannelKind::awgn;
+    c.current_crossing = fer_crossing(cur.points, o.at_fer, higher_better);
+    c.reference_crossing = fer_crossing(ref.points, o.at_fer, higher_better);
+    if (!c.current_crossing || !c.reference_crossing) {
+      throw Error(fmt::format(
+          "cannot apply the tolerance: the {} curve does not cross FER {:g} between its points",
+          c.current_crossing ? "reference" : "current", o.at_fer));
+    }
+    c.shift = higher_better ? *c.current_crossing - *c.reference_crossing
+                            : *c.reference_crossing - *c.current_crossing;
+    c.regression = *c.shift > *o.tolerance;
+    c.reasons.push_back(fmt::format(
+        "at FER {:g} the current curve is {:+.4f} behind the reference (tolerance {:g})", o.at_fer,
+        *c.shift, *o.tolerance));
+  } else {
+    for (const auto& pc : c.points) {
+      if (pc.regression) {
+        c.regression = true;
+        c.reasons.push_back(fmt::format("point {:g}: {}", pc.parameter, pc.note));
+      }
+    }
+  }
+  return c;
+}
+
+std::string comparison_text(const Comparison& c, const ChannelSpec& channel,
+                            const CompareOptions& o) {
+  std::string out;
+  for (const auto& w : c.warnings) out += "warning: " + w + "\n";
+  out += fmt::format(
+      "test: {} ({}), one-sided, level {:.3g} per test ({:g}% confidence, Bonferroni over {} "
+      "tests)\n",
+      compare_mode_name(c.mode),
+      c.mode == CompareMode::exact
+          ? "counts must match"
+          : (c.mode == CompareMode::paired ? "McNemar on discordant frames"
+                                           : "Fisher exact on FER, clustered z on BER"),
+      c.level, o.confidence * 100, 2 * c.points.size());
+  out += fmt::format("{:>9}  {:>31}  {:>31}  {:>16}  {:>9}  {:>9}  {}\n",
+                     parameter_heading(channel), "current FER [interval]",
+                     "reference FER [interval]", "discordant c/r", "p(FER)", "p(BER)", "verdict");
+  for (const auto& pc : c.points) {
+    const PointStats a = point_stats(pc.current, o.confidence),
+                     b = point_stats(pc.reference, o.confidence);
+    const std::string discordant =
+        pc.test == "paired McNemar"
+            ? fmt::format("{}/{} of {}", pc.only_current, pc.only_reference, pc.overlap)
+            : "-";
+    out += fmt::format(
+        "{:>9.4g}  {:9.3e} [{:9.3e},{:9.3e}]  {:9.3e} [{:9.3e},{:9.3e}]  {:>16}  {:>9.3g}  "
+        "{:>9.3g}  {}\n",
+        pc.parameter, pc.current.fer(), a.fer.low, a.fer.high, pc.reference.fer(), b.fer.low,
+        b.fer.high, discordant, pc.p_fer, pc.p_ber,
+        pc.regression ? "REGRESSION: " + pc.note : pc.note);
+  }
+  for (double p : c.only_current) out += fmt::format("{:>9.4g}  only in the current run\n", p);
+  for (double p : c.only_reference) out += fmt::format("{:>9.4g}  only in the reference\n", p);
+  for (const auto& r : c.reasons) out += r + "\n";
+  out += c.regression ? "result: REGRESSION\n" : "result: no regression\n";
+  return out;
+}
+
+std::string comparison_json(const Comparison& c, const CompareOptions& o) {
+  nlohmann::json j;
+  j["mode"] = compare_mode_name(c.mode);
+  j["confidence"] = o.confidence;
+  j["level_per_test"] = c.level;
+  j["regression"] = c.regression;
+  j["warnings"] = c.warnings;
+  j["reasons"] = c.reasons;
+  j["only_current"] = c.only_current;
+  j["only_reference"] = c.only_reference;
+  j["points"] = nlohmann::json::array();
+  for (const auto& pc : c.points) {
+    j["points"].push_back({{"parameter", pc.parameter},
+                           {"test", pc.test},
+                           {"current_fer", pc.current.fer()},
+                           {"reference_fer", pc.reference.fer()},
+                           {"current_ber", pc.current.ber()},
+                           {"reference_ber", pc.reference.ber()},
+                           {"p_fer", pc.p_fer},
+                           {"p_ber", pc.p_ber},
+                           {"only_current", pc.only_current},
+                           {"only_reference", pc.only_reference},
+                           {"overlap", pc.overlap},
+                           {"regression", pc.regression},
+                           {"note", pc.note}});
+  }
+  if (c.shift) {
+    j["tolerance"] = {{"at_fer", o.at_fer},
+                      {"allowed", *o.tolerance},
+                      {"shift", *c.shift},
+                      {"current_crossing", *c.current_crossing},
+                      {"reference_crossing", *c.reference_crossing}};
+  }
+  return j.dump(1) + "\n";
+}
+
+}  // namespace tannery
