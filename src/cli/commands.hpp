@@ -72,6 +72,7 @@ void add_plot(CLI::App& app);
 void add_decode(CLI::App& app);
 void add_encode(CLI::App& app);
 void add_compare(CLI::App& app);
+void add_threshold(CLI::App& app);
 
 // Set by SIGINT/SIGTERM once install_interrupt_handler() ran; a second signal kills at once.
 extern std::atomic<bool> g_interrupted;

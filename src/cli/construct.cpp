@@ -1,5 +1,6 @@
 // tannery construct KIND -o FILE: build a parity-check matrix.
 #include <fmt/format.h>
+#include <sstream>
 
 #include "commands.hpp"
 #include "tannery/code/analysis.hpp"
@@ -22,9 +23,38 @@ struct ConstructOptions {
   double rate = 0.5;
   std::string base;
   std::size_t lifting = 0;
+  std::string variable_degrees;
 };
 
-Code build(const ConstructOptions& o) {
+// Node fractions "2:0.5,3:0.3,8:0.2" -> one degree per variable, lowest degrees first, counts
+// rounded so that they add up to n.
+std::vector<std::size_t> degree_sequence(const std::string& text, std::size_t n) {
+  std::vector<std::pair<std::size_t, double>> parts;
+  std::stringstream items(text);
+  double total = 0;
+  for (std::string item; std::getline(items, item, ',');) {
+    const auto colon = item.find(':');
+    try {
+      if (colon == std::string::npos) throw std::invalid_argument("");
+      parts.emplace_back(std::stoul(item.substr(0, colon)), std::stod(item.substr(colon + 1)));
+    } catch (const std::exception&) {
+      throw Error(fmt::format("--variable-degrees: '{}' is not DEGREE:FRACTION", item));
+    }
+    total += parts.back().second;
+  }
+  if (parts.empty() || std::abs(total - 1) > 1e-6)
+    throw Error("--variable-degrees fractions must sum to 1");
+  std::vector<std::size_t> degrees;
+  double cumulative = 0;
+  for (auto [d, f] : parts) {
+    cumulative += f;
+    const auto until = static_cast<std::size_t>(std::llround(cumulative * static_cast<double>(n)));
+    while (degrees.size() < until) degrees.push_back(d);
+  }
+  return degrees;
+}
+
+Code build(const ConstructOptions& o, std::string& note) {
   auto need_length = [&] {
     if (o.length == 0) throw Error(fmt::format("construct {} needs --length", o.kind));
     return o.length;
@@ -41,6 +71,15 @@ Code build(const ConstructOptions& o) {
       }
     }
     return construct_regular(need_length(), o.variable_degree, dc, o.seed);
+  }
+  if (o.kind == "peg") {
+    const std::size_t n = need_length();
+    if (!(o.rate > 0 && o.rate < 1)) throw Error("--rate must be in (0, 1)");
+    const auto m = static_cast<std::size_t>(std::llround(static_cast<double>(n) * (1 - o.rate)));
+    const std::vector<std::size_t> degrees = o.variable_degrees.empty()
+                                                 ? std::vector<std::size_t>(n, o.variable_degree)
+                                                 : degree_sequence(o.variable_degrees, n);
+    return construct_peg(degrees, m, o.seed);
   }
   if (o.kind == "hamming") {
     const std::size_t n = need_length();
@@ -60,8 +99,10 @@ Code build(const ConstructOptions& o) {
   for (std::size_t c = 0; c < pattern.m(); ++c) {
     for (std::uint32_t v : pattern.check_variables(c)) cells[c * pattern.n() + v] = 1;
   }
-  const QuasiCyclic base = lift_base_graph(pattern.m(), pattern.n(), cells, o.lifting, o.seed);
-  return Code::from_quasi_cyclic(base);
+  const Lifting lift = lift_base_graph(pattern.m(), pattern.n(), cells, o.lifting, o.seed);
+  note = fmt::format(" (the shifts avoid every block {}; girth >= {} claimed)",
+                     lift.girth_at_least == 8 ? "4- and 6-cycle" : "4-cycle", lift.girth_at_least);
+  return Code::from_quasi_cyclic(lift.base);
 }
 
 }  // namespace
@@ -75,13 +116,15 @@ void add_construct(CLI::App& app) {
       "  tannery construct regular --length 2016 --variable-degree 3 --check-degree 6 --seed 7 -o "
       "my.tanner\n"
       "  tannery construct lift --base pattern.dense --lifting 54 -o my.qc\n"
-      "  tannery construct hamming --length 15 -o h15.tanner");
+      "  tannery construct hamming --length 15 -o h15.tanner\n"
+      "  tannery construct peg --length 1008 --rate 0.5 --variable-degrees 2:0.5,3:0.3,8:0.2 "
+      "--seed 3 -o peg.alist");
   sub->add_option("KIND", o->kind,
                   "regular: random (dv,dc)-regular code without 4-cycles; lift: quasi-cyclic "
                   "lifting of a 0/1 "
                   "base graph; hamming, repetition, parity: classic codes")
       ->required()
-      ->check(CLI::IsMember({"regular", "lift", "hamming", "repetition", "parity"}));
+      ->check(CLI::IsMember({"peg", "regular", "lift", "hamming", "repetition", "parity"}));
   sub->add_option("-o,--output", o->output, "output file ('-' = stdout)")->required();
   sub->add_option("--to", o->to, "output format (default: from the extension)")
       ->check(CLI::IsMember({"tannery", "alist", "mtx", "qc", "dense"}));
@@ -89,6 +132,9 @@ void add_construct(CLI::App& app) {
   sub->add_option("--length", o->length, "code length n (bits)");
   sub->add_option("--variable-degree", o->variable_degree, "variable-node degree dv (regular)")
       ->capture_default_str();
+  sub->add_option("--variable-degrees", o->variable_degrees,
+                  "peg: irregular variable degrees as node fractions DEGREE:FRACTION,... (e.g. "
+                  "2:0.5,3:0.3,8:0.2)");
   sub->add_option("--check-degree", o->check_degree,
                   "check-node degree dc (regular; default from --rate)");
   sub->add_option("--rate", o->rate,
@@ -97,15 +143,16 @@ void add_construct(CLI::App& app) {
   sub->add_option("--base", o->base, "0/1 base graph (dense format) to lift");
   sub->add_option("--lifting", o->lifting, "lifting size Z (circulant size) for lift");
   sub->callback([o] {
-    const Code code = build(*o);
+    std::string note;
+    const Code code = build(*o, note);
     MatrixFormat format = output_format(o->to, o->output);
     if (o->kind == "lift" && o->to.empty() && o->output == "-") format = MatrixFormat::qc;
     write_code_file(code, format, o->output);
     if (o->output != "-") {
       const CycleCensus cycles = cycle_census(code);
-      fmt::print(stderr, "wrote {} ({} format): n = {}, m = {}, edges = {}, girth = {}\n",
+      fmt::print(stderr, "wrote {} ({} format): n = {}, m = {}, edges = {}, girth = {}{}\n",
                  o->output, format_name(format), code.n(), code.m(), code.edges(),
-                 cycles.girth ? fmt::format("{}", *cycles.girth) : std::string("none"));
+                 cycles.girth ? fmt::format("{}", *cycles.girth) : std::string("none"), note);
     }
   });
 }

@@ -2,9 +2,11 @@
 #include <fmt/format.h>
 #include <nlohmann/json.hpp>
 
+#include <cstdlib>
 #include "commands.hpp"
 #include "tannery/code/analysis.hpp"
 #include "tannery/code/gf2.hpp"
+#include "tannery/error.hpp"
 #include "tannery/io/code_lookup.hpp"
 #include "tannery/io/matrix_io.hpp"
 
@@ -16,7 +18,29 @@ struct InspectOptions {
   CodeInput input;
   bool json = false;
   std::size_t max_dimension = 24;
+  std::string dot;
+  bool no_cycle = false;
 };
+
+// Writes the Tanner graph for Graphviz; a .svg name is rendered with `dot` when installed.
+void write_dot(const InspectOptions& o, const Code& code) {
+  if (code.n() + code.m() > 2000) {
+    throw Error(fmt::format("--dot draws codes of at most 2000 nodes; this one has {}",
+                            code.n() + code.m()));
+  }
+  const std::string text =
+      tanner_dot(code, o.no_cycle ? std::vector<CycleNode>{} : shortest_cycle(code));
+  if (!o.dot.ends_with(".svg")) return write_file_atomically(o.dot, text);
+  const std::string source = o.dot + ".dot";
+  write_file_atomically(source, text);
+  if (std::system("command -v dot > /dev/null 2>&1") != 0) {
+    throw Error(fmt::format(
+        "Graphviz 'dot' is not installed (apt-get install graphviz); wrote {} instead", source));
+  }
+  const std::string command = fmt::format("dot -Tsvg '{}' -o '{}'", source, o.dot);
+  if (std::system(command.c_str()) != 0) throw Error(fmt::format("Graphviz failed on {}", source));
+  std::remove(source.c_str());
+}
 
 struct Report {
   Code code;
@@ -162,10 +186,12 @@ void run(const InspectOptions& o) {
   r.redundancy = row_redundancy(r.code);
   r.enumerator = weight_enumerator(r.code, r.encoder, o.max_dimension);
   if (r.enumerator) r.distance = minimum_distance(*r.enumerator);
-  if (o.json)
+  if (!o.dot.empty()) write_dot(o, r.code);
+  if (o.json) {
     print_json(o, r);
-  else
+  } else {
     print_text(o, r);
+  }
 }
 
 }  // namespace
@@ -174,7 +200,9 @@ void add_inspect(CLI::App& app) {
   auto o = std::make_shared<InspectOptions>();
   auto* sub = app.add_subcommand(
       "inspect", "Structure of a code: rank, rate, degrees, girth, minimum distance");
-  sub->footer("Example:\n  tannery inspect hamming-7-4\n  tannery inspect my-code.alist --json");
+  sub->footer(
+      "Examples:\n  tannery inspect hamming-7-4\n  tannery inspect my-code.alist --json\n"
+      "  tannery inspect hamming-7-4 --dot hamming.svg");
   o->input.add_to(*sub, true, kDefaultCode);
   sub->add_flag("--json", o->json, "print one JSON object instead of text");
   sub->add_option(
@@ -182,6 +210,10 @@ void add_inspect(CLI::App& app) {
          "enumerate all 2^k codewords for the weight enumerator only when k is at most this (bits)")
       ->capture_default_str()
       ->check(CLI::Range(0, 30));
+  sub->add_option("--dot", o->dot,
+                  "write the Tanner graph for Graphviz (circles: variables, squares: checks; a "
+                  "shortest cycle in red); a name ending in .svg is rendered with Graphviz");
+  sub->add_flag("--no-cycle", o->no_cycle, "with --dot: do not highlight a shortest cycle");
   sub->callback([o] { run(*o); });
 }
 

@@ -15,6 +15,8 @@ struct PlotCommand {
   std::string output;
   std::string metric = "both";
   bool no_references = false;
+  bool normal_approximation = false;
+  std::optional<double> threshold;
   std::string title;
 };
 
@@ -37,13 +39,17 @@ void add_plot(CLI::App& app) {
   sub->add_flag("--no-references", o->no_references,
                 "leave out the uncoded BPSK curve and the capacity limit");
   sub->add_option("--title", o->title, "plot title");
+  sub->add_flag("--normal-approximation", o->normal_approximation,
+                "overlay the finite-length limit (Polyanskiy-Poor-Verdu normal approximation) for "
+                "the first run's n, k");
+  sub->add_option("--threshold", o->threshold,
+                  "draw a vertical line at this sweep value, e.g. a threshold from tannery "
+                  "threshold (dB for AWGN)");
   sub->callback([o] {
     std::vector<PlotRun> runs;
     for (std::size_t i = 0; i < o->inputs.size(); ++i) {
       RunRecord r = parse_results_json(read_text_file(o->inputs[i]), o->inputs[i]);
-      std::string label = i < o->labels.size()
-                              ? o->labels[i]
-                              : fmt::format("{} ({})", describe(r.config.decoder), r.code.source);
+      std::string label = i < o->labels.size() ? o->labels[i] : run_label(r);
       runs.push_back(PlotRun{std::move(label), std::move(r)});
     }
     PlotOptions options;
@@ -51,6 +57,8 @@ void add_plot(CLI::App& app) {
     options.ber = o->metric != "fer";
     options.references = !o->no_references;
     options.title = o->title;
+    options.normal_approximation = o->normal_approximation;
+    options.threshold = o->threshold;
     write_file_atomically(o->output, plot_svg(runs, options));
   });
 }

@@ -153,8 +153,7 @@ void write_outputs(const SimulateOptions& o, const RunRecord& record) {
   if (!o.output.empty()) write_file_atomically(o.output, results_json(record));
   if (!o.csv.empty()) write_file_atomically(o.csv, results_csv(record));
   if (!o.plot.empty() && !record.points.empty()) {
-    write_file_atomically(
-        o.plot, plot_svg({PlotRun{describe(record.config.decoder), record}}, PlotOptions{}));
+    write_file_atomically(o.plot, plot_svg({PlotRun{run_label(record), record}}, PlotOptions{}));
   }
 }
 

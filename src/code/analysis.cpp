@@ -1,8 +1,10 @@
 #include "tannery/code/analysis.hpp"
 
+#include <fmt/format.h>
 #include <algorithm>
 #include <bit>
 #include <limits>
+#include <set>
 
 #include "tannery/error.hpp"
 
@@ -127,6 +129,82 @@ CycleCensus cycle_census(const Code& code) {
   for (std::uint32_t v = 0; v < code.n(); ++v) through += search.cycles_through(v, girth);
   census.count = through / (girth / 2);  // each cycle passes girth/2 variable nodes
   return census;
+}
+
+std::vector<CycleNode> shortest_cycle(const Code& code) {
+  const CycleCensus census = cycle_census(code);
+  if (!census.girth) return {};
+  const std::size_t n = code.n(), nodes = n + code.m();
+  auto neighbours = [&](std::uint32_t x) {
+    std::vector<std::uint32_t> out;
+    if (x < n) {
+      for (std::uint32_t e : code.variable_edges(x))
+        out.push_back(static_cast<std::uint32_t>(n + code.edge_check(e)));
+    } else {
+      for (std::uint32_t v : code.check_variables(x - n)) out.push_back(v);
+    }
+    return out;
+  };
+  std::vector<std::uint32_t> parent(nodes), depth(nodes);
+  for (std::uint32_t root = 0; root < n; ++root) {
+    std::fill(depth.begin(), depth.end(), UINT32_MAX);
+    std::vector<std::uint32_t> queue{root};
+    depth[root] = 0;
+    parent[root] = root;
+    for (std::size_t head = 0; head < queue.size(); ++head) {
+      const std::uint32_t x = queue[head];
+      for (std::uint32_t y : neighbours(x)) {
+        if (y == parent[x]) continue;
+        if (depth[y] == UINT32_MAX) {
+          depth[y] = depth[x] + 1;
+          parent[y] = x;
+          queue.push_back(y);
+        } else if (depth[x] + depth[y] + 1 == *census.girth) {
+          // Two paths from the root meet: walk both back.
+          std::vector<std::uint32_t> a, b;
+          for (std::uint32_t u = x; u != root; u = parent[u]) a.push_back(u);
+          for (std::uint32_t u = y; u != root; u = parent[u]) b.push_back(u);
+          std::vector<CycleNode> cycle{CycleNode{false, root}};
+          for (auto it = a.rbegin(); it != a.rend(); ++it)
+            cycle.push_back(
+                CycleNode{*it >= n, *it >= n ? *it - static_cast<std::uint32_t>(n) : *it});
+          for (std::uint32_t u : b)
+            cycle.push_back(CycleNode{u >= n, u >= n ? u - static_cast<std::uint32_t>(n) : u});
+          return cycle;
+        }
+      }
+    }
+  }
+  return {};
+}
+
+std::string tanner_dot(const Code& code, const std::vector<CycleNode>& highlight) {
+  auto name = [](bool check, std::uint32_t i) { return fmt::format("{}{}", check ? 'c' : 'v', i); };
+  std::vector<bool> hot_var(code.n(), false), hot_check(code.m(), false);
+  std::set<std::pair<std::uint32_t, std::uint32_t>> hot_edges;  // (check, variable)
+  for (std::size_t i = 0; i < highlight.size(); ++i) {
+    const CycleNode a = highlight[i], b = highlight[(i + 1) % highlight.size()];
+    (a.is_check ? hot_check : hot_var)[a.index] = true;
+    if (a.is_check != b.is_check)
+      hot_edges.emplace(a.is_check ? a.index : b.index, a.is_check ? b.index : a.index);
+  }
+  std::string out = "graph tanner {\n  layout=neato; overlap=false; splines=true;\n";
+  out += "  node [fontname=\"sans-serif\", fontsize=10];\n";
+  for (std::uint32_t v = 0; v < code.n(); ++v) {
+    out += fmt::format("  {} [shape=circle{}];\n", name(false, v),
+                       hot_var[v] ? ", color=\"#c0392b\", penwidth=2" : "");
+  }
+  for (std::uint32_t c = 0; c < code.m(); ++c) {
+    out += fmt::format("  {} [shape=square, style=filled, fillcolor=\"#dddddd\"{}];\n",
+                       name(true, c), hot_check[c] ? ", color=\"#c0392b\", penwidth=2" : "");
+  }
+  for (std::uint32_t c = 0; c < code.m(); ++c) {
+    for (std::uint32_t v : code.check_variables(c)) {
+      out += fmt::format("  {} -- {}{};\n", name(true, c), name(false, v),
+                         hot_edges.count({c, v}) ? " [color=\"#c0392b\", penwidth=2.5]" : "");
+    }
+  }
+  return out + "}\n";
 }
 
 RowRedundancy row_redundancy(const Code& code) {

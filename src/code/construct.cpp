@@ -107,9 +107,9 @@ Code construct_single_parity(std::size_t n) {
   return Code::from_checks(n, {all});
 }
 
-QuasiCyclic lift_base_graph(std::size_t rows, std::size_t cols,
-                            const std::vector<std::uint8_t>& pattern, std::size_t z,
-                            std::uint64_t seed) {
+Lifting lift_base_graph(std::size_t rows, std::size_t cols,
+                        const std::vector<std::uint8_t>& pattern, std::size_t z,
+                        std::uint64_t seed) {
   if (pattern.size() != rows * cols) throw Error("base pattern size does not match its dimensions");
   if (z < 2) throw Error("lifting size must be at least 2");
   QuasiCyclic base{rows, cols, z, std::vector<std::int64_t>(rows * cols, -1)};
@@ -145,6 +145,7 @@ QuasiCyclic lift_base_graph(std::size_t rows, std::size_t cols,
     }
     return count;
   };
+  std::size_t six_cycles = 0;
   for (std::size_t j = 0; j < cols; ++j) {
     for (std::size_t i = 0; i < rows; ++i) {
       if (!pattern[i * cols + j]) continue;
@@ -163,9 +164,83 @@ QuasiCyclic lift_base_graph(std::size_t rows, std::size_t cols,
                         i + 1, j + 1, z));
       }
       base.shifts[i * cols + j] = best;
+      six_cycles += best_count;
     }
   }
-  return base;
+  return Lifting{base, six_cycles == 0 ? std::size_t{8} : std::size_t{6}};
+}
+
+Code construct_peg(const std::vector<std::size_t>& degrees, std::size_t m, std::uint64_t seed) {
+  const std::size_t n = degrees.size();
+  if (m < 2 || n < 2) throw Error("PEG needs at least 2 variables and 2 checks");
+  for (std::size_t d : degrees) {
+    if (d < 1 || d > m)
+      throw Error(fmt::format("variable degree {} is impossible with {} checks", d, m));
+  }
+  std::vector<std::size_t> order(n);
+  for (std::size_t v = 0; v < n; ++v) order[v] = v;
+  std::stable_sort(order.begin(), order.end(),
+                   [&](std::size_t a, std::size_t b) { return degrees[a] < degrees[b]; });
+  SplitMix rng(seed);
+  std::vector<std::vector<std::uint32_t>> var_checks(n), check_vars(m);
+  std::vector<std::uint64_t> seen_check(m, 0), seen_var(n, 0);
+  std::uint64_t stamp = 0;
+  std::vector<std::uint32_t> frontier, next, candidates;
+  // Lowest current degree among the checks allowed by `allowed`, ties broken at random.
+  auto pick = [&](auto allowed) {
+    candidates.clear();
+    std::size_t best = SIZE_MAX;
+    for (std::uint32_t c = 0; c < m; ++c) {
+      if (!allowed(c)) continue;
+      if (check_vars[c].size() < best) best = check_vars[c].size(), candidates.clear();
+      if (check_vars[c].size() == best) candidates.push_back(c);
+    }
+    return candidates.empty() ? UINT32_MAX : candidates[rng.below(candidates.size())];
+  };
+  for (std::size_t v : order) {
+    for (std::size_t k = 0; k < degrees[v]; ++k) {
+      auto not_mine = [&](std::uint32_t c) {
+        return std::find(var_checks[v].begin(), var_checks[v].end(), c) == var_checks[v].end();
+      };
+      std::uint32_t chosen;
+      if (k == 0) {
+        chosen = pick(not_mine);
+      } else {
+        // Breadth-first from v; stop when the reached checks stop growing or cover them all.
+        ++stamp;
+        std::size_t reached = 0;
+        frontier.assign(var_checks[v].begin(), var_checks[v].end());
+        for (auto c : frontier) seen_check[c] = stamp, ++reached;
+        seen_var[v] = stamp;
+        for (;;) {
+          next.clear();
+          for (std::uint32_t c : frontier) {
+            for (std::uint32_t u : check_vars[c]) {
+              if (seen_var[u] == stamp) continue;
+              seen_var[u] = stamp;
+              for (std::uint32_t c2 : var_checks[u]) {
+                if (seen_check[c2] == stamp || seen_check[c2] == stamp + 1) continue;
+                seen_check[c2] = stamp + 1;  // reached at this new level
+                next.push_back(c2);
+              }
+            }
+          }
+          if (next.empty() || reached + next.size() == m) break;
+          for (auto c : next) seen_check[c] = stamp;
+          reached += next.size();
+          frontier.swap(next);
+        }
+        // Checks not reached before the last level: unreached ones, or (all covered) the last
+        // level.
+        chosen = pick([&](std::uint32_t c) { return seen_check[c] != stamp && not_mine(c); });
+        if (chosen == UINT32_MAX) chosen = pick(not_mine);  // every check is at distance <= 2
+        ++stamp;                                            // stamp + 1 marks are now stale
+      }
+      var_checks[v].push_back(chosen);
+      check_vars[chosen].push_back(static_cast<std::uint32_t>(v));
+    }
+  }
+  return Code::from_checks(n, check_vars);
 }
 
 }  // namespace tannery

@@ -6,6 +6,7 @@
 
 #include "tannery/error.hpp"
 #include "tannery/theory/capacity.hpp"
+#include "tannery/theory/density_evolution.hpp"
 
 namespace tannery {
 
@@ -69,6 +70,12 @@ std::pair<double, std::string> capacity_limit(const RunRecord& run) {
 
 }  // namespace
 
+std::string run_label(const RunRecord& run) {
+  const DecoderSettings& d = run.config.decoder;
+  return fmt::format("{}/{}, {}", algorithm_name(d.algorithm), schedule_name(d.schedule),
+                     run.code.source);
+}
+
 std::string plot_svg(const std::vector<PlotRun>& runs, const PlotOptions& options) {
   if (runs.empty()) throw Error("plot: no results to draw");
   double xmin = INFINITY, xmax = -INFINITY, vmin = 1.0;
@@ -91,6 +98,8 @@ std::string plot_svg(const std::vector<PlotRun>& runs, const PlotOptions& option
                                         ? capacity_limit(first)
                                         : std::pair{static_cast<double>(NAN), std::string()};
   if (std::isfinite(limit)) xmin = std::min(xmin, limit), xmax = std::max(xmax, limit);
+  if (options.threshold)
+    xmin = std::min(xmin, *options.threshold), xmax = std::max(xmax, *options.threshold);
   const double span =
       std::max(xmax - xmin, first.config.channel.kind == ChannelKind::awgn ? 1.0 : 0.01);
   Axes ax{xmin - 0.05 * span, xmax + 0.05 * span, std::floor(std::log10(vmin)) - (vmin < 1 ? 0 : 1),
@@ -164,6 +173,35 @@ std::string plot_svg(const std::vector<PlotRun>& runs, const PlotOptions& option
         "<polyline points=\"{}\" fill=\"none\" stroke=\"#777\" stroke-dasharray=\"6 4\"/>\n",
         points);
     legend.emplace_back("stroke=\"#777\" stroke-dasharray=\"6 4\"", "uncoded BPSK BER");
+  }
+  if (options.normal_approximation && first.code.n > 0) {
+    std::string points;
+    for (int i = 0; i <= 200; ++i) {
+      const double x = ax.x0 + (ax.x1 - ax.x0) * i / 200;
+      ChannelSpec spec = first.config.channel;
+      double value = x;
+      if (spec.kind == ChannelKind::awgn) value = awgn_sigma(x, spec.measure, first.rate_for_snr);
+      if (spec.kind != ChannelKind::awgn && (x <= 0 || x >= 1)) continue;
+      const double fer = normal_approximation_fer(spec.kind, value, first.code.n, first.code.k);
+      if (fer <= 0 || std::log10(fer) < ax.y0) continue;
+      points += fmt::format("{:.1f},{:.1f} ", ax.px(x), ax.py(fer));
+    }
+    svg += fmt::format(
+        "<polyline points=\"{}\" fill=\"none\" stroke=\"#444\" stroke-dasharray=\"1 3\" "
+        "stroke-width=\"1.5\"/>\n",
+        points);
+    legend.emplace_back(
+        "stroke=\"#444\" stroke-dasharray=\"1 3\"",
+        fmt::format("normal approximation FER, n = {}, k = {}", first.code.n, first.code.k));
+  }
+  if (options.threshold) {
+    const double px = ax.px(*options.threshold);
+    svg += fmt::format(
+        "<line x1=\"{0:.1f}\" y1=\"{1}\" x2=\"{0:.1f}\" y2=\"{2}\" stroke=\"#b03a2e\" "
+        "stroke-dasharray=\"8 3\"/>\n",
+        px, kTop, kHeight - kBottom);
+    legend.emplace_back("stroke=\"#b03a2e\" stroke-dasharray=\"8 3\"",
+                        fmt::format("threshold ({:.4g})", *options.threshold));
   }
   if (std::isfinite(limit)) {
     const double px = ax.px(limit);

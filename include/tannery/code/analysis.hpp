@@ -6,6 +6,7 @@
 #include <cstdint>
 #include <map>
 #include <optional>
+#include <string>
 #include <vector>
 
 #include "tannery/code/code.hpp"
@@ -30,6 +31,17 @@ struct CycleCensus {
 // shortest cycle found so far; cycles of that length are counted by shortest-path counts.
 // Roughly O(n * neighbourhood of radius girth/2).
 CycleCensus cycle_census(const Code& code);
+
+// Nodes around one shortest cycle, in order: variables as v (is_check false), checks as c.
+struct CycleNode {
+  bool is_check = false;
+  std::uint32_t index = 0;
+};
+std::vector<CycleNode> shortest_cycle(const Code& code);
+
+// Graphviz description of the Tanner graph: variables as circles, checks as squares (as factor
+// graphs are drawn); the nodes and edges of highlight drawn in colour.
+std::string tanner_dot(const Code& code, const std::vector<CycleNode>& highlight);
 
 struct RowRedundancy {
   std::vector<std::size_t> empty;                             // checks with no variable

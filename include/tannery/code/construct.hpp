@@ -25,9 +25,19 @@ Code construct_single_parity(std::size_t n);
 // size z, choosing each circulant shift to avoid 4-cycles (required) and then 6-cycles (attempted),
 // by the block conditions s1 - s2 + s3 - s4 (+ s5 - s6) = 0 mod Z. Throws Error when no shift
 // avoids 4-cycles.
-QuasiCyclic lift_base_graph(std::size_t rows, std::size_t cols,
-                            const std::vector<std::uint8_t>& pattern, std::size_t z,
-                            std::uint64_t seed);
+struct Lifting {
+  QuasiCyclic base;
+  std::size_t girth_at_least = 6;  // 8 when no block 6-cycle condition holds either
+};
+Lifting lift_base_graph(std::size_t rows, std::size_t cols,
+                        const std::vector<std::uint8_t>& pattern, std::size_t z,
+                        std::uint64_t seed);
+
+// Progressive edge growth (Hu, Eleftheriou, Arnold, IEEE Trans. IT 2005): variables in order of
+// increasing degree; each new edge goes to a check as far as possible from the variable in the
+// graph built so far (outside its breadth-first neighbourhood when one is left), the check of
+// lowest current degree among those, ties broken by the seed. degrees: one per variable.
+Code construct_peg(const std::vector<std::size_t>& degrees, std::size_t m, std::uint64_t seed);
 
 // Small deterministic generator for constructions (splitmix64).
 class SplitMix {

@@ -3,6 +3,7 @@
 // uncoded BPSK curve and the capacity limit for the code's rate.
 #pragma once
 
+#include <optional>
 #include <string>
 #include <vector>
 
@@ -14,6 +15,8 @@ struct PlotOptions {
   bool fer = true;
   bool ber = true;
   bool references = true;  // uncoded BPSK (AWGN) and the Shannon limit of the first run's rate
+  bool normal_approximation = false;  // the finite-length limit for the first run's n and k
+  std::optional<double> threshold;    // a vertical line at this sweep value (e.g. a DE threshold)
   std::string title;
 };
 
@@ -21,6 +24,9 @@ struct PlotRun {
   std::string label;
   RunRecord run;
 };
+
+// Short legend label of a run: "sum-product/flooding, regular-3-6-n2016".
+std::string run_label(const RunRecord& run);
 
 std::string plot_svg(const std::vector<PlotRun>& runs, const PlotOptions& options);
 

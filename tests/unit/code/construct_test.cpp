@@ -19,9 +19,9 @@ TEST_CASE("regular construction: exact degrees, no 4-cycles, deterministic", "[c
 TEST_CASE("lifting reaches girth 6 at least, checked by the independent girth search",
           "[construct]") {
   std::vector<std::uint8_t> all_ones(3 * 6, 1);
-  const QuasiCyclic base = lift_base_graph(3, 6, all_ones, 31, 4);
-  const auto census = cycle_census(Code::from_quasi_cyclic(base));
-  CHECK(*census.girth >= 6);
+  const Lifting lift = lift_base_graph(3, 6, all_ones, 31, 4);
+  const auto census = cycle_census(Code::from_quasi_cyclic(lift.base));
+  CHECK(*census.girth >= lift.girth_at_least);
   // Z = 1 is no lifting at all: every block rectangle is a 4-cycle, so it is refused.
   CHECK_THROWS(lift_base_graph(2, 2, std::vector<std::uint8_t>(4, 1), 1, 1));
 }
@@ -36,4 +36,37 @@ TEST_CASE("shipped codes have the structure codes/README.md claims", "[construct
   CHECK(qc.quasi_cyclic()->lifting == 54);
   CHECK(*cycle_census(qc).girth >= 6);
   CHECK(Encoder(qc).k() * 2 == qc.n());
+}
+
+TEST_CASE("lifting claims girth 8 only when the search confirms it", "[construct]") {
+  // The claim comes from the block-cycle conditions; cycle_census is the independent check.
+  const std::vector<std::uint8_t> all_ones(3 * 6, 1);
+  for (std::size_t z : {7, 13, 31, 61}) {
+    const Lifting lift = lift_base_graph(3, 6, all_ones, z, 9);
+    const auto census = cycle_census(Code::from_quasi_cyclic(lift.base));
+    INFO("Z = " << z << " claimed " << lift.girth_at_least);
+    CHECK(*census.girth >= lift.girth_at_least);
+  }
+  // A (3,6) all-ones base cannot exceed girth 12 (Fossorier 2004); a large Z reaches 8.
+  CHECK(lift_base_graph(3, 6, all_ones, 61, 9).girth_at_least == 8);
+}
+
+TEST_CASE("PEG: exact degrees, large girth, deterministic", "[construct]") {
+  // Hu, Eleftheriou, Arnold 2005 report girth 8 for their regular dv = 3, n = 504, rate-1/2 PEG
+  // graph (value from memory of the paper's table).
+  const Code peg = construct_peg(std::vector<std::size_t>(504, 3), 252, 1);
+  const auto p = degree_profile(peg);
+  CHECK(p.variable == std::map<std::size_t, std::size_t>{{3, 504}});
+  // Check degrees kept as even as possible: within one of the mean 6.
+  CHECK(p.check.begin()->first >= 5);
+  CHECK(p.check.rbegin()->first <= 7);
+  CHECK(*cycle_census(peg).girth >= 8);
+  CHECK(peg == construct_peg(std::vector<std::size_t>(504, 3), 252, 1));
+  // Irregular: degree-2 variables first; every column gets its degree.
+  std::vector<std::size_t> degrees(300, 2);
+  degrees.resize(500, 3);
+  degrees.resize(600, 8);
+  const Code irregular = construct_peg(degrees, 300, 2);
+  for (std::size_t v = 0; v < 600; ++v) REQUIRE(irregular.variable_degree(v) == degrees[v]);
+  CHECK(*cycle_census(irregular).girth >= 6);
 }

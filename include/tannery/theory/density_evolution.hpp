@@ -1,0 +1,57 @@
+// Decoding thresholds of LDPC ensembles by density evolution, and finite-length limits.
+#pragma once
+
+#include <map>
+#include <string>
+#include <string_view>
+
+#include "tannery/channel/channel.hpp"
+#include "tannery/code/analysis.hpp"
+#include "tannery/decode/decoder.hpp"
+
+namespace tannery {
+
+// Edge-perspective degree distributions: lambda[d] (variables), rho[d] (checks), each summing to 1.
+struct Ensemble {
+  std::map<std::size_t, double> lambda, rho;
+
+  double design_rate() const;  // 1 - (sum rho_d / d) / (sum lambda_d / d)
+  static Ensemble regular(std::size_t dv, std::size_t dc);
+  // From node-perspective fractions (degree -> fraction of nodes).
+  static Ensemble from_node_fractions(const std::map<std::size_t, double>& variables,
+                                      const std::map<std::size_t, double>& checks);
+  static Ensemble from_code(const DegreeProfile& profile);
+  void validate() const;  // throws Error unless both sum to 1 and every degree is >= 1
+};
+
+enum class ThresholdMethod { exact, discretized, gaussian };
+
+struct ThresholdResult {
+  double threshold = 0;  // sigma (AWGN), p (BSC) or epsilon (BEC)
+  double ebn0_db = 0;    // AWGN: Eb/N0 at the threshold for the design rate
+  double rate = 0;       // design rate
+  double limit = 0;      // capacity limit at that rate, in the same units as threshold
+  double gap_db = 0;     // AWGN: Eb/N0 gap to the Shannon limit; BSC/BEC: 0
+  std::string method;    // "exact (BEC)", "discretized DE, grid ..." or "Gaussian approximation"
+  double accuracy = 0;   // stated accuracy of the threshold value
+};
+
+// BEC: exact recursion x <- eps lambda(1 - rho(1 - x)), bisection on eps.
+double bec_threshold(const Ensemble& e);
+// Discretized density evolution on a quantised LLR grid (Richardson & Urbanke 2001; Chung et al.
+// 2001): variable nodes by FFT convolution; sum-product check nodes in the (sign, -log tanh|x/2|)
+// domain where they become convolutions; min-sum checks through the distribution of the minimum.
+// algorithm: sum-product, min-sum, normalized-min-sum (alpha), offset-min-sum (beta).
+ThresholdResult awgn_threshold(const Ensemble& e, const DecoderSettings& decoder,
+                               ThresholdMethod method);
+ThresholdResult bsc_threshold(const Ensemble& e, const DecoderSettings& decoder);
+
+// Normal approximation of the finite-length limit (Polyanskiy, Poor, Verdu 2010):
+// log2 M* ~ n C - sqrt(n V) Qinv(eps) + log2(n) / 2. Returns the smallest FER achievable by a
+// code of length n with k information bits at the channel parameter.
+double normal_approximation_fer(ChannelKind kind, double parameter_value, std::size_t n,
+                                std::size_t k);
+// Capacity and dispersion (bits, bits^2) of BPSK-AWGN at sigma, the BSC at p, the BEC at epsilon.
+std::pair<double, double> capacity_dispersion(ChannelKind kind, double value);
+
+}  // namespace tannery

@@ -1,0 +1,469 @@
+#include "tannery/theory/density_evolution.hpp"
+
+#include <fmt/format.h>
+#include <algorithm>
+#include <cmath>
+#include <complex>
+#include <unsupported/Eigen/FFT>
+#include <vector>
+
+#include "tannery/channel/channel.hpp"
+#include "tannery/error.hpp"
+#include "tannery/sim/stats.hpp"
+#include "tannery/theory/capacity.hpp"
+
+namespace tannery {
+
+// ---- ensembles --------------------------------------------------------------------------------
+
+double Ensemble::design_rate() const {
+  double l = 0, r = 0;
+  for (auto [d, c] : lambda) l += c / static_cast<double>(d);
+  for (auto [d, c] : rho) r += c / static_cast<double>(d);
+  return 1 - r / l;
+}
+
+Ensemble Ensemble::regular(std::size_t dv, std::size_t dc) {
+  if (dv < 2 || dc < 2) throw Error("regular ensembles need dv >= 2 and dc >= 2");
+  return Ensemble{{{dv, 1.0}}, {{dc, 1.0}}};
+}
+
+Ensemble Ensemble::from_node_fractions(const std::map<std::size_t, double>& variables,
+                                       const std::map<std::size_t, double>& checks) {
+  auto convert = [](const std::map<std::size_t, double>& nodes) {
+    double edges = 0;
+    for (auto [d, f] : nodes) edges += static_cast<double>(d) * f;
+    std::map<std::size_t, double> out;
+    for (auto [d, f] : nodes) out[d] = static_cast<double>(d) * f / edges;
+    return out;
+  };
+  return Ensemble{convert(variables), convert(checks)};
+}
+
+Ensemble Ensemble::from_code(const DegreeProfile& p) {
+  std::map<std::size_t, double> v, c;
+  for (auto [d, count] : p.variable) {
+    if (d > 0) v[d] = static_cast<double>(count);
+  }
+  for (auto [d, count] : p.check) {
+    if (d > 0) c[d] = static_cast<double>(count);
+  }
+  return from_node_fractions(v, c);
+}
+
+void Ensemble::validate() const {
+  for (const auto* m : {&lambda, &rho}) {
+    double sum = 0;
+    for (auto [d, c] : *m) {
+      if (d < 1 || c < 0)
+        throw Error(fmt::format("degree {} with coefficient {} is not allowed", d, c));
+      sum += c;
+    }
+    if (std::abs(sum - 1) > 1e-6) {
+      throw Error(
+          fmt::format("{} coefficients sum to {}, not 1", m == &lambda ? "lambda" : "rho", sum));
+    }
+  }
+  if (rho.begin()->first < 2) throw Error("check degrees must be at least 2");
+}
+
+// ---- BEC --------------------------------------------------------------------------------------
+
+namespace {
+
+double poly(const std::map<std::size_t, double>& coefficients, double x) {
+  double s = 0;
+  for (auto [d, c] : coefficients) s += c * std::pow(x, static_cast<double>(d - 1));
+  return s;
+}
+
+// Bisection for the largest channel value (worse is larger) at which decodes(value) holds.
+template <class F>
+double bisect(double good, double bad, double tolerance, F decodes) {
+  while (bad - good > tolerance) {
+    const double mid = 0.5 * (good + bad);
+    (decodes(mid) ? good : bad) = mid;
+  }
+  return 0.5 * (good + bad);
+}
+
+}  // namespace
+
+double bec_threshold(const Ensemble& e) {
+  e.validate();
+  return bisect(0.0, 1.0, 1e-7, [&](double eps) {
+    double x = eps;
+    for (int it = 0; it < 100000; ++it) {
+      const double next = eps * poly(e.lambda, 1 - poly(e.rho, 1 - x));
+      if (next < 1e-12) return true;
+      if (x - next < 1e-15) return false;  // stuck at a fixed point
+      x = next;
+    }
+    return false;
+  });
+}
+
+// ---- discretized density evolution ------------------------------------------------------------
+
+namespace {
+
+using Complex = std::complex<double>;
+
+// Densities on the LLR grid x_i = (i - half) * step, i in [0, 2 half]; mass beyond +-limit sits
+// in the end bins (a saturating decoder).
+class Grid {
+ public:
+  Grid(double step, double limit)
+      : step_(step), half_(static_cast<std::size_t>(std::lround(limit / step))) {}
+  std::size_t size() const { return 2 * half_ + 1; }
+  std::size_t half() const { return half_; }
+  double x(std::size_t i) const {
+    return (static_cast<double>(i) - static_cast<double>(half_)) * step_;
+  }
+  double step() const { return step_; }
+  std::size_t nearest(double v) const {
+    const double pos = std::clamp(std::round(v / step_) + static_cast<double>(half_), 0.0,
+                                  static_cast<double>(size() - 1));
+    return static_cast<std::size_t>(pos);
+  }
+  // Adds mass at LLR value v, split linearly between the two nearest points (keeps the mean).
+  void deposit(std::vector<double>& d, double v, double mass) const {
+    const double pos =
+        std::clamp(v / step_ + static_cast<double>(half_), 0.0, static_cast<double>(size() - 1));
+    const auto lo = static_cast<std::size_t>(std::floor(pos));
+    const double frac = pos - static_cast<double>(lo);
+    d[lo] += mass * (1 - frac);
+    if (frac > 0) d[lo + 1] += mass * frac;
+  }
+
+ private:
+  double step_;
+  std::size_t half_;
+};
+
+std::size_t fft_size(std::size_t at_least) {
+  std::size_t n = 1;
+  while (n < at_least) n <<= 1;
+  return n;
+}
+
+class DensityEvolution {
+ public:
+  DensityEvolution(const Ensemble& e, const DecoderSettings& decoder, double step, double limit)
+      : e_(e), decoder_(decoder), grid_(step, limit) {
+    max_dv_ = e.lambda.rbegin()->first;
+    max_dc_ = e.rho.rbegin()->first;
+    if (decoder.algorithm == Algorithm::sum_product) {
+      const std::size_t n = grid_.size();
+      table_.resize(n * n);
+      for (std::size_t i = 0; i < n; ++i) {
+        for (std::size_t j = 0; j < n; ++j) {
+          const double a = grid_.x(i), b = grid_.x(j);
+          const double r = (a < 0) != (b < 0) ? -1.0 : 1.0;
+          const double value = r * std::min(std::abs(a), std::abs(b)) +
+                               std::log1p(std::exp(-std::abs(a + b))) -
+                               std::log1p(std::exp(-std::abs(a - b)));
+          table_[i * n + j] = static_cast<std::uint16_t>(grid_.nearest(value));
+        }
+      }
+    }
+  }
+
+  // Error probability after iterating from the channel density (ties at 0 count one half).
+  bool converges(const std::vector<double>& channel, int max_iterations, double target) {
+    std::vector<double> v = channel;  // variable-to-check density
+    double previous = 1;
+    for (int it = 0; it < max_iterations; ++it) {
+      const std::vector<double> c = check_update(v);
+      v = variable_update(channel, c);
+      const double pe = error_probability(v);
+      if (pe < target) return true;
+      if (it > 20 && previous - pe < 1e-4 * pe) return false;  // no progress: a fixed point
+      previous = std::min(previous, pe);
+    }
+    return false;
+  }
+
+  const Grid& grid() const { return grid_; }
+
+ private:
+  double error_probability(const std::vector<double>& d) const {
+    double pe = 0;
+    for (std::size_t i = 0; i < grid_.half(); ++i) pe += d[i];
+    return pe + 0.5 * d[grid_.half()];
+  }
+
+  // out = channel * sum_d lambda_d c^(*(d-1)), by FFT; saturated at the grid ends.
+  std::vector<double> variable_update(const std::vector<double>& channel,
+                                      const std::vector<double>& c) {
+    const std::size_t n = grid_.size(), size = fft_size(n * max_dv_);
+    std::vector<double> a(size, 0.0), b(size, 0.0);
+    std::copy(channel.begin(), channel.end(), a.begin());
+    std::copy(c.begin(), c.end(), b.begin());
+    std::vector<Complex> fa, fb;
+    fft_.fwd(fa, a);
+    fft_.fwd(fb, b);
+    std::vector<double> out(n, 0.0), conv;
+    std::vector<Complex> product(fa.size());
+    for (auto [d, coef] : e_.lambda) {
+      for (std::size_t k = 0; k < fa.size(); ++k)
+        product[k] = coef * fa[k] * std::pow(fb[k], static_cast<double>(d - 1));
+      fft_.inv(conv, product);
+      // Index j sums d grid indices: value (j - d * half) * step, i.e. grid index j - (d - 1) *
+      // half.
+      const auto offset = static_cast<std::ptrdiff_t>((d - 1) * grid_.half());
+      for (std::size_t j = 0; j < conv.size(); ++j) {
+        if (conv[j] <= 0) continue;  // FFT round-off below zero
+        const std::ptrdiff_t i = static_cast<std::ptrdiff_t>(j) - offset;
+        out[static_cast<std::size_t>(
+            std::clamp<std::ptrdiff_t>(i, 0, static_cast<std::ptrdiff_t>(n - 1)))] += conv[j];
+      }
+    }
+    normalize(out);
+    return out;
+  }
+
+  std::vector<double> check_update(const std::vector<double>& v) {
+    if (decoder_.algorithm == Algorithm::sum_product) return check_sum_product(v);
+    return check_min_sum(v);
+  }
+
+  // Sum-product: the check rule on quantised messages, a ⊞ b rounded to the grid (the table of
+  // Chung, Forney, Richardson, Urbanke 2001), applied pairwise: p^(⊞k) = p^(⊞(k-1)) ⊞ p.
+  std::vector<double> check_sum_product(const std::vector<double>& v) {
+    const std::size_t n = grid_.size();
+    std::vector<double> power = v, out(n, 0.0), next(n);
+    std::vector<std::uint32_t> support;
+    for (std::size_t k = 1;; ++k) {  // power holds the density of k inputs combined
+      if (auto it = e_.rho.find(k + 1); it != e_.rho.end()) {
+        for (std::size_t i = 0; i < n; ++i) out[i] += it->second * power[i];
+      }
+      if (k + 1 >= max_dc_) break;
+      std::fill(next.begin(), next.end(), 0.0);
+      // Masses below 1e-20 cannot move an error probability that stops at 1e-7: skip them.
+      support.clear();
+      for (std::size_t j = 0; j < n; ++j) {
+        if (v[j] > 1e-20) support.push_back(static_cast<std::uint32_t>(j));
+      }
+      for (std::size_t i = 0; i < n; ++i) {
+        if (power[i] < 1e-20) continue;
+        const std::uint16_t* row = table_.data() + i * n;
+        for (std::uint32_t j : support) next[row[j]] += power[i] * v[j];
+      }
+      power.swap(next);
+    }
+    normalize(out);
+    return out;
+  }
+
+  // Min-sum family: P(|min| >= t, sign) from the tail masses G+(t) = P(x >= t), G-(t) = P(x <= -t):
+  // positive part [(G+ + G-)^k + (G+ - G-)^k] / 2, negative part [(G+ + G-)^k - (G+ - G-)^k] / 2.
+  std::vector<double> check_min_sum(const std::vector<double>& v) {
+    const std::size_t h = grid_.half(), n = grid_.size();
+    // Tails at magnitude index m (t = m * step), m = 0..h.
+    std::vector<double> gp(h + 2, 0.0), gm(h + 2, 0.0);
+    for (std::size_t m = h + 1; m-- > 0;) {
+      gp[m] = gp[m + 1] + (m == 0 ? 0.5 * v[h] : v[h + m]);
+      gm[m] = gm[m + 1] + (m == 0 ? 0.5 * v[h] : v[h - m]);
+    }
+    std::vector<double> out(n, 0.0);
+    for (auto [d, coef] : e_.rho) {
+      const double k = static_cast<double>(d - 1);
+      auto pos_tail = [&](std::size_t m) {
+        return 0.5 * (std::pow(gp[m] + gm[m], k) + std::pow(gp[m] - gm[m], k));
+      };
+      auto neg_tail = [&](std::size_t m) {
+        return 0.5 * (std::pow(gp[m] + gm[m], k) - std::pow(gp[m] - gm[m], k));
+      };
+      for (std::size_t m = 0; m <= h; ++m) {
+        const double pos = coef * (pos_tail(m) - pos_tail(m + 1));
+        const double neg = coef * (neg_tail(m) - neg_tail(m + 1));
+        double magnitude = static_cast<double>(m) * grid_.step();
+        if (decoder_.algorithm == Algorithm::normalized_min_sum) magnitude *= decoder_.alpha;
+        if (decoder_.algorithm == Algorithm::offset_min_sum)
+          magnitude = std::max(0.0, magnitude - decoder_.beta);
+        grid_.deposit(out, magnitude, std::max(pos, 0.0));
+        grid_.deposit(out, -magnitude, std::max(neg, 0.0));
+      }
+    }
+    normalize(out);
+    return out;
+  }
+
+  static void normalize(std::vector<double>& d) {
+    double total = 0;
+    for (double m : d) total += m;
+    if (total > 0) {
+      for (double& m : d) m /= total;
+    }
+  }
+
+  const Ensemble& e_;
+  DecoderSettings decoder_;
+  Grid grid_;
+  std::size_t max_dv_ = 0, max_dc_ = 0;
+  std::vector<std::uint16_t> table_;  // sum-product: grid index of x_i ⊞ x_j
+  Eigen::FFT<double> fft_;
+};
+
+constexpr double kStep = 0.05, kLimit = 20;
+constexpr int kIterations = 2000;
+constexpr double kTarget = 1e-7;
+
+// Channel LLR density of BPSK over AWGN: L = 2y/sigma^2 ~ N(2/sigma^2, 4/sigma^2), by bin masses.
+std::vector<double> awgn_channel(const Grid& g, double sigma) {
+  const double mean = 2 / (sigma * sigma), sd = 2 / sigma;
+  std::vector<double> d(g.size(), 0.0);
+  for (std::size_t i = 0; i < g.size(); ++i) {
+    const double lo = i == 0 ? -INFINITY : g.x(i) - g.step() / 2,
+                 hi = i + 1 == g.size() ? INFINITY : g.x(i) + g.step() / 2;
+    d[i] = normal_tail((lo - mean) / sd) - normal_tail((hi - mean) / sd);
+  }
+  return d;
+}
+
+// Gaussian approximation: phi(m) = 1 - E[tanh(u/2)] = E[2 / (1 + e^u)], u ~ N(m, 2m)
+// (Chung, Richardson, Urbanke 2001); the second form keeps full precision for large m.
+double phi(double m) {
+  if (m <= 0) return 1;
+  const double sd = std::sqrt(2 * m);
+  const int steps = 240;
+  const double lo = m - 12 * sd, hi = m + 12 * sd, h = (hi - lo) / steps;
+  double sum = 0;
+  for (int i = 0; i <= steps; ++i) {
+    const double u = lo + i * h;
+    const double f = 2 / (1 + std::exp(u)) * std::exp(-(u - m) * (u - m) / (4 * m));
+    sum += f * (i == 0 || i == steps ? 1 : (i % 2 ? 4 : 2));
+  }
+  return sum * h / 3 / std::sqrt(4 * M_PI * m);
+}
+double phi_inverse(double y) {
+  double lo = 0, hi = 1;
+  while (phi(hi) > y) hi *= 2;
+  for (int i = 0; i < 50; ++i) {  // relative precision 2^-50 of the bracket
+    const double mid = 0.5 * (lo + hi);
+    (phi(mid) > y ? lo : hi) = mid;
+  }
+  return 0.5 * (lo + hi);
+}
+
+bool gaussian_converges(const Ensemble& e, double sigma) {
+  const double m0 = 2 / (sigma * sigma);
+  double mu = 0;
+  for (int it = 0; it < 5000; ++it) {
+    double next = 0;
+    for (auto [dc, r] : e.rho) {
+      double s = 0;
+      for (auto [dv, l] : e.lambda) s += l * phi(m0 + static_cast<double>(dv - 1) * mu);
+      next += r * phi_inverse(1 - std::pow(1 - s, static_cast<double>(dc - 1)));
+    }
+    if (next > 200) return true;  // error probability far below 1e-20
+    if (next - mu < 1e-9) return false;
+    mu = next;
+  }
+  return false;
+}
+
+ThresholdResult finish_awgn(double sigma, double rate, std::string method, double accuracy) {
+  ThresholdResult r;
+  r.threshold = sigma;
+  r.rate = rate;
+  r.ebn0_db = 10 * std::log10(1 / (2 * rate * sigma * sigma));
+  const double limit_db = biawgn_shannon_limit_ebn0_db(rate);
+  r.limit = awgn_sigma(limit_db, SnrMeasure::ebn0, rate);
+  r.gap_db = r.ebn0_db - limit_db;
+  r.method = std::move(method);
+  r.accuracy = accuracy;
+  return r;
+}
+
+void check_algorithm(const DecoderSettings& d) {
+  if (d.algorithm == Algorithm::bit_flip || d.algorithm == Algorithm::ml) {
+    throw Error(fmt::format("density evolution covers sum-product and the min-sum family, not {}",
+                            algorithm_name(d.algorithm)));
+  }
+}
+
+}  // namespace
+
+ThresholdResult awgn_threshold(const Ensemble& e, const DecoderSettings& decoder,
+                               ThresholdMethod method) {
+  e.validate();
+  check_algorithm(decoder);
+  const double rate = e.design_rate();
+  if (method == ThresholdMethod::gaussian) {
+    if (decoder.algorithm != Algorithm::sum_product)
+      throw Error("the Gaussian approximation covers sum-product only");
+    const double sigma = bisect(0.3, 2.0, 1e-5, [&](double s) { return gaussian_converges(e, s); });
+    return finish_awgn(sigma, rate, "Gaussian approximation (Chung, Richardson, Urbanke 2001)",
+                       1e-5);
+  }
+  DensityEvolution de(e, decoder, kStep, kLimit);
+  const double sigma = bisect(0.3, 2.0, 2e-4, [&](double s) {
+    return de.converges(awgn_channel(de.grid(), s), kIterations, kTarget);
+  });
+  return finish_awgn(
+      sigma, rate,
+      fmt::format("discretized density evolution, LLR step {}, range +-{}", kStep, kLimit), 2e-3);
+}
+
+ThresholdResult bsc_threshold(const Ensemble& e, const DecoderSettings& decoder) {
+  e.validate();
+  check_algorithm(decoder);
+  DensityEvolution de(e, decoder, kStep, kLimit);
+  const double p = bisect(0.0001, 0.5, 1e-4, [&](double q) {
+    std::vector<double> channel(de.grid().size(), 0.0);
+    const double l = std::log((1 - q) / q);
+    de.grid().deposit(channel, l, 1 - q);
+    de.grid().deposit(channel, -l, q);
+    return de.converges(channel, kIterations, kTarget);
+  });
+  ThresholdResult r;
+  r.threshold = p;
+  r.rate = e.design_rate();
+  r.limit = bsc_limit_crossover(r.rate);
+  r.method = fmt::format("discretized density evolution, LLR step {}, range +-{}", kStep, kLimit);
+  r.accuracy = 1e-3;
+  return r;
+}
+
+std::pair<double, double> capacity_dispersion(ChannelKind kind, double value) {
+  switch (kind) {
+    case ChannelKind::bec:
+      return {1 - value, value * (1 - value)};
+    case ChannelKind::bsc: {
+      const double l = value > 0 && value < 1 ? std::log2((1 - value) / value) : 0;
+      return {bsc_capacity(value), value * (1 - value) * l * l};
+    }
+    case ChannelKind::awgn: {
+      // i(x; y) = 1 - log2(1 + exp(-2Y/sigma^2)) for X = +1, Y ~ N(1, sigma^2) (symmetric channel).
+      const double s2 = value * value;
+      const int steps = 4000;
+      const double lo = 1 - 14 * value, hi = 1 + 14 * value, h = (hi - lo) / steps;
+      double m1 = 0, m2 = 0;
+      for (int i = 0; i <= steps; ++i) {
+        const double y = lo + i * h;
+        const double w = (i == 0 || i == steps ? 1 : (i % 2 ? 4 : 2)) *
+                         std::exp(-(y - 1) * (y - 1) / (2 * s2)) / (value * std::sqrt(2 * M_PI));
+        const double t = -2 * y / s2;
+        const double info =
+            1 - (t > 0 ? t + std::log1p(std::exp(-t)) : std::log1p(std::exp(t))) / std::log(2.0);
+        m1 += w * info;
+        m2 += w * info * info;
+      }
+      m1 *= h / 3;
+      m2 *= h / 3;
+      return {m1, std::max(0.0, m2 - m1 * m1)};
+    }
+  }
+  return {0, 0};
+}
+
+double normal_approximation_fer(ChannelKind kind, double value, std::size_t n, std::size_t k) {
+  const auto [c, v] = capacity_dispersion(kind, value);
+  const double nd = static_cast<double>(n);
+  if (v <= 0) return static_cast<double>(k) < nd * c ? 0.0 : 1.0;
+  return normal_tail((nd * c - static_cast<double>(k) + 0.5 * std::log2(nd)) / std::sqrt(nd * v));
+}
+
+}  // namespace tannery

@@ -1,0 +1,83 @@
+#include <catch2/catch.hpp>
+#include <cmath>
+
+#include "tannery/theory/capacity.hpp"
+#include "tannery/theory/density_evolution.hpp"
+
+using namespace tannery;
+
+namespace {
+DecoderSettings sum_product() {
+  return DecoderSettings{};
+}
+}  // namespace
+
+TEST_CASE("BEC thresholds of regular ensembles", "[theory]") {
+  // Richardson & Urbanke, Modern Coding Theory (2008): (3,6) 0.4294, (4,8) 0.3834.
+  CHECK(bec_threshold(Ensemble::regular(3, 6)) == Approx(0.4294).margin(1e-4));
+  CHECK(bec_threshold(Ensemble::regular(4, 8)) == Approx(0.3834).margin(1e-4));
+}
+
+TEST_CASE("BIAWGN sum-product threshold of the (3,6) ensemble", "[theory][slow]") {
+  // Richardson & Urbanke, IEEE Trans. IT 2001, table: sigma* = 0.8809 for (3,6).
+  const ThresholdResult r =
+      awgn_threshold(Ensemble::regular(3, 6), sum_product(), ThresholdMethod::discretized);
+  CHECK(r.threshold == Approx(0.8809).margin(r.accuracy));
+  CHECK(r.rate == Approx(0.5));
+  CHECK(r.gap_db == Approx(r.ebn0_db - 0.187).margin(0.002));
+}
+
+TEST_CASE("BIAWGN sum-product threshold of the (4,8) ensemble", "[theory][slow]") {
+  // Richardson & Urbanke, IEEE Trans. IT 2001, table: sigma* = 0.8376 for (4,8).
+  const ThresholdResult r =
+      awgn_threshold(Ensemble::regular(4, 8), sum_product(), ThresholdMethod::discretized);
+  CHECK(r.threshold == Approx(0.8376).margin(r.accuracy));
+}
+
+TEST_CASE("BSC sum-product threshold of the (3,6) ensemble", "[theory][slow]") {
+  // Richardson & Urbanke, IEEE Trans. IT 2001: p* = 0.084 for (3,6).
+  const ThresholdResult r = bsc_threshold(Ensemble::regular(3, 6), sum_product());
+  CHECK(r.threshold == Approx(0.084).margin(r.accuracy));
+  CHECK(r.limit == Approx(0.110028).margin(1e-6));  // h2^-1(1/2), common practice
+}
+
+TEST_CASE("Gaussian approximation and min-sum thresholds are ordered as expected", "[theory]") {
+  // Chung, Richardson, Urbanke (IEEE Trans. IT 2001) report the Gaussian approximation within
+  // 0.1 dB of density evolution for regular ensembles; min-sum is worse than sum-product and a
+  // normalization recovers part of the loss (common practice).
+  const Ensemble e = Ensemble::regular(3, 6);
+  const ThresholdResult ga = awgn_threshold(e, sum_product(), ThresholdMethod::gaussian);
+  CHECK(std::abs(ga.ebn0_db - 1.1025) < 0.1);  // 1.1025 dB = sigma 0.8809
+  DecoderSettings ms;
+  ms.algorithm = Algorithm::min_sum;
+  DecoderSettings nms = ms;
+  nms.algorithm = Algorithm::normalized_min_sum;
+  nms.alpha = 0.8;
+  const double t_ms = awgn_threshold(e, ms, ThresholdMethod::discretized).ebn0_db;
+  const double t_nms = awgn_threshold(e, nms, ThresholdMethod::discretized).ebn0_db;
+  CHECK(t_ms > 1.5);
+  CHECK(t_nms < t_ms);
+  CHECK(t_nms > 1.1);
+}
+
+TEST_CASE("ensembles from node fractions and rates", "[theory]") {
+  const Ensemble e = Ensemble::from_node_fractions({{2, 0.5}, {3, 0.5}}, {{5, 1.0}});
+  CHECK(e.lambda.at(2) == Approx(0.4));
+  CHECK(e.lambda.at(3) == Approx(0.6));
+  CHECK(e.design_rate() == Approx(0.5));
+  CHECK_THROWS(Ensemble{{{3, 0.5}}, {{6, 1.0}}}.validate());
+}
+
+TEST_CASE("normal approximation of the finite-length limit", "[theory]") {
+  // Polyanskiy, Poor, Verdu 2010: BEC capacity 1 - eps, dispersion eps (1 - eps); at the
+  // erasure probability where n C + log2(n)/2 = k the approximation gives FER 1/2.
+  const std::size_t n = 1000, k = 500;
+  const double eps = 1 - (static_cast<double>(k) - 0.5 * std::log2(1000.0)) / 1000.0;
+  CHECK(normal_approximation_fer(ChannelKind::bec, eps, n, k) == Approx(0.5).margin(1e-12));
+  // AWGN: capacity from the dispersion routine equals the capacity routine.
+  CHECK(capacity_dispersion(ChannelKind::awgn, 0.8).first ==
+        Approx(biawgn_capacity(0.8)).epsilon(1e-9));
+  // Better channel, lower FER.
+  CHECK(normal_approximation_fer(ChannelKind::awgn, 0.7, 648, 324) <
+        normal_approximation_fer(ChannelKind::awgn, 0.8, 648, 324));
+}
