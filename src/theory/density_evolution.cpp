@@ -351,14 +351,14 @@ bool gaussian_converges(const Ensemble& e, double sigma) {
   const double m0 = 2 / (sigma * sigma);
   double mu = 0;
   for (int it = 0; it < 5000; ++it) {
+    double s = 0;
+    for (auto [dv, l] : e.lambda) s += l * phi(m0 + static_cast<double>(dv - 1) * mu);
+    // s tracks the error probability of the messages; below 1e-10 the quadrature of phi, not
+    // the recursion, would decide further steps.
+    if (s < 1e-10) return true;
     double next = 0;
-    for (auto [dc, r] : e.rho) {
-      double s = 0;
-      for (auto [dv, l] : e.lambda) s += l * phi(m0 + static_cast<double>(dv - 1) * mu);
-      next += r * phi_inverse(1 - std::pow(1 - s, static_cast<double>(dc - 1)));
-    }
-    if (next > 200) return true;  // error probability far below 1e-20
-    if (next - mu < 1e-9) return false;
+    for (auto [dc, r] : e.rho) next += r * phi_inverse(-std::expm1(static_cast<double>(dc - 1) * std::log1p(-s)));
+    if (next - mu < 1e-9) return false;  // a fixed point: decoding fails
     mu = next;
   }
   return false;
