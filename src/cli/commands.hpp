@@ -58,6 +58,9 @@ struct DecoderOptions {
   double alpha = 0.75;
   double beta = 0.5;
   int flip_threshold = 0;
+  std::string kernel = "reference";
+  std::string quantize;
+  std::string simd_target;
   CLI::Option* alpha_option = nullptr;
   CLI::Option* beta_option = nullptr;
   CLI::Option* threshold_option = nullptr;

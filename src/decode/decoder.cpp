@@ -1,7 +1,9 @@
 #include "tannery/decode/decoder.hpp"
 
 #include <fmt/format.h>
+#include <algorithm>
 #include <cmath>
+#include <cstdio>
 
 #include "decoders.hpp"
 #include "tannery/code/gf2.hpp"
@@ -62,6 +64,27 @@ void validate(const DecoderSettings& s, const Code& code) {
   if (!(s.beta >= 0 && std::isfinite(s.beta)))
     throw Error(fmt::format("beta must be >= 0, got {}", s.beta));
   if (s.flip_threshold < 0) throw Error("flip threshold must be >= 0");
+  const bool min_sum_family = s.algorithm == Algorithm::min_sum || s.algorithm == Algorithm::normalized_min_sum ||
+                              s.algorithm == Algorithm::offset_min_sum;
+  if (s.quantization) {
+    const Quantization& q = *s.quantization;
+    if (!min_sum_family) throw Error("fixed-point decoding (--quantize) covers min-sum, normalized-min-sum and offset-min-sum");
+    if (!(q.channel_bits >= 2 && q.fraction_bits >= 0 && q.fraction_bits < q.channel_bits &&
+          q.message_bits >= 2 && q.channel_bits <= q.posterior_bits && q.message_bits <= q.posterior_bits &&
+          q.posterior_bits <= 16)) {
+      throw Error(fmt::format("impossible quantization {}: need 2 <= bits, fraction < channel bits, channel and "
+                              "message bits <= posterior bits <= 16", quantization_spec(q)));
+    }
+  }
+  if (s.kernel == Kernel::simd || s.quantization) {
+    if (s.schedule != Schedule::layered) throw Error("the batched and fixed-point decoders implement the layered schedule; add --schedule layered");
+    if (!min_sum_family && s.algorithm != Algorithm::sum_product) {
+      throw Error(fmt::format("no SIMD kernel for {}", algorithm_name(s.algorithm)));
+    }
+    std::size_t max_degree = 0;
+    for (std::size_t c = 0; c < code.m(); ++c) max_degree = std::max(max_degree, code.check_degree(c));
+    if (max_degree > 127) throw Error(fmt::format("the batched decoders handle check degrees up to 127, this code has {}", max_degree));
+  }
   if (s.algorithm == Algorithm::ml) {
     const std::size_t k = Encoder(code).k();
     if (k > 24) {
@@ -73,6 +96,24 @@ void validate(const DecoderSettings& s, const Code& code) {
   }
 }
 
+std::optional<Quantization> parse_quantization(std::string_view spec) {
+  Quantization q;
+  int fields[4] = {0, 0, -1, -1};
+  const std::string text(spec);
+  const int matched = std::sscanf(text.c_str(), "%d.%d:%d:%d", &fields[0], &fields[1], &fields[2], &fields[3]);
+  if (matched != 2 && matched != 4) return std::nullopt;
+  if (text.find_first_not_of("0123456789.:") != std::string::npos) return std::nullopt;
+  q.channel_bits = fields[0];
+  q.fraction_bits = fields[1];
+  q.message_bits = matched == 4 ? fields[2] : fields[0];
+  q.posterior_bits = matched == 4 ? fields[3] : fields[0] + 2;
+  return q;
+}
+
+std::string quantization_spec(const Quantization& q) {
+  return fmt::format("{}.{}:{}:{}", q.channel_bits, q.fraction_bits, q.message_bits, q.posterior_bits);
+}
+
 std::string describe(const DecoderSettings& s) {
   std::string text(algorithm_name(s.algorithm));
   if (s.algorithm == Algorithm::ml) return text + " (exhaustive block maximum likelihood)";
@@ -82,6 +123,8 @@ std::string describe(const DecoderSettings& s) {
     text += s.flip_threshold ? fmt::format(" threshold={}", s.flip_threshold)
                              : std::string(" threshold=majority");
   }
+  if (s.quantization) text += fmt::format(" fixed-point {}", quantization_spec(*s.quantization));
+  if (s.kernel == Kernel::simd) text += " (SIMD)";
   return text + fmt::format(", {}, {} iterations{}", schedule_name(s.schedule), s.iterations,
                             s.early_stop ? ", early stop" : ", no early stop");
 }
@@ -98,7 +141,13 @@ void Decoder::decode(std::span<const double> llr, std::span<std::uint8_t> hard,
           fmt::format("frame {}, position {}: channel LLR is NaN", first_frame + i / n, i % n));
     }
   }
-  for (std::size_t f = 0; f < frames; ++f) {
+  decode_batch(llr, hard, posterior, outcome);
+}
+
+void Decoder::decode_batch(std::span<const double> llr, std::span<std::uint8_t> hard,
+                           std::span<double> posterior, std::span<FrameOutcome> outcome) {
+  const std::size_t n = code_.n();
+  for (std::size_t f = 0; f < outcome.size(); ++f) {
     outcome[f] = decode_frame(llr.subspan(f * n, n), hard.subspan(f * n, n),
                               posterior.empty() ? posterior : posterior.subspan(f * n, n));
   }
@@ -106,6 +155,8 @@ void Decoder::decode(std::span<const double> llr, std::span<std::uint8_t> hard,
 
 std::unique_ptr<Decoder> make_decoder(const Code& code, const DecoderSettings& settings) {
   validate(settings, code);
+  if (settings.kernel == Kernel::simd) return detail::make_simd(code, settings);
+  if (settings.quantization) return detail::make_fixed_point(code, settings);
   switch (settings.algorithm) {
     case Algorithm::bit_flip:
       return detail::make_bit_flip(code, settings);

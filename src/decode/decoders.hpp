@@ -10,6 +10,16 @@ namespace tannery::detail {
 std::unique_ptr<Decoder> make_belief_propagation(const Code& code, const DecoderSettings& settings);
 std::unique_ptr<Decoder> make_bit_flip(const Code& code, const DecoderSettings& settings);
 std::unique_ptr<Decoder> make_ml(const Code& code, const DecoderSettings& settings);
+std::unique_ptr<Decoder> make_fixed_point(const Code& code, const DecoderSettings& settings);
+std::unique_ptr<Decoder> make_simd(const Code& code, const DecoderSettings& settings);
+
+// Channel LLR to fixed point: round(L * 2^fraction) to nearest (ties to even), saturated to the
+// symmetric range of channel_bits; +-Inf saturate. Shared by the scalar and SIMD fixed-point paths.
+std::int32_t quantize_llr(double llr, const Quantization& q);
+inline std::int32_t saturate(std::int64_t x, int bits) {
+  const std::int64_t limit = (std::int64_t{1} << (bits - 1)) - 1;
+  return static_cast<std::int32_t>(x > limit ? limit : (x < -limit ? -limit : x));
+}
 
 inline double clip_llr(double x) {
   return x > kLlrLimit ? kLlrLimit : (x < -kLlrLimit ? -kLlrLimit : x);

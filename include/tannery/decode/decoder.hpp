@@ -15,6 +15,7 @@
 #include <span>
 #include <string>
 #include <string_view>
+#include <vector>
 
 #include "tannery/code/code.hpp"
 
@@ -28,6 +29,25 @@ std::optional<Algorithm> parse_algorithm(std::string_view name);
 std::string_view schedule_name(Schedule s);
 std::optional<Schedule> parse_schedule(std::string_view name);
 
+// Fixed-point decoding as hardware does it (see the README for the arithmetic): channel LLRs
+// become round(L * 2^fraction) saturated to channel_bits (two's complement, symmetric range);
+// check messages saturate to message_bits and posteriors to posterior_bits. SPEC syntax:
+// "B.F" or "B.F:M:P", e.g. "6.2" (6-bit channel LLRs with 2 fractional bits; messages 6 bits,
+// posteriors 8 bits by default) or "5.1:5:7".
+struct Quantization {
+  int channel_bits = 6;
+  int fraction_bits = 2;
+  int message_bits = 6;
+  int posterior_bits = 8;
+  bool operator==(const Quantization&) const = default;
+};
+std::optional<Quantization> parse_quantization(std::string_view spec);  // empty on bad syntax
+std::string quantization_spec(const Quantization& q);
+
+// Which implementation decodes: the scalar reference (double precision, the definition) or the
+// batched SIMD kernels (float32, or integer lanes when quantized; layered schedule).
+enum class Kernel { reference, simd };
+
 struct DecoderSettings {
   Algorithm algorithm = Algorithm::sum_product;
   Schedule schedule = Schedule::flooding;
@@ -36,6 +56,8 @@ struct DecoderSettings {
   double alpha = 0.75;     // normalized min-sum: check messages scaled by alpha, 0 < alpha <= 1
   double beta = 0.5;       // offset min-sum: check magnitudes reduced by beta >= 0 (floored at 0)
   int flip_threshold = 0;  // bit-flip: other checks that must disagree to flip; 0 = majority
+  Kernel kernel = Kernel::reference;
+  std::optional<Quantization> quantization;  // fixed-point min-sum family (layered)
 
   bool operator==(const DecoderSettings&) const = default;
 };
@@ -76,6 +98,9 @@ class Decoder {
   // One frame; posterior is empty when not wanted. Inputs are NaN-free.
   virtual FrameOutcome decode_frame(std::span<const double> llr, std::span<std::uint8_t> hard,
                                     std::span<double> posterior) = 0;
+  // A whole batch (checked, NaN-free); batched kernels override it, the default loops frames.
+  virtual void decode_batch(std::span<const double> llr, std::span<std::uint8_t> hard,
+                            std::span<double> posterior, std::span<FrameOutcome> outcome);
 
   const Code& code_;
   DecoderSettings settings_;
@@ -83,5 +108,12 @@ class Decoder {
 
 // Validates the settings and builds the decoder; code must outlive it.
 std::unique_ptr<Decoder> make_decoder(const Code& code, const DecoderSettings& settings);
+
+// SIMD targets compiled in and supported by this CPU, best first (names as Highway gives them),
+// and a switch that restricts dispatch to one of them (for tests and for reproducing a figure);
+// an empty name restores the automatic choice. Throws Error for a name not in the list.
+std::vector<std::string> simd_targets();
+void force_simd_target(const std::string& name);
+std::string active_simd_target();
 
 }  // namespace tannery

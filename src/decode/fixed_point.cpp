@@ -1,0 +1,104 @@
+// The scalar fixed-point reference: layered min-sum family on integers, the definition that the
+// integer SIMD kernels match bit for bit.
+//
+// Per check, for each of its edges e (variable v):  t = sat_M(P[v] - R[e]).
+// m1, m2 = the two smallest |t| (first occurrence wins ties), i = position of m1, s = parity of
+// the signs (t < 0). New message magnitude: m2 at position i, m1 elsewhere (a check with one
+// edge sends the saturation value); then
+//   normalized: m - floor(m * (8 - a) / 8), a = round(8 alpha)   (alpha 0.75: m - floor(m / 4))
+//   offset:     max(m - b, 0), b = round(beta * 2^fraction)
+// R[e] = +-m with the sign parity of the other edges; P[v] = sat_P(t + R[e]).
+// sat_B clamps to +-(2^(B-1) - 1). Hard decision: P < 0. Posterior output: P / 2^fraction.
+#include <cmath>
+#include <algorithm>
+#include <vector>
+
+#include "decoders.hpp"
+
+namespace tannery::detail {
+
+std::int32_t quantize_llr(double llr, const Quantization& q) {
+  const double limit = std::ldexp(1.0, q.channel_bits - 1) - 1;
+  const double x = llr * std::ldexp(1.0, q.fraction_bits);
+  if (!(x < limit)) return static_cast<std::int32_t>(limit);
+  if (!(x > -limit)) return static_cast<std::int32_t>(-limit);
+  return static_cast<std::int32_t>(std::nearbyint(x));
+}
+
+namespace {
+
+class FixedPoint final : public Decoder {
+ public:
+  FixedPoint(const Code& code, const DecoderSettings& settings)
+      : Decoder(code, settings), q_(*settings.quantization), messages_(code.edges()), posterior_(code.n()) {
+    std::size_t max_degree = 0;
+    for (std::size_t c = 0; c < code.m(); ++c) max_degree = std::max(max_degree, code.check_degree(c));
+    t_.resize(max_degree);
+    alpha_eighths_ = static_cast<int>(std::lround(std::clamp(settings.alpha, 0.0, 1.0) * 8));
+    beta_lsb_ = static_cast<int>(std::lround(settings.beta * std::ldexp(1.0, q_.fraction_bits)));
+  }
+
+ protected:
+  FrameOutcome decode_frame(std::span<const double> llr, std::span<std::uint8_t> hard,
+                            std::span<double> posterior) override {
+    const Code& code = code_;
+    const int limit_m = (1 << (q_.message_bits - 1)) - 1;
+    for (std::size_t v = 0; v < code.n(); ++v) posterior_[v] = quantize_llr(llr[v], q_);
+    std::fill(messages_.begin(), messages_.end(), 0);
+    FrameOutcome outcome;
+    for (int it = 1; it <= settings_.iterations; ++it) {
+      for (std::size_t c = 0; c < code.m(); ++c) {
+        const std::size_t b = code.check_begin(c), d = code.check_degree(c);
+        auto vars = code.check_variables(c);
+        int m1 = limit_m, m2 = limit_m;
+        std::size_t at = 0;
+        bool negative = false;
+        for (std::size_t i = 0; i < d; ++i) {
+          t_[i] = saturate(static_cast<std::int64_t>(posterior_[vars[i]]) - messages_[b + i], q_.message_bits);
+          const int a = std::abs(t_[i]);
+          negative ^= t_[i] < 0;
+          if (a < m1) {
+            m2 = m1;
+            m1 = a;
+            at = i;
+          } else if (a < m2) {
+            m2 = a;
+          }
+        }
+        for (std::size_t i = 0; i < d; ++i) {
+          int mag = d == 1 ? limit_m : (i == at ? m2 : m1);
+          if (settings_.algorithm == Algorithm::normalized_min_sum) {
+            mag -= (mag >> 3) * (8 - alpha_eighths_) + (((mag & 7) * (8 - alpha_eighths_)) >> 3);
+          } else if (settings_.algorithm == Algorithm::offset_min_sum) {
+            mag = std::max(mag - beta_lsb_, 0);
+          }
+          const std::int32_t r = (negative != (t_[i] < 0)) ? -mag : mag;
+          messages_[b + i] = r;
+          posterior_[vars[i]] = saturate(static_cast<std::int64_t>(t_[i]) + r, q_.posterior_bits);
+        }
+      }
+      for (std::size_t v = 0; v < code.n(); ++v) hard[v] = posterior_[v] < 0 ? 1 : 0;
+      outcome.iterations = it;
+      outcome.syndrome_weight = static_cast<std::uint32_t>(syndrome_weight(code, hard));
+      if (settings_.early_stop && outcome.syndrome_weight == 0) break;
+    }
+    outcome.converged = outcome.syndrome_weight == 0;
+    if (!posterior.empty()) {
+      for (std::size_t v = 0; v < code.n(); ++v) posterior[v] = std::ldexp(posterior_[v], -q_.fraction_bits);
+    }
+    return outcome;
+  }
+
+ private:
+  Quantization q_;
+  std::vector<std::int32_t> messages_, posterior_, t_;
+  int alpha_eighths_ = 8, beta_lsb_ = 0;
+};
+
+}  // namespace
+
+std::unique_ptr<Decoder> make_fixed_point(const Code& code, const DecoderSettings& settings) {
+  return std::make_unique<FixedPoint>(code, settings);
+}
+
+}  // namespace tannery::detail

@@ -1,0 +1,169 @@
+// The batched decoder: groups frames into SIMD lanes (one frame per lane), transposes them to the
+// lane-interleaved layout, runs the dispatched kernel and transposes the results back.
+#include <cmath>
+#include <fmt/format.h>
+#include <algorithm>
+#include <hwy/aligned_allocator.h>
+#include <hwy/highway.h>
+#include <hwy/targets.h>
+#include <vector>
+
+#include "decoders.hpp"
+#include "simd_kernels.hpp"
+#include "tannery/error.hpp"
+
+namespace tannery {
+
+namespace {
+
+std::int64_t target_by_name(const std::string& name) {
+  for (std::int64_t t : hwy::SupportedAndGeneratedTargets()) {
+    if (name == hwy::TargetName(t)) return t;
+  }
+  return 0;
+}
+
+}  // namespace
+
+std::vector<std::string> simd_targets() {
+  std::vector<std::string> names;
+  for (std::int64_t t : hwy::SupportedAndGeneratedTargets()) names.emplace_back(hwy::TargetName(t));
+  return names;
+}
+
+void force_simd_target(const std::string& name) {
+  if (name.empty()) {
+    hwy::SetSupportedTargetsForTest(0);
+  } else {
+    hwy::SetSupportedTargetsForTest(0);
+    const std::int64_t target = target_by_name(name);
+    if (target == 0) {
+      std::string known;
+      for (const auto& n : simd_targets()) known += (known.empty() ? "" : ", ") + n;
+      throw Error(fmt::format("SIMD target '{}' is not available here (available: {})", name, known));
+    }
+    hwy::SetSupportedTargetsForTest(target);
+  }
+  hwy::GetChosenTarget().Update(hwy::SupportedTargets());
+}
+
+std::string active_simd_target() {
+  const auto targets = hwy::SupportedAndGeneratedTargets();
+  return targets.empty() ? std::string("none") : std::string(hwy::TargetName(targets.front()));
+}
+
+namespace detail {
+
+namespace {
+
+template <class T>
+class Batched final : public Decoder {
+ public:
+  Batched(const Code& code, const DecoderSettings& settings) : Decoder(code, settings) {
+    if constexpr (std::is_same_v<T, float>) lanes_ = float_lanes();
+    else if constexpr (std::is_same_v<T, std::int16_t>) lanes_ = int16_lanes();
+    else lanes_ = int8_lanes();
+    std::size_t max_degree = 0;
+    for (std::size_t c = 0; c < code.m(); ++c) max_degree = std::max(max_degree, code.check_degree(c));
+    check_start_.resize(code.m() + 1);
+    for (std::size_t c = 0; c <= code.m(); ++c) check_start_[c] = c < code.m() ? code.check_begin(c) : static_cast<std::uint32_t>(code.edges());
+    edge_var_.resize(code.edges());
+    for (std::size_t e = 0; e < code.edges(); ++e) edge_var_[e] = code.edge_variable(e);
+    args_.check_start = check_start_.data();
+    args_.edge_var = edge_var_.data();
+    args_.n = code.n();
+    args_.m = code.m();
+    args_.max_degree = std::max<std::size_t>(max_degree, 1);
+    args_.lanes = lanes_;
+    args_.iterations = settings.iterations;
+    args_.early_stop = settings.early_stop;
+    switch (settings.algorithm) {
+      case Algorithm::normalized_min_sum: args_.rule = CheckRule::normalized; break;
+      case Algorithm::offset_min_sum: args_.rule = CheckRule::offset; break;
+      case Algorithm::sum_product: args_.rule = CheckRule::sum_product; break;
+      default: args_.rule = CheckRule::min_sum;
+    }
+    args_.alpha = static_cast<float>(settings.alpha);
+    args_.beta = static_cast<float>(settings.beta);
+    if (settings.quantization) {
+      const Quantization& q = *settings.quantization;
+      args_.alpha_eighths = static_cast<int>(std::lround(std::clamp(settings.alpha, 0.0, 1.0) * 8));
+      args_.beta_lsb = static_cast<int>(std::lround(settings.beta * std::ldexp(1.0, q.fraction_bits)));
+      args_.message_limit = (1 << (q.message_bits - 1)) - 1;
+      args_.posterior_limit = (1 << (q.posterior_bits - 1)) - 1;
+    }
+    // Aligned buffers (Highway's Load needs vector alignment).
+    channel_ = hwy::AllocateAligned<T>(code.n() * lanes_);
+    posterior_ = hwy::AllocateAligned<T>(code.n() * lanes_);
+    messages_ = hwy::AllocateAligned<T>(std::max<std::size_t>(code.edges(), 1) * lanes_);
+    scratch_ = hwy::AllocateAligned<T>(3 * args_.max_degree * lanes_);
+    iterations_.resize(lanes_);
+    args_.channel = channel_.get();
+    args_.posterior = posterior_.get();
+    args_.messages = messages_.get();
+    args_.scratch = scratch_.get();
+    args_.iterations_used = iterations_.data();
+  }
+
+ protected:
+  FrameOutcome decode_frame(std::span<const double> llr, std::span<std::uint8_t> hard,
+                            std::span<double> posterior) override {
+    FrameOutcome out;
+    decode_batch(llr, hard, posterior, std::span(&out, 1));
+    return out;
+  }
+
+  void decode_batch(std::span<const double> llr, std::span<std::uint8_t> hard, std::span<double> posterior,
+                    std::span<FrameOutcome> outcome) override {
+    const std::size_t n = code_.n(), frames = outcome.size();
+    const double scale = settings_.quantization ? std::ldexp(1.0, -settings_.quantization->fraction_bits) : 1.0;
+    for (std::size_t first = 0; first < frames; first += lanes_) {
+      const std::size_t count = std::min(lanes_, frames - first);
+      for (std::size_t v = 0; v < n; ++v) {
+        T* row = channel_.get() + v * lanes_;
+        for (std::size_t l = 0; l < lanes_; ++l) {
+          const double x = l < count ? llr[(first + l) * n + v] : 0.0;  // idle lanes decode zeros
+          if constexpr (std::is_same_v<T, float>) {
+            row[l] = static_cast<float>(clip_llr(x));
+          } else {
+            row[l] = static_cast<T>(quantize_llr(x, *settings_.quantization));
+          }
+        }
+      }
+      if constexpr (std::is_same_v<T, float>) layered_float(args_);
+      else if constexpr (std::is_same_v<T, std::int16_t>) layered_int16(args_);
+      else layered_int8(args_);
+      for (std::size_t l = 0; l < count; ++l) {
+        const std::size_t f = first + l;
+        std::uint8_t* h = hard.data() + f * n;
+        for (std::size_t v = 0; v < n; ++v) {
+          const T p = posterior_[v * lanes_ + l];
+          h[v] = p < 0 ? 1 : 0;
+          if (!posterior.empty()) posterior[f * n + v] = static_cast<double>(p) * scale;
+        }
+        FrameOutcome& o = outcome[f];
+        o.iterations = iterations_[l];
+        o.syndrome_weight = static_cast<std::uint32_t>(syndrome_weight(code_, std::span<const std::uint8_t>(h, n)));
+        o.converged = o.syndrome_weight == 0;
+      }
+    }
+  }
+
+ private:
+  std::size_t lanes_ = 1;
+  std::vector<std::uint32_t> check_start_, edge_var_;
+  hwy::AlignedFreeUniquePtr<T[]> channel_, posterior_, messages_, scratch_;
+  std::vector<std::int32_t> iterations_;
+  LayeredArgs<T> args_;
+};
+
+}  // namespace
+
+std::unique_ptr<Decoder> make_simd(const Code& code, const DecoderSettings& settings) {
+  if (!settings.quantization) return std::make_unique<Batched<float>>(code, settings);
+  if (settings.quantization->posterior_bits <= 8) return std::make_unique<Batched<std::int8_t>>(code, settings);
+  return std::make_unique<Batched<std::int16_t>>(code, settings);
+}
+
+}  // namespace detail
+}  // namespace tannery

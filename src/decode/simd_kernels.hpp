@@ -1,0 +1,44 @@
+// Arguments of the batched layered kernels (private to the library). Data are lane-interleaved:
+// value x of node/edge i for frame (lane) l sits at [i * lanes + l]. No vector types here.
+#pragma once
+
+#include <cstddef>
+#include <cstdint>
+
+namespace tannery::detail {
+
+enum class CheckRule : int { min_sum, normalized, offset, sum_product };
+
+template <class T>
+struct LayeredArgs {
+  // Graph: checks in order, edges check-major; edge_var[e] is the variable of edge e.
+  const std::uint32_t* check_start = nullptr;
+  const std::uint32_t* edge_var = nullptr;
+  std::size_t n = 0, m = 0, max_degree = 0;
+  std::size_t lanes = 0;  // frames in this batch (the kernel's vector width)
+  int iterations = 0;
+  bool early_stop = true;
+  CheckRule rule = CheckRule::min_sum;
+  // Float: alpha, beta in LLR units. Fixed point: alpha_eighths = round(8 alpha) applied as
+  // m - floor(m * (8 - alpha_eighths) / 8), beta in LSBs, saturation limits.
+  float alpha = 1, beta = 0;
+  int alpha_eighths = 8;
+  int beta_lsb = 0;
+  int message_limit = 0, posterior_limit = 0;
+  // In: channel LLRs (posterior initialised from them). Out: posteriors, iterations used.
+  const T* channel = nullptr;  // n x lanes
+  T* posterior = nullptr;      // n x lanes
+  T* messages = nullptr;       // edges x lanes (check-to-variable)
+  T* scratch = nullptr;        // 3 x max_degree x lanes
+  std::int32_t* iterations_used = nullptr;  // lanes
+};
+
+// Lanes per vector for the dispatched target.
+std::size_t float_lanes();
+std::size_t int16_lanes();
+std::size_t int8_lanes();
+void layered_float(const LayeredArgs<float>& args);
+void layered_int16(const LayeredArgs<std::int16_t>& args);
+void layered_int8(const LayeredArgs<std::int8_t>& args);
+
+}  // namespace tannery::detail

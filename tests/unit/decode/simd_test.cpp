@@ -1,0 +1,140 @@
+#include <catch2/catch.hpp>
+#include <cmath>
+
+#include "tannery/decode/decoder.hpp"
+#include "test_support.hpp"
+
+using namespace tannery;
+
+namespace {
+
+struct Out {
+  std::vector<std::uint8_t> hard;
+  std::vector<double> posterior;
+  std::vector<FrameOutcome> outcome;
+};
+
+Out decode(const Code& code, const DecoderSettings& s, const std::vector<double>& llr) {
+  const std::size_t frames = llr.size() / code.n();
+  Out o{std::vector<std::uint8_t>(llr.size()), std::vector<double>(llr.size()), std::vector<FrameOutcome>(frames)};
+  make_decoder(code, s)->decode(llr, o.hard, o.posterior, o.outcome);
+  return o;
+}
+
+std::vector<double> noisy(const Code& code, std::size_t frames, std::uint64_t seed, double mean, double spread) {
+  test::Gaussian g(seed);
+  std::vector<double> llr(code.n() * frames);
+  for (auto& x : llr) x = mean + spread * g();
+  return llr;
+}
+
+// Restores automatic target choice when a test ends, even on failure.
+struct TargetGuard {
+  ~TargetGuard() { force_simd_target(""); }
+};
+
+}  // namespace
+
+TEST_CASE("fixed-point SIMD kernels match the scalar fixed-point reference bit for bit on every target", "[simd]") {
+  TargetGuard guard;
+  const std::vector<std::string> targets = simd_targets();
+  REQUIRE(!targets.empty());
+  INFO("targets: " << targets.size());
+  const std::vector<Code> codes = {test::shipped("qc-rate-half-z54.qc"), test::random_code(40, 90, 0.07, 3),
+                                   test::shipped("hamming-15-11.tanner")};
+  const std::vector<std::string> specs = {"6.2", "5.1:5:7", "8.3:8:8", "6.2:6:12", "4.1:4:16"};
+  const Algorithm algorithms[] = {Algorithm::min_sum, Algorithm::normalized_min_sum, Algorithm::offset_min_sum};
+  std::uint64_t seed = 1;
+  for (const Code& code : codes) {
+    for (const auto& spec : specs) {
+      for (Algorithm a : algorithms) {
+        for (bool early : {true, false}) {
+          DecoderSettings s;
+          s.algorithm = a;
+          s.schedule = Schedule::layered;
+          s.iterations = 12;
+          s.early_stop = early;
+          s.alpha = 0.625;
+          s.beta = 0.5;
+          s.quantization = parse_quantization(spec);
+          // Frames not a multiple of any lane count, LLRs from clean to hopeless, with infinities.
+          auto llr = noisy(code, 37, ++seed, 1.0, 2.5);
+          llr[5] = INFINITY;
+          llr[code.n() + 3] = -INFINITY;
+          const Out reference = decode(code, s, llr);
+          s.kernel = Kernel::simd;
+          for (const auto& target : targets) {
+            force_simd_target(target);
+            const Out simd = decode(code, s, llr);
+            INFO("target " << target << " spec " << spec << " algorithm " << algorithm_name(a) << " early " << early);
+            REQUIRE(simd.hard == reference.hard);
+            REQUIRE(simd.posterior == reference.posterior);
+            for (std::size_t f = 0; f < simd.outcome.size(); ++f) {
+              REQUIRE(simd.outcome[f].iterations == reference.outcome[f].iterations);
+              REQUIRE(simd.outcome[f].syndrome_weight == reference.outcome[f].syndrome_weight);
+            }
+          }
+          force_simd_target("");
+        }
+      }
+    }
+  }
+}
+
+TEST_CASE("float SIMD kernels agree with the double reference within tolerance on every target", "[simd]") {
+  // Stated tolerance: float32 arithmetic and, for sum-product, tanh products kept below
+  // 1 - 2^-23 (messages near +-16.6 at most). Decisions must be identical on frames both converge;
+  // posteriors of min-sum agree to 1e-3 relative on frames that converge.
+  TargetGuard guard;
+  const Code code = test::shipped("qc-rate-half-z54.qc");
+  for (Algorithm a : {Algorithm::min_sum, Algorithm::normalized_min_sum, Algorithm::offset_min_sum, Algorithm::sum_product}) {
+    DecoderSettings s;
+    s.algorithm = a;
+    s.schedule = Schedule::layered;
+    s.iterations = 30;
+    const auto llr = noisy(code, 45, 99, 3.0, 2.45);  // consistent Gaussian LLRs (var = 2 mean), ~2 dB
+    const Out reference = decode(code, s, llr);
+    s.kernel = Kernel::simd;
+    for (const auto& target : simd_targets()) {
+      force_simd_target(target);
+      const Out simd = decode(code, s, llr);
+      std::size_t both = 0;
+      for (std::size_t f = 0; f < simd.outcome.size(); ++f) {
+        if (!simd.outcome[f].converged || !reference.outcome[f].converged) continue;
+        ++both;
+        INFO("target " << target << " algorithm " << algorithm_name(a) << " frame " << f);
+        for (std::size_t v = 0; v < code.n(); ++v) {
+          REQUIRE(simd.hard[f * code.n() + v] == reference.hard[f * code.n() + v]);
+        }
+      }
+      CHECK(both > 30);  // most frames converge at this SNR
+    }
+    force_simd_target("");
+  }
+}
+
+TEST_CASE("the quantize SPEC syntax", "[simd]") {
+  const auto q = parse_quantization("5.1:5:7");
+  REQUIRE(q);
+  CHECK(q->channel_bits == 5);
+  CHECK(q->fraction_bits == 1);
+  CHECK(q->message_bits == 5);
+  CHECK(q->posterior_bits == 7);
+  CHECK(parse_quantization("6.2")->posterior_bits == 8);
+  CHECK_FALSE(parse_quantization("6"));
+  CHECK_FALSE(parse_quantization("6.2:5"));
+  CHECK_FALSE(parse_quantization("a.b"));
+  DecoderSettings s;
+  s.algorithm = Algorithm::sum_product;
+  s.schedule = Schedule::layered;
+  s.quantization = parse_quantization("6.2");
+  CHECK_THROWS_WITH(make_decoder(test::shipped("hamming-7-4.tanner"), s), Catch::Contains("min-sum"));
+  s.algorithm = Algorithm::min_sum;
+  s.quantization = parse_quantization("6.2:6:20");
+  CHECK_THROWS_WITH(make_decoder(test::shipped("hamming-7-4.tanner"), s), Catch::Contains("impossible quantization"));
+  s.quantization.reset();
+  s.kernel = Kernel::simd;
+  s.schedule = Schedule::flooding;
+  CHECK_THROWS_WITH(make_decoder(test::shipped("hamming-7-4.tanner"), s), Catch::Contains("layered"));
+  CHECK_THROWS_WITH(force_simd_target("NOPE"), Catch::Contains("not available here"));
+}
