@@ -4,7 +4,6 @@
 #include <fmt/format.h>
 #include <algorithm>
 #include <hwy/aligned_allocator.h>
-#include <hwy/highway.h>
 #include <hwy/targets.h>
 #include <vector>
 
@@ -14,42 +13,19 @@
 
 namespace tannery {
 
-namespace {
-
-std::int64_t target_by_name(const std::string& name) {
-  for (std::int64_t t : hwy::SupportedAndGeneratedTargets()) {
-    if (name == hwy::TargetName(t)) return t;
-  }
-  return 0;
-}
-
-}  // namespace
-
-std::vector<std::string> simd_targets() {
-  std::vector<std::string> names;
-  for (std::int64_t t : hwy::SupportedAndGeneratedTargets()) names.emplace_back(hwy::TargetName(t));
-  return names;
-}
+std::vector<std::string> simd_targets() { return detail::kernel_targets(); }
 
 void force_simd_target(const std::string& name) {
-  if (name.empty()) {
-    hwy::SetSupportedTargetsForTest(0);
-  } else {
-    hwy::SetSupportedTargetsForTest(0);
-    const std::int64_t target = target_by_name(name);
-    if (target == 0) {
-      std::string known;
-      for (const auto& n : simd_targets()) known += (known.empty() ? "" : ", ") + n;
-      throw Error(fmt::format("SIMD target '{}' is not available here (available: {})", name, known));
-    }
-    hwy::SetSupportedTargetsForTest(target);
+  if (!detail::force_kernel_target(name)) {
+    std::string known;
+    for (const auto& n : simd_targets()) known += (known.empty() ? "" : ", ") + n;
+    throw Error(fmt::format("SIMD target '{}' is not available here (available: {})", name, known));
   }
-  hwy::GetChosenTarget().Update(hwy::SupportedTargets());
 }
 
 std::string active_simd_target() {
-  const auto targets = hwy::SupportedAndGeneratedTargets();
-  return targets.empty() ? std::string("none") : std::string(hwy::TargetName(targets.front()));
+  const auto targets = simd_targets();
+  return targets.empty() ? std::string("none") : targets.front();
 }
 
 namespace detail {

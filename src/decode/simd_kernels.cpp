@@ -8,7 +8,9 @@
 
 #include <hwy/contrib/math/math-inl.h>
 #include <hwy/highway.h>
+#include <string>
 #include <type_traits>
+#include <vector>
 
 #include "src/decode/simd_kernels.hpp"
 
@@ -188,6 +190,27 @@ std::size_t int8_lanes() { return HWY_DYNAMIC_DISPATCH(Int8Lanes)(); }
 void layered_float(const LayeredArgs<float>& a) { HWY_DYNAMIC_DISPATCH(LayeredFloat)(a); }
 void layered_int16(const LayeredArgs<std::int16_t>& a) { HWY_DYNAMIC_DISPATCH(LayeredInt16)(a); }
 void layered_int8(const LayeredArgs<std::int8_t>& a) { HWY_DYNAMIC_DISPATCH(LayeredInt8)(a); }
+
+// In this file HWY_TARGETS lists every target compiled for the kernels above.
+std::vector<std::string> kernel_targets() {
+  std::vector<std::string> names;
+  for (std::int64_t t : hwy::SupportedAndGeneratedTargets()) names.emplace_back(hwy::TargetName(t));
+  return names;
+}
+
+bool force_kernel_target(const std::string& name) {
+  hwy::SetSupportedTargetsForTest(0);
+  if (!name.empty()) {
+    std::int64_t chosen = 0;
+    for (std::int64_t t : hwy::SupportedAndGeneratedTargets()) {
+      if (name == hwy::TargetName(t)) chosen = t;
+    }
+    if (chosen == 0) return false;
+    hwy::SetSupportedTargetsForTest(chosen);
+  }
+  hwy::GetChosenTarget().Update(hwy::SupportedTargets());
+  return true;
+}
 
 }  // namespace tannery::detail
 #endif

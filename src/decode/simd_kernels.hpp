@@ -4,6 +4,8 @@
 
 #include <cstddef>
 #include <cstdint>
+#include <string>
+#include <vector>
 
 namespace tannery::detail {
 
@@ -40,5 +42,9 @@ std::size_t int8_lanes();
 void layered_float(const LayeredArgs<float>& args);
 void layered_int16(const LayeredArgs<std::int16_t>& args);
 void layered_int8(const LayeredArgs<std::int8_t>& args);
+// Targets the kernels were compiled for and this CPU supports, best first; restricting dispatch
+// to one of them (empty name: automatic). false when the name is unknown.
+std::vector<std::string> kernel_targets();
+bool force_kernel_target(const std::string& name);
 
 }  // namespace tannery::detail
