@@ -18,8 +18,8 @@
 namespace tannery::detail {
 
 std::int32_t quantize_llr(double llr, const Quantization& q) {
-  const double limit = std::ldexp(1.0, q.channel_bits - 1) - 1;
-  const double x = llr * std::ldexp(1.0, q.fraction_bits);
+  const double limit = static_cast<double>((1 << (q.channel_bits - 1)) - 1);
+  const double x = llr * static_cast<double>(1 << q.fraction_bits);  // exact: a power of two
   if (!(x < limit)) return static_cast<std::int32_t>(limit);
   if (!(x > -limit)) return static_cast<std::int32_t>(-limit);
   return static_cast<std::int32_t>(std::nearbyint(x));

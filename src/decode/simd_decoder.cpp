@@ -66,6 +66,8 @@ class Batched final : public Decoder {
       args_.alpha_eighths = static_cast<int>(std::lround(std::clamp(settings.alpha, 0.0, 1.0) * 8));
       args_.beta_lsb = static_cast<int>(std::lround(settings.beta * std::ldexp(1.0, q.fraction_bits)));
       args_.message_limit = (1 << (q.message_bits - 1)) - 1;
+      scale_ = static_cast<double>(1 << q.fraction_bits);
+      limit_ = static_cast<double>((1 << (q.channel_bits - 1)) - 1);
       args_.posterior_limit = (1 << (q.posterior_bits - 1)) - 1;
     }
     // Aligned buffers (Highway's Load needs vector alignment).
@@ -74,6 +76,8 @@ class Batched final : public Decoder {
     messages_ = hwy::AllocateAligned<T>(std::max<std::size_t>(code.edges(), 1) * lanes_);
     scratch_ = hwy::AllocateAligned<T>(3 * args_.max_degree * lanes_);
     iterations_.resize(lanes_);
+    syndrome_.resize(lanes_);
+    args_.syndrome_weight = syndrome_.data();
     args_.channel = channel_.get();
     args_.posterior = posterior_.get();
     args_.messages = messages_.get();
@@ -102,7 +106,7 @@ class Batched final : public Decoder {
           if constexpr (std::is_same_v<T, float>) {
             row[l] = static_cast<float>(clip_llr(x));
           } else {
-            row[l] = static_cast<T>(quantize_llr(x, *settings_.quantization));
+            row[l] = static_cast<T>(quantize(x));
           }
         }
       }
@@ -119,17 +123,28 @@ class Batched final : public Decoder {
         }
         FrameOutcome& o = outcome[f];
         o.iterations = iterations_[l];
-        o.syndrome_weight = static_cast<std::uint32_t>(syndrome_weight(code_, std::span<const std::uint8_t>(h, n)));
+        o.syndrome_weight = static_cast<std::uint32_t>(syndrome_[l]);
         o.converged = o.syndrome_weight == 0;
       }
     }
   }
 
  private:
+  // quantize_llr with the constants hoisted; rounding to nearest-even by adding and removing
+  // 1.5 * 2^52 (exact for |x| < 2^51, identical to nearbyint in the default rounding mode).
+  std::int32_t quantize(double llr) const {
+    const double x = llr * scale_;
+    if (!(x < limit_)) return static_cast<std::int32_t>(limit_);
+    if (!(x > -limit_)) return static_cast<std::int32_t>(-limit_);
+    volatile double shifted = x + 6755399441055744.0;  // volatile: keep the rounding step
+    return static_cast<std::int32_t>(shifted - 6755399441055744.0);
+  }
+
   std::size_t lanes_ = 1;
+  double scale_ = 1, limit_ = 0;
   std::vector<std::uint32_t> check_start_, edge_var_;
   hwy::AlignedFreeUniquePtr<T[]> channel_, posterior_, messages_, scratch_;
-  std::vector<std::int32_t> iterations_;
+  std::vector<std::int32_t> iterations_, syndrome_;
   LayeredArgs<T> args_;
 };
 

@@ -44,46 +44,59 @@ void Layered(D d, const LayeredArgs<hn::TFromD<D>>& a) {
   using V = hn::Vec<D>;
   constexpr bool kFloat = std::is_floating_point_v<T>;
   const hn::RebindToSigned<D> di;
+  using TI = hn::TFromD<decltype(di)>;
   using VI = hn::Vec<decltype(di)>;
-  const std::size_t L = a.lanes;
+  // Everything the loops use is copied to locals: int8 stores may alias any object, so fields
+  // read through `a` would be reloaded after every store.
+  const std::size_t L = a.lanes, n = a.n, m = a.m;
+  const std::uint32_t* const check_start = a.check_start;
+  const std::uint32_t* const edge_var = a.edge_var;
+  T* const post = a.posterior;
+  T* const msg = a.messages;
+  T* const t_store = a.scratch;             // extrinsic inputs of the check, per edge
+  T* const fwd = a.scratch + a.max_degree * L;  // sum-product prefix products
+  const int iterations = a.iterations;
+  const bool early_stop = a.early_stop;
+  const CheckRule rule = a.rule;
+  const int shrink = 8 - a.alpha_eighths;
   HWY_DASSERT(L == hn::Lanes(d));
 
-  for (std::size_t i = 0; i < a.n * L; i += L) hn::Store(hn::Load(d, a.channel + i), d, a.posterior + i);
-  const std::size_t edges = a.check_start[a.m];
-  for (std::size_t i = 0; i < edges * L; i += L) hn::Store(hn::Zero(d), d, a.messages + i);
-  for (std::size_t l = 0; l < L; ++l) a.iterations_used[l] = a.iterations;
-
-  T* t_store = a.scratch;                      // extrinsic inputs of the check, per edge
-  T* fwd = a.scratch + a.max_degree * L;       // sum-product prefix products
-  VI done = hn::Zero(di);                      // lanes that met the early-stop rule
   const V zero = hn::Zero(d);
-  for (int it = 1; it <= a.iterations; ++it) {
+  const T init = kFloat ? T(1e5) : static_cast<T>(a.message_limit);
+  const V v_init = hn::Set(d, init);
+  const V m_lo = hn::Set(d, static_cast<T>(-a.message_limit)), m_hi = hn::Set(d, static_cast<T>(a.message_limit));
+  const V p_lo = hn::Set(d, static_cast<T>(-a.posterior_limit)), p_hi = hn::Set(d, static_cast<T>(a.posterior_limit));
+  const V v_alpha = hn::Set(d, static_cast<T>(a.alpha)), v_beta = hn::Set(d, static_cast<T>(a.beta));
+  const V v_beta_lsb = hn::Set(d, static_cast<T>(a.beta_lsb));
+  const VI one_i = hn::Set(di, TI(1)), zero_i = hn::Zero(di);
+
+  for (std::size_t i = 0; i < n * L; i += L) hn::Store(hn::Load(d, a.channel + i), d, post + i);
+  const std::size_t edges = check_start[m];
+  for (std::size_t i = 0; i < edges * L; i += L) hn::Store(zero, d, msg + i);
+  for (std::size_t l = 0; l < L; ++l) a.iterations_used[l] = iterations;
+
+  VI done = zero_i;  // lanes that met the early-stop rule
+  for (int it = 1; it <= iterations; ++it) {
     const auto frozen = hn::MaskFromVec(hn::BitCast(d, done));
-    for (std::size_t c = 0; c < a.m; ++c) {
-      const std::uint32_t b = a.check_start[c], deg = a.check_start[c + 1] - b;
+    const bool any_frozen = !hn::AllTrue(di, hn::Eq(done, zero_i));
+    // Stores a new value, keeping lanes that already stopped (only when some have).
+    auto keep = [&](T* where, V value) {
+      hn::Store(any_frozen ? hn::IfThenElse(frozen, hn::Load(d, where), value) : value, d, where);
+    };
+    for (std::size_t c = 0; c < m; ++c) {
+      const std::uint32_t b = check_start[c], deg = check_start[c + 1] - b;
       if (deg == 0) continue;
-      // Extrinsic values t = P - R_old.
-      for (std::uint32_t i = 0; i < deg; ++i) {
-        const std::size_t v = a.edge_var[b + i];
-        const V p = hn::Load(d, a.posterior + v * L), r_old = hn::Load(d, a.messages + (b + i) * L);
-        V t;
-        if constexpr (kFloat) {
-          t = hn::Sub(p, r_old);
-        } else {
-          // Saturating: with full-width messages P - R can leave the lane's range.
-          t = clamp_to(d, hn::SaturatedSub(p, r_old), a.message_limit);
-        }
-        hn::Store(t, d, t_store + i * L);
-      }
       if constexpr (kFloat) {
-        if (a.rule == CheckRule::sum_product) {
+        if (rule == CheckRule::sum_product) {
           // tanh rule with prefix/suffix products; |product| kept below 1 - 2^-23 so atanh is finite.
           const V half = hn::Set(d, T(0.5)), two = hn::Set(d, T(2)), cap = hn::Set(d, T(1 - 1.0 / (1 << 23)));
           V running = hn::Set(d, T(1));
           for (std::uint32_t i = 0; i < deg; ++i) {
+            const std::size_t v = edge_var[b + i];
+            const V t = hn::Sub(hn::Load(d, post + v * L), hn::Load(d, msg + (b + i) * L));
             hn::Store(running, d, fwd + i * L);
-            const V th = hn::Tanh(d, hn::Mul(half, hn::Load(d, t_store + i * L)));
-            hn::Store(th, d, t_store + i * L);  // t_store now holds tanh(t/2)
+            const V th = hn::Tanh(d, hn::Mul(half, t));
+            hn::Store(th, d, t_store + i * L);
             running = hn::Mul(running, th);
           }
           V backward = hn::Set(d, T(1));
@@ -92,75 +105,108 @@ void Layered(D d, const LayeredArgs<hn::TFromD<D>>& a) {
             V prod = hn::Mul(hn::Load(d, fwd + i * L), backward);
             backward = hn::Mul(backward, th);
             prod = hn::Min(hn::Max(prod, hn::Neg(cap)), cap);
-            V r = deg == 1 ? hn::Set(d, T(1e5)) : hn::Mul(two, hn::Atanh(d, prod));
-            const std::size_t v = a.edge_var[b + i];
-            // Recover t from tanh(t/2) would lose precision: recompute t = P - R_old instead.
-            const V t = hn::Sub(hn::Load(d, a.posterior + v * L), hn::Load(d, a.messages + (b + i) * L));
-            const V r_old = hn::Load(d, a.messages + (b + i) * L);
-            const V p_old = hn::Load(d, a.posterior + v * L);
-            hn::Store(hn::IfThenElse(frozen, r_old, r), d, a.messages + (b + i) * L);
-            hn::Store(hn::IfThenElse(frozen, p_old, hn::Add(t, r)), d, a.posterior + v * L);
+            const V r = deg == 1 ? v_init : hn::Mul(two, hn::Atanh(d, prod));
+            const std::size_t v = edge_var[b + i];
+            // Recovering t from tanh(t/2) would lose precision: recompute t = P - R_old.
+            const V t = hn::Sub(hn::Load(d, post + v * L), hn::Load(d, msg + (b + i) * L));
+            keep(msg + (b + i) * L, r);
+            keep(post + v * L, hn::Add(t, r));
           }
           continue;
         }
       }
-      // Min-sum family: two smallest magnitudes, the position of the smallest, sign parity.
-      const T init = kFloat ? T(1e5) : static_cast<T>(a.message_limit);
-      V min1 = hn::Set(d, init), min2 = min1;
-      VI at = hn::Zero(di), parity = hn::Zero(di);
-      for (std::uint32_t i = 0; i < deg; ++i) {
-        const V t = hn::Load(d, t_store + i * L);
+      // Min-sum family, pass 1: extrinsic t = P - R_old, the two smallest |t|, the position of
+      // the smallest (first occurrence wins ties), the parity of the signs.
+      V min1 = v_init, min2 = v_init;
+      VI at = zero_i, parity = zero_i, index = zero_i;
+      for (std::uint32_t i = 0; i < deg; ++i, index = hn::Add(index, one_i)) {
+        const std::size_t v = edge_var[b + i];
+        const V p = hn::Load(d, post + v * L), r_old = hn::Load(d, msg + (b + i) * L);
+        V t;
+        if constexpr (kFloat) {
+          t = hn::Sub(p, r_old);
+        } else {
+          // Saturating: with full-width messages P - R can leave the lane's range.
+          t = hn::Min(hn::Max(hn::SaturatedSub(p, r_old), m_lo), m_hi);
+        }
+        hn::Store(t, d, t_store + i * L);
         const V mag = hn::Abs(t);
         const auto lt1 = hn::Lt(mag, min1);
         min2 = hn::IfThenElse(lt1, min1, hn::Min(min2, mag));
         min1 = hn::IfThenElse(lt1, mag, min1);
-        at = hn::IfThenElse(hn::RebindMask(di, lt1), hn::Set(di, static_cast<hn::TFromD<decltype(di)>>(i)), at);
-        parity = hn::Xor(parity, hn::VecFromMask(di, hn::RebindMask(di, hn::Lt(t, zero))));
+        at = hn::IfThenElse(hn::RebindMask(di, lt1), index, at);
+        parity = hn::Xor(parity, hn::BitCast(di, t));
       }
-      for (std::uint32_t i = 0; i < deg; ++i) {
-        const V t = hn::Load(d, t_store + i * L);
-        const auto is_min = hn::RebindMask(d, hn::Eq(at, hn::Set(di, static_cast<hn::TFromD<decltype(di)>>(i))));
-        V mag = deg == 1 ? hn::Set(d, init) : hn::IfThenElse(is_min, min2, min1);
-        if constexpr (kFloat) {
-          if (a.rule == CheckRule::normalized) mag = hn::Mul(mag, hn::Set(d, a.alpha));
-          if (a.rule == CheckRule::offset) mag = hn::Max(hn::Sub(mag, hn::Set(d, a.beta)), zero);
-        } else {
-          if (a.rule == CheckRule::normalized) mag = hn::Sub(mag, times_eighths(d, mag, 8 - a.alpha_eighths));
-          if (a.rule == CheckRule::offset) mag = hn::Max(hn::Sub(mag, hn::Set(d, static_cast<T>(a.beta_lsb))), zero);
+      // Pass 2: the new messages and posteriors.
+      if (deg == 1) min1 = min2 = v_init;  // a check with one edge sends the saturation value
+      V mag1 = min1, mag2 = min2;
+      if constexpr (kFloat) {
+        if (rule == CheckRule::normalized) mag1 = hn::Mul(mag1, v_alpha), mag2 = hn::Mul(mag2, v_alpha);
+        if (rule == CheckRule::offset) {
+          mag1 = hn::Max(hn::Sub(mag1, v_beta), zero);
+          mag2 = hn::Max(hn::Sub(mag2, v_beta), zero);
         }
-        const VI sign = hn::Xor(parity, hn::VecFromMask(di, hn::RebindMask(di, hn::Lt(t, zero))));
-        const V r = hn::IfThenElse(hn::RebindMask(d, hn::Lt(sign, hn::Zero(di))), hn::Neg(mag), mag);
-        const std::size_t v = a.edge_var[b + i];
+      } else {
+        if (rule == CheckRule::normalized) {
+          mag1 = hn::Sub(mag1, times_eighths(d, mag1, shrink));
+          mag2 = hn::Sub(mag2, times_eighths(d, mag2, shrink));
+        }
+        if (rule == CheckRule::offset) {
+          mag1 = hn::Max(hn::Sub(mag1, v_beta_lsb), zero);
+          mag2 = hn::Max(hn::Sub(mag2, v_beta_lsb), zero);
+        }
+      }
+      index = zero_i;
+      for (std::uint32_t i = 0; i < deg; ++i, index = hn::Add(index, one_i)) {
+        const V t = hn::Load(d, t_store + i * L);
+        const V mag = hn::IfThenElse(hn::RebindMask(d, hn::Eq(at, index)), mag2, mag1);
+        // Sign of the other edges: parity of all signs with this edge's own removed.
+        const VI sign = hn::Xor(parity, hn::BitCast(di, t));
+        const V r = hn::IfThenElse(hn::RebindMask(d, hn::Lt(sign, zero_i)), hn::Neg(mag), mag);
+        const std::size_t v = edge_var[b + i];
         V p;
         if constexpr (kFloat) {
           p = hn::Add(t, r);
         } else {
-          p = clamp_to(d, hn::SaturatedAdd(t, r), a.posterior_limit);
+          p = hn::Min(hn::Max(hn::SaturatedAdd(t, r), p_lo), p_hi);
         }
-        hn::Store(hn::IfThenElse(frozen, hn::Load(d, a.messages + (b + i) * L), r), d, a.messages + (b + i) * L);
-        hn::Store(hn::IfThenElse(frozen, hn::Load(d, a.posterior + v * L), p), d, a.posterior + v * L);
+        keep(msg + (b + i) * L, r);
+        keep(post + v * L, p);
       }
     }
-    if (!a.early_stop) continue;
+    if (!early_stop) continue;
     // Vectorised syndrome: a lane is satisfied when every check has even parity of negatives.
-    VI unsatisfied = hn::Zero(di);
-    for (std::size_t c = 0; c < a.m; ++c) {
-      VI par = hn::Zero(di);
-      for (std::uint32_t e = a.check_start[c]; e < a.check_start[c + 1]; ++e) {
-        par = hn::Xor(par, hn::VecFromMask(di, hn::RebindMask(di, hn::Lt(hn::Load(d, a.posterior + a.edge_var[e] * L), zero))));
+    VI unsatisfied = zero_i;
+    for (std::size_t c = 0; c < m; ++c) {
+      VI par = zero_i;
+      for (std::uint32_t e = check_start[c]; e < check_start[c + 1]; ++e) {
+        par = hn::Xor(par, hn::BitCast(di, hn::Load(d, post + edge_var[e] * L)));
       }
       unsatisfied = hn::Or(unsatisfied, par);
     }
-    const VI newly = hn::AndNot(done, hn::VecFromMask(di, hn::Eq(unsatisfied, hn::Zero(di))));
-    if (!hn::AllTrue(di, hn::Eq(newly, hn::Zero(di)))) {
-      alignas(64) hn::TFromD<decltype(di)> flags[hn::MaxLanes(di)];
+    // The sign bit of the XOR of all posteriors of a check is the parity of its negatives.
+    const VI newly = hn::AndNot(done, hn::AndNot(hn::VecFromMask(di, hn::Lt(unsatisfied, zero_i)), hn::Set(di, TI(-1))));
+    if (!hn::AllTrue(di, hn::Eq(newly, zero_i))) {
+      alignas(64) TI flags[hn::MaxLanes(di)];
       hn::Store(newly, di, flags);
       for (std::size_t l = 0; l < L; ++l) {
         if (flags[l]) a.iterations_used[l] = it;
       }
       done = hn::Or(done, newly);
     }
-    if (hn::AllTrue(di, hn::Lt(done, hn::Zero(di)))) break;
+    if (hn::AllTrue(di, hn::Lt(done, zero_i))) break;
+  }
+  // Syndrome weight per lane at exit.
+  alignas(64) TI par_lanes[hn::MaxLanes(di)];
+  for (std::size_t l = 0; l < L; ++l) a.syndrome_weight[l] = 0;
+  for (std::size_t c = 0; c < m; ++c) {
+    VI par = zero_i;
+    for (std::uint32_t e = check_start[c]; e < check_start[c + 1]; ++e) {
+      par = hn::Xor(par, hn::BitCast(di, hn::Load(d, post + edge_var[e] * L)));
+    }
+    if (hn::AllFalse(di, hn::Lt(par, zero_i))) continue;
+    hn::Store(par, di, par_lanes);
+    for (std::size_t l = 0; l < L; ++l) a.syndrome_weight[l] += par_lanes[l] < 0;
   }
 }
 

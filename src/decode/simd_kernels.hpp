@@ -33,6 +33,7 @@ struct LayeredArgs {
   T* messages = nullptr;       // edges x lanes (check-to-variable)
   T* scratch = nullptr;        // 3 x max_degree x lanes
   std::int32_t* iterations_used = nullptr;  // lanes
+  std::int32_t* syndrome_weight = nullptr;  // lanes: unsatisfied checks at exit
 };
 
 // Lanes per vector for the dispatched target.
