@@ -135,7 +135,9 @@ void Decoder::decode(std::span<const double> llr, std::span<std::uint8_t> hard,
   const std::size_t n = code_.n(), frames = outcome.size();
   TANNERY_ASSERT(llr.size() == frames * n && hard.size() == frames * n);
   TANNERY_ASSERT(posterior.empty() || posterior.size() == frames * n);
-  for (std::size_t i = 0; i < llr.size(); ++i) {
+  bool any_nan = false;  // a branch-free pass first (it vectorises), the search only on failure
+  for (double x : llr) any_nan |= x != x;
+  for (std::size_t i = 0; any_nan && i < llr.size(); ++i) {
     if (std::isnan(llr[i])) {
       throw Error(
           fmt::format("frame {}, position {}: channel LLR is NaN", first_frame + i / n, i % n));

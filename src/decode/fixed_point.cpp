@@ -1,8 +1,10 @@
 // The scalar fixed-point reference: layered min-sum family on integers, the definition that the
 // integer SIMD kernels match bit for bit.
 //
-// Per check, for each of its edges e (variable v):  t = sat_M(P[v] - R[e]).
-// m1, m2 = the two smallest |t| (first occurrence wins ties), i = position of m1, s = parity of
+// Per check, for each of its edges e (variable v):  t = sat_P(P[v] - R[e]) (kept at posterior
+// width: clamping it to the message width would drop the channel value of degree-2 variables)
+// and its magnitude for the check a = min(|t|, 2^(M-1) - 1).
+// m1, m2 = the two smallest a (first occurrence wins ties), i = position of m1, s = parity of
 // the signs (t < 0). New message magnitude: m2 at position i, m1 elsewhere (a check with one
 // edge sends the saturation value); then
 //   normalized: m - floor(m * (8 - a) / 8), a = round(8 alpha)   (alpha 0.75: m - floor(m / 4))
@@ -54,8 +56,8 @@ class FixedPoint final : public Decoder {
         std::size_t at = 0;
         bool negative = false;
         for (std::size_t i = 0; i < d; ++i) {
-          t_[i] = saturate(static_cast<std::int64_t>(posterior_[vars[i]]) - messages_[b + i], q_.message_bits);
-          const int a = std::abs(t_[i]);
+          t_[i] = saturate(static_cast<std::int64_t>(posterior_[vars[i]]) - messages_[b + i], q_.posterior_bits);
+          const int a = std::min(std::abs(t_[i]), limit_m);
           negative ^= t_[i] < 0;
           if (a < m1) {
             m2 = m1;

@@ -99,14 +99,15 @@ class Batched final : public Decoder {
     const double scale = settings_.quantization ? std::ldexp(1.0, -settings_.quantization->fraction_bits) : 1.0;
     for (std::size_t first = 0; first < frames; first += lanes_) {
       const std::size_t count = std::min(lanes_, frames - first);
-      for (std::size_t v = 0; v < n; ++v) {
-        T* row = channel_.get() + v * lanes_;
-        for (std::size_t l = 0; l < lanes_; ++l) {
-          const double x = l < count ? llr[(first + l) * n + v] : 0.0;  // idle lanes decode zeros
+      T* lanes = channel_.get();
+      for (std::size_t l = 0; l < lanes_; ++l) {  // frame by frame: sequential reads
+        const double* frame = llr.data() + (first + l) * n;
+        for (std::size_t v = 0; v < n; ++v) {
+          const double x = l < count ? frame[v] : 0.0;  // idle lanes decode zeros
           if constexpr (std::is_same_v<T, float>) {
-            row[l] = static_cast<float>(clip_llr(x));
+            lanes[v * lanes_ + l] = static_cast<float>(clip_llr(x));
           } else {
-            row[l] = static_cast<T>(quantize(x));
+            lanes[v * lanes_ + l] = static_cast<T>(quantize(x));
           }
         }
       }
@@ -130,14 +131,12 @@ class Batched final : public Decoder {
   }
 
  private:
-  // quantize_llr with the constants hoisted; rounding to nearest-even by adding and removing
-  // 1.5 * 2^52 (exact for |x| < 2^51, identical to nearbyint in the default rounding mode).
+  // quantize_llr with the constants hoisted (rint and nearbyint round alike; rint inlines).
   std::int32_t quantize(double llr) const {
     const double x = llr * scale_;
     if (!(x < limit_)) return static_cast<std::int32_t>(limit_);
     if (!(x > -limit_)) return static_cast<std::int32_t>(-limit_);
-    volatile double shifted = x + 6755399441055744.0;  // volatile: keep the rounding step
-    return static_cast<std::int32_t>(shifted - 6755399441055744.0);
+    return static_cast<std::int32_t>(std::rint(x));  // default rounding mode: nearest, ties to even
   }
 
   std::size_t lanes_ = 1;

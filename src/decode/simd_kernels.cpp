@@ -64,7 +64,7 @@ void Layered(D d, const LayeredArgs<hn::TFromD<D>>& a) {
   const V zero = hn::Zero(d);
   const T init = kFloat ? T(1e5) : static_cast<T>(a.message_limit);
   const V v_init = hn::Set(d, init);
-  const V m_lo = hn::Set(d, static_cast<T>(-a.message_limit)), m_hi = hn::Set(d, static_cast<T>(a.message_limit));
+  const V m_hi = hn::Set(d, static_cast<T>(a.message_limit));
   const V p_lo = hn::Set(d, static_cast<T>(-a.posterior_limit)), p_hi = hn::Set(d, static_cast<T>(a.posterior_limit));
   const V v_alpha = hn::Set(d, static_cast<T>(a.alpha)), v_beta = hn::Set(d, static_cast<T>(a.beta));
   const V v_beta_lsb = hn::Set(d, static_cast<T>(a.beta_lsb));
@@ -126,11 +126,13 @@ void Layered(D d, const LayeredArgs<hn::TFromD<D>>& a) {
         if constexpr (kFloat) {
           t = hn::Sub(p, r_old);
         } else {
-          // Saturating: with full-width messages P - R can leave the lane's range.
-          t = hn::Min(hn::Max(hn::SaturatedSub(p, r_old), m_lo), m_hi);
+          // At posterior width (saturating: P - R can leave the lane's range); the check sees
+          // the magnitude saturated to the message width.
+          t = hn::Min(hn::Max(hn::SaturatedSub(p, r_old), p_lo), p_hi);
         }
         hn::Store(t, d, t_store + i * L);
-        const V mag = hn::Abs(t);
+        V mag = hn::Abs(t);
+        if constexpr (!kFloat) mag = hn::Min(mag, m_hi);
         const auto lt1 = hn::Lt(mag, min1);
         min2 = hn::IfThenElse(lt1, min1, hn::Min(min2, mag));
         min1 = hn::IfThenElse(lt1, mag, min1);
