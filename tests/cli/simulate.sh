@@ -30,6 +30,19 @@ for p in j["points"]:
     assert p["fer_low"] <= p["fer"] <= p["fer_high"]
 PY
 
+# Fixed-point SIMD decoding: identical counts for any thread count and any forced SIMD target.
+FX=(--code qc-rate-half-z54 --algorithm offset-min-sum --schedule layered --kernel simd --quantize 6.2
+    --sweep 2,2.5 --frame-errors 40 --max-frames 3000 --plot "" --quiet)
+"$T" simulate "${FX[@]}" --threads 1 --output fx1.json || fail "fixed-point 1 thread"
+"$T" simulate "${FX[@]}" --threads 2 --output fx2.json || fail "fixed-point 2 threads"
+[ "$(counts fx1.json)" = "$(counts fx2.json)" ] || fail "fixed-point counts differ between 1 and 2 threads"
+TARGETS=$("$T" simulate --simd-target list 2>&1 | sed -n 's/.*(available: \(.*\))/\1/p' | tr -d ',')
+[ -n "$TARGETS" ] || fail "no SIMD target listed"
+for target in $TARGETS; do
+  "$T" simulate "${FX[@]}" --threads 2 --simd-target "$target" --output "fx-$target.json" || fail "target $target"
+  [ "$(counts fx1.json)" = "$(counts "fx-$target.json")" ] || fail "fixed-point counts differ on target $target"
+done
+
 # Interrupt with SIGINT part-way, then resume: the same counts as an uninterrupted run.
 RESUME=(--code qc-rate-half-z54 --algorithm sum-product --sweep 1.25,1.75 --frame-errors 400 --max-frames 20000 --plot "")
 "$T" simulate "${RESUME[@]}" --output full.json --quiet || fail "full run"
