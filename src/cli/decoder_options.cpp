@@ -32,16 +32,21 @@ void DecoderOptions::add_to(CLI::App& sub) {
           ->capture_default_str();
   beta_option = group->add_option("--beta", beta, "offset of offset-min-sum (LLR units, >= 0)")
                     ->capture_default_str();
-  group->add_option("--kernel", kernel,
-                    "reference (scalar double precision, the definition) or simd (batched float32 or integer "
-                    "lanes, one frame per lane; layered schedule)")
+  group
+      ->add_option(
+          "--kernel", kernel,
+          "reference (scalar double precision, the definition) or simd (batched float32 or integer "
+          "lanes, one frame per lane; layered schedule)")
       ->check(CLI::IsMember({"reference", "simd"}))
       ->capture_default_str();
-  group->add_option("--quantize", quantize,
-                    "fixed-point decoding: B.F or B.F:M:P = channel LLRs on B bits with F fractional bits, "
-                    "messages on M bits (default B), posteriors on P bits (default B+2); min-sum family, layered");
-  group->add_option("--simd-target", simd_target,
-                    "force one SIMD target for the simd kernel (e.g. AVX2, SSE4, EMU128), to reproduce a figure");
+  group->add_option(
+      "--quantize", quantize,
+      "fixed-point decoding: B.F or B.F:M:P = channel LLRs on B bits with F fractional bits, "
+      "messages on M bits (default B), posteriors on P bits (default B+2); min-sum family, "
+      "layered");
+  group->add_option(
+      "--simd-target", simd_target,
+      "force one SIMD target for the simd kernel (e.g. AVX2, SSE4, EMU128), to reproduce a figure");
   threshold_option = group->add_option(
       "--flip-threshold", flip_threshold,
       "bit-flip: other checks that must disagree to flip a message (default: strict majority)");
@@ -59,7 +64,9 @@ DecoderSettings DecoderOptions::settings() const {
   s.kernel = kernel == "simd" ? Kernel::simd : Kernel::reference;
   if (!quantize.empty()) {
     s.quantization = parse_quantization(quantize);
-    if (!s.quantization) throw Error(fmt::format("--quantize '{}': expected B.F or B.F:M:P (e.g. 6.2 or 5.1:5:7)", quantize));
+    if (!s.quantization)
+      throw Error(
+          fmt::format("--quantize '{}': expected B.F or B.F:M:P (e.g. 6.2 or 5.1:5:7)", quantize));
   }
   if (!simd_target.empty()) force_simd_target(simd_target);
   auto refuse = [&](const CLI::Option* option, Algorithm needed, const char* name) {

@@ -64,26 +64,38 @@ void validate(const DecoderSettings& s, const Code& code) {
   if (!(s.beta >= 0 && std::isfinite(s.beta)))
     throw Error(fmt::format("beta must be >= 0, got {}", s.beta));
   if (s.flip_threshold < 0) throw Error("flip threshold must be >= 0");
-  const bool min_sum_family = s.algorithm == Algorithm::min_sum || s.algorithm == Algorithm::normalized_min_sum ||
+  const bool min_sum_family = s.algorithm == Algorithm::min_sum ||
+                              s.algorithm == Algorithm::normalized_min_sum ||
                               s.algorithm == Algorithm::offset_min_sum;
   if (s.quantization) {
     const Quantization& q = *s.quantization;
-    if (!min_sum_family) throw Error("fixed-point decoding (--quantize) covers min-sum, normalized-min-sum and offset-min-sum");
+    if (!min_sum_family)
+      throw Error(
+          "fixed-point decoding (--quantize) covers min-sum, normalized-min-sum and "
+          "offset-min-sum");
     if (!(q.channel_bits >= 2 && q.fraction_bits >= 0 && q.fraction_bits < q.channel_bits &&
-          q.message_bits >= 2 && q.channel_bits <= q.posterior_bits && q.message_bits <= q.posterior_bits &&
-          q.posterior_bits <= 16)) {
-      throw Error(fmt::format("impossible quantization {}: need 2 <= bits, fraction < channel bits, channel and "
-                              "message bits <= posterior bits <= 16", quantization_spec(q)));
+          q.message_bits >= 2 && q.channel_bits <= q.posterior_bits &&
+          q.message_bits <= q.posterior_bits && q.posterior_bits <= 16)) {
+      throw Error(fmt::format(
+          "impossible quantization {}: need 2 <= bits, fraction < channel bits, channel and "
+          "message bits <= posterior bits <= 16",
+          quantization_spec(q)));
     }
   }
   if (s.kernel == Kernel::simd || s.quantization) {
-    if (s.schedule != Schedule::layered) throw Error("the batched and fixed-point decoders implement the layered schedule; add --schedule layered");
+    if (s.schedule != Schedule::layered)
+      throw Error(
+          "the batched and fixed-point decoders implement the layered schedule; add --schedule "
+          "layered");
     if (!min_sum_family && s.algorithm != Algorithm::sum_product) {
       throw Error(fmt::format("no SIMD kernel for {}", algorithm_name(s.algorithm)));
     }
     std::size_t max_degree = 0;
-    for (std::size_t c = 0; c < code.m(); ++c) max_degree = std::max(max_degree, code.check_degree(c));
-    if (max_degree > 127) throw Error(fmt::format("the batched decoders handle check degrees up to 127, this code has {}", max_degree));
+    for (std::size_t c = 0; c < code.m(); ++c)
+      max_degree = std::max(max_degree, code.check_degree(c));
+    if (max_degree > 127)
+      throw Error(fmt::format(
+          "the batched decoders handle check degrees up to 127, this code has {}", max_degree));
   }
   if (s.algorithm == Algorithm::ml) {
     const std::size_t k = Encoder(code).k();
@@ -100,7 +112,8 @@ std::optional<Quantization> parse_quantization(std::string_view spec) {
   Quantization q;
   int fields[4] = {0, 0, -1, -1};
   const std::string text(spec);
-  const int matched = std::sscanf(text.c_str(), "%d.%d:%d:%d", &fields[0], &fields[1], &fields[2], &fields[3]);
+  const int matched =
+      std::sscanf(text.c_str(), "%d.%d:%d:%d", &fields[0], &fields[1], &fields[2], &fields[3]);
   if (matched != 2 && matched != 4) return std::nullopt;
   if (text.find_first_not_of("0123456789.:") != std::string::npos) return std::nullopt;
   q.channel_bits = fields[0];
@@ -111,7 +124,8 @@ std::optional<Quantization> parse_quantization(std::string_view spec) {
 }
 
 std::string quantization_spec(const Quantization& q) {
-  return fmt::format("{}.{}:{}:{}", q.channel_bits, q.fraction_bits, q.message_bits, q.posterior_bits);
+  return fmt::format("{}.{}:{}:{}", q.channel_bits, q.fraction_bits, q.message_bits,
+                     q.posterior_bits);
 }
 
 std::string describe(const DecoderSettings& s) {

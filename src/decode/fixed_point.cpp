@@ -11,8 +11,8 @@
 //   offset:     max(m - b, 0), b = round(beta * 2^fraction)
 // R[e] = +-m with the sign parity of the other edges; P[v] = sat_P(t + R[e]).
 // sat_B clamps to +-(2^(B-1) - 1). Hard decision: P < 0. Posterior output: P / 2^fraction.
-#include <cmath>
 #include <algorithm>
+#include <cmath>
 #include <vector>
 
 #include "decoders.hpp"
@@ -32,9 +32,13 @@ namespace {
 class FixedPoint final : public Decoder {
  public:
   FixedPoint(const Code& code, const DecoderSettings& settings)
-      : Decoder(code, settings), q_(*settings.quantization), messages_(code.edges()), posterior_(code.n()) {
+      : Decoder(code, settings),
+        q_(*settings.quantization),
+        messages_(code.edges()),
+        posterior_(code.n()) {
     std::size_t max_degree = 0;
-    for (std::size_t c = 0; c < code.m(); ++c) max_degree = std::max(max_degree, code.check_degree(c));
+    for (std::size_t c = 0; c < code.m(); ++c)
+      max_degree = std::max(max_degree, code.check_degree(c));
     t_.resize(max_degree);
     alpha_eighths_ = static_cast<int>(std::lround(std::clamp(settings.alpha, 0.0, 1.0) * 8));
     beta_lsb_ = static_cast<int>(std::lround(settings.beta * std::ldexp(1.0, q_.fraction_bits)));
@@ -56,7 +60,8 @@ class FixedPoint final : public Decoder {
         std::size_t at = 0;
         bool negative = false;
         for (std::size_t i = 0; i < d; ++i) {
-          t_[i] = saturate(static_cast<std::int64_t>(posterior_[vars[i]]) - messages_[b + i], q_.posterior_bits);
+          t_[i] = saturate(static_cast<std::int64_t>(posterior_[vars[i]]) - messages_[b + i],
+                           q_.posterior_bits);
           const int a = std::min(std::abs(t_[i]), limit_m);
           negative ^= t_[i] < 0;
           if (a < m1) {
@@ -86,7 +91,8 @@ class FixedPoint final : public Decoder {
     }
     outcome.converged = outcome.syndrome_weight == 0;
     if (!posterior.empty()) {
-      for (std::size_t v = 0; v < code.n(); ++v) posterior[v] = std::ldexp(posterior_[v], -q_.fraction_bits);
+      for (std::size_t v = 0; v < code.n(); ++v)
+        posterior[v] = std::ldexp(posterior_[v], -q_.fraction_bits);
     }
     return outcome;
   }

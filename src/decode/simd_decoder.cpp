@@ -1,10 +1,10 @@
 // The batched decoder: groups frames into SIMD lanes (one frame per lane), transposes them to the
 // lane-interleaved layout, runs the dispatched kernel and transposes the results back.
-#include <cmath>
 #include <fmt/format.h>
-#include <algorithm>
 #include <hwy/aligned_allocator.h>
 #include <hwy/targets.h>
+#include <algorithm>
+#include <cmath>
 #include <vector>
 
 #include "decoders.hpp"
@@ -13,7 +13,9 @@
 
 namespace tannery {
 
-std::vector<std::string> simd_targets() { return detail::kernel_targets(); }
+std::vector<std::string> simd_targets() {
+  return detail::kernel_targets();
+}
 
 void force_simd_target(const std::string& name) {
   if (!detail::force_kernel_target(name)) {
@@ -36,13 +38,19 @@ template <class T>
 class Batched final : public Decoder {
  public:
   Batched(const Code& code, const DecoderSettings& settings) : Decoder(code, settings) {
-    if constexpr (std::is_same_v<T, float>) lanes_ = float_lanes();
-    else if constexpr (std::is_same_v<T, std::int16_t>) lanes_ = int16_lanes();
-    else lanes_ = int8_lanes();
+    if constexpr (std::is_same_v<T, float>)
+      lanes_ = float_lanes();
+    else if constexpr (std::is_same_v<T, std::int16_t>)
+      lanes_ = int16_lanes();
+    else
+      lanes_ = int8_lanes();
     std::size_t max_degree = 0;
-    for (std::size_t c = 0; c < code.m(); ++c) max_degree = std::max(max_degree, code.check_degree(c));
+    for (std::size_t c = 0; c < code.m(); ++c)
+      max_degree = std::max(max_degree, code.check_degree(c));
     check_start_.resize(code.m() + 1);
-    for (std::size_t c = 0; c <= code.m(); ++c) check_start_[c] = c < code.m() ? code.check_begin(c) : static_cast<std::uint32_t>(code.edges());
+    for (std::size_t c = 0; c <= code.m(); ++c)
+      check_start_[c] =
+          c < code.m() ? code.check_begin(c) : static_cast<std::uint32_t>(code.edges());
     edge_var_.resize(code.edges());
     for (std::size_t e = 0; e < code.edges(); ++e) edge_var_[e] = code.edge_variable(e);
     args_.check_start = check_start_.data();
@@ -54,17 +62,25 @@ class Batched final : public Decoder {
     args_.iterations = settings.iterations;
     args_.early_stop = settings.early_stop;
     switch (settings.algorithm) {
-      case Algorithm::normalized_min_sum: args_.rule = CheckRule::normalized; break;
-      case Algorithm::offset_min_sum: args_.rule = CheckRule::offset; break;
-      case Algorithm::sum_product: args_.rule = CheckRule::sum_product; break;
-      default: args_.rule = CheckRule::min_sum;
+      case Algorithm::normalized_min_sum:
+        args_.rule = CheckRule::normalized;
+        break;
+      case Algorithm::offset_min_sum:
+        args_.rule = CheckRule::offset;
+        break;
+      case Algorithm::sum_product:
+        args_.rule = CheckRule::sum_product;
+        break;
+      default:
+        args_.rule = CheckRule::min_sum;
     }
     args_.alpha = static_cast<float>(settings.alpha);
     args_.beta = static_cast<float>(settings.beta);
     if (settings.quantization) {
       const Quantization& q = *settings.quantization;
       args_.alpha_eighths = static_cast<int>(std::lround(std::clamp(settings.alpha, 0.0, 1.0) * 8));
-      args_.beta_lsb = static_cast<int>(std::lround(settings.beta * std::ldexp(1.0, q.fraction_bits)));
+      args_.beta_lsb =
+          static_cast<int>(std::lround(settings.beta * std::ldexp(1.0, q.fraction_bits)));
       args_.message_limit = (1 << (q.message_bits - 1)) - 1;
       scale_ = static_cast<double>(1 << q.fraction_bits);
       limit_ = static_cast<double>((1 << (q.channel_bits - 1)) - 1);
@@ -93,10 +109,11 @@ class Batched final : public Decoder {
     return out;
   }
 
-  void decode_batch(std::span<const double> llr, std::span<std::uint8_t> hard, std::span<double> posterior,
-                    std::span<FrameOutcome> outcome) override {
+  void decode_batch(std::span<const double> llr, std::span<std::uint8_t> hard,
+                    std::span<double> posterior, std::span<FrameOutcome> outcome) override {
     const std::size_t n = code_.n(), frames = outcome.size();
-    const double scale = settings_.quantization ? std::ldexp(1.0, -settings_.quantization->fraction_bits) : 1.0;
+    const double scale =
+        settings_.quantization ? std::ldexp(1.0, -settings_.quantization->fraction_bits) : 1.0;
     for (std::size_t first = 0; first < frames; first += lanes_) {
       const std::size_t count = std::min(lanes_, frames - first);
       T* lanes = channel_.get();
@@ -111,9 +128,12 @@ class Batched final : public Decoder {
           }
         }
       }
-      if constexpr (std::is_same_v<T, float>) layered_float(args_);
-      else if constexpr (std::is_same_v<T, std::int16_t>) layered_int16(args_);
-      else layered_int8(args_);
+      if constexpr (std::is_same_v<T, float>)
+        layered_float(args_);
+      else if constexpr (std::is_same_v<T, std::int16_t>)
+        layered_int16(args_);
+      else
+        layered_int8(args_);
       for (std::size_t l = 0; l < count; ++l) {
         const std::size_t f = first + l;
         std::uint8_t* h = hard.data() + f * n;
@@ -151,7 +171,8 @@ class Batched final : public Decoder {
 
 std::unique_ptr<Decoder> make_simd(const Code& code, const DecoderSettings& settings) {
   if (!settings.quantization) return std::make_unique<Batched<float>>(code, settings);
-  if (settings.quantization->posterior_bits <= 8) return std::make_unique<Batched<std::int8_t>>(code, settings);
+  if (settings.quantization->posterior_bits <= 8)
+    return std::make_unique<Batched<std::int8_t>>(code, settings);
   return std::make_unique<Batched<std::int16_t>>(code, settings);
 }
 

@@ -53,7 +53,7 @@ void Layered(D d, const LayeredArgs<hn::TFromD<D>>& a) {
   const std::uint32_t* const edge_var = a.edge_var;
   T* const post = a.posterior;
   T* const msg = a.messages;
-  T* const t_store = a.scratch;             // extrinsic inputs of the check, per edge
+  T* const t_store = a.scratch;                 // extrinsic inputs of the check, per edge
   T* const fwd = a.scratch + a.max_degree * L;  // sum-product prefix products
   const int iterations = a.iterations;
   const bool early_stop = a.early_stop;
@@ -65,8 +65,10 @@ void Layered(D d, const LayeredArgs<hn::TFromD<D>>& a) {
   const T init = kFloat ? T(1e5) : static_cast<T>(a.message_limit);
   const V v_init = hn::Set(d, init);
   const V m_hi = hn::Set(d, static_cast<T>(a.message_limit));
-  const V p_lo = hn::Set(d, static_cast<T>(-a.posterior_limit)), p_hi = hn::Set(d, static_cast<T>(a.posterior_limit));
-  const V v_alpha = hn::Set(d, static_cast<T>(a.alpha)), v_beta = hn::Set(d, static_cast<T>(a.beta));
+  const V p_lo = hn::Set(d, static_cast<T>(-a.posterior_limit)),
+          p_hi = hn::Set(d, static_cast<T>(a.posterior_limit));
+  const V v_alpha = hn::Set(d, static_cast<T>(a.alpha)),
+          v_beta = hn::Set(d, static_cast<T>(a.beta));
   const V v_beta_lsb = hn::Set(d, static_cast<T>(a.beta_lsb));
   const VI one_i = hn::Set(di, TI(1)), zero_i = hn::Zero(di);
 
@@ -88,8 +90,10 @@ void Layered(D d, const LayeredArgs<hn::TFromD<D>>& a) {
       if (deg == 0) continue;
       if constexpr (kFloat) {
         if (rule == CheckRule::sum_product) {
-          // tanh rule with prefix/suffix products; |product| kept below 1 - 2^-23 so atanh is finite.
-          const V half = hn::Set(d, T(0.5)), two = hn::Set(d, T(2)), cap = hn::Set(d, T(1 - 1.0 / (1 << 23)));
+          // tanh rule with prefix/suffix products; |product| kept below 1 - 2^-23 so atanh is
+          // finite.
+          const V half = hn::Set(d, T(0.5)), two = hn::Set(d, T(2)),
+                  cap = hn::Set(d, T(1 - 1.0 / (1 << 23)));
           V running = hn::Set(d, T(1));
           for (std::uint32_t i = 0; i < deg; ++i) {
             const std::size_t v = edge_var[b + i];
@@ -143,7 +147,8 @@ void Layered(D d, const LayeredArgs<hn::TFromD<D>>& a) {
       if (deg == 1) min1 = min2 = v_init;  // a check with one edge sends the saturation value
       V mag1 = min1, mag2 = min2;
       if constexpr (kFloat) {
-        if (rule == CheckRule::normalized) mag1 = hn::Mul(mag1, v_alpha), mag2 = hn::Mul(mag2, v_alpha);
+        if (rule == CheckRule::normalized)
+          mag1 = hn::Mul(mag1, v_alpha), mag2 = hn::Mul(mag2, v_alpha);
         if (rule == CheckRule::offset) {
           mag1 = hn::Max(hn::Sub(mag1, v_beta), zero);
           mag2 = hn::Max(hn::Sub(mag2, v_beta), zero);
@@ -187,7 +192,8 @@ void Layered(D d, const LayeredArgs<hn::TFromD<D>>& a) {
       unsatisfied = hn::Or(unsatisfied, par);
     }
     // The sign bit of the XOR of all posteriors of a check is the parity of its negatives.
-    const VI newly = hn::AndNot(done, hn::AndNot(hn::VecFromMask(di, hn::Lt(unsatisfied, zero_i)), hn::Set(di, TI(-1))));
+    const VI newly = hn::AndNot(
+        done, hn::AndNot(hn::VecFromMask(di, hn::Lt(unsatisfied, zero_i)), hn::Set(di, TI(-1))));
     if (!hn::AllTrue(di, hn::Eq(newly, zero_i))) {
       alignas(64) TI flags[hn::MaxLanes(di)];
       hn::Store(newly, di, flags);
@@ -212,12 +218,24 @@ void Layered(D d, const LayeredArgs<hn::TFromD<D>>& a) {
   }
 }
 
-std::size_t FloatLanes() { return hn::Lanes(hn::ScalableTag<float>()); }
-std::size_t Int16Lanes() { return hn::Lanes(hn::ScalableTag<std::int16_t>()); }
-std::size_t Int8Lanes() { return hn::Lanes(hn::ScalableTag<std::int8_t>()); }
-void LayeredFloat(const LayeredArgs<float>& a) { Layered(hn::ScalableTag<float>(), a); }
-void LayeredInt16(const LayeredArgs<std::int16_t>& a) { Layered(hn::ScalableTag<std::int16_t>(), a); }
-void LayeredInt8(const LayeredArgs<std::int8_t>& a) { Layered(hn::ScalableTag<std::int8_t>(), a); }
+std::size_t FloatLanes() {
+  return hn::Lanes(hn::ScalableTag<float>());
+}
+std::size_t Int16Lanes() {
+  return hn::Lanes(hn::ScalableTag<std::int16_t>());
+}
+std::size_t Int8Lanes() {
+  return hn::Lanes(hn::ScalableTag<std::int8_t>());
+}
+void LayeredFloat(const LayeredArgs<float>& a) {
+  Layered(hn::ScalableTag<float>(), a);
+}
+void LayeredInt16(const LayeredArgs<std::int16_t>& a) {
+  Layered(hn::ScalableTag<std::int16_t>(), a);
+}
+void LayeredInt8(const LayeredArgs<std::int8_t>& a) {
+  Layered(hn::ScalableTag<std::int8_t>(), a);
+}
 
 }  // namespace tannery::detail::HWY_NAMESPACE
 HWY_AFTER_NAMESPACE();
@@ -232,12 +250,24 @@ HWY_EXPORT(LayeredFloat);
 HWY_EXPORT(LayeredInt16);
 HWY_EXPORT(LayeredInt8);
 
-std::size_t float_lanes() { return HWY_DYNAMIC_DISPATCH(FloatLanes)(); }
-std::size_t int16_lanes() { return HWY_DYNAMIC_DISPATCH(Int16Lanes)(); }
-std::size_t int8_lanes() { return HWY_DYNAMIC_DISPATCH(Int8Lanes)(); }
-void layered_float(const LayeredArgs<float>& a) { HWY_DYNAMIC_DISPATCH(LayeredFloat)(a); }
-void layered_int16(const LayeredArgs<std::int16_t>& a) { HWY_DYNAMIC_DISPATCH(LayeredInt16)(a); }
-void layered_int8(const LayeredArgs<std::int8_t>& a) { HWY_DYNAMIC_DISPATCH(LayeredInt8)(a); }
+std::size_t float_lanes() {
+  return HWY_DYNAMIC_DISPATCH(FloatLanes)();
+}
+std::size_t int16_lanes() {
+  return HWY_DYNAMIC_DISPATCH(Int16Lanes)();
+}
+std::size_t int8_lanes() {
+  return HWY_DYNAMIC_DISPATCH(Int8Lanes)();
+}
+void layered_float(const LayeredArgs<float>& a) {
+  HWY_DYNAMIC_DISPATCH(LayeredFloat)(a);
+}
+void layered_int16(const LayeredArgs<std::int16_t>& a) {
+  HWY_DYNAMIC_DISPATCH(LayeredInt16)(a);
+}
+void layered_int8(const LayeredArgs<std::int8_t>& a) {
+  HWY_DYNAMIC_DISPATCH(LayeredInt8)(a);
+}
 
 // In this file HWY_TARGETS lists every target compiled for the kernels above.
 std::vector<std::string> kernel_targets() {

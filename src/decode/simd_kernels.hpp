@@ -28,10 +28,10 @@ struct LayeredArgs {
   int beta_lsb = 0;
   int message_limit = 0, posterior_limit = 0;
   // In: channel LLRs (posterior initialised from them). Out: posteriors, iterations used.
-  const T* channel = nullptr;  // n x lanes
-  T* posterior = nullptr;      // n x lanes
-  T* messages = nullptr;       // edges x lanes (check-to-variable)
-  T* scratch = nullptr;        // 3 x max_degree x lanes
+  const T* channel = nullptr;               // n x lanes
+  T* posterior = nullptr;                   // n x lanes
+  T* messages = nullptr;                    // edges x lanes (check-to-variable)
+  T* scratch = nullptr;                     // 3 x max_degree x lanes
   std::int32_t* iterations_used = nullptr;  // lanes
   std::int32_t* syndrome_weight = nullptr;  // lanes: unsatisfied checks at exit
 };

@@ -357,7 +357,8 @@ bool gaussian_converges(const Ensemble& e, double sigma) {
     // the recursion, would decide further steps.
     if (s < 1e-10) return true;
     double next = 0;
-    for (auto [dc, r] : e.rho) next += r * phi_inverse(-std::expm1(static_cast<double>(dc - 1) * std::log1p(-s)));
+    for (auto [dc, r] : e.rho)
+      next += r * phi_inverse(-std::expm1(static_cast<double>(dc - 1) * std::log1p(-s)));
     if (next - mu < 1e-9) return false;  // a fixed point: decoding fails
     mu = next;
   }

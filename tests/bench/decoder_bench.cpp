@@ -3,8 +3,8 @@
 // early stop, so every kernel does the same work). Also the machine's peak vector rates.
 #include <benchmark/benchmark.h>
 
-#include <cmath>
 #include <immintrin.h>
+#include <cmath>
 
 #include "tannery/decode/decoder.hpp"
 #include "tannery/io/matrix_io.hpp"
@@ -44,30 +44,45 @@ void run(benchmark::State& state, const Case& c) {
     decoder->decode(llr, hard, {}, out);
     benchmark::DoNotOptimize(hard.data());
   }
-  const double updates = static_cast<double>(state.iterations()) * static_cast<double>(frames) * kIterations *
-                         static_cast<double>(code.edges());
+  const double updates = static_cast<double>(state.iterations()) * static_cast<double>(frames) *
+                         kIterations * static_cast<double>(code.edges());
   state.counters["edge_updates_per_s"] = benchmark::Counter(updates, benchmark::Counter::kIsRate);
   state.counters["coded_Mbit_per_s"] = benchmark::Counter(
-      static_cast<double>(state.iterations()) * static_cast<double>(frames * code.n()) / 1e6, benchmark::Counter::kIsRate);
+      static_cast<double>(state.iterations()) * static_cast<double>(frames * code.n()) / 1e6,
+      benchmark::Counter::kIsRate);
   state.SetLabel(active_simd_target());
 }
 
-#define TANNERY_DECODER_BENCH(name, ...)                                  \
-  void name(benchmark::State& state) { run(state, Case{__VA_ARGS__}); } \
+#define TANNERY_DECODER_BENCH(name, ...) \
+  void name(benchmark::State& state) {   \
+    run(state, Case{__VA_ARGS__});       \
+  }                                      \
   BENCHMARK(name)->Unit(benchmark::kMillisecond)->MinTime(0.5)
 
-TANNERY_DECODER_BENCH(BM_reference_min_sum_qc648, "qc-rate-half-z54.qc", Algorithm::min_sum, Kernel::reference, "");
-TANNERY_DECODER_BENCH(BM_reference_sum_product_qc648, "qc-rate-half-z54.qc", Algorithm::sum_product, Kernel::reference, "");
-TANNERY_DECODER_BENCH(BM_simd_f32_min_sum_qc648, "qc-rate-half-z54.qc", Algorithm::min_sum, Kernel::simd, "");
-TANNERY_DECODER_BENCH(BM_simd_f32_nms_qc648, "qc-rate-half-z54.qc", Algorithm::normalized_min_sum, Kernel::simd, "");
-TANNERY_DECODER_BENCH(BM_simd_f32_sum_product_qc648, "qc-rate-half-z54.qc", Algorithm::sum_product, Kernel::simd, "");
-TANNERY_DECODER_BENCH(BM_simd_i16_nms_qc648, "qc-rate-half-z54.qc", Algorithm::normalized_min_sum, Kernel::simd, "6.2:6:12");
-TANNERY_DECODER_BENCH(BM_simd_i8_nms_qc648, "qc-rate-half-z54.qc", Algorithm::normalized_min_sum, Kernel::simd, "6.2");
-TANNERY_DECODER_BENCH(BM_simd_i8_oms_qc648, "qc-rate-half-z54.qc", Algorithm::offset_min_sum, Kernel::simd, "6.2");
-TANNERY_DECODER_BENCH(BM_reference_min_sum_reg2016, "regular-3-6-n2016.tanner", Algorithm::min_sum, Kernel::reference, "");
-TANNERY_DECODER_BENCH(BM_simd_f32_nms_reg2016, "regular-3-6-n2016.tanner", Algorithm::normalized_min_sum, Kernel::simd, "");
-TANNERY_DECODER_BENCH(BM_simd_f32_sum_product_reg2016, "regular-3-6-n2016.tanner", Algorithm::sum_product, Kernel::simd, "");
-TANNERY_DECODER_BENCH(BM_simd_i8_nms_reg2016, "regular-3-6-n2016.tanner", Algorithm::normalized_min_sum, Kernel::simd, "6.2");
+TANNERY_DECODER_BENCH(BM_reference_min_sum_qc648, "qc-rate-half-z54.qc", Algorithm::min_sum,
+                      Kernel::reference, "");
+TANNERY_DECODER_BENCH(BM_reference_sum_product_qc648, "qc-rate-half-z54.qc", Algorithm::sum_product,
+                      Kernel::reference, "");
+TANNERY_DECODER_BENCH(BM_simd_f32_min_sum_qc648, "qc-rate-half-z54.qc", Algorithm::min_sum,
+                      Kernel::simd, "");
+TANNERY_DECODER_BENCH(BM_simd_f32_nms_qc648, "qc-rate-half-z54.qc", Algorithm::normalized_min_sum,
+                      Kernel::simd, "");
+TANNERY_DECODER_BENCH(BM_simd_f32_sum_product_qc648, "qc-rate-half-z54.qc", Algorithm::sum_product,
+                      Kernel::simd, "");
+TANNERY_DECODER_BENCH(BM_simd_i16_nms_qc648, "qc-rate-half-z54.qc", Algorithm::normalized_min_sum,
+                      Kernel::simd, "6.2:6:12");
+TANNERY_DECODER_BENCH(BM_simd_i8_nms_qc648, "qc-rate-half-z54.qc", Algorithm::normalized_min_sum,
+                      Kernel::simd, "6.2");
+TANNERY_DECODER_BENCH(BM_simd_i8_oms_qc648, "qc-rate-half-z54.qc", Algorithm::offset_min_sum,
+                      Kernel::simd, "6.2");
+TANNERY_DECODER_BENCH(BM_reference_min_sum_reg2016, "regular-3-6-n2016.tanner", Algorithm::min_sum,
+                      Kernel::reference, "");
+TANNERY_DECODER_BENCH(BM_simd_f32_nms_reg2016, "regular-3-6-n2016.tanner",
+                      Algorithm::normalized_min_sum, Kernel::simd, "");
+TANNERY_DECODER_BENCH(BM_simd_f32_sum_product_reg2016, "regular-3-6-n2016.tanner",
+                      Algorithm::sum_product, Kernel::simd, "");
+TANNERY_DECODER_BENCH(BM_simd_i8_nms_reg2016, "regular-3-6-n2016.tanner",
+                      Algorithm::normalized_min_sum, Kernel::simd, "6.2");
 
 // Peak rates of this core: independent chains of 256-bit integer adds and float FMAs (AVX2;
 // the development machine has no AVX-512). ops counts lane operations per second.
@@ -81,8 +96,8 @@ __attribute__((target("avx2,fma"))) void BM_peak_avx2_int8_add(benchmark::State&
     }
     benchmark::DoNotOptimize(acc);
   }
-  state.counters["lane_ops_per_s"] =
-      benchmark::Counter(static_cast<double>(state.iterations()) * 1000 * 8 * 32, benchmark::Counter::kIsRate);
+  state.counters["lane_ops_per_s"] = benchmark::Counter(
+      static_cast<double>(state.iterations()) * 1000 * 8 * 32, benchmark::Counter::kIsRate);
 }
 BENCHMARK(BM_peak_avx2_int8_add);
 
@@ -96,8 +111,8 @@ __attribute__((target("avx2,fma"))) void BM_peak_avx2_f32_fma(benchmark::State& 
     }
     benchmark::DoNotOptimize(acc);
   }
-  state.counters["lane_ops_per_s"] =
-      benchmark::Counter(static_cast<double>(state.iterations()) * 1000 * 10 * 8, benchmark::Counter::kIsRate);
+  state.counters["lane_ops_per_s"] = benchmark::Counter(
+      static_cast<double>(state.iterations()) * 1000 * 10 * 8, benchmark::Counter::kIsRate);
 }
 BENCHMARK(BM_peak_avx2_f32_fma);
 

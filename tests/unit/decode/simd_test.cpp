@@ -16,12 +16,14 @@ struct Out {
 
 Out decode(const Code& code, const DecoderSettings& s, const std::vector<double>& llr) {
   const std::size_t frames = llr.size() / code.n();
-  Out o{std::vector<std::uint8_t>(llr.size()), std::vector<double>(llr.size()), std::vector<FrameOutcome>(frames)};
+  Out o{std::vector<std::uint8_t>(llr.size()), std::vector<double>(llr.size()),
+        std::vector<FrameOutcome>(frames)};
   make_decoder(code, s)->decode(llr, o.hard, o.posterior, o.outcome);
   return o;
 }
 
-std::vector<double> noisy(const Code& code, std::size_t frames, std::uint64_t seed, double mean, double spread) {
+std::vector<double> noisy(const Code& code, std::size_t frames, std::uint64_t seed, double mean,
+                          double spread) {
   test::Gaussian g(seed);
   std::vector<double> llr(code.n() * frames);
   for (auto& x : llr) x = mean + spread * g();
@@ -35,15 +37,19 @@ struct TargetGuard {
 
 }  // namespace
 
-TEST_CASE("fixed-point SIMD kernels match the scalar fixed-point reference bit for bit on every target", "[simd]") {
+TEST_CASE(
+    "fixed-point SIMD kernels match the scalar fixed-point reference bit for bit on every target",
+    "[simd]") {
   TargetGuard guard;
   const std::vector<std::string> targets = simd_targets();
   REQUIRE(!targets.empty());
   INFO("targets: " << targets.size());
-  const std::vector<Code> codes = {test::shipped("qc-rate-half-z54.qc"), test::random_code(40, 90, 0.07, 3),
+  const std::vector<Code> codes = {test::shipped("qc-rate-half-z54.qc"),
+                                   test::random_code(40, 90, 0.07, 3),
                                    test::shipped("hamming-15-11.tanner")};
   const std::vector<std::string> specs = {"6.2", "5.1:5:7", "8.3:8:8", "6.2:6:12", "4.1:4:16"};
-  const Algorithm algorithms[] = {Algorithm::min_sum, Algorithm::normalized_min_sum, Algorithm::offset_min_sum};
+  const Algorithm algorithms[] = {Algorithm::min_sum, Algorithm::normalized_min_sum,
+                                  Algorithm::offset_min_sum};
   std::uint64_t seed = 1;
   for (const Code& code : codes) {
     for (const auto& spec : specs) {
@@ -66,7 +72,8 @@ TEST_CASE("fixed-point SIMD kernels match the scalar fixed-point reference bit f
           for (const auto& target : targets) {
             force_simd_target(target);
             const Out simd = decode(code, s, llr);
-            INFO("target " << target << " spec " << spec << " algorithm " << algorithm_name(a) << " early " << early);
+            INFO("target " << target << " spec " << spec << " algorithm " << algorithm_name(a)
+                           << " early " << early);
             REQUIRE(simd.hard == reference.hard);
             REQUIRE(simd.posterior == reference.posterior);
             for (std::size_t f = 0; f < simd.outcome.size(); ++f) {
@@ -81,18 +88,21 @@ TEST_CASE("fixed-point SIMD kernels match the scalar fixed-point reference bit f
   }
 }
 
-TEST_CASE("float SIMD kernels agree with the double reference within tolerance on every target", "[simd]") {
+TEST_CASE("float SIMD kernels agree with the double reference within tolerance on every target",
+          "[simd]") {
   // Stated tolerance: float32 arithmetic and, for sum-product, tanh products kept below
   // 1 - 2^-23 (messages near +-16.6 at most). Decisions must be identical on frames both converge;
   // posteriors of min-sum agree to 1e-3 relative on frames that converge.
   TargetGuard guard;
   const Code code = test::shipped("qc-rate-half-z54.qc");
-  for (Algorithm a : {Algorithm::min_sum, Algorithm::normalized_min_sum, Algorithm::offset_min_sum, Algorithm::sum_product}) {
+  for (Algorithm a : {Algorithm::min_sum, Algorithm::normalized_min_sum, Algorithm::offset_min_sum,
+                      Algorithm::sum_product}) {
     DecoderSettings s;
     s.algorithm = a;
     s.schedule = Schedule::layered;
     s.iterations = 30;
-    const auto llr = noisy(code, 45, 99, 3.0, 2.45);  // consistent Gaussian LLRs (var = 2 mean), ~2 dB
+    const auto llr =
+        noisy(code, 45, 99, 3.0, 2.45);  // consistent Gaussian LLRs (var = 2 mean), ~2 dB
     const Out reference = decode(code, s, llr);
     s.kernel = Kernel::simd;
     for (const auto& target : simd_targets()) {
@@ -128,13 +138,16 @@ TEST_CASE("the quantize SPEC syntax", "[simd]") {
   s.algorithm = Algorithm::sum_product;
   s.schedule = Schedule::layered;
   s.quantization = parse_quantization("6.2");
-  CHECK_THROWS_WITH(make_decoder(test::shipped("hamming-7-4.tanner"), s), Catch::Contains("min-sum"));
+  CHECK_THROWS_WITH(make_decoder(test::shipped("hamming-7-4.tanner"), s),
+                    Catch::Contains("min-sum"));
   s.algorithm = Algorithm::min_sum;
   s.quantization = parse_quantization("6.2:6:20");
-  CHECK_THROWS_WITH(make_decoder(test::shipped("hamming-7-4.tanner"), s), Catch::Contains("impossible quantization"));
+  CHECK_THROWS_WITH(make_decoder(test::shipped("hamming-7-4.tanner"), s),
+                    Catch::Contains("impossible quantization"));
   s.quantization.reset();
   s.kernel = Kernel::simd;
   s.schedule = Schedule::flooding;
-  CHECK_THROWS_WITH(make_decoder(test::shipped("hamming-7-4.tanner"), s), Catch::Contains("layered"));
+  CHECK_THROWS_WITH(make_decoder(test::shipped("hamming-7-4.tanner"), s),
+                    Catch::Contains("layered"));
   CHECK_THROWS_WITH(force_simd_target("NOPE"), Catch::Contains("not available here"));
 }

@@ -48,7 +48,8 @@ TEST_CASE("Gaussian approximation and min-sum thresholds are ordered as expected
   const Ensemble e = Ensemble::regular(3, 6);
   const ThresholdResult ga = awgn_threshold(e, sum_product(), ThresholdMethod::gaussian);
   CHECK(std::abs(ga.ebn0_db - 1.1025) < 0.1);  // 1.1025 dB = sigma 0.8809
-  const ThresholdResult ga48 = awgn_threshold(Ensemble::regular(4, 8), sum_product(), ThresholdMethod::gaussian);
+  const ThresholdResult ga48 =
+      awgn_threshold(Ensemble::regular(4, 8), sum_product(), ThresholdMethod::gaussian);
   CHECK(std::abs(ga48.ebn0_db - 1.5397) < 0.1);  // 1.5397 dB = sigma 0.8376 (R&U 2001)
   // An irregular ensemble with degree-2 variables (the shipped quasi-cyclic code's): the
   // recursion must not stall on quadrature noise once the error probability is tiny.
