@@ -29,24 +29,13 @@ struct ConstructOptions {
 // Node fractions "2:0.5,3:0.3,8:0.2" -> one degree per variable, lowest degrees first, counts
 // rounded so that they add up to n.
 std::vector<std::size_t> degree_sequence(const std::string& text, std::size_t n) {
-  std::vector<std::pair<std::size_t, double>> parts;
-  std::stringstream items(text);
+  const auto fractions = parse_degree_map(text, "--variable-degrees");
   double total = 0;
-  for (std::string item; std::getline(items, item, ',');) {
-    const auto colon = item.find(':');
-    try {
-      if (colon == std::string::npos) throw std::invalid_argument("");
-      parts.emplace_back(std::stoul(item.substr(0, colon)), std::stod(item.substr(colon + 1)));
-    } catch (const std::exception&) {
-      throw Error(fmt::format("--variable-degrees: '{}' is not DEGREE:FRACTION", item));
-    }
-    total += parts.back().second;
-  }
-  if (parts.empty() || std::abs(total - 1) > 1e-6)
-    throw Error("--variable-degrees fractions must sum to 1");
+  for (auto [d, f] : fractions) total += f;
+  if (std::abs(total - 1) > 1e-6) throw Error("--variable-degrees fractions must sum to 1");
   std::vector<std::size_t> degrees;
   double cumulative = 0;
-  for (auto [d, f] : parts) {
+  for (auto [d, f] : fractions) {
     cumulative += f;
     const auto until = static_cast<std::size_t>(std::llround(cumulative * static_cast<double>(n)));
     while (degrees.size() < until) degrees.push_back(d);

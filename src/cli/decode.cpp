@@ -88,12 +88,7 @@ void run(const DecodeOptions& o) {
       o.meaning == "llr" ? 1.0 : (o.meaning == "llr-inverted" ? -1.0 : 2.0 / *o.noise_variance);
 
   std::ifstream file;
-  std::istream* in = &std::cin;
-  if (o.capture != "-") {
-    file.open(o.capture, std::ios::binary);
-    if (!file) throw Error(fmt::format("{}: cannot open file", o.capture));
-    in = &file;
-  }
+  std::istream* in = &open_input(o.capture, file);
   CaptureReader reader(*in, o.capture == "-" ? "<stdin>" : o.capture, format, o.scale, received);
 
   std::string report_format = o.report_format;

@@ -34,12 +34,7 @@ void encode_bits(const EncodeOptions& o, const Code& code, const Encoder& encode
   const BitFormat out_format =
       *parse_bit_format(o.output_format.empty() ? "text" : o.output_format);
   std::ifstream file;
-  std::istream* in = &std::cin;
-  if (o.bits != "-") {
-    file.open(o.bits, std::ios::binary);
-    if (!file) throw Error(fmt::format("{}: cannot open file", o.bits));
-    in = &file;
-  }
+  std::istream* in = &open_input(o.bits, file);
   BitFrameReader reader(*in, o.bits == "-" ? "<stdin>" : o.bits, in_format, encoder.k());
   OutputFile out(o.output, false);
   std::vector<std::uint8_t> info, word(code.n());

@@ -24,26 +24,6 @@ struct ThresholdOptions {
   bool json = false;
 };
 
-// "3:0.4,4:0.6" or "0.4x^2 + ..." -> degree -> coefficient. Accepts DEGREE:COEFF pairs.
-std::map<std::size_t, double> parse_coefficients(const std::string& text, const char* what) {
-  std::map<std::size_t, double> out;
-  std::stringstream items(text);
-  for (std::string item; std::getline(items, item, ',');) {
-    const auto colon = item.find(':');
-    try {
-      if (colon == std::string::npos) throw std::invalid_argument("");
-      const std::size_t degree = std::stoul(item.substr(0, colon));
-      const double c = std::stod(item.substr(colon + 1));
-      out[degree] += c;
-    } catch (const std::exception&) {
-      throw Error(
-          fmt::format("--{}: '{}' is not DEGREE:COEFFICIENT (e.g. 2:0.3,3:0.7)", what, item));
-    }
-  }
-  if (out.empty()) throw Error(fmt::format("--{} has no coefficients", what));
-  return out;
-}
-
 Ensemble ensemble_of(const ThresholdOptions& o) {
   const int given = !o.regular.empty() + !o.lambda.empty() + (o.input.code.empty() ? 0 : 1);
   if (given != 1) throw Error("give exactly one of --code, --regular DV,DC or --lambda/--rho");
@@ -58,7 +38,7 @@ Ensemble ensemble_of(const ThresholdOptions& o) {
   }
   if (!o.lambda.empty()) {
     if (o.rho.empty()) throw Error("--lambda needs --rho");
-    const auto l = parse_coefficients(o.lambda, "lambda"), r = parse_coefficients(o.rho, "rho");
+    const auto l = parse_degree_map(o.lambda, "--lambda"), r = parse_degree_map(o.rho, "--rho");
     return o.node_perspective ? Ensemble::from_node_fractions(l, r) : Ensemble{l, r};
   }
   return Ensemble::from_code(degree_profile(o.input.load()));
