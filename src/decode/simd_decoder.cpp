@@ -53,6 +53,14 @@ class Batched final : public Decoder {
           c < code.m() ? code.check_begin(c) : static_cast<std::uint32_t>(code.edges());
     edge_var_.resize(code.edges());
     for (std::size_t e = 0; e < code.edges(); ++e) edge_var_[e] = code.edge_variable(e);
+    var_start_.assign(code.n() + 1, 0);
+    for (std::size_t v = 0; v < code.n(); ++v) {
+      var_start_[v + 1] = var_start_[v] + static_cast<std::uint32_t>(code.variable_degree(v));
+      for (std::uint32_t e : code.variable_edges(v)) var_edge_.push_back(e);
+    }
+    args_.flooding = settings.schedule == Schedule::flooding;
+    args_.var_start = var_start_.data();
+    args_.var_edge = var_edge_.data();
     args_.check_start = check_start_.data();
     args_.edge_var = edge_var_.data();
     args_.n = code.n();
@@ -91,6 +99,10 @@ class Batched final : public Decoder {
     posterior_ = hwy::AllocateAligned<T>(code.n() * lanes_);
     messages_ = hwy::AllocateAligned<T>(std::max<std::size_t>(code.edges(), 1) * lanes_);
     scratch_ = hwy::AllocateAligned<T>(3 * args_.max_degree * lanes_);
+    if (args_.flooding) {
+      v2c_ = hwy::AllocateAligned<T>(std::max<std::size_t>(code.edges(), 1) * lanes_);
+      args_.v2c = v2c_.get();
+    }
     iterations_.resize(lanes_);
     syndrome_.resize(lanes_);
     args_.syndrome_weight = syndrome_.data();
@@ -161,8 +173,8 @@ class Batched final : public Decoder {
 
   std::size_t lanes_ = 1;
   double scale_ = 1, limit_ = 0;
-  std::vector<std::uint32_t> check_start_, edge_var_;
-  hwy::AlignedFreeUniquePtr<T[]> channel_, posterior_, messages_, scratch_;
+  std::vector<std::uint32_t> check_start_, edge_var_, var_start_, var_edge_;
+  hwy::AlignedFreeUniquePtr<T[]> channel_, posterior_, messages_, scratch_, v2c_;
   std::vector<std::int32_t> iterations_, syndrome_;
   LayeredArgs<T> args_;
 };

@@ -72,9 +72,20 @@ void Layered(D d, const LayeredArgs<hn::TFromD<D>>& a) {
   const V v_beta_lsb = hn::Set(d, static_cast<T>(a.beta_lsb));
   const VI one_i = hn::Set(di, TI(1)), zero_i = hn::Zero(di);
 
+  // Flooding is offered for float lanes (the fixed-point definition is layered).
+  const bool flooding = kFloat && a.flooding;
+  T* const v2c = a.v2c;
   for (std::size_t i = 0; i < n * L; i += L) hn::Store(hn::Load(d, a.channel + i), d, post + i);
   const std::size_t edges = check_start[m];
   for (std::size_t i = 0; i < edges * L; i += L) hn::Store(zero, d, msg + i);
+  if (flooding) {
+    for (std::size_t e = 0; e < edges; ++e) hn::Store(hn::Load(d, a.channel + edge_var[e] * L), d, v2c + e * L);
+  }
+  // The check's input on edge e of variable v: the extrinsic P - R (layered) or the
+  // variable-to-check message (flooding).
+  auto extrinsic = [&](std::size_t e, std::size_t v) {
+    return flooding ? hn::Load(d, v2c + e * L) : hn::Sub(hn::Load(d, post + v * L), hn::Load(d, msg + e * L));
+  };
   for (std::size_t l = 0; l < L; ++l) a.iterations_used[l] = iterations;
 
   VI done = zero_i;  // lanes that met the early-stop rule
@@ -97,7 +108,7 @@ void Layered(D d, const LayeredArgs<hn::TFromD<D>>& a) {
           V running = hn::Set(d, T(1));
           for (std::uint32_t i = 0; i < deg; ++i) {
             const std::size_t v = edge_var[b + i];
-            const V t = hn::Sub(hn::Load(d, post + v * L), hn::Load(d, msg + (b + i) * L));
+            const V t = extrinsic(b + i, v);
             hn::Store(running, d, fwd + i * L);
             const V th = hn::Tanh(d, hn::Mul(half, t));
             hn::Store(th, d, t_store + i * L);
@@ -111,10 +122,10 @@ void Layered(D d, const LayeredArgs<hn::TFromD<D>>& a) {
             prod = hn::Min(hn::Max(prod, hn::Neg(cap)), cap);
             const V r = deg == 1 ? v_init : hn::Mul(two, hn::Atanh(d, prod));
             const std::size_t v = edge_var[b + i];
-            // Recovering t from tanh(t/2) would lose precision: recompute t = P - R_old.
-            const V t = hn::Sub(hn::Load(d, post + v * L), hn::Load(d, msg + (b + i) * L));
+            // Recovering t from tanh(t/2) would lose precision: recompute it.
+            const V t = extrinsic(b + i, v);
             keep(msg + (b + i) * L, r);
-            keep(post + v * L, hn::Add(t, r));
+            if (!flooding) keep(post + v * L, hn::Add(t, r));
           }
           continue;
         }
@@ -125,11 +136,11 @@ void Layered(D d, const LayeredArgs<hn::TFromD<D>>& a) {
       VI at = zero_i, parity = zero_i, index = zero_i;
       for (std::uint32_t i = 0; i < deg; ++i, index = hn::Add(index, one_i)) {
         const std::size_t v = edge_var[b + i];
-        const V p = hn::Load(d, post + v * L), r_old = hn::Load(d, msg + (b + i) * L);
         V t;
         if constexpr (kFloat) {
-          t = hn::Sub(p, r_old);
+          t = extrinsic(b + i, v);
         } else {
+          const V p = hn::Load(d, post + v * L), r_old = hn::Load(d, msg + (b + i) * L);
           // At posterior width (saturating: P - R can leave the lane's range); the check sees
           // the magnitude saturated to the message width.
           t = hn::Min(hn::Max(hn::SaturatedSub(p, r_old), p_lo), p_hi);
@@ -178,7 +189,21 @@ void Layered(D d, const LayeredArgs<hn::TFromD<D>>& a) {
           p = hn::Min(hn::Max(hn::SaturatedAdd(t, r), p_lo), p_hi);
         }
         keep(msg + (b + i) * L, r);
-        keep(post + v * L, p);
+        if (!flooding) keep(post + v * L, p);
+      }
+    }
+    if (flooding) {
+      // Variables: posterior = channel + all check messages; each edge gets the others' sum.
+      for (std::size_t v = 0; v < n; ++v) {
+        V total = hn::Load(d, a.channel + v * L);
+        for (std::uint32_t k = a.var_start[v]; k < a.var_start[v + 1]; ++k) {
+          total = hn::Add(total, hn::Load(d, msg + a.var_edge[k] * L));
+        }
+        keep(post + v * L, total);
+        for (std::uint32_t k = a.var_start[v]; k < a.var_start[v + 1]; ++k) {
+          const std::size_t e = a.var_edge[k];
+          keep(v2c + e * L, hn::Sub(total, hn::Load(d, msg + e * L)));
+        }
       }
     }
     if (!early_stop) continue;

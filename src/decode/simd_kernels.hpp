@@ -20,6 +20,11 @@ struct LayeredArgs {
   std::size_t lanes = 0;  // frames in this batch (the kernel's vector width)
   int iterations = 0;
   bool early_stop = true;
+  // Flooding (float only): all checks from the variable-to-check messages, then all variables.
+  bool flooding = false;
+  const std::uint32_t* var_start = nullptr;  // n + 1: edges of variable v are var_edge[var_start[v]..]
+  const std::uint32_t* var_edge = nullptr;
+  T* v2c = nullptr;  // edges x lanes
   CheckRule rule = CheckRule::min_sum;
   // Float: alpha, beta in LLR units. Fixed point: alpha_eighths = round(8 alpha) applied as
   // m - floor(m * (8 - alpha_eighths) / 8), beta in LSBs, saturation limits.

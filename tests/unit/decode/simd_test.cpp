@@ -95,11 +95,16 @@ TEST_CASE("float SIMD kernels agree with the double reference within tolerance o
   // posteriors of min-sum agree to 1e-3 relative on frames that converge.
   TargetGuard guard;
   const Code code = test::shipped("qc-rate-half-z54.qc");
-  for (Algorithm a : {Algorithm::min_sum, Algorithm::normalized_min_sum, Algorithm::offset_min_sum,
-                      Algorithm::sum_product}) {
+  for (auto [a, schedule] : {std::pair{Algorithm::min_sum, Schedule::layered},
+                             std::pair{Algorithm::normalized_min_sum, Schedule::layered},
+                             std::pair{Algorithm::offset_min_sum, Schedule::layered},
+                             std::pair{Algorithm::sum_product, Schedule::layered},
+                             std::pair{Algorithm::min_sum, Schedule::flooding},
+                             std::pair{Algorithm::normalized_min_sum, Schedule::flooding},
+                             std::pair{Algorithm::sum_product, Schedule::flooding}}) {
     DecoderSettings s;
     s.algorithm = a;
-    s.schedule = Schedule::layered;
+    s.schedule = schedule;
     s.iterations = 30;
     const auto llr =
         noisy(code, 45, 99, 3.0, 2.45);  // consistent Gaussian LLRs (var = 2 mean), ~2 dB
@@ -112,12 +117,13 @@ TEST_CASE("float SIMD kernels agree with the double reference within tolerance o
       for (std::size_t f = 0; f < simd.outcome.size(); ++f) {
         if (!simd.outcome[f].converged || !reference.outcome[f].converged) continue;
         ++both;
-        INFO("target " << target << " algorithm " << algorithm_name(a) << " frame " << f);
+        INFO("target " << target << " algorithm " << algorithm_name(a) << " " << schedule_name(schedule)
+                        << " frame " << f);
         for (std::size_t v = 0; v < code.n(); ++v) {
           REQUIRE(simd.hard[f * code.n() + v] == reference.hard[f * code.n() + v]);
         }
       }
-      CHECK(both > 30);  // most frames converge at this SNR
+      CHECK(both >= 25);  // the comparison is not vacuous: most of the 45 frames converge
     }
     force_simd_target("");
   }
@@ -144,10 +150,9 @@ TEST_CASE("the quantize SPEC syntax", "[simd]") {
   s.quantization = parse_quantization("6.2:6:20");
   CHECK_THROWS_WITH(make_decoder(test::shipped("hamming-7-4.tanner"), s),
                     Catch::Contains("impossible quantization"));
-  s.quantization.reset();
+  s.quantization = parse_quantization("6.2");
   s.kernel = Kernel::simd;
   s.schedule = Schedule::flooding;
-  CHECK_THROWS_WITH(make_decoder(test::shipped("hamming-7-4.tanner"), s),
-                    Catch::Contains("layered"));
+  CHECK_THROWS_WITH(make_decoder(test::shipped("hamming-7-4.tanner"), s), Catch::Contains("layered"));
   CHECK_THROWS_WITH(force_simd_target("NOPE"), Catch::Contains("not available here"));
 }
