@@ -124,6 +124,8 @@ std::string results_json(const RunRecord& run) {
                   {"alpha", c.decoder.alpha},
                   {"beta", c.decoder.beta},
                   {"flip_threshold", c.decoder.flip_threshold},
+                  {"kernel", c.decoder.kernel == Kernel::simd ? "simd" : "reference"},
+                  {"quantize", c.decoder.quantization ? json(quantization_spec(*c.decoder.quantization)) : json(nullptr)},
                   {"description", describe(c.decoder)}};
   j["channel"] = {
       {"kind", channel_name(c.channel.kind)},
@@ -193,6 +195,14 @@ RunRecord parse_results_json(std::string_view text, const std::string& source) {
   c.decoder.alpha = get<double>(dec, "alpha", source, "decoder");
   c.decoder.beta = get<double>(dec, "beta", source, "decoder");
   c.decoder.flip_threshold = get<int>(dec, "flip_threshold", source, "decoder");
+  // Files written before the batched kernels existed have no "kernel": the reference decoders.
+  const std::string kernel = dec.contains("kernel") ? get<std::string>(dec, "kernel", source, "decoder") : "reference";
+  if (kernel != "simd" && kernel != "reference") throw Error(fmt::format("{}: unknown decoder kernel '{}'", source, kernel));
+  c.decoder.kernel = kernel == "simd" ? Kernel::simd : Kernel::reference;
+  if (dec.contains("quantize") && !dec["quantize"].is_null()) {
+    c.decoder.quantization = parse_quantization(get<std::string>(dec, "quantize", source, "decoder"));
+    if (!c.decoder.quantization) throw Error(fmt::format("{}: bad decoder quantization", source));
+  }
   const json& ch = j["channel"];
   const auto kind = parse_channel(get<std::string>(ch, "kind", source, "channel"));
   if (!kind) throw Error(fmt::format("{}: unknown channel", source));

@@ -94,7 +94,7 @@ Scenario read_scenario(const std::string& path) {
   SimulationConfig& c = s.config;
   if (const toml::table* d = r.section("decoder")) {
     r.only(*d,
-           {"algorithm", "schedule", "iterations", "early_stop", "alpha", "beta", "flip_threshold"},
+           {"algorithm", "schedule", "iterations", "early_stop", "alpha", "beta", "flip_threshold", "kernel", "quantize"},
            "decoder");
     std::string algorithm = "sum-product", schedule = "flooding";
     r.get(d, "algorithm", algorithm);
@@ -110,6 +110,15 @@ Scenario read_scenario(const std::string& path) {
     r.get(d, "alpha", c.decoder.alpha);
     r.get(d, "beta", c.decoder.beta);
     r.get(d, "flip_threshold", c.decoder.flip_threshold);
+    std::string kernel = "reference", quantize;
+    r.get(d, "kernel", kernel);
+    if (kernel != "reference" && kernel != "simd") r.fail(r.node(d, "kernel"), "kernel must be \"reference\" or \"simd\"");
+    c.decoder.kernel = kernel == "simd" ? Kernel::simd : Kernel::reference;
+    r.get(d, "quantize", quantize);
+    if (!quantize.empty()) {
+      c.decoder.quantization = parse_quantization(quantize);
+      if (!c.decoder.quantization) r.fail(r.node(d, "quantize"), "quantize must be B.F or B.F:M:P");
+    }
   }
   const toml::table* ch = r.section("channel");
   if (!ch || !ch->get("sweep"))

@@ -16,6 +16,8 @@ RunRecord sample() {
   r.config.sweep = {1.0, 2.0};
   r.config.decoder.algorithm = Algorithm::offset_min_sum;
   r.config.decoder.beta = 0.25;
+  r.config.decoder.kernel = Kernel::simd;
+  r.config.decoder.quantization = parse_quantization("6.2");
   r.config.channel.snr_offset_db = 0.5;
   r.rate_for_snr = 0.5;
   r.threads_used = 2;
