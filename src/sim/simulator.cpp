@@ -125,6 +125,7 @@ PointResult Simulator::run_point(std::size_t index, PointResult total,
   std::string reason;
   unsigned running = threads;
   const auto start = Clock::now();
+  double last_report = -1;
 
   // Stop rules over the in-order totals; true when the point is finished.
   auto finished = [&] {
@@ -234,7 +235,12 @@ PointResult Simulator::run_point(std::size_t index, PointResult total,
           total.seconds + seconds_since(start) >= config_.stop.max_seconds) {
         stop = true, reason = "time limit";
       }
-      if (progress) progress(Progress{index, total, total.seconds + seconds_since(start)});
+      // At most five reports a second (chunks can finish far more often), and a last one.
+      const double now = seconds_since(start);
+      if (progress && (now - last_report >= 0.2 || running == 0)) {
+        progress(Progress{index, total, total.seconds + now});
+        last_report = now;
+      }
     }
   }
   for (auto& th : pool) th.join();
