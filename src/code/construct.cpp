@@ -170,6 +170,22 @@ Lifting lift_base_graph(std::size_t rows, std::size_t cols,
   return Lifting{base, six_cycles == 0 ? std::size_t{8} : std::size_t{6}};
 }
 
+std::vector<std::uint8_t> split_multiplicities(std::size_t rows, std::size_t cols,
+                                               const std::vector<std::uint8_t>& multiplicity, std::size_t t) {
+  const std::size_t width = cols * t;
+  std::vector<std::uint8_t> pattern(rows * t * width, 0);
+  for (std::size_t i = 0; i < rows; ++i) {
+    for (std::size_t j = 0; j < cols; ++j) {
+      const std::size_t k = multiplicity[i * cols + j];
+      if (k > t) throw Error(fmt::format("base entry ({}, {}) has multiplicity {} > {}", i + 1, j + 1, k, t));
+      for (std::size_t r = 0; r < t; ++r) {
+        for (std::size_t q = 0; q < k; ++q) pattern[(i * t + r) * width + j * t + (r + q) % t] = 1;
+      }
+    }
+  }
+  return pattern;
+}
+
 Code construct_peg(const std::vector<std::size_t>& degrees, std::size_t m, std::uint64_t seed) {
   const std::size_t n = degrees.size();
   if (m < 2 || n < 2) throw Error("PEG needs at least 2 variables and 2 checks");

@@ -32,6 +32,12 @@ expect_in "girth >= 8 claimed" "$WORK/err"
 expect_exit 0 "$T" inspect lifted.qc --json
 /usr/bin/python3 -c "import json; assert json.load(open('$WORK/out'))['girth'] >= 8" || fail "lifted girth"
 
+printf '2 1 1 0\n1 1 1 1\n' > mult.txt
+expect_exit 0 "$T" construct lift --base mult.txt --lifting 42 -o mult.qc
+expect_in "parallel edges split by copying the base 2 times, circulants of size 21" "$WORK/err"
+expect_exit 2 "$T" construct lift --base mult.txt --lifting 41 -o bad.qc
+expect_in "need a lifting size divisible by 2" "$WORK/err"
+
 expect_exit 0 "$T" inspect hamming-7-4 --dot h.dot
 grep -q "v6 \[shape=circle, color" h.dot || fail "cycle not highlighted"
 grep -q "c0 \[shape=square" h.dot || fail "checks are not squares"

@@ -70,3 +70,22 @@ TEST_CASE("PEG: exact degrees, large girth, deterministic", "[construct]") {
   for (std::size_t v = 0; v < 600; ++v) REQUIRE(irregular.variable_degree(v) == degrees[v]);
   CHECK(*cycle_census(irregular).girth >= 6);
 }
+
+TEST_CASE("multiplicity tables are split into 0/1 patterns that keep every degree", "[construct]") {
+  // Base graph with a double edge: row 0 = (2, 1, 1), row 1 = (1, 1, 2).
+  const std::vector<std::uint8_t> table{2, 1, 1, 1, 1, 2};
+  const auto pattern = split_multiplicities(2, 3, table, 2);
+  REQUIRE(pattern.size() == 4 * 6);
+  for (std::size_t r = 0; r < 4; ++r) {
+    int weight = 0;
+    for (std::size_t c = 0; c < 6; ++c) weight += pattern[r * 6 + c];
+    CHECK(weight == 4);  // row degree of the base row: 2 + 1 + 1
+  }
+  for (std::size_t c = 0; c < 6; ++c) {
+    int weight = 0;
+    for (std::size_t r = 0; r < 4; ++r) weight += pattern[r * 6 + c];
+    CHECK(weight == (c / 2 == 1 ? 2 : 3));  // column degrees 3, 2, 3
+  }
+  const Lifting lift = lift_base_graph(4, 6, pattern, 17, 3);
+  CHECK(*cycle_census(Code::from_quasi_cyclic(lift.base)).girth >= lift.girth_at_least);
+}
