@@ -46,7 +46,8 @@ std::vector<std::size_t> degree_sequence(const std::string& text, std::size_t n)
 
 // A base graph as a table of edge multiplicities (0/1, or small integers for parallel edges):
 // one line per row, entries separated by spaces, '#' comments.
-std::vector<std::uint8_t> read_multiplicity_table(const std::string& path, std::size_t& rows, std::size_t& cols) {
+std::vector<std::uint8_t> read_multiplicity_table(const std::string& path, std::size_t& rows,
+                                                  std::size_t& cols) {
   std::stringstream text(read_text_file(path, 1 << 24));
   std::vector<std::uint8_t> cells;
   rows = cols = 0;
@@ -56,14 +57,18 @@ std::vector<std::uint8_t> read_multiplicity_table(const std::string& path, std::
     std::istringstream words(line.substr(0, line.find('#')));
     std::vector<std::uint8_t> row;
     for (std::string w; words >> w;) {
-      if (w.empty() || w.size() > 3 || w.find_first_not_of("0123456789") != std::string::npos || std::stoi(w) > 255) {
-        throw Error(fmt::format("{}:{}: base entry '{}' is not a multiplicity 0..255", path, number, w));
+      if (w.empty() || w.size() > 3 || w.find_first_not_of("0123456789") != std::string::npos ||
+          std::stoi(w) > 255) {
+        throw Error(
+            fmt::format("{}:{}: base entry '{}' is not a multiplicity 0..255", path, number, w));
       }
       row.push_back(static_cast<std::uint8_t>(std::stoi(w)));
     }
     if (row.empty()) continue;
     if (rows == 0) cols = row.size();
-    if (row.size() != cols) throw Error(fmt::format("{}:{}: row has {} entries, the first has {}", path, number, row.size(), cols));
+    if (row.size() != cols)
+      throw Error(fmt::format("{}:{}: row has {} entries, the first has {}", path, number,
+                              row.size(), cols));
     cells.insert(cells.end(), row.begin(), row.end());
     ++rows;
   }
@@ -109,20 +114,26 @@ Code build(const ConstructOptions& o, std::string& note) {
   if (o.kind == "repetition") return construct_repetition(need_length());
   if (o.kind == "parity") return construct_single_parity(need_length());
   // lift
-  if (o.base.empty() || o.lifting == 0) throw Error("construct lift needs --base FILE and --lifting Z");
+  if (o.base.empty() || o.lifting == 0)
+    throw Error("construct lift needs --base FILE and --lifting Z");
   std::size_t rows = 0, cols = 0;
   const std::vector<std::uint8_t> table = read_multiplicity_table(o.base, rows, cols);
   const std::size_t t = *std::max_element(table.begin(), table.end());
   if (t == 0) throw Error(fmt::format("{}: the base graph has no edge", o.base));
   if (o.lifting % t != 0) {
-    throw Error(fmt::format("multiplicities up to {} need a lifting size divisible by {} (got Z = {})", t, t, o.lifting));
+    throw Error(
+        fmt::format("multiplicities up to {} need a lifting size divisible by {} (got Z = {})", t,
+                    t, o.lifting));
   }
-  const Lifting lift = lift_base_graph(rows * t, cols * t, split_multiplicities(rows, cols, table, t), o.lifting / t, o.seed);
-  note = fmt::format(" (the shifts avoid every block {}; girth >= {} claimed){}",
-                     lift.girth_at_least == 8 ? "4- and 6-cycle" : "4-cycle", lift.girth_at_least,
-                     t > 1 ? fmt::format("; parallel edges split by copying the base {} times, circulants of size {}", t,
-                                         o.lifting / t)
-                           : std::string());
+  const Lifting lift = lift_base_graph(
+      rows * t, cols * t, split_multiplicities(rows, cols, table, t), o.lifting / t, o.seed);
+  note = fmt::format(
+      " (the shifts avoid every block {}; girth >= {} claimed){}",
+      lift.girth_at_least == 8 ? "4- and 6-cycle" : "4-cycle", lift.girth_at_least,
+      t > 1 ? fmt::format(
+                  "; parallel edges split by copying the base {} times, circulants of size {}", t,
+                  o.lifting / t)
+            : std::string());
   return Code::from_quasi_cyclic(lift.base);
 }
 
@@ -161,7 +172,8 @@ void add_construct(CLI::App& app) {
   sub->add_option("--rate", o->rate,
                   "design rate 1 - dv/dc (regular, when --check-degree is not given)")
       ->capture_default_str();
-  sub->add_option("--base", o->base, "base graph to lift: a table of 0/1 or edge multiplicities, a row per line");
+  sub->add_option("--base", o->base,
+                  "base graph to lift: a table of 0/1 or edge multiplicities, a row per line");
   sub->add_option("--lifting", o->lifting, "lifting size Z (circulant size) for lift");
   sub->callback([o] {
     std::string note;

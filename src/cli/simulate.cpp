@@ -62,8 +62,10 @@ void apply_scenario(const Scenario& sc, SimulateOptions& o, const CLI::App& sub)
   if (!given("--alpha")) o.decoder.alpha = c.decoder.alpha;
   if (!given("--beta")) o.decoder.beta = c.decoder.beta;
   if (!given("--flip-threshold")) o.decoder.flip_threshold = c.decoder.flip_threshold;
-  if (!given("--kernel")) o.decoder.kernel = c.decoder.kernel == Kernel::simd ? "simd" : "reference";
-  if (!given("--quantize") && c.decoder.quantization) o.decoder.quantize = quantization_spec(*c.decoder.quantization);
+  if (!given("--kernel"))
+    o.decoder.kernel = c.decoder.kernel == Kernel::simd ? "simd" : "reference";
+  if (!given("--quantize") && c.decoder.quantization)
+    o.decoder.quantize = quantization_spec(*c.decoder.quantization);
   if (!given("--channel")) o.channel = channel_name(c.channel.kind);
   if (!given("--sweep")) {
     o.sweep.clear();

@@ -171,13 +171,16 @@ Lifting lift_base_graph(std::size_t rows, std::size_t cols,
 }
 
 std::vector<std::uint8_t> split_multiplicities(std::size_t rows, std::size_t cols,
-                                               const std::vector<std::uint8_t>& multiplicity, std::size_t t) {
+                                               const std::vector<std::uint8_t>& multiplicity,
+                                               std::size_t t) {
   const std::size_t width = cols * t;
   std::vector<std::uint8_t> pattern(rows * t * width, 0);
   for (std::size_t i = 0; i < rows; ++i) {
     for (std::size_t j = 0; j < cols; ++j) {
       const std::size_t k = multiplicity[i * cols + j];
-      if (k > t) throw Error(fmt::format("base entry ({}, {}) has multiplicity {} > {}", i + 1, j + 1, k, t));
+      if (k > t)
+        throw Error(
+            fmt::format("base entry ({}, {}) has multiplicity {} > {}", i + 1, j + 1, k, t));
       for (std::size_t r = 0; r < t; ++r) {
         for (std::size_t q = 0; q < k; ++q) pattern[(i * t + r) * width + j * t + (r + q) % t] = 1;
       }

@@ -84,7 +84,8 @@ void validate(const DecoderSettings& s, const Code& code) {
   }
   if (s.kernel == Kernel::simd || s.quantization) {
     if (s.schedule != Schedule::layered && s.quantization) {
-      throw Error("fixed-point decoding is defined for the layered schedule; add --schedule layered");
+      throw Error(
+          "fixed-point decoding is defined for the layered schedule; add --schedule layered");
     }
     if (!min_sum_family && s.algorithm != Algorithm::sum_product) {
       throw Error(fmt::format("no SIMD kernel for {}", algorithm_name(s.algorithm)));

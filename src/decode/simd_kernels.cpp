@@ -79,12 +79,14 @@ void Layered(D d, const LayeredArgs<hn::TFromD<D>>& a) {
   const std::size_t edges = check_start[m];
   for (std::size_t i = 0; i < edges * L; i += L) hn::Store(zero, d, msg + i);
   if (flooding) {
-    for (std::size_t e = 0; e < edges; ++e) hn::Store(hn::Load(d, a.channel + edge_var[e] * L), d, v2c + e * L);
+    for (std::size_t e = 0; e < edges; ++e)
+      hn::Store(hn::Load(d, a.channel + edge_var[e] * L), d, v2c + e * L);
   }
   // The check's input on edge e of variable v: the extrinsic P - R (layered) or the
   // variable-to-check message (flooding).
   auto extrinsic = [&](std::size_t e, std::size_t v) {
-    return flooding ? hn::Load(d, v2c + e * L) : hn::Sub(hn::Load(d, post + v * L), hn::Load(d, msg + e * L));
+    return flooding ? hn::Load(d, v2c + e * L)
+                    : hn::Sub(hn::Load(d, post + v * L), hn::Load(d, msg + e * L));
   };
   for (std::size_t l = 0; l < L; ++l) a.iterations_used[l] = iterations;
 

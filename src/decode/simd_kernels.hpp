@@ -22,7 +22,8 @@ struct LayeredArgs {
   bool early_stop = true;
   // Flooding (float only): all checks from the variable-to-check messages, then all variables.
   bool flooding = false;
-  const std::uint32_t* var_start = nullptr;  // n + 1: edges of variable v are var_edge[var_start[v]..]
+  const std::uint32_t* var_start =
+      nullptr;  // n + 1: edges of variable v are var_edge[var_start[v]..]
   const std::uint32_t* var_edge = nullptr;
   T* v2c = nullptr;  // edges x lanes
   CheckRule rule = CheckRule::min_sum;

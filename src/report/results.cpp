@@ -1,9 +1,11 @@
 #include "tannery/report/results.hpp"
 
 #include <fmt/format.h>
+#include <algorithm>
 #include <chrono>
 #include <ctime>
 #include <nlohmann/json.hpp>
+#include <type_traits>
 
 #include "tannery/error.hpp"
 
@@ -90,8 +92,25 @@ json point_json(const PointResult& p, const RunRecord& run, std::size_t edges) {
 template <class T>
 T get(const json& j, const char* key, const std::string& source, const std::string& where) {
   if (!j.contains(key)) throw Error(fmt::format("{}: {} has no '{}'", source, where, key));
+  // Integers must be stored as integers (a float like 1e300 would overflow the conversion), and
+  // unsigned fields non-negative.
+  const json& value = j.at(key);
+  auto integer_ok = [](const json& v, bool is_unsigned) {
+    return is_unsigned ? v.is_number_unsigned() : v.is_number_integer();
+  };
+  if constexpr (std::is_integral_v<T> && !std::is_same_v<T, bool>) {
+    if (!integer_ok(value, std::is_unsigned_v<T>)) {
+      throw Error(fmt::format("{}: {} has a '{}' that is not a valid integer", source, where, key));
+    }
+  } else if constexpr (std::is_same_v<T, std::vector<std::uint64_t>>) {
+    if (!value.is_array() || !std::all_of(value.begin(), value.end(),
+                                          [&](const json& v) { return integer_ok(v, true); })) {
+      throw Error(
+          fmt::format("{}: {} has a '{}' that is not a list of counts", source, where, key));
+    }
+  }
   try {
-    return j.at(key).get<T>();
+    return value.get<T>();
   } catch (const json::exception&) {
     throw Error(fmt::format("{}: {} has a '{}' of the wrong type", source, where, key));
   }
@@ -117,16 +136,18 @@ std::string results_json(const RunRecord& run) {
       {"edges", run.code.edges},
       {"rate",
        run.code.n ? static_cast<double>(run.code.k) / static_cast<double>(run.code.n) : 0.0}};
-  j["decoder"] = {{"algorithm", algorithm_name(c.decoder.algorithm)},
-                  {"schedule", schedule_name(c.decoder.schedule)},
-                  {"iterations", c.decoder.iterations},
-                  {"early_stop", c.decoder.early_stop},
-                  {"alpha", c.decoder.alpha},
-                  {"beta", c.decoder.beta},
-                  {"flip_threshold", c.decoder.flip_threshold},
-                  {"kernel", c.decoder.kernel == Kernel::simd ? "simd" : "reference"},
-                  {"quantize", c.decoder.quantization ? json(quantization_spec(*c.decoder.quantization)) : json(nullptr)},
-                  {"description", describe(c.decoder)}};
+  j["decoder"] = {
+      {"algorithm", algorithm_name(c.decoder.algorithm)},
+      {"schedule", schedule_name(c.decoder.schedule)},
+      {"iterations", c.decoder.iterations},
+      {"early_stop", c.decoder.early_stop},
+      {"alpha", c.decoder.alpha},
+      {"beta", c.decoder.beta},
+      {"flip_threshold", c.decoder.flip_threshold},
+      {"kernel", c.decoder.kernel == Kernel::simd ? "simd" : "reference"},
+      {"quantize",
+       c.decoder.quantization ? json(quantization_spec(*c.decoder.quantization)) : json(nullptr)},
+      {"description", describe(c.decoder)}};
   j["channel"] = {
       {"kind", channel_name(c.channel.kind)},
       {"parameter", parameter_key(c.channel)},
@@ -152,20 +173,38 @@ std::string results_json(const RunRecord& run) {
   return j.dump(1) + "\n";
 }
 
+namespace {
+RunRecord parse_results(const json& j, const std::string& source);
+}  // namespace
+
 RunRecord parse_results_json(std::string_view text, const std::string& source) {
   json j;
   try {
     j = json::parse(text);
   } catch (const json::parse_error& e) {
     throw Error(fmt::format("{}: not valid JSON (byte {})", source, e.byte));
+  } catch (const json::exception& e) {  // e.g. a number too large for any JSON number type
+    throw Error(fmt::format("{}: not valid JSON ({})", source, e.what()));
   }
+  try {
+    return parse_results(j, source);
+  } catch (const json::exception& e) {  // a field of an unexpected type in a nested object
+    throw Error(fmt::format("{}: malformed results file ({})", source, e.what()));
+  }
+}
+
+namespace {
+
+RunRecord parse_results(const json& j, const std::string& source) {
   if (!j.is_object() || j.value("format", "") != "tannery-results") {
     throw Error(
         fmt::format("{}: not a tannery results file (no \"format\": \"tannery-results\")", source));
   }
-  if (j.value("version", 0) != kResultsVersion) {
+  if (!j.contains("version") || !j["version"].is_number_integer() ||
+      j["version"].get<std::int64_t>() != kResultsVersion) {
     throw Error(fmt::format("{}: results version {} is not supported (this tool reads {})", source,
-                            j.value("version", 0), kResultsVersion));
+                            j.contains("version") ? j["version"].dump() : std::string("(none)"),
+                            kResultsVersion));
   }
   RunRecord r;
   for (const char* section : {"tool", "code", "decoder", "channel", "run", "points"}) {
@@ -196,11 +235,14 @@ RunRecord parse_results_json(std::string_view text, const std::string& source) {
   c.decoder.beta = get<double>(dec, "beta", source, "decoder");
   c.decoder.flip_threshold = get<int>(dec, "flip_threshold", source, "decoder");
   // Files written before the batched kernels existed have no "kernel": the reference decoders.
-  const std::string kernel = dec.contains("kernel") ? get<std::string>(dec, "kernel", source, "decoder") : "reference";
-  if (kernel != "simd" && kernel != "reference") throw Error(fmt::format("{}: unknown decoder kernel '{}'", source, kernel));
+  const std::string kernel =
+      dec.contains("kernel") ? get<std::string>(dec, "kernel", source, "decoder") : "reference";
+  if (kernel != "simd" && kernel != "reference")
+    throw Error(fmt::format("{}: unknown decoder kernel '{}'", source, kernel));
   c.decoder.kernel = kernel == "simd" ? Kernel::simd : Kernel::reference;
   if (dec.contains("quantize") && !dec["quantize"].is_null()) {
-    c.decoder.quantization = parse_quantization(get<std::string>(dec, "quantize", source, "decoder"));
+    c.decoder.quantization =
+        parse_quantization(get<std::string>(dec, "quantize", source, "decoder"));
     if (!c.decoder.quantization) throw Error(fmt::format("{}: bad decoder quantization", source));
   }
   const json& ch = j["channel"];
@@ -260,6 +302,8 @@ RunRecord parse_results_json(std::string_view text, const std::string& source) {
   }
   return r;
 }
+
+}  // namespace
 
 std::string results_csv(const RunRecord& run) {
   std::string out =

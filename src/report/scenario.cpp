@@ -3,6 +3,7 @@
 #include <fmt/format.h>
 #include <toml++/toml.h>
 #include <filesystem>
+#include <limits>
 
 #include "tannery/error.hpp"
 #include "tannery/io/matrix_io.hpp"
@@ -53,8 +54,11 @@ class Reader {
       if (!n->is_number()) fail(n, fmt::format("'{}' must be a number", key));
       out = static_cast<T>(n->value<double>().value());
     } else {
-      if (!n->is_integer() || n->as_integer()->get() < 0)
-        fail(n, fmt::format("'{}' must be a non-negative integer", key));
+      if (!n->is_integer() || n->as_integer()->get() < 0 ||
+          static_cast<std::uint64_t>(n->as_integer()->get()) > std::numeric_limits<T>::max()) {
+        fail(n, fmt::format("'{}' must be an integer from 0 to {}", key,
+                            std::numeric_limits<T>::max()));
+      }
       out = static_cast<T>(n->as_integer()->get());
     }
   }
@@ -94,7 +98,8 @@ Scenario read_scenario(const std::string& path) {
   SimulationConfig& c = s.config;
   if (const toml::table* d = r.section("decoder")) {
     r.only(*d,
-           {"algorithm", "schedule", "iterations", "early_stop", "alpha", "beta", "flip_threshold", "kernel", "quantize"},
+           {"algorithm", "schedule", "iterations", "early_stop", "alpha", "beta", "flip_threshold",
+            "kernel", "quantize"},
            "decoder");
     std::string algorithm = "sum-product", schedule = "flooding";
     r.get(d, "algorithm", algorithm);
@@ -112,7 +117,8 @@ Scenario read_scenario(const std::string& path) {
     r.get(d, "flip_threshold", c.decoder.flip_threshold);
     std::string kernel = "reference", quantize;
     r.get(d, "kernel", kernel);
-    if (kernel != "reference" && kernel != "simd") r.fail(r.node(d, "kernel"), "kernel must be \"reference\" or \"simd\"");
+    if (kernel != "reference" && kernel != "simd")
+      r.fail(r.node(d, "kernel"), "kernel must be \"reference\" or \"simd\"");
     c.decoder.kernel = kernel == "simd" ? Kernel::simd : Kernel::reference;
     r.get(d, "quantize", quantize);
     if (!quantize.empty()) {

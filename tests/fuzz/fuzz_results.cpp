@@ -7,7 +7,8 @@
 
 extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size) {
   try {
-    (void)tannery::parse_results_json(std::string(reinterpret_cast<const char*>(data), size), "fuzz");
+    (void)tannery::parse_results_json(std::string(reinterpret_cast<const char*>(data), size),
+                                      "fuzz");
   } catch (const tannery::Error&) {
   }
   return 0;

@@ -38,7 +38,8 @@ Lifting lift_base_graph(std::size_t rows, std::size_t cols,
 // offsets 0..k-1 among the t copies, so every copy keeps its degree and no block holds two
 // edges. Returns the 0/1 pattern, (rows t) x (cols t). t = 1 returns the table itself.
 std::vector<std::uint8_t> split_multiplicities(std::size_t rows, std::size_t cols,
-                                               const std::vector<std::uint8_t>& multiplicity, std::size_t t);
+                                               const std::vector<std::uint8_t>& multiplicity,
+                                               std::size_t t);
 
 // Progressive edge growth (Hu, Eleftheriou, Arnold, IEEE Trans. IT 2005): variables in order of
 // increasing degree; each new edge goes to a check as far as possible from the variable in the

@@ -117,8 +117,8 @@ TEST_CASE("float SIMD kernels agree with the double reference within tolerance o
       for (std::size_t f = 0; f < simd.outcome.size(); ++f) {
         if (!simd.outcome[f].converged || !reference.outcome[f].converged) continue;
         ++both;
-        INFO("target " << target << " algorithm " << algorithm_name(a) << " " << schedule_name(schedule)
-                        << " frame " << f);
+        INFO("target " << target << " algorithm " << algorithm_name(a) << " "
+                       << schedule_name(schedule) << " frame " << f);
         for (std::size_t v = 0; v < code.n(); ++v) {
           REQUIRE(simd.hard[f * code.n() + v] == reference.hard[f * code.n() + v]);
         }
@@ -153,6 +153,7 @@ TEST_CASE("the quantize SPEC syntax", "[simd]") {
   s.quantization = parse_quantization("6.2");
   s.kernel = Kernel::simd;
   s.schedule = Schedule::flooding;
-  CHECK_THROWS_WITH(make_decoder(test::shipped("hamming-7-4.tanner"), s), Catch::Contains("layered"));
+  CHECK_THROWS_WITH(make_decoder(test::shipped("hamming-7-4.tanner"), s),
+                    Catch::Contains("layered"));
   CHECK_THROWS_WITH(force_simd_target("NOPE"), Catch::Contains("not available here"));
 }

@@ -61,6 +61,13 @@ TEST_CASE("bad results files are refused naming the problem", "[report]") {
   CHECK_THROWS_WITH(parse_results_json("{", "r.json"), Catch::Contains("r.json: not valid JSON"));
   CHECK_THROWS_WITH(parse_results_json("{}", "r.json"),
                     Catch::Contains("not a tannery results file"));
+  // Found by tests/fuzz/fuzz_results: a number beyond any JSON number type, a float where an
+  // integer count belongs.
+  CHECK_THROWS_WITH(parse_results_json("[6e5148]", "r.json"),
+                    Catch::Contains("r.json: not valid JSON"));
+  std::string huge = results_json(sample());
+  huge.replace(huge.find("\"frames\": 640"), 13, "\"frames\": 1e300");
+  CHECK_THROWS_WITH(parse_results_json(huge, "r.json"), Catch::Contains("not a valid integer"));
   std::string text = results_json(sample());
   text.replace(text.find("\"frames\": 640"), 13, "\"frames\": 1");
   CHECK_THROWS_WITH(parse_results_json(text, "r.json"), Catch::Contains("more errors than trials"));
