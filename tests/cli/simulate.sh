@@ -86,7 +86,7 @@ expect_exit 2 "$T" simulate --algorithm ml
 expect_in "limited to k <= 24" "$WORK/err"
 printf 'code = "hamming-7-4"\n[channel]\nsweep = "1"\nswep = 2\n' > typo.toml
 expect_exit 2 "$T" simulate --scenario typo.toml
-expect_in "typo.toml:4:1: unknown key 'swep' in [channel]" "$WORK/err"
+expect_in "typo.toml:4:8: unknown key 'swep' in [channel]" "$WORK/err"
 printf 'code = "hamming-7-4"\n[channel]\nsweep = "1"\n[run]\nchunk_frames = 99999999999\n' > big.toml
 expect_exit 2 "$T" simulate --scenario big.toml
 expect_in "big.toml:5:16: 'chunk_frames' must be an integer from 0 to 4294967295" "$WORK/err"
