@@ -1,7 +1,10 @@
 // tannery plot RESULT.json... -o FILE.svg
 #include <fmt/format.h>
+#include <cstdio>
+#include <cstdlib>
 
 #include "commands.hpp"
+#include "tannery/error.hpp"
 #include "tannery/io/matrix_io.hpp"
 #include "tannery/report/plot.hpp"
 
@@ -22,6 +25,23 @@ struct PlotCommand {
 
 }  // namespace
 
+// Writes the SVG, or a PNG rendered from it (by rsvg-convert from Debian's librsvg2-bin) when the
+// name ends in .png.
+void write_plot(const std::string& path, const std::string& svg) {
+  if (!path.ends_with(".png")) return write_file_atomically(path, svg);
+  if (std::system("command -v rsvg-convert > /dev/null 2>&1") != 0) {
+    throw Error(
+        "PNG output needs rsvg-convert (apt-get install librsvg2-bin); write an .svg instead");
+  }
+  const std::string source = path + ".svg";
+  write_file_atomically(source, svg);
+  const std::string command =
+      fmt::format("rsvg-convert --background-color=white '{}' -o '{}'", source, path);
+  const int status = std::system(command.c_str());
+  std::remove(source.c_str());
+  if (status != 0) throw Error(fmt::format("{}: rsvg-convert failed", path));
+}
+
 void add_plot(CLI::App& app) {
   auto o = std::make_shared<PlotCommand>();
   auto* sub =
@@ -30,7 +50,9 @@ void add_plot(CLI::App& app) {
       "Example:\n  tannery plot sp.json nms.json -o compare.svg --label sum-product --label 'NMS "
       "0.75'");
   sub->add_option("RESULT", o->inputs, "results files written by tannery simulate")->required();
-  sub->add_option("-o,--output", o->output, "SVG file to write ('-' = stdout)")->required();
+  sub->add_option("-o,--output", o->output,
+                  "SVG file to write ('-' = stdout); a .png name is rendered to PNG")
+      ->required();
   sub->add_option("--label", o->labels,
                   "legend label per results file, in order (default: the decoder)");
   sub->add_option("--metric", o->metric, "fer, ber or both")
@@ -59,7 +81,7 @@ void add_plot(CLI::App& app) {
     options.title = o->title;
     options.normal_approximation = o->normal_approximation;
     options.threshold = o->threshold;
-    write_file_atomically(o->output, plot_svg(runs, options));
+    write_plot(o->output, plot_svg(runs, options));
   });
 }
 

@@ -69,6 +69,11 @@ lines = root.findall(".//{http://www.w3.org/2000/svg}polyline")
 assert len(lines) >= 5, len(lines)  # 2 runs x (FER, BER) + uncoded BPSK
 PY
 
+if command -v rsvg-convert > /dev/null; then
+  expect_exit 0 "$T" plot one.json -o one.png
+  head -c 8 one.png | od -An -c | grep -q "P   N   G" || fail "PNG output"
+fi
+
 # Replay a failing frame and write its LLRs.
 FAILED=$(/usr/bin/python3 -c "import json; print(json.load(open('one.json'))['points'][0]['failed_frames'][0])")
 expect_exit 0 "$T" simulate "${COMMON[@]}" --threads 1 --replay "0:$FAILED" --replay-llr f.f32
