@@ -1,6 +1,8 @@
 // Constructors of the concrete reference decoders (private to the library).
 #pragma once
 
+#include <cmath>
+#include <cstdint>
 #include <memory>
 
 #include "tannery/decode/decoder.hpp"
@@ -15,7 +17,21 @@ std::unique_ptr<Decoder> make_simd(const Code& code, const DecoderSettings& sett
 
 // Channel LLR to fixed point: round(L * 2^fraction) to nearest (ties to even), saturated to the
 // symmetric range of channel_bits; +-Inf saturate. Shared by the scalar and SIMD fixed-point paths.
-std::int32_t quantize_llr(double llr, const Quantization& q);
+class LlrQuantizer {
+ public:
+  explicit LlrQuantizer(const Quantization& q)
+      : scale_(static_cast<double>(1 << q.fraction_bits)),  // exact: a power of two
+        limit_(static_cast<double>((1 << (q.channel_bits - 1)) - 1)) {}
+  std::int32_t operator()(double llr) const {
+    const double x = llr * scale_;
+    if (!(x < limit_)) return static_cast<std::int32_t>(limit_);
+    if (!(x > -limit_)) return static_cast<std::int32_t>(-limit_);
+    return static_cast<std::int32_t>(std::rint(x));  // default rounding mode: nearest, ties to even
+  }
+
+ private:
+  double scale_, limit_;
+};
 inline std::int32_t saturate(std::int64_t x, int bits) {
   const std::int64_t limit = (std::int64_t{1} << (bits - 1)) - 1;
   return static_cast<std::int32_t>(x > limit ? limit : (x < -limit ? -limit : x));

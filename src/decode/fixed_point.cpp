@@ -19,14 +19,6 @@
 
 namespace tannery::detail {
 
-std::int32_t quantize_llr(double llr, const Quantization& q) {
-  const double limit = static_cast<double>((1 << (q.channel_bits - 1)) - 1);
-  const double x = llr * static_cast<double>(1 << q.fraction_bits);  // exact: a power of two
-  if (!(x < limit)) return static_cast<std::int32_t>(limit);
-  if (!(x > -limit)) return static_cast<std::int32_t>(-limit);
-  return static_cast<std::int32_t>(std::nearbyint(x));
-}
-
 namespace {
 
 class FixedPoint final : public Decoder {
@@ -34,6 +26,7 @@ class FixedPoint final : public Decoder {
   FixedPoint(const Code& code, const DecoderSettings& settings)
       : Decoder(code, settings),
         q_(*settings.quantization),
+        quantize_(q_),
         messages_(code.edges()),
         posterior_(code.n()) {
     std::size_t max_degree = 0;
@@ -49,7 +42,7 @@ class FixedPoint final : public Decoder {
                             std::span<double> posterior) override {
     const Code& code = code_;
     const int limit_m = (1 << (q_.message_bits - 1)) - 1;
-    for (std::size_t v = 0; v < code.n(); ++v) posterior_[v] = quantize_llr(llr[v], q_);
+    for (std::size_t v = 0; v < code.n(); ++v) posterior_[v] = quantize_(llr[v]);
     std::fill(messages_.begin(), messages_.end(), 0);
     FrameOutcome outcome;
     for (int it = 1; it <= settings_.iterations; ++it) {
@@ -99,6 +92,7 @@ class FixedPoint final : public Decoder {
 
  private:
   Quantization q_;
+  LlrQuantizer quantize_;
   std::vector<std::int32_t> messages_, posterior_, t_;
   int alpha_eighths_ = 8, beta_lsb_ = 0;
 };

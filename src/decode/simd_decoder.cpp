@@ -5,6 +5,7 @@
 #include <hwy/targets.h>
 #include <algorithm>
 #include <cmath>
+#include <optional>
 #include <vector>
 
 #include "decoders.hpp"
@@ -90,8 +91,7 @@ class Batched final : public Decoder {
       args_.beta_lsb =
           static_cast<int>(std::lround(settings.beta * std::ldexp(1.0, q.fraction_bits)));
       args_.message_limit = (1 << (q.message_bits - 1)) - 1;
-      scale_ = static_cast<double>(1 << q.fraction_bits);
-      limit_ = static_cast<double>((1 << (q.channel_bits - 1)) - 1);
+      quantize_.emplace(q);
       args_.posterior_limit = (1 << (q.posterior_bits - 1)) - 1;
     }
     // Aligned buffers (Highway's Load needs vector alignment).
@@ -136,7 +136,7 @@ class Batched final : public Decoder {
           if constexpr (std::is_same_v<T, float>) {
             lanes[v * lanes_ + l] = static_cast<float>(clip_llr(x));
           } else {
-            lanes[v * lanes_ + l] = static_cast<T>(quantize(x));
+            lanes[v * lanes_ + l] = static_cast<T>((*quantize_)(x));
           }
         }
       }
@@ -163,16 +163,8 @@ class Batched final : public Decoder {
   }
 
  private:
-  // quantize_llr with the constants hoisted (rint and nearbyint round alike; rint inlines).
-  std::int32_t quantize(double llr) const {
-    const double x = llr * scale_;
-    if (!(x < limit_)) return static_cast<std::int32_t>(limit_);
-    if (!(x > -limit_)) return static_cast<std::int32_t>(-limit_);
-    return static_cast<std::int32_t>(std::rint(x));  // default rounding mode: nearest, ties to even
-  }
-
   std::size_t lanes_ = 1;
-  double scale_ = 1, limit_ = 0;
+  std::optional<LlrQuantizer> quantize_;
   std::vector<std::uint32_t> check_start_, edge_var_, var_start_, var_edge_;
   hwy::AlignedFreeUniquePtr<T[]> channel_, posterior_, messages_, scratch_, v2c_;
   std::vector<std::int32_t> iterations_, syndrome_;

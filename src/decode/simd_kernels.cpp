@@ -90,6 +90,14 @@ void Layered(D d, const LayeredArgs<hn::TFromD<D>>& a) {
   };
   for (std::size_t l = 0; l < L; ++l) a.iterations_used[l] = iterations;
 
+  // Sign bit of the XOR of a check's posteriors = parity of its negative ones, per lane.
+  auto parity_of = [&](std::size_t c) {
+    VI par = zero_i;
+    for (std::uint32_t e = check_start[c]; e < check_start[c + 1]; ++e) {
+      par = hn::Xor(par, hn::BitCast(di, hn::Load(d, post + edge_var[e] * L)));
+    }
+    return par;
+  };
   VI done = zero_i;  // lanes that met the early-stop rule
   for (int it = 1; it <= iterations; ++it) {
     const auto frozen = hn::MaskFromVec(hn::BitCast(d, done));
@@ -211,13 +219,7 @@ void Layered(D d, const LayeredArgs<hn::TFromD<D>>& a) {
     if (!early_stop) continue;
     // Vectorised syndrome: a lane is satisfied when every check has even parity of negatives.
     VI unsatisfied = zero_i;
-    for (std::size_t c = 0; c < m; ++c) {
-      VI par = zero_i;
-      for (std::uint32_t e = check_start[c]; e < check_start[c + 1]; ++e) {
-        par = hn::Xor(par, hn::BitCast(di, hn::Load(d, post + edge_var[e] * L)));
-      }
-      unsatisfied = hn::Or(unsatisfied, par);
-    }
+    for (std::size_t c = 0; c < m; ++c) unsatisfied = hn::Or(unsatisfied, parity_of(c));
     // The sign bit of the XOR of all posteriors of a check is the parity of its negatives.
     const VI newly = hn::AndNot(
         done, hn::AndNot(hn::VecFromMask(di, hn::Lt(unsatisfied, zero_i)), hn::Set(di, TI(-1))));
@@ -235,10 +237,7 @@ void Layered(D d, const LayeredArgs<hn::TFromD<D>>& a) {
   alignas(64) TI par_lanes[hn::MaxLanes(di)];
   for (std::size_t l = 0; l < L; ++l) a.syndrome_weight[l] = 0;
   for (std::size_t c = 0; c < m; ++c) {
-    VI par = zero_i;
-    for (std::uint32_t e = check_start[c]; e < check_start[c + 1]; ++e) {
-      par = hn::Xor(par, hn::BitCast(di, hn::Load(d, post + edge_var[e] * L)));
-    }
+    const VI par = parity_of(c);
     if (hn::AllFalse(di, hn::Lt(par, zero_i))) continue;
     hn::Store(par, di, par_lanes);
     for (std::size_t l = 0; l < L; ++l) a.syndrome_weight[l] += par_lanes[l] < 0;

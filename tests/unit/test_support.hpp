@@ -88,3 +88,33 @@ inline std::vector<double> awgn_llrs(const std::vector<std::uint8_t>& word, doub
 }
 
 }  // namespace tannery::test
+
+#include "tannery/decode/decoder.hpp"
+
+namespace tannery::test {
+
+// Hard decisions, posteriors and outcomes of decoding a batch with fresh settings.
+struct Decoded {
+  std::vector<std::uint8_t> hard;
+  std::vector<double> posterior;
+  std::vector<FrameOutcome> outcome;
+};
+inline Decoded decode_all(const Code& code, const DecoderSettings& s,
+                          const std::vector<double>& llr) {
+  const std::size_t frames = llr.size() / code.n();
+  Decoded d{std::vector<std::uint8_t>(llr.size()), std::vector<double>(llr.size()),
+            std::vector<FrameOutcome>(frames)};
+  make_decoder(code, s)->decode(llr, d.hard, d.posterior, d.outcome);
+  return d;
+}
+
+// count LLRs mean + spread * N(0, 1), seeded.
+inline std::vector<double> gaussian_llrs(std::size_t count, std::uint64_t seed, double mean,
+                                         double spread) {
+  Gaussian g(seed);
+  std::vector<double> llr(count);
+  for (auto& x : llr) x = mean + spread * g();
+  return llr;
+}
+
+}  // namespace tannery::test

@@ -12,18 +12,9 @@ using namespace tannery;
 
 namespace {
 
-struct Run {
-  std::vector<std::uint8_t> hard;
-  std::vector<double> posterior;
-  std::vector<FrameOutcome> outcome;
-};
-
+using Run = test::Decoded;
 Run run(const Code& code, const DecoderSettings& s, const std::vector<double>& llr) {
-  const std::size_t frames = llr.size() / code.n();
-  Run r{std::vector<std::uint8_t>(llr.size()), std::vector<double>(llr.size()),
-        std::vector<FrameOutcome>(frames)};
-  make_decoder(code, s)->decode(llr, r.hard, r.posterior, r.outcome);
-  return r;
+  return test::decode_all(code, s, llr);
 }
 
 DecoderSettings settings(Algorithm a, Schedule sch = Schedule::flooding, int iterations = 50,
@@ -74,10 +65,7 @@ std::vector<double> exact_marginals(const Code& code, const std::vector<double>&
 
 std::vector<double> random_llrs(std::size_t count, std::uint64_t seed, double mean = 1.0,
                                 double spread = 2.0) {
-  test::Gaussian g(seed);
-  std::vector<double> llr(count);
-  for (auto& x : llr) x = mean + spread * g();
-  return llr;
+  return test::gaussian_llrs(count, seed, mean, spread);
 }
 
 }  // namespace

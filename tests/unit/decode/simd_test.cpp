@@ -8,26 +8,14 @@ using namespace tannery;
 
 namespace {
 
-struct Out {
-  std::vector<std::uint8_t> hard;
-  std::vector<double> posterior;
-  std::vector<FrameOutcome> outcome;
-};
-
+using Out = test::Decoded;
 Out decode(const Code& code, const DecoderSettings& s, const std::vector<double>& llr) {
-  const std::size_t frames = llr.size() / code.n();
-  Out o{std::vector<std::uint8_t>(llr.size()), std::vector<double>(llr.size()),
-        std::vector<FrameOutcome>(frames)};
-  make_decoder(code, s)->decode(llr, o.hard, o.posterior, o.outcome);
-  return o;
+  return test::decode_all(code, s, llr);
 }
 
 std::vector<double> noisy(const Code& code, std::size_t frames, std::uint64_t seed, double mean,
                           double spread) {
-  test::Gaussian g(seed);
-  std::vector<double> llr(code.n() * frames);
-  for (auto& x : llr) x = mean + spread * g();
-  return llr;
+  return test::gaussian_llrs(code.n() * frames, seed, mean, spread);
 }
 
 // Restores automatic target choice when a test ends, even on failure.
