@@ -28,6 +28,8 @@ class LlrQuantizer {
     if (!(x > -limit_)) return static_cast<std::int32_t>(-limit_);
     return static_cast<std::int32_t>(std::rint(x));  // default rounding mode: nearest, ties to even
   }
+  double scale() const noexcept { return scale_; }
+  double limit() const noexcept { return limit_; }
 
  private:
   double scale_, limit_;

@@ -98,7 +98,7 @@ class Batched final : public Decoder {
     channel_ = hwy::AllocateAligned<T>(code.n() * lanes_);
     posterior_ = hwy::AllocateAligned<T>(code.n() * lanes_);
     messages_ = hwy::AllocateAligned<T>(std::max<std::size_t>(code.edges(), 1) * lanes_);
-    scratch_ = hwy::AllocateAligned<T>(3 * args_.max_degree * lanes_);
+    scratch_ = hwy::AllocateAligned<T>(5 * args_.max_degree * lanes_);
     if (args_.flooding) {
       v2c_ = hwy::AllocateAligned<T>(std::max<std::size_t>(code.edges(), 1) * lanes_);
       args_.v2c = v2c_.get();
@@ -113,6 +113,33 @@ class Batched final : public Decoder {
     args_.iterations_used = iterations_.data();
   }
 
+ public:
+  std::size_t lanes() const noexcept override { return lanes_; }
+
+  void decode_lanes(std::span<const double> llr, std::span<std::uint64_t> hard,
+                    std::span<FrameOutcome> outcome) override {
+    const std::size_t n = code_.n();
+    TANNERY_ASSERT(llr.size() == n * lanes_ && hard.size() == n && outcome.size() == lanes_);
+    if (quantize_)
+      channel_values(llr.data(), llr.size(), quantize_->scale(), quantize_->limit(),
+                     channel_.get());
+    else
+      channel_values(llr.data(), llr.size(), 1.0, kLlrLimit, channel_.get());
+    if constexpr (std::is_same_v<T, float>)
+      layered_float(args_);
+    else if constexpr (std::is_same_v<T, std::int16_t>)
+      layered_int16(args_);
+    else
+      layered_int8(args_);
+    sign_masks(posterior_.get(), n, hard.data());
+    for (std::size_t l = 0; l < lanes_; ++l) {
+      FrameOutcome& o = outcome[l];
+      o.iterations = iterations_[l];
+      o.syndrome_weight = static_cast<std::uint32_t>(syndrome_[l]);
+      o.converged = o.syndrome_weight == 0;
+    }
+  }
+
  protected:
   FrameOutcome decode_frame(std::span<const double> llr, std::span<std::uint8_t> hard,
                             std::span<double> posterior) override {
@@ -121,43 +148,36 @@ class Batched final : public Decoder {
     return out;
   }
 
+  // Frame layout: transposed into lane layout in blocks that stay in cache.
   void decode_batch(std::span<const double> llr, std::span<std::uint8_t> hard,
                     std::span<double> posterior, std::span<FrameOutcome> outcome) override {
     const std::size_t n = code_.n(), frames = outcome.size();
     const double scale =
         settings_.quantization ? std::ldexp(1.0, -settings_.quantization->fraction_bits) : 1.0;
+    constexpr std::size_t kBlock = 16;
+    lane_llr_.resize(n * lanes_);
+    masks_.resize(n);
     for (std::size_t first = 0; first < frames; first += lanes_) {
       const std::size_t count = std::min(lanes_, frames - first);
-      T* lanes = channel_.get();
-      for (std::size_t l = 0; l < lanes_; ++l) {  // frame by frame: sequential reads
-        const double* frame = llr.data() + (first + l) * n;
-        for (std::size_t v = 0; v < n; ++v) {
-          const double x = l < count ? frame[v] : 0.0;  // idle lanes decode zeros
-          if constexpr (std::is_same_v<T, float>) {
-            lanes[v * lanes_ + l] = static_cast<float>(clip_llr(x));
-          } else {
-            lanes[v * lanes_ + l] = static_cast<T>((*quantize_)(x));
-          }
+      for (std::size_t v0 = 0; v0 < n; v0 += kBlock) {
+        const std::size_t v1 = std::min(n, v0 + kBlock);
+        for (std::size_t l = 0; l < lanes_; ++l) {
+          const double* frame = llr.data() + (first + l) * n;
+          for (std::size_t v = v0; v < v1; ++v)
+            lane_llr_[v * lanes_ + l] = l < count ? frame[v] : 0.0;  // idle lanes decode zeros
         }
       }
-      if constexpr (std::is_same_v<T, float>)
-        layered_float(args_);
-      else if constexpr (std::is_same_v<T, std::int16_t>)
-        layered_int16(args_);
-      else
-        layered_int8(args_);
+      lane_outcome_.resize(lanes_);
+      decode_lanes(lane_llr_, masks_, lane_outcome_);
       for (std::size_t l = 0; l < count; ++l) {
         const std::size_t f = first + l;
         std::uint8_t* h = hard.data() + f * n;
-        for (std::size_t v = 0; v < n; ++v) {
-          const T p = posterior_[v * lanes_ + l];
-          h[v] = p < 0 ? 1 : 0;
-          if (!posterior.empty()) posterior[f * n + v] = static_cast<double>(p) * scale;
+        for (std::size_t v = 0; v < n; ++v) h[v] = (masks_[v] >> l) & 1u;
+        if (!posterior.empty()) {
+          for (std::size_t v = 0; v < n; ++v)
+            posterior[f * n + v] = static_cast<double>(posterior_[v * lanes_ + l]) * scale;
         }
-        FrameOutcome& o = outcome[f];
-        o.iterations = iterations_[l];
-        o.syndrome_weight = static_cast<std::uint32_t>(syndrome_[l]);
-        o.converged = o.syndrome_weight == 0;
+        outcome[f] = lane_outcome_[l];
       }
     }
   }
@@ -168,6 +188,9 @@ class Batched final : public Decoder {
   std::vector<std::uint32_t> check_start_, edge_var_, var_start_, var_edge_;
   hwy::AlignedFreeUniquePtr<T[]> channel_, posterior_, messages_, scratch_, v2c_;
   std::vector<std::int32_t> iterations_, syndrome_;
+  std::vector<double> lane_llr_;
+  std::vector<std::uint64_t> masks_;
+  std::vector<FrameOutcome> lane_outcome_;
   LayeredArgs<T> args_;
 };
 

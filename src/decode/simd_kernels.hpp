@@ -37,7 +37,7 @@ struct LayeredArgs {
   const T* channel = nullptr;               // n x lanes
   T* posterior = nullptr;                   // n x lanes
   T* messages = nullptr;                    // edges x lanes (check-to-variable)
-  T* scratch = nullptr;                     // 3 x max_degree x lanes
+  T* scratch = nullptr;                     // 5 x max_degree x lanes
   std::int32_t* iterations_used = nullptr;  // lanes
   std::int32_t* syndrome_weight = nullptr;  // lanes: unsatisfied checks at exit
 };
@@ -49,6 +49,18 @@ std::size_t int8_lanes();
 void layered_float(const LayeredArgs<float>& args);
 void layered_int16(const LayeredArgs<std::int16_t>& args);
 void layered_int8(const LayeredArgs<std::int8_t>& args);
+// Channel values of a batch from count LLRs in lane layout (count: a multiple of 8): float32
+// clipped at +-clip (scale 1), or fixed point round(llr * scale), ties to even, saturated at
+// +-clip: the rule of LlrQuantizer.
+void channel_values(const double* llr, std::size_t count, double scale, double clip, float* out);
+void channel_values(const double* llr, std::size_t count, double scale, double clip,
+                    std::int16_t* out);
+void channel_values(const double* llr, std::size_t count, double scale, double clip,
+                    std::int8_t* out);
+// Hard decisions of n posteriors in lane layout: bit l of masks[v] set where lane l is negative.
+void sign_masks(const float* post, std::size_t n, std::uint64_t* masks);
+void sign_masks(const std::int16_t* post, std::size_t n, std::uint64_t* masks);
+void sign_masks(const std::int8_t* post, std::size_t n, std::uint64_t* masks);
 // Targets the kernels were compiled for and this CPU supports, best first; restricting dispatch
 // to one of them (empty name: automatic). false when the name is unknown.
 std::vector<std::string> kernel_targets();

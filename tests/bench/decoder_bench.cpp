@@ -32,16 +32,24 @@ void run(benchmark::State& state, const Case& c) {
   s.early_stop = false;
   s.kernel = c.kernel;
   if (c.quantize[0]) s.quantization = parse_quantization(c.quantize);
-  const std::size_t frames = c.kernel == Kernel::simd ? 256 : 16;
+  auto decoder = make_decoder(code, s);
+  // The batched kernels get their lane layout directly (one batch of lanes() frames), as the
+  // simulator feeds them; the scalar references decode 16 frames in frame layout.
+  const std::size_t lanes = decoder->lanes(), frames = lanes ? lanes : 16;
   // Consistent Gaussian LLRs near the waterfall of rate-1/2 codes (Eb/N0 about 1.5 dB).
   test::Gaussian g(1);
   std::vector<double> llr(code.n() * frames);
   for (auto& x : llr) x = 2.8 + std::sqrt(5.6) * g();
   std::vector<std::uint8_t> hard(llr.size());
+  std::vector<std::uint64_t> masks(code.n());
   std::vector<FrameOutcome> out(frames);
-  auto decoder = make_decoder(code, s);
   for (auto _ : state) {
-    decoder->decode(llr, hard, {}, out);
+    if (lanes) {
+      decoder->decode_lanes(llr, masks, out);
+    } else {
+      decoder->decode(llr, hard, {}, out);
+    }
+    benchmark::DoNotOptimize(masks.data());
     benchmark::DoNotOptimize(hard.data());
   }
   const double updates = static_cast<double>(state.iterations()) * static_cast<double>(frames) *
@@ -84,35 +92,65 @@ TANNERY_DECODER_BENCH(BM_simd_f32_sum_product_reg2016, "regular-3-6-n2016.tanner
 TANNERY_DECODER_BENCH(BM_simd_i8_nms_reg2016, "regular-3-6-n2016.tanner",
                       Algorithm::normalized_min_sum, Kernel::simd, "6.2");
 
-// Peak rates of this core: independent chains of 256-bit integer adds and float FMAs (AVX2;
-// the development machine has no AVX-512). ops counts lane operations per second.
-__attribute__((target("avx2,fma"))) void BM_peak_avx2_int8_add(benchmark::State& state) {
-  __m256i acc[8];
-  for (int i = 0; i < 8; ++i) acc[i] = _mm256_set1_epi8(static_cast<char>(i));
-  const __m256i one = _mm256_set1_epi8(1);
+// Peak rates of this core: independent chains of 512-bit (AVX-512) and 256-bit (AVX2) saturating
+// int8 adds and float32 FMAs; lane_ops_per_s counts lane operations per second. A benchmark
+// whose instructions this CPU lacks is skipped.
+template <class Vec, int kChains, int kLanes, class Op>
+void peak(benchmark::State& state, bool supported, Vec start, Op op) {
+  if (!supported) {
+    state.SkipWithError("instruction set not supported by this CPU");
+    return;
+  }
+  Vec acc[kChains];
+  for (auto& a : acc) a = start;
   for (auto _ : state) {
     for (int r = 0; r < 1000; ++r) {
-      for (int i = 0; i < 8; ++i) acc[i] = _mm256_adds_epi8(acc[i], one);
+      for (auto& a : acc) a = op(a);
     }
     benchmark::DoNotOptimize(acc);
   }
-  state.counters["lane_ops_per_s"] = benchmark::Counter(
-      static_cast<double>(state.iterations()) * 1000 * 8 * 32, benchmark::Counter::kIsRate);
+  state.counters["lane_ops_per_s"] =
+      benchmark::Counter(static_cast<double>(state.iterations()) * 1000 * kChains * kLanes,
+                         benchmark::Counter::kIsRate);
+}
+
+__attribute__((target("avx512bw"))) void BM_peak_avx512_int8_add(benchmark::State& state) {
+  const __m512i one = _mm512_set1_epi8(1);
+  peak<__m512i, 8, 64>(
+      state, __builtin_cpu_supports("avx512bw"),
+      _mm512_set1_epi8(3), [&](__m512i a) __attribute__((target("avx512bw"))) {
+        return _mm512_adds_epi8(a, one);
+      });
+}
+BENCHMARK(BM_peak_avx512_int8_add);
+
+__attribute__((target("avx512f"))) void BM_peak_avx512_f32_fma(benchmark::State& state) {
+  const __m512 a = _mm512_set1_ps(0.999f), b = _mm512_set1_ps(0.001f);
+  peak<__m512, 10, 16>(
+      state, __builtin_cpu_supports("avx512f"),
+      _mm512_set1_ps(1.0f), [&](__m512 x) __attribute__((target("avx512f"))) {
+        return _mm512_fmadd_ps(x, a, b);
+      });
+}
+BENCHMARK(BM_peak_avx512_f32_fma);
+
+__attribute__((target("avx2"))) void BM_peak_avx2_int8_add(benchmark::State& state) {
+  const __m256i one = _mm256_set1_epi8(1);
+  peak<__m256i, 8, 32>(
+      state, __builtin_cpu_supports("avx2"),
+      _mm256_set1_epi8(3), [&](__m256i a) __attribute__((target("avx2"))) {
+        return _mm256_adds_epi8(a, one);
+      });
 }
 BENCHMARK(BM_peak_avx2_int8_add);
 
 __attribute__((target("avx2,fma"))) void BM_peak_avx2_f32_fma(benchmark::State& state) {
-  __m256 acc[10];
-  for (int i = 0; i < 10; ++i) acc[i] = _mm256_set1_ps(static_cast<float>(i));
   const __m256 a = _mm256_set1_ps(0.999f), b = _mm256_set1_ps(0.001f);
-  for (auto _ : state) {
-    for (int r = 0; r < 1000; ++r) {
-      for (int i = 0; i < 10; ++i) acc[i] = _mm256_fmadd_ps(acc[i], a, b);
-    }
-    benchmark::DoNotOptimize(acc);
-  }
-  state.counters["lane_ops_per_s"] = benchmark::Counter(
-      static_cast<double>(state.iterations()) * 1000 * 10 * 8, benchmark::Counter::kIsRate);
+  peak<__m256, 10, 8>(
+      state, __builtin_cpu_supports("fma"),
+      _mm256_set1_ps(1.0f), [&](__m256 x) __attribute__((target("avx2,fma"))) {
+        return _mm256_fmadd_ps(x, a, b);
+      });
 }
 BENCHMARK(BM_peak_avx2_f32_fma);
 

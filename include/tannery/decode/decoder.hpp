@@ -90,6 +90,14 @@ class Decoder {
               std::span<double> posterior, std::span<FrameOutcome> outcome,
               std::size_t first_frame = 0);
 
+  // Lane layout, offered by the batched SIMD kernels: lanes() frames side by side (at most 64),
+  // position v of frame l at [v * lanes() + l]; 0 when the decoder has no lane layout.
+  virtual std::size_t lanes() const noexcept { return 0; }
+  // llr: n x lanes() NaN-free channel LLRs in lane layout; hard: n masks, bit l set where frame
+  // l decides 1; outcome: lanes() entries. Only for decoders with lanes() > 0.
+  virtual void decode_lanes(std::span<const double> llr, std::span<std::uint64_t> hard,
+                            std::span<FrameOutcome> outcome);
+
   const Code& code() const noexcept { return code_; }
   const DecoderSettings& settings() const noexcept { return settings_; }
 
