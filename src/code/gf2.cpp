@@ -248,4 +248,30 @@ void Encoder::encode(std::span<const std::uint8_t> info, std::span<std::uint8_t>
   }
 }
 
+void Encoder::encode_lanes(std::span<const std::uint64_t> info,
+                           std::span<std::uint64_t> codeword) const {
+  TANNERY_ASSERT(info.size() == k() && codeword.size() == n_);
+  std::fill(codeword.begin(), codeword.end(), std::uint64_t{0});
+  for (std::size_t i = 0; i < info.size(); ++i) codeword[info_positions_[i]] = info[i];
+  // By free index, so a gap row's set bits select information words directly.
+  thread_local std::vector<std::uint64_t> by_free;
+  by_free.assign(free_cols_.size(), 0);
+  for (std::size_t i = 0; i < info.size(); ++i) by_free[info_free_index_[i]] = info[i];
+  for (std::size_t j = 0; j < gap_cols_.size(); ++j) {
+    const std::uint64_t* row = gap_rows_.row(j);
+    std::uint64_t acc = 0;
+    for (std::size_t w = 0; w < gap_rows_.words_per_row(); ++w) {
+      for (std::uint64_t bits = row[w]; bits; bits &= bits - 1)
+        acc ^= by_free[w * 64 + static_cast<std::size_t>(std::countr_zero(bits))];
+    }
+    codeword[gap_cols_[j]] = acc;
+  }
+  for (std::size_t i = 0; i < pivot_cols_.size(); ++i) {
+    std::uint64_t parity = 0;
+    for (std::uint32_t j = pivot_start_[i]; j < pivot_start_[i + 1]; ++j)
+      parity ^= codeword[pivot_others_[j]];
+    codeword[pivot_cols_[i]] = parity;
+  }
+}
+
 }  // namespace tannery

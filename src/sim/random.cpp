@@ -3,6 +3,9 @@
 #include <Random123/philox.h>
 #include <cmath>
 
+#include "noise_kernels.hpp"
+#include "tannery/error.hpp"
+
 namespace tannery {
 
 namespace {
@@ -38,16 +41,19 @@ void frame_bits(const FrameId& id, std::span<std::uint8_t> bits) {
 }
 
 void frame_gaussians(const FrameId& id, std::span<double> out) {
-  Philox rng;
-  const auto k = key(id);
-  constexpr double kTwoPi = 6.283185307179586;
-  for (std::size_t i = 0; i < out.size(); i += 2) {
-    double u1, u2;
-    two_uniforms(rng(counter(id, static_cast<std::uint32_t>(i / 2), 1), k), u1, u2);
-    const double radius = std::sqrt(-2.0 * std::log(1.0 - u1));  // 1 - u1 in (0, 1]
-    out[i] = radius * std::cos(kTwoPi * u2);
-    if (i + 1 < out.size()) out[i + 1] = radius * std::sin(kTwoPi * u2);
-  }
+  detail::gaussians_of_frame(id.seed, id.point, id.frame, out.size(), out.data());
+}
+
+void group_bits(const FrameGroup& group, std::span<std::uint64_t> masks) {
+  TANNERY_ASSERT(group.lanes <= 64);
+  detail::bits_of_group(group.seed, group.point, group.first, group.lanes, masks.size(),
+                        masks.data());
+}
+
+void group_gaussians(const FrameGroup& group, std::span<double> out) {
+  TANNERY_ASSERT(group.lanes > 0 && out.size() % group.lanes == 0);
+  detail::gaussians_of_group(group.seed, group.point, group.first, group.lanes,
+                             out.size() / group.lanes, out.data());
 }
 
 void frame_uniforms(const FrameId& id, std::span<double> out) {

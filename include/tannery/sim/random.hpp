@@ -3,6 +3,7 @@
 // alone, in any order, on any thread.
 #pragma once
 
+#include <cstddef>
 #include <cstdint>
 #include <span>
 
@@ -16,9 +17,25 @@ struct FrameId {
 
 // Information bits (one byte per bit, 0/1): stream 0 of the frame.
 void frame_bits(const FrameId& id, std::span<std::uint8_t> bits);
-// Standard normal samples by Box-Muller on 53-bit uniforms: stream 1 of the frame.
+// Standard normal samples, stream 1 of the frame: Box-Muller on one Philox output per pair, the
+// radius sqrt(-2 ln(1 - u)) from the first 64 bits (u with 52-bit resolution, so |x| < 8.5),
+// the angle from the second (octant and 52-bit position). Computed with IEEE add, multiply,
+// divide and square root in a fixed order: the same bits on every machine and SIMD target.
 void frame_gaussians(const FrameId& id, std::span<double> out);
 // Uniforms in [0, 1) with 53-bit resolution: stream 1 of the frame (BSC flips, BEC erasures).
 void frame_uniforms(const FrameId& id, std::span<double> out);
+
+// Frames first .. first + lanes - 1 of a sweep point side by side (the batched decoders' lane
+// layout), generated together with SIMD.
+struct FrameGroup {
+  std::uint64_t seed = 0;
+  std::uint32_t point = 0;
+  std::uint64_t first = 0;
+  std::size_t lanes = 0;
+};
+// Bit l of masks[i] is frame_bits of frame first + l at position i (lanes <= 64).
+void group_bits(const FrameGroup& group, std::span<std::uint64_t> masks);
+// out[i * lanes + l] is frame_gaussians of frame first + l at position i, bit for bit.
+void group_gaussians(const FrameGroup& group, std::span<double> out);
 
 }  // namespace tannery

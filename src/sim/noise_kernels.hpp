@@ -1,0 +1,21 @@
+// SIMD Philox streams and Gaussian samples (private to the library); the public functions of
+// tannery/sim/random.hpp define what they compute.
+#pragma once
+
+#include <cstddef>
+#include <cstdint>
+
+namespace tannery::detail {
+
+// Gaussians 0..count-1 of one frame (stream 1), in order.
+void gaussians_of_frame(std::uint64_t seed, std::uint32_t point, std::uint64_t frame,
+                        std::size_t count, double* out);
+// The same samples for frames first..first+lanes-1 in lane layout: out[i * lanes + l].
+void gaussians_of_group(std::uint64_t seed, std::uint32_t point, std::uint64_t first,
+                        std::size_t lanes, std::size_t count, double* out);
+// Information bits 0..count-1 (stream 0) of frames first..first+lanes-1 (lanes <= 64) as
+// masks: bit l of masks[i] is bit i of frame first + l.
+void bits_of_group(std::uint64_t seed, std::uint32_t point, std::uint64_t first, std::size_t lanes,
+                   std::size_t count, std::uint64_t* masks);
+
+}  // namespace tannery::detail
