@@ -35,7 +35,7 @@ struct SimulateOptions {
   double stop_below = 0;
   std::uint64_t seed = 1;
   unsigned threads = 0;
-  std::uint32_t chunk = 32;
+  std::uint32_t chunk = 64;
   double confidence = 0.95;
   std::string output = "tannery-run.json";
   std::string csv;

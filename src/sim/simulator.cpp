@@ -2,6 +2,8 @@
 
 #include <fmt/format.h>
 #include <algorithm>
+#include <array>
+#include <bit>
 #include <chrono>
 #include <cmath>
 #include <condition_variable>
@@ -52,7 +54,8 @@ void accumulate(PointResult& total, const PointResult& chunk) {
 // Per-thread state: a decoder and the buffers of one chunk, reused for every chunk.
 struct Simulator::Worker {
   std::unique_ptr<Decoder> decoder;
-  std::vector<std::uint8_t> info, codewords, hard;
+  std::vector<std::uint8_t> info, codewords, hard, is_info;
+  std::vector<std::uint64_t> info_masks, codeword_masks, hard_masks;  // lane layout
   std::vector<double> llr, noise;
   std::vector<FrameOutcome> outcomes;
 };
@@ -106,6 +109,91 @@ void generate_frame(const FrameId& id, const ChannelPoint& channel, const Encode
   transmit(channel, codeword, noise, llr);
 }
 
+// Frame layout: every frame generated alone, the decoder given the whole chunk.
+template <class Record>
+void Simulator::run_frames(Worker& w, std::size_t index, const ChannelPoint& channel,
+                           std::uint64_t first, std::size_t count, const Record& record) const {
+  const std::size_t n = code_.n(), k = encoder_.k();
+  w.info.resize(count * k);
+  w.codewords.resize(count * n);
+  w.hard.resize(count * n);
+  w.llr.resize(count * n);
+  w.noise.resize(n);
+  w.outcomes.resize(count);
+  for (std::size_t f = 0; f < count; ++f) {
+    generate_frame(FrameId{config_.seed, static_cast<std::uint32_t>(index), first + f}, channel,
+                   encoder_, config_.all_zero, std::span(w.info).subspan(f * k, k),
+                   std::span(w.codewords).subspan(f * n, n), w.noise,
+                   std::span(w.llr).subspan(f * n, n));
+  }
+  w.decoder->decode(w.llr, w.hard, {}, w.outcomes, first);
+  const auto& info_pos = encoder_.info_positions();
+  for (std::size_t f = 0; f < count; ++f) {
+    const std::uint8_t* sent = w.codewords.data() + f * n;
+    const std::uint8_t* got = w.hard.data() + f * n;
+    std::uint64_t coded = 0, info_errors = 0;
+    for (std::size_t i = 0; i < n; ++i) coded += sent[i] != got[i];
+    for (std::uint32_t p : info_pos) info_errors += sent[p] != got[p];
+    record(first + f, coded, info_errors, w.outcomes[f], [&] {
+      const double* l = w.llr.data() + f * n;
+      return std::vector<float>(l, l + n);
+    });
+  }
+}
+
+// Lane layout (AWGN with a batched decoder): a batch of frames generated side by side with
+// SIMD, bit-sliced encoding, errors counted on sign masks. The same numbers as run_frames.
+template <class Record>
+void Simulator::run_lanes(Worker& w, std::size_t index, const ChannelPoint& channel,
+                          std::uint64_t first, std::size_t count, const Record& record) const {
+  const std::size_t n = code_.n(), k = encoder_.k(), lanes = w.decoder->lanes();
+  w.info_masks.resize(k);
+  w.codeword_masks.resize(n);
+  w.hard_masks.resize(n);
+  w.llr.resize(n * lanes);
+  w.outcomes.resize(lanes);
+  if (w.is_info.size() != n) {
+    w.is_info.assign(n, 0);
+    for (std::uint32_t p : encoder_.info_positions()) w.is_info[p] = 1;
+  }
+  const double scale = 2.0 / (channel.assumed_value * channel.assumed_value);
+  for (std::size_t g = 0; g < count; g += lanes) {
+    // A short last batch decodes frames beyond the chunk too; their results are not used.
+    const FrameGroup group{config_.seed, static_cast<std::uint32_t>(index), first + g, lanes};
+    const std::size_t used = std::min(lanes, count - g);
+    if (config_.all_zero) {
+      std::fill(w.codeword_masks.begin(), w.codeword_masks.end(), 0);
+    } else {
+      group_bits(group, w.info_masks);
+      encoder_.encode_lanes(w.info_masks, w.codeword_masks);
+    }
+    group_gaussians(group, w.llr);
+    // The arithmetic of transmit(), in the same order.
+    for (std::size_t v = 0; v < n; ++v) {
+      double* row = w.llr.data() + v * lanes;
+      const std::uint64_t bits = w.codeword_masks[v];
+      for (std::size_t l = 0; l < lanes; ++l)
+        row[l] = scale * ((((bits >> l) & 1u) ? -1.0 : 1.0) + channel.value * row[l]);
+    }
+    w.decoder->decode_lanes(w.llr, w.hard_masks, w.outcomes);
+    std::array<std::uint64_t, 64> coded{}, info_errors{};
+    for (std::size_t v = 0; v < n; ++v) {
+      for (std::uint64_t x = w.hard_masks[v] ^ w.codeword_masks[v]; x; x &= x - 1) {
+        const auto l = static_cast<std::size_t>(std::countr_zero(x));
+        ++coded[l];
+        info_errors[l] += w.is_info[v];
+      }
+    }
+    for (std::size_t l = 0; l < used; ++l) {
+      record(group.first + l, coded[l], info_errors[l], w.outcomes[l], [&] {
+        std::vector<float> frame(n);
+        for (std::size_t v = 0; v < n; ++v) frame[v] = static_cast<float>(w.llr[v * lanes + l]);
+        return frame;
+      });
+    }
+  }
+}
+
 PointResult Simulator::run_point(std::size_t index, PointResult total,
                                  const std::function<void(const Progress&)>& progress,
                                  const std::atomic<bool>* interrupt) {
@@ -139,6 +227,8 @@ PointResult Simulator::run_point(std::size_t index, PointResult total,
     return total;
   }
 
+  const std::size_t lanes =
+      channel.kind == ChannelKind::awgn ? make_decoder(code_, config_.decoder)->lanes() : 0;
   auto work = [&](Worker& w) {
     for (;;) {
       if (stop.load()) break;
@@ -147,47 +237,31 @@ PointResult Simulator::run_point(std::size_t index, PointResult total,
       const std::uint64_t first = j * chunk;
       const std::size_t count =
           static_cast<std::size_t>(std::min(chunk, config_.stop.max_frames - first));
-      w.info.resize(count * k);
-      w.codewords.resize(count * n);
-      w.hard.resize(count * n);
-      w.llr.resize(count * n);
-      w.noise.resize(n);
-      w.outcomes.resize(count);
-      for (std::size_t f = 0; f < count; ++f) {
-        generate_frame(FrameId{config_.seed, static_cast<std::uint32_t>(index), first + f}, channel,
-                       encoder_, config_.all_zero, std::span(w.info).subspan(f * k, k),
-                       std::span(w.codewords).subspan(f * n, n), w.noise,
-                       std::span(w.llr).subspan(f * n, n));
-      }
-      w.decoder->decode(w.llr, w.hard, {}, w.outcomes, first);
       ChunkResult r;
       PointResult& c = r.counts;
       c.frames = count;
       c.bits = count * k;
       c.coded_bits = count * n;
-      const auto& info_pos = encoder_.info_positions();
-      for (std::size_t f = 0; f < count; ++f) {
-        const std::uint8_t* sent = w.codewords.data() + f * n;
-        const std::uint8_t* got = w.hard.data() + f * n;
-        std::uint64_t coded = 0, info_errors = 0;
-        for (std::size_t i = 0; i < n; ++i) coded += sent[i] != got[i];
-        for (std::uint32_t p : info_pos) info_errors += sent[p] != got[p];
-        const FrameOutcome& o = w.outcomes[f];
+      // One frame's counts; llr gives its channel LLRs, asked for only when it failed and is kept.
+      auto record = [&](std::uint64_t frame, std::uint64_t coded, std::uint64_t info_errors,
+                        const FrameOutcome& o, const auto& llr) {
         c.iterations += static_cast<std::uint64_t>(o.iterations);
         const auto it = static_cast<std::size_t>(o.iterations);
         if (c.iteration_histogram.size() <= it) c.iteration_histogram.resize(it + 1, 0);
         ++c.iteration_histogram[it];
-        if (coded == 0) continue;
+        if (coded == 0) return;
         ++c.frame_errors;
         c.coded_bit_errors += coded;
         c.bit_errors += info_errors;
         c.bit_error_squares += static_cast<double>(info_errors) * static_cast<double>(info_errors);
         c.undetected_errors += o.converged ? 1 : 0;
-        c.failed_frames.push_back(first + f);
-        if (r.kept.size() < config_.keep_failures) {
-          const double* l = w.llr.data() + f * n;
-          r.kept.push_back(KeptFrame{index, first + f, std::vector<float>(l, l + n)});
-        }
+        c.failed_frames.push_back(frame);
+        if (r.kept.size() < config_.keep_failures) r.kept.push_back(KeptFrame{index, frame, llr()});
+      };
+      if (lanes) {
+        run_lanes(w, index, channel, first, count, record);
+      } else {
+        run_frames(w, index, channel, first, count, record);
       }
       std::lock_guard lock(mutex);
       done.emplace(j, std::move(r));

@@ -22,7 +22,7 @@ head -1 one.csv | grep -q "^parameter,frames,frame_errors,bit_errors,bits,fer,be
 import json, sys
 j = json.load(open(sys.argv[1]))
 assert j["format"] == "tannery-results" and j["version"] == 1
-assert len(j["code"]["sha256"]) == 64 and j["run"]["seed"] == 1 and j["run"]["chunk_frames"] == 32
+assert len(j["code"]["sha256"]) == 64 and j["run"]["seed"] == 1 and j["run"]["chunk_frames"] == 64
 for p in j["points"]:
     for k in ["parameter", "frames", "frame_errors", "bit_errors", "bits", "fer", "ber", "fer_low", "fer_high",
               "mean_iterations"]:

@@ -117,4 +117,9 @@ inline std::vector<double> gaussian_llrs(std::size_t count, std::uint64_t seed, 
   return llr;
 }
 
+// Restores automatic SIMD target choice when a test ends, even on failure.
+struct TargetGuard {
+  ~TargetGuard() { force_simd_target(""); }
+};
+
 }  // namespace tannery::test

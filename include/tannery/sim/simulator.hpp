@@ -1,11 +1,14 @@
 // Monte Carlo error-rate simulation over a sweep of channel parameters.
 //
 // Frame pipeline: random information bits -> systematic encoder -> BPSK -> channel -> LLRs ->
-// decoder -> counts. Frames run in fixed-size chunks on worker threads; completed chunks are
-// added to the point's totals strictly in chunk order and the stop rules are evaluated after
-// each one, so work past the stopping chunk is discarded and the counts are identical for any
-// number of threads. A run interrupted at a chunk boundary resumes to exactly the counts of an
-// uninterrupted run. Only the wall-clock limit breaks this (it depends on the machine).
+// decoder -> counts. With a batched (SIMD) decoder on AWGN the pipeline runs in the decoder's
+// lane layout: Philox, Box-Muller, encoding (bit-sliced) and error counting for a whole batch of
+// frames at once, giving the same numbers as frame by frame. Frames run in fixed-size chunks on
+// worker threads; completed chunks are added to the point's totals strictly in chunk order and the
+// stop rules are evaluated after each one, so work past the stopping chunk is discarded and the
+// counts are identical for any number of threads. A run interrupted at a chunk boundary resumes to
+// exactly the counts of an uninterrupted run. Only the wall-clock limit breaks this (it depends on
+// the machine).
 #pragma once
 
 #include <atomic>
@@ -47,7 +50,8 @@ struct SimulationConfig {
   std::vector<double> sweep;  // Eb/N0 or Es/N0 (dB), p or epsilon
   StopRules stop;
   std::uint64_t seed = 1;
-  std::uint32_t chunk_frames = 32;
+  // A multiple of every batch width (64 int8 lanes of AVX-512), so SIMD batches are full.
+  std::uint32_t chunk_frames = 64;
   unsigned threads = 0;           // 0 = all cores
   bool all_zero = false;          // send the all-zero codeword (symmetric channel and decoder only)
   double confidence = 0.95;       // level of the reported intervals
@@ -125,6 +129,14 @@ class Simulator {
   PointResult run_point(std::size_t index, PointResult start,
                         const std::function<void(const Progress&)>& progress,
                         const std::atomic<bool>* interrupt);
+  // One chunk in frame layout or, for AWGN with a batched decoder, in lane layout (same
+  // numbers); record(frame, coded errors, information errors, outcome, llr getter) per frame.
+  template <class Record>
+  void run_frames(Worker& w, std::size_t index, const ChannelPoint& channel, std::uint64_t first,
+                  std::size_t count, const Record& record) const;
+  template <class Record>
+  void run_lanes(Worker& w, std::size_t index, const ChannelPoint& channel, std::uint64_t first,
+                 std::size_t count, const Record& record) const;
 
   const Code& code_;
   SimulationConfig config_;

@@ -18,17 +18,12 @@ std::vector<double> noisy(const Code& code, std::size_t frames, std::uint64_t se
   return test::gaussian_llrs(code.n() * frames, seed, mean, spread);
 }
 
-// Restores automatic target choice when a test ends, even on failure.
-struct TargetGuard {
-  ~TargetGuard() { force_simd_target(""); }
-};
-
 }  // namespace
 
 TEST_CASE(
     "fixed-point SIMD kernels match the scalar fixed-point reference bit for bit on every target",
     "[simd]") {
-  TargetGuard guard;
+  test::TargetGuard guard;
   const std::vector<std::string> targets = simd_targets();
   REQUIRE(!targets.empty());
   INFO("targets: " << targets.size());
@@ -81,7 +76,7 @@ TEST_CASE("float SIMD kernels agree with the double reference within tolerance o
   // Stated tolerance: float32 arithmetic and, for sum-product, tanh products kept below
   // 1 - 2^-23 (messages near +-16.6 at most). Decisions must be identical on frames both converge;
   // posteriors of min-sum agree to 1e-3 relative on frames that converge.
-  TargetGuard guard;
+  test::TargetGuard guard;
   const Code code = test::shipped("qc-rate-half-z54.qc");
   for (auto [a, schedule] : {std::pair{Algorithm::min_sum, Schedule::layered},
                              std::pair{Algorithm::normalized_min_sum, Schedule::layered},

@@ -5,15 +5,11 @@
 
 #include "tannery/decode/decoder.hpp"
 #include "tannery/sim/random.hpp"
+#include "test_support.hpp"
 
 using namespace tannery;
 
 namespace {
-
-// Restores automatic target choice when a test ends, even on failure.
-struct TargetGuard {
-  ~TargetGuard() { force_simd_target(""); }
-};
 
 // The Philox output behind Gaussian pair `block` of a frame, from Random123 itself.
 r123::Philox4x32::ctr_type noise_words(const FrameId& id, std::uint32_t block) {
@@ -26,7 +22,7 @@ r123::Philox4x32::ctr_type noise_words(const FrameId& id, std::uint32_t block) {
 }  // namespace
 
 TEST_CASE("group_bits gives every frame's frame_bits on every target", "[random]") {
-  TargetGuard guard;
+  test::TargetGuard guard;
   for (const auto& target : simd_targets()) {
     force_simd_target(target);
     for (std::size_t lanes : {1, 5, 16, 64}) {
@@ -50,7 +46,7 @@ TEST_CASE("group_bits gives every frame's frame_bits on every target", "[random]
 
 TEST_CASE("group_gaussians equals frame_gaussians bit for bit, and every target agrees",
           "[random]") {
-  TargetGuard guard;
+  test::TargetGuard guard;
   const std::size_t n = 101, lanes = 13;
   const FrameGroup group{42, 1, (1ull << 32) - 5, lanes};
   std::vector<double> first_target;
