@@ -38,6 +38,48 @@ V times_eighths(D d, V m, int k) {
   return hn::Add(acc_high, hn::ShiftRight<3>(acc_low));
 }
 
+// Polynomials of the sum-product kernel, fitted by scripts/fit-kernel-polynomials.py (numpy,
+// near-minimax): 2^f on [-1/2, 1/2] to 9.7e-8 relative, log(1 + x)/x on [-1/4, 1/2] giving
+// log(1 + x) to 4.5e-8 absolute, both evaluated in float32.
+constexpr float kExp2[] = {1.000000001e+00f, 6.931472056e-01f, 2.402264661e-01f, 5.550328998e-02f,
+                           9.618519534e-03f, 1.339986036e-03f, 1.533757683e-04f};
+constexpr float kLog1pOverX[] = {1.000000012e+00f,  -5.000013661e-01f, 3.333337763e-01f,
+                                 -2.498948990e-01f, 1.997930142e-01f,  -1.688558792e-01f,
+                                 1.501751154e-01f,  -1.175529691e-01f, 5.014866428e-02f};
+
+template <class D, std::size_t kTerms>
+HWY_INLINE hn::Vec<D> Horner(D d, const float (&c)[kTerms], hn::Vec<D> x) {
+  hn::Vec<D> r = hn::Set(d, c[kTerms - 1]);
+  for (std::size_t i = kTerms - 1; i-- > 0;) r = hn::MulAdd(r, x, hn::Set(d, c[i]));
+  return r;
+}
+
+// e^-x for float x >= 0 as 2^k 2^f, k = round(-x log2 e) (at least -125, so the result stays a
+// normal number, at most 2^-125: a certainty for the check) and f in [-1/2, 1/2].
+template <class D>
+HWY_INLINE hn::Vec<D> ExpNeg(D d, hn::Vec<D> x) {
+  const hn::RebindToSigned<D> di;
+  const auto y = hn::Max(hn::Mul(x, hn::Set(d, -1.44269504088896341f)), hn::Set(d, -125.0f));
+  const auto k = hn::Round(y);
+  const auto p = Horner(d, kExp2, hn::Sub(y, k));
+  return hn::BitCast(d, hn::Add(hn::BitCast(di, p), hn::ShiftLeft<23>(hn::ConvertTo(di, k))));
+}
+
+// Natural log of float x in [1, 2^25): x = 2^k m with m in [3/4, 3/2).
+template <class D>
+HWY_INLINE hn::Vec<D> LogAtLeastOne(D d, hn::Vec<D> x) {
+  const hn::RebindToSigned<D> di;
+  const auto bits = hn::BitCast(di, x);
+  auto k = hn::Sub(hn::ShiftRight<23>(bits), hn::Set(di, 127));
+  auto m = hn::BitCast(d, hn::Or(hn::And(bits, hn::Set(di, 0x7FFFFF)), hn::Set(di, 0x3F800000)));
+  const auto big = hn::Ge(m, hn::Set(d, 1.5f));
+  m = hn::IfThenElse(big, hn::Mul(m, hn::Set(d, 0.5f)), m);
+  k = hn::Add(k, hn::IfThenElseZero(hn::RebindMask(di, big), hn::Set(di, 1)));
+  const auto u = hn::Sub(m, hn::Set(d, 1.0f));
+  return hn::MulAdd(hn::ConvertTo(d, k), hn::Set(d, 0.693147180559945309f),
+                    hn::Mul(u, Horner(d, kLog1pOverX, u)));
+}
+
 // Everything the check loops use, copied to locals: int8 stores may alias any object, so fields
 // read through LayeredArgs would be reloaded after every store.
 template <class D>
@@ -198,7 +240,7 @@ struct Sweep {
       const V t = Extrinsic<kFlood>(b + i);
       hn::Store(t, d, t_store + i * L);
       parity = hn::Xor(parity, t);
-      const V e = hn::Exp(d, hn::Neg(hn::Abs(t)));
+      const V e = ExpNeg(d, hn::Abs(t));
       const V nu = hn::Sub(one, e), de = hn::Add(one, e);
       hn::Store(nu, d, num + i * L);
       hn::Store(de, d, den + i * L);
@@ -216,7 +258,7 @@ struct Sweep {
       back_num = hn::Mul(back_num, hn::Load(d, num + i * L));
       back_den = hn::Mul(back_den, hn::Load(d, den + i * L));
       const V ratio = hn::Min(hn::Div(hn::Add(de, nu), hn::Sub(de, nu)), cap);
-      const V mag = deg == 1 ? init : hn::Log(d, ratio);
+      const V mag = deg == 1 ? init : LogAtLeastOne(d, ratio);
       const V r = hn::Xor(mag, hn::And(hn::Xor(parity, t), sign_bit));
       Keep<kFrozen>(msg + (b + i) * L, r, frozen);
       if constexpr (!kFlood) Keep<kFrozen>(post + edge_var[b + i] * L, hn::Add(t, r), frozen);
