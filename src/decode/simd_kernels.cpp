@@ -138,7 +138,8 @@ struct Sweep {
     }
   }
 
-  // Stores a new value, keeping the lanes that already stopped when some have.
+  // Stores a posterior, keeping the lanes that already stopped when some have. (Their messages
+  // may go on changing: only posteriors are read out of a lane.)
   template <bool kFrozen>
   HWY_INLINE void Keep(T* where, V value, hn::Mask<D> frozen) const {
     const D d;
@@ -200,7 +201,7 @@ struct Sweep {
           const V t = hn::Load(d, t_store + i * L);
           const V mag = hn::IfThenElse(hn::RebindMask(d, hn::Eq(at, index)), mag2, mag1);
           const V r = hn::Xor(mag, hn::And(t, sign_bit));
-          Keep<kFrozen>(msg + (b + i) * L, r, frozen);
+          hn::Store(r, d, msg + (b + i) * L);
           if constexpr (!kFlood) Keep<kFrozen>(post + edge_var[b + i] * L, hn::Add(t, r), frozen);
         }
       } else {
@@ -214,7 +215,7 @@ struct Sweep {
               hn::IfThenElse(hn::Lt(hn::Xor(parity, t), hn::Zero(d)),
                              hn::IfThenElse(own, neg2, neg1), hn::IfThenElse(own, mag2, mag1));
           const V p = hn::Min(hn::Max(hn::SaturatedAdd(t, r), p_lo), p_hi);
-          Keep<kFrozen>(msg + (b + i) * L, r, frozen);
+          hn::Store(r, d, msg + (b + i) * L);
           Keep<kFrozen>(post + edge_var[b + i] * L, p, frozen);
         }
       }
@@ -260,7 +261,7 @@ struct Sweep {
       const V ratio = hn::Min(hn::Div(hn::Add(de, nu), hn::Sub(de, nu)), cap);
       const V mag = deg == 1 ? init : LogAtLeastOne(d, ratio);
       const V r = hn::Xor(mag, hn::And(hn::Xor(parity, t), sign_bit));
-      Keep<kFrozen>(msg + (b + i) * L, r, frozen);
+      hn::Store(r, d, msg + (b + i) * L);
       if constexpr (!kFlood) Keep<kFrozen>(post + edge_var[b + i] * L, hn::Add(t, r), frozen);
     }
   }
@@ -321,7 +322,7 @@ void Layered(D d, const LayeredArgs<hn::TFromD<D>>& a) {
         sweep.template Keep<true>(post + v * L, total, frozen);
         for (std::uint32_t k = a.var_start[v]; k < a.var_start[v + 1]; ++k) {
           const std::size_t e = a.var_edge[k];
-          sweep.template Keep<true>(v2c + e * L, hn::Sub(total, hn::Load(d, msg + e * L)), frozen);
+          hn::Store(hn::Sub(total, hn::Load(d, msg + e * L)), d, v2c + e * L);
         }
       }
     } else {

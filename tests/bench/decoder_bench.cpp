@@ -6,6 +6,7 @@
 #include <immintrin.h>
 #include <cmath>
 
+#include "tannery/code/construct.hpp"
 #include "tannery/decode/decoder.hpp"
 #include "tannery/io/matrix_io.hpp"
 #include "test_support.hpp"
@@ -23,8 +24,14 @@ struct Case {
   const char* quantize;
 };
 
+// A long code whose messages do not fit in the core's caches: (3,6)-regular, n = 64 800.
+const Code& long_code() {
+  static const Code code = construct_regular(64800, 3, 6, 1);
+  return code;
+}
+
 void run(benchmark::State& state, const Case& c) {
-  const Code code = test::shipped(c.code);
+  const Code code = std::string(c.code) == "regular-3-6-n64800" ? long_code() : test::shipped(c.code);
   DecoderSettings s;
   s.algorithm = c.algorithm;
   s.schedule = Schedule::layered;
@@ -90,6 +97,10 @@ TANNERY_DECODER_BENCH(BM_simd_f32_nms_reg2016, "regular-3-6-n2016.tanner",
 TANNERY_DECODER_BENCH(BM_simd_f32_sum_product_reg2016, "regular-3-6-n2016.tanner",
                       Algorithm::sum_product, Kernel::simd, "");
 TANNERY_DECODER_BENCH(BM_simd_i8_nms_reg2016, "regular-3-6-n2016.tanner",
+                      Algorithm::normalized_min_sum, Kernel::simd, "6.2");
+TANNERY_DECODER_BENCH(BM_simd_f32_nms_reg64800, "regular-3-6-n64800",
+                      Algorithm::normalized_min_sum, Kernel::simd, "");
+TANNERY_DECODER_BENCH(BM_simd_i8_nms_reg64800, "regular-3-6-n64800",
                       Algorithm::normalized_min_sum, Kernel::simd, "6.2");
 
 // Peak rates of this core: independent chains of 512-bit (AVX-512) and 256-bit (AVX2) saturating
