@@ -35,7 +35,7 @@ struct SimulateOptions {
   double stop_below = 0;
   std::uint64_t seed = 1;
   unsigned threads = 0;
-  std::uint32_t chunk = 64;
+  std::uint32_t chunk = 0;  // automatic
   double confidence = 0.95;
   std::string output = "tannery-run.json";
   std::string csv;
@@ -271,7 +271,8 @@ void run(SimulateOptions o, const CLI::App& sub) {
                    : std::string());
     fmt::print("decoder {}; channel {}; seed {}, chunks of {} frames, {} threads{}\n",
                describe(config.decoder), channel_name(config.channel.kind), config.seed,
-               config.chunk_frames, config.threads, config.all_zero ? "; all-zero codeword" : "");
+               sim.config().chunk_frames, config.threads,
+               config.all_zero ? "; all-zero codeword" : "");
     std::fflush(stdout);
   }
   ProgressLine line(live, sim.config(), parameter_heading(config.channel));
@@ -387,9 +388,9 @@ void add_simulate(CLI::App& app) {
   sub->add_option("--seed", o->seed, "seed of the Philox streams")->capture_default_str();
   sub->add_option("--threads", o->threads, "worker threads (default: all cores)");
   sub->add_option("--chunk", o->chunk,
-                  "frames per chunk, the unit of work and of stop-rule evaluation")
-      ->check(CLI::Range(1, 1 << 20))
-      ->capture_default_str();
+                  "frames per chunk, the unit of work and of stop-rule evaluation (default: 64; "
+                  "with --kernel simd up to 1024, by code length, so batches refill in a chunk)")
+      ->check(CLI::Range(1, 1 << 20));
   sub->add_option("--confidence", o->confidence, "level of the FER and BER intervals")
       ->capture_default_str();
   sub->add_option("--output", o->output, "results file (JSON; '' for none)")->capture_default_str();

@@ -169,9 +169,8 @@ void Decoder::decode_batch(std::span<const double> llr, std::span<std::uint8_t> 
   }
 }
 
-void Decoder::decode_lanes(std::span<const double>, std::span<std::uint64_t>,
-                           std::span<FrameOutcome>) {
-  TANNERY_ASSERT(!"decode_lanes called on a decoder without lane layout");
+void Decoder::decode_groups(std::span<const double>, std::size_t, const FramesDone&) {
+  TANNERY_ASSERT(!"decode_groups called on a decoder without lane layout");
 }
 
 std::unique_ptr<Decoder> make_decoder(const Code& code, const DecoderSettings& settings) {

@@ -4,6 +4,8 @@
 #include <hwy/aligned_allocator.h>
 #include <hwy/targets.h>
 #include <algorithm>
+#include <array>
+#include <bit>
 #include <cmath>
 #include <optional>
 #include <vector>
@@ -68,8 +70,6 @@ class Batched final : public Decoder {
     args_.m = code.m();
     args_.max_degree = std::max<std::size_t>(max_degree, 1);
     args_.lanes = lanes_;
-    args_.iterations = settings.iterations;
-    args_.early_stop = settings.early_stop;
     switch (settings.algorithm) {
       case Algorithm::normalized_min_sum:
         args_.rule = CheckRule::normalized;
@@ -103,41 +103,26 @@ class Batched final : public Decoder {
       v2c_ = hwy::AllocateAligned<T>(std::max<std::size_t>(code.edges(), 1) * lanes_);
       args_.v2c = v2c_.get();
     }
-    iterations_.resize(lanes_);
-    syndrome_.resize(lanes_);
-    args_.syndrome_weight = syndrome_.data();
+    weights_.resize(lanes_);
     args_.channel = channel_.get();
     args_.posterior = posterior_.get();
     args_.messages = messages_.get();
     args_.scratch = scratch_.get();
-    args_.iterations_used = iterations_.data();
   }
 
  public:
   std::size_t lanes() const noexcept override { return lanes_; }
 
-  void decode_lanes(std::span<const double> llr, std::span<std::uint64_t> hard,
-                    std::span<FrameOutcome> outcome) override {
-    const std::size_t n = code_.n();
-    TANNERY_ASSERT(llr.size() == n * lanes_ && hard.size() == n && outcome.size() == lanes_);
+  void decode_groups(std::span<const double> llr, std::size_t frames,
+                     const FramesDone& done) override {
+    TANNERY_ASSERT(llr.size() == (frames + lanes_ - 1) / lanes_ * code_.n() * lanes_);
+    groups_.resize(llr.size());
     if (quantize_)
       channel_values(llr.data(), llr.size(), quantize_->scale(), quantize_->limit(),
-                     channel_.get());
+                     groups_.data());
     else
-      channel_values(llr.data(), llr.size(), 1.0, kLlrLimit, channel_.get());
-    if constexpr (std::is_same_v<T, float>)
-      layered_float(args_);
-    else if constexpr (std::is_same_v<T, std::int16_t>)
-      layered_int16(args_);
-    else
-      layered_int8(args_);
-    sign_masks(posterior_.get(), n, hard.data());
-    for (std::size_t l = 0; l < lanes_; ++l) {
-      FrameOutcome& o = outcome[l];
-      o.iterations = iterations_[l];
-      o.syndrome_weight = static_cast<std::uint32_t>(syndrome_[l]);
-      o.converged = o.syndrome_weight == 0;
-    }
+      channel_values(llr.data(), llr.size(), 1.0, kLlrLimit, groups_.data());
+    stream(frames, done);
   }
 
  protected:
@@ -148,49 +133,111 @@ class Batched final : public Decoder {
     return out;
   }
 
-  // Frame layout: transposed into lane layout in blocks that stay in cache.
+  // Frame layout: quantized into groups (frame f in lane f % lanes), then streamed.
   void decode_batch(std::span<const double> llr, std::span<std::uint8_t> hard,
                     std::span<double> posterior, std::span<FrameOutcome> outcome) override {
     const std::size_t n = code_.n(), frames = outcome.size();
     const double scale =
         settings_.quantization ? std::ldexp(1.0, -settings_.quantization->fraction_bits) : 1.0;
-    constexpr std::size_t kBlock = 16;
-    lane_llr_.resize(n * lanes_);
-    masks_.resize(n);
-    for (std::size_t first = 0; first < frames; first += lanes_) {
-      const std::size_t count = std::min(lanes_, frames - first);
-      for (std::size_t v0 = 0; v0 < n; v0 += kBlock) {
-        const std::size_t v1 = std::min(n, v0 + kBlock);
-        for (std::size_t l = 0; l < lanes_; ++l) {
-          const double* frame = llr.data() + (first + l) * n;
-          for (std::size_t v = v0; v < v1; ++v)
-            lane_llr_[v * lanes_ + l] = l < count ? frame[v] : 0.0;  // idle lanes decode zeros
-        }
+    groups_.assign((frames + lanes_ - 1) / lanes_ * n * lanes_, T(0));
+    for (std::size_t f = 0; f < frames; ++f) {
+      T* to = groups_.data() + f / lanes_ * n * lanes_ + f % lanes_;
+      for (std::size_t v = 0; v < n; ++v) {
+        const double x = llr[f * n + v];
+        to[v * lanes_] = quantize_ ? static_cast<T>((*quantize_)(x)) : static_cast<T>(clip_llr(x));
       }
-      lane_outcome_.resize(lanes_);
-      decode_lanes(lane_llr_, masks_, lane_outcome_);
-      for (std::size_t l = 0; l < count; ++l) {
-        const std::size_t f = first + l;
-        std::uint8_t* h = hard.data() + f * n;
-        for (std::size_t v = 0; v < n; ++v) h[v] = (masks_[v] >> l) & 1u;
-        if (!posterior.empty()) {
-          for (std::size_t v = 0; v < n; ++v)
+    }
+    stream(frames, [&](const FinishedFrames& done) {
+      for (std::uint64_t a = done.lanes; a; a &= a - 1) {
+        const auto l = static_cast<std::size_t>(std::countr_zero(a));
+        const std::size_t f = done.frame[l];
+        for (std::size_t v = 0; v < n; ++v) {
+          hard[f * n + v] = (done.hard[v] >> l) & 1u;
+          if (!posterior.empty())
             posterior[f * n + v] = static_cast<double>(posterior_[v * lanes_ + l]) * scale;
         }
-        outcome[f] = lane_outcome_[l];
+        outcome[f] = done.outcome[l];
+      }
+    });
+  }
+
+ private:
+  // Decodes the frames held in groups_: lane l takes frames l, l + lanes, ... in turn, the next
+  // as soon as the previous one is done (converged with early stop, or out of iterations); a
+  // lane with no frame left idles (frozen) until the last one is done.
+  void stream(std::size_t frames, const FramesDone& done) {
+    const std::size_t n = code_.n(), group = n * lanes_;
+    const int max_iterations = settings_.iterations;
+    std::array<std::size_t, 64> frame_of{};
+    std::array<FrameOutcome, 64> outcome{};
+    std::array<int, 64> iterations{};
+    std::uint64_t active = 0, fresh = 0;
+    for (std::size_t l = 0; l < lanes_ && l < frames; ++l) frame_of[l] = l, active |= bit(l);
+    std::copy(groups_.begin(), groups_.begin() + static_cast<std::ptrdiff_t>(group),
+              channel_.get());
+    start(args_);  // posteriors = channel, messages zero
+    masks_.resize(n);
+    std::vector<std::pair<std::size_t, std::uint64_t>> refills;  // group, lanes
+    while (active) {
+      iterate(args_, fresh, ~active & all_lanes());
+      fresh = 0;
+      bool at_limit = false;
+      for (std::uint64_t a = active; a; a &= a - 1)
+        at_limit |= ++iterations[std::countr_zero(a)] == max_iterations;
+      if (!settings_.early_stop && !at_limit) continue;
+      const std::uint64_t unsat = unsatisfied(args_);
+      std::uint64_t finished = settings_.early_stop ? active & ~unsat : 0;
+      for (std::uint64_t a = active; a; a &= a - 1) {
+        const int l = std::countr_zero(a);
+        if (iterations[l] == max_iterations) finished |= bit(l);
+      }
+      if (!finished) continue;
+      if (finished & unsat) syndrome_weights(args_, weights_.data());
+      sign_masks(args_, masks_.data());
+      refills.clear();
+      for (std::uint64_t a = finished; a; a &= a - 1) {
+        const auto l = static_cast<std::size_t>(std::countr_zero(a));
+        FrameOutcome& o = outcome[l];
+        o.iterations = iterations[l];
+        o.syndrome_weight = unsat & bit(l) ? static_cast<std::uint32_t>(weights_[l]) : 0;
+        o.converged = o.syndrome_weight == 0;
+      }
+      done(FinishedFrames{finished, frame_of, outcome, masks_});
+      for (std::uint64_t a = finished; a; a &= a - 1) {
+        const auto l = static_cast<std::size_t>(std::countr_zero(a));
+        const std::size_t next = frame_of[l] + lanes_;
+        if (next >= frames) {
+          active &= ~bit(l);
+          continue;
+        }
+        frame_of[l] = next;
+        iterations[l] = 0;
+        auto it = std::find_if(refills.begin(), refills.end(),
+                               [&](const auto& r) { return r.first == next / lanes_; });
+        if (it == refills.end())
+          refills.emplace_back(next / lanes_, bit(l));
+        else
+          it->second |= bit(l);
+      }
+      for (const auto& [g, lanes] : refills) {
+        refill(args_, groups_.data() + g * group, lanes);
+        fresh |= lanes;
       }
     }
   }
 
- private:
+  static std::uint64_t bit(std::size_t l) noexcept { return std::uint64_t{1} << l; }
+  std::uint64_t all_lanes() const noexcept {
+    return lanes_ >= 64 ? ~std::uint64_t{0} : (std::uint64_t{1} << lanes_) - 1;
+  }
+
   std::size_t lanes_ = 1;
   std::optional<LlrQuantizer> quantize_;
   std::vector<std::uint32_t> check_start_, edge_var_, var_start_, var_edge_;
   hwy::AlignedFreeUniquePtr<T[]> channel_, posterior_, messages_, scratch_, v2c_;
-  std::vector<std::int32_t> iterations_, syndrome_;
-  std::vector<double> lane_llr_;
+  std::vector<std::int32_t> weights_;
+  std::vector<T> groups_;  // channel values of the frames being decoded, in groups
   std::vector<std::uint64_t> masks_;
-  std::vector<FrameOutcome> lane_outcome_;
   LayeredArgs<T> args_;
 };
 

@@ -8,6 +8,7 @@
 
 #include <hwy/contrib/math/math-inl.h>
 #include <hwy/highway.h>
+#include <cstring>
 #include <string>
 #include <type_traits>
 #include <vector>
@@ -123,13 +124,18 @@ struct Sweep {
 
   // The check's input on edge e: the extrinsic P - R (layered) or the variable-to-check
   // message (flooding). Fixed point: at posterior width (P - R can leave the lane's range).
-  template <bool kFlood>
-  HWY_INLINE V Extrinsic(std::size_t e) const {
+  // With kMasked, lanes outside `stale` hold a new frame whose messages count as zero.
+  template <bool kFlood, bool kMasked>
+  HWY_INLINE V Extrinsic(std::size_t e, hn::Mask<D> stale) const {
     const D d;
     if constexpr (kFlood) {
+      if constexpr (kMasked) {
+        return hn::IfThenElse(stale, hn::Load(d, v2c + e * L), hn::Load(d, post + edge_var[e] * L));
+      }
       return hn::Load(d, v2c + e * L);
     } else {
-      const V p = hn::Load(d, post + edge_var[e] * L), r = hn::Load(d, msg + e * L);
+      const V p = hn::Load(d, post + edge_var[e] * L);
+      const V r = kMasked ? hn::MaskedLoad(stale, d, msg + e * L) : hn::Load(d, msg + e * L);
       if constexpr (kFloat) {
         return hn::Sub(p, r);
       } else {
@@ -140,10 +146,10 @@ struct Sweep {
 
   // Stores a posterior, keeping the lanes that already stopped when some have. (Their messages
   // may go on changing: only posteriors are read out of a lane.)
-  template <bool kFrozen>
+  template <bool kMasked>
   HWY_INLINE void Keep(T* where, V value, hn::Mask<D> frozen) const {
     const D d;
-    hn::Store(kFrozen ? hn::IfThenElse(frozen, hn::Load(d, where), value) : value, d, where);
+    hn::Store(kMasked ? hn::IfThenElse(frozen, hn::Load(d, where), value) : value, d, where);
   }
 
   // The magnitudes a min-sum check sends: rule applied to the two smallest inputs.
@@ -160,8 +166,8 @@ struct Sweep {
   }
 
   // One pass over all checks: new check-to-variable messages and (layered) posteriors.
-  template <bool kFlood, bool kFrozen>
-  void Checks(hn::Mask<D> frozen) const {
+  template <bool kFlood, bool kMasked>
+  void Checks(hn::Mask<D> stale, hn::Mask<D> frozen) const {
     const D d;
     const DI di;
     const VI one_i = hn::Set(di, hn::TFromD<DI>(1)), zero_i = hn::Zero(di);
@@ -172,7 +178,7 @@ struct Sweep {
       if (deg == 0) continue;
       if constexpr (kFloat) {
         if (rule == CheckRule::sum_product) {
-          SumProductCheck<kFlood, kFrozen>(b, deg, frozen);
+          SumProductCheck<kFlood, kMasked>(b, deg, stale, frozen);
           continue;
         }
       }
@@ -181,7 +187,7 @@ struct Sweep {
       V min1 = init, min2 = init, parity = hn::Zero(d);
       VI at = zero_i, index = zero_i;
       for (std::uint32_t i = 0; i < deg; ++i, index = hn::Add(index, one_i)) {
-        const V t = Extrinsic<kFlood>(b + i);
+        const V t = Extrinsic<kFlood, kMasked>(b + i, stale);
         hn::Store(t, d, t_store + i * L);
         V mag = hn::Abs(t);
         if constexpr (!kFloat) mag = hn::Min(mag, m_hi);  // the check sees message width
@@ -202,7 +208,7 @@ struct Sweep {
           const V mag = hn::IfThenElse(hn::RebindMask(d, hn::Eq(at, index)), mag2, mag1);
           const V r = hn::Xor(mag, hn::And(t, sign_bit));
           hn::Store(r, d, msg + (b + i) * L);
-          if constexpr (!kFlood) Keep<kFrozen>(post + edge_var[b + i] * L, hn::Add(t, r), frozen);
+          if constexpr (!kFlood) Keep<kMasked>(post + edge_var[b + i] * L, hn::Add(t, r), frozen);
         }
       } else {
         const V neg1 = hn::Neg(mag1), neg2 = hn::Neg(mag2);
@@ -216,7 +222,7 @@ struct Sweep {
                              hn::IfThenElse(own, neg2, neg1), hn::IfThenElse(own, mag2, mag1));
           const V p = hn::Min(hn::Max(hn::SaturatedAdd(t, r), p_lo), p_hi);
           hn::Store(r, d, msg + (b + i) * L);
-          Keep<kFrozen>(post + edge_var[b + i] * L, p, frozen);
+          Keep<kMasked>(post + edge_var[b + i] * L, p, frozen);
         }
       }
     }
@@ -226,8 +232,9 @@ struct Sweep {
   // tanh(|t|/2) = (1 - e) / (1 + e); the others' product is N/D with N, D the products of
   // numerators and denominators (prefix times suffix), and 2 atanh(N/D) = log((D + N)/(D - N)),
   // capped at log(2^24) (the float32 resolution of a product near 1; messages near +-16.6).
-  template <bool kFlood, bool kFrozen>
-  HWY_INLINE void SumProductCheck(std::uint32_t b, std::uint32_t deg, hn::Mask<D> frozen) const {
+  template <bool kFlood, bool kMasked>
+  HWY_INLINE void SumProductCheck(std::uint32_t b, std::uint32_t deg, hn::Mask<D> stale,
+                                  hn::Mask<D> frozen) const {
     const D d;
     const V one = hn::Set(d, T(1)), cap = hn::Set(d, T(1 << 24));
     const V sign_bit = hn::Set(d, T(-0.0));
@@ -238,7 +245,7 @@ struct Sweep {
     T* const fwd_den = fwd_num + max_degree * L;
     V run_num = one, run_den = one, parity = hn::Zero(d);
     for (std::uint32_t i = 0; i < deg; ++i) {
-      const V t = Extrinsic<kFlood>(b + i);
+      const V t = Extrinsic<kFlood, kMasked>(b + i, stale);
       hn::Store(t, d, t_store + i * L);
       parity = hn::Xor(parity, t);
       const V e = ExpNeg(d, hn::Abs(t));
@@ -262,97 +269,125 @@ struct Sweep {
       const V mag = deg == 1 ? init : LogAtLeastOne(d, ratio);
       const V r = hn::Xor(mag, hn::And(hn::Xor(parity, t), sign_bit));
       hn::Store(r, d, msg + (b + i) * L);
-      if constexpr (!kFlood) Keep<kFrozen>(post + edge_var[b + i] * L, hn::Add(t, r), frozen);
+      if constexpr (!kFlood) Keep<kMasked>(post + edge_var[b + i] * L, hn::Add(t, r), frozen);
     }
   }
 };
 
+// A new batch: posteriors from the channel values, messages zero.
 template <class D>
-void Layered(D d, const LayeredArgs<hn::TFromD<D>>& a) {
-  using T = hn::TFromD<D>;
-  using V = hn::Vec<D>;
-  constexpr bool kFloat = std::is_floating_point_v<T>;
-  const hn::RebindToSigned<D> di;
-  using TI = hn::TFromD<decltype(di)>;
-  using VI = hn::Vec<decltype(di)>;
+void Start(D d, const LayeredArgs<hn::TFromD<D>>& a) {
   constexpr std::size_t L = Sweep<D>::L;
   HWY_DASSERT(a.lanes == L);
-  const Sweep<D> sweep(a);
-  const std::size_t n = a.n, m = a.m;
-  const std::uint32_t* const check_start = a.check_start;
-  const std::uint32_t* const edge_var = a.edge_var;
-  T* const post = a.posterior;
-  T* const msg = a.messages;
-  const int iterations = a.iterations;
-  const VI zero_i = hn::Zero(di);
-
-  // Flooding is offered for float lanes (the fixed-point definition is layered).
-  const bool flooding = kFloat && a.flooding;
-  T* const v2c = a.v2c;
-  for (std::size_t i = 0; i < n * L; i += L) hn::Store(hn::Load(d, a.channel + i), d, post + i);
-  const std::size_t edges = check_start[m];
-  for (std::size_t i = 0; i < edges * L; i += L) hn::Store(hn::Zero(d), d, msg + i);
-  if (flooding) {
+  const std::size_t edges = a.check_start[a.m];
+  for (std::size_t i = 0; i < a.n * L; i += L)
+    hn::Store(hn::Load(d, a.channel + i), d, a.posterior + i);
+  for (std::size_t i = 0; i < edges * L; i += L) hn::Store(hn::Zero(d), d, a.messages + i);
+  if (std::is_floating_point_v<hn::TFromD<D>> && a.flooding) {
     for (std::size_t e = 0; e < edges; ++e)
-      hn::Store(hn::Load(d, a.channel + edge_var[e] * L), d, v2c + e * L);
+      hn::Store(hn::Load(d, a.channel + a.edge_var[e] * L), d, a.v2c + e * L);
   }
-  for (std::size_t l = 0; l < L; ++l) a.iterations_used[l] = iterations;
+}
 
-  // Sign bit of the XOR of a check's posteriors = parity of its negative ones, per lane.
-  auto parity_of = [&](std::size_t c) {
-    VI par = zero_i;
-    for (std::uint32_t e = check_start[c]; e < check_start[c + 1]; ++e) {
-      par = hn::Xor(par, hn::BitCast(di, hn::Load(d, post + edge_var[e] * L)));
-    }
-    return par;
-  };
-  VI done = zero_i;  // lanes that met the early-stop rule
-  for (int it = 1; it <= iterations; ++it) {
-    const auto frozen = hn::MaskFromVec(hn::BitCast(d, done));
-    const bool any_frozen = !hn::AllTrue(di, hn::Eq(done, zero_i));
-    if (flooding) {
-      any_frozen ? sweep.template Checks<true, true>(frozen)
-                 : sweep.template Checks<true, false>(frozen);
-      // Variables: posterior = channel + all check messages; each edge gets the others' sum.
-      for (std::size_t v = 0; v < n; ++v) {
-        V total = hn::Load(d, a.channel + v * L);
-        for (std::uint32_t k = a.var_start[v]; k < a.var_start[v + 1]; ++k) {
-          total = hn::Add(total, hn::Load(d, msg + a.var_edge[k] * L));
-        }
-        sweep.template Keep<true>(post + v * L, total, frozen);
-        for (std::uint32_t k = a.var_start[v]; k < a.var_start[v + 1]; ++k) {
-          const std::size_t e = a.var_edge[k];
-          hn::Store(hn::Sub(total, hn::Load(d, msg + e * L)), d, v2c + e * L);
-        }
-      }
-    } else {
-      any_frozen ? sweep.template Checks<false, true>(frozen)
-                 : sweep.template Checks<false, false>(frozen);
-    }
-    if (!a.early_stop) continue;
-    // Vectorised syndrome: a lane is satisfied when every check has even parity of negatives.
-    VI unsatisfied = zero_i;
-    for (std::size_t c = 0; c < m; ++c) unsatisfied = hn::Or(unsatisfied, parity_of(c));
-    const VI newly = hn::AndNot(
-        done, hn::AndNot(hn::VecFromMask(di, hn::Lt(unsatisfied, zero_i)), hn::Set(di, TI(-1))));
-    if (!hn::AllTrue(di, hn::Eq(newly, zero_i))) {
-      alignas(64) TI flags[hn::MaxLanes(di)];
-      hn::Store(newly, di, flags);
-      for (std::size_t l = 0; l < L; ++l) {
-        if (flags[l]) a.iterations_used[l] = it;
-      }
-      done = hn::Or(done, newly);
-    }
-    if (hn::AllTrue(di, hn::Lt(done, zero_i))) break;
+// One iteration. Lanes in `fresh` were just given a new frame (posterior = channel, their
+// messages count as zero); lanes in `frozen` keep their posteriors.
+template <class D>
+void Iterate(D d, const LayeredArgs<hn::TFromD<D>>& a, std::uint64_t fresh,
+             std::uint64_t frozen_lanes) {
+  using T = hn::TFromD<D>;
+  using V = hn::Vec<D>;
+  constexpr std::size_t L = Sweep<D>::L;
+  const Sweep<D> sweep(a);
+  std::uint8_t bytes[8];
+  std::memcpy(bytes, &fresh, 8);
+  const auto stale = hn::Not(hn::LoadMaskBits(d, bytes));
+  std::memcpy(bytes, &frozen_lanes, 8);
+  const auto frozen = hn::LoadMaskBits(d, bytes);
+  const bool masked = (fresh | frozen_lanes) != 0;
+  if (!(std::is_floating_point_v<T> && a.flooding)) {
+    masked ? sweep.template Checks<false, true>(stale, frozen)
+           : sweep.template Checks<false, false>(stale, frozen);
+    return;
   }
-  // Syndrome weight per lane at exit.
-  alignas(64) TI par_lanes[hn::MaxLanes(di)];
-  for (std::size_t l = 0; l < L; ++l) a.syndrome_weight[l] = 0;
-  for (std::size_t c = 0; c < m; ++c) {
-    const VI par = parity_of(c);
-    if (hn::AllFalse(di, hn::Lt(par, zero_i))) continue;
-    hn::Store(par, di, par_lanes);
-    for (std::size_t l = 0; l < L; ++l) a.syndrome_weight[l] += par_lanes[l] < 0;
+  masked ? sweep.template Checks<true, true>(stale, frozen)
+         : sweep.template Checks<true, false>(stale, frozen);
+  // Variables: posterior = channel + all check messages; each edge gets the others' sum.
+  for (std::size_t v = 0; v < a.n; ++v) {
+    V total = hn::Load(d, a.channel + v * L);
+    for (std::uint32_t k = a.var_start[v]; k < a.var_start[v + 1]; ++k)
+      total = hn::Add(total, hn::Load(d, a.messages + a.var_edge[k] * L));
+    sweep.template Keep<true>(a.posterior + v * L, total, frozen);
+    for (std::uint32_t k = a.var_start[v]; k < a.var_start[v + 1]; ++k) {
+      const std::size_t e = a.var_edge[k];
+      hn::Store(hn::Sub(total, hn::Load(d, a.messages + e * L)), d, a.v2c + e * L);
+    }
+  }
+}
+
+// Sign bit of the XOR of check c's posteriors = parity of its negative ones, per lane.
+template <class D>
+HWY_INLINE hn::Vec<hn::RebindToSigned<D>> Parity(D d, const LayeredArgs<hn::TFromD<D>>& a,
+                                                 std::size_t c) {
+  constexpr std::size_t L = Sweep<D>::L;
+  const hn::RebindToSigned<D> di;
+  auto par = hn::Zero(di);
+  for (std::uint32_t e = a.check_start[c]; e < a.check_start[c + 1]; ++e)
+    par = hn::Xor(par, hn::BitCast(di, hn::Load(d, a.posterior + a.edge_var[e] * L)));
+  return par;
+}
+
+// Vectorised syndrome: bit l set when lane l has an unsatisfied check.
+template <class D>
+std::uint64_t Unsatisfied(D d, const LayeredArgs<hn::TFromD<D>>& a) {
+  const hn::RebindToSigned<D> di;
+  auto unsatisfied = hn::Zero(di);
+  for (std::size_t c = 0; c < a.m; ++c) unsatisfied = hn::Or(unsatisfied, Parity(d, a, c));
+  std::uint8_t bytes[8] = {};
+  hn::StoreMaskBits(di, hn::Lt(unsatisfied, hn::Zero(di)), bytes);
+  std::uint64_t bits = 0;
+  std::memcpy(&bits, bytes, 8);
+  return Sweep<D>::L >= 64 ? bits : bits & ((std::uint64_t{1} << Sweep<D>::L) - 1);
+}
+
+// Unsatisfied checks per lane.
+template <class D>
+void SyndromeWeights(D d, const LayeredArgs<hn::TFromD<D>>& a, std::int32_t* weights) {
+  constexpr std::size_t L = Sweep<D>::L;
+  const hn::RebindToSigned<D> di;
+  alignas(64) hn::TFromD<decltype(di)> lanes[hn::MaxLanes(di)];
+  for (std::size_t l = 0; l < L; ++l) weights[l] = 0;
+  for (std::size_t c = 0; c < a.m; ++c) {
+    const auto par = Parity(d, a, c);
+    if (hn::AllFalse(di, hn::Lt(par, hn::Zero(di)))) continue;
+    hn::Store(par, di, lanes);
+    for (std::size_t l = 0; l < L; ++l) weights[l] += lanes[l] < 0;
+  }
+}
+
+// New frames for the lanes in `lanes`: their channel values and posteriors from rows (n x L, the
+// same layout), the other lanes untouched.
+template <class D>
+void Refill(D d, const LayeredArgs<hn::TFromD<D>>& a, const hn::TFromD<D>* rows,
+            std::uint64_t lanes) {
+  constexpr std::size_t L = Sweep<D>::L;
+  std::uint8_t bytes[8];
+  std::memcpy(bytes, &lanes, 8);
+  const auto take = hn::LoadMaskBits(d, bytes);
+  for (std::size_t i = 0; i < a.n * L; i += L) {
+    const auto x = hn::LoadU(d, rows + i);
+    hn::Store(hn::IfThenElse(take, x, hn::Load(d, a.channel + i)), d, a.channel + i);
+    hn::Store(hn::IfThenElse(take, x, hn::Load(d, a.posterior + i)), d, a.posterior + i);
+  }
+}
+
+// Hard decisions: bit l of masks[v] set where lane l of posterior v is negative.
+template <class D>
+void SignMasks(D d, const LayeredArgs<hn::TFromD<D>>& a, std::uint64_t* masks) {
+  constexpr std::size_t L = Sweep<D>::L;
+  for (std::size_t v = 0; v < a.n; ++v) {
+    std::uint8_t bytes[8] = {};
+    hn::StoreMaskBits(d, hn::Lt(hn::Load(d, a.posterior + v * L), hn::Zero(d)), bytes);
+    std::memcpy(&masks[v], bytes, 8);
   }
 }
 
@@ -380,20 +415,6 @@ void Channel(const double* llr, std::size_t count, double scale, double clip, T*
   }
 }
 
-// Bit l of masks[v] set where lane l of posterior v is negative.
-template <class T>
-void SignMasks(const T* post, std::size_t n, std::uint64_t* masks) {
-  const hn::ScalableTag<T> d;
-  constexpr std::size_t L = hn::MaxLanes(d);
-  for (std::size_t v = 0; v < n; ++v) {
-    std::uint8_t bits[8] = {};
-    hn::StoreMaskBits(d, hn::Lt(hn::Load(d, post + v * L), hn::Zero(d)), bits);
-    std::uint64_t mask = 0;
-    for (std::size_t b = 0; b < (L + 7) / 8; ++b) mask |= std::uint64_t{bits[b]} << (8 * b);
-    masks[v] = mask;
-  }
-}
-
 std::size_t FloatLanes() {
   return hn::Lanes(hn::ScalableTag<float>());
 }
@@ -403,34 +424,71 @@ std::size_t Int16Lanes() {
 std::size_t Int8Lanes() {
   return hn::Lanes(hn::ScalableTag<std::int8_t>());
 }
-void LayeredFloat(const LayeredArgs<float>& a) {
-  Layered(hn::ScalableTag<float>(), a);
+void StartFloat(const LayeredArgs<float>& a) {
+  Start(hn::ScalableTag<float>(), a);
 }
-void LayeredInt16(const LayeredArgs<std::int16_t>& a) {
-  Layered(hn::ScalableTag<std::int16_t>(), a);
+void IterateFloat(const LayeredArgs<float>& a, std::uint64_t fresh, std::uint64_t frozen) {
+  Iterate(hn::ScalableTag<float>(), a, fresh, frozen);
 }
-void LayeredInt8(const LayeredArgs<std::int8_t>& a) {
-  Layered(hn::ScalableTag<std::int8_t>(), a);
+std::uint64_t UnsatisfiedFloat(const LayeredArgs<float>& a) {
+  return Unsatisfied(hn::ScalableTag<float>(), a);
+}
+void WeightsFloat(const LayeredArgs<float>& a, std::int32_t* weights) {
+  SyndromeWeights(hn::ScalableTag<float>(), a, weights);
+}
+void RefillFloat(const LayeredArgs<float>& a, const float* rows, std::uint64_t lanes) {
+  Refill(hn::ScalableTag<float>(), a, rows, lanes);
+}
+void SignMasksFloat(const LayeredArgs<float>& a, std::uint64_t* masks) {
+  SignMasks(hn::ScalableTag<float>(), a, masks);
 }
 void ChannelFloat(const double* llr, std::size_t count, double scale, double clip, float* out) {
   Channel(llr, count, scale, clip, out);
+}
+void StartInt16(const LayeredArgs<std::int16_t>& a) {
+  Start(hn::ScalableTag<std::int16_t>(), a);
+}
+void IterateInt16(const LayeredArgs<std::int16_t>& a, std::uint64_t fresh, std::uint64_t frozen) {
+  Iterate(hn::ScalableTag<std::int16_t>(), a, fresh, frozen);
+}
+std::uint64_t UnsatisfiedInt16(const LayeredArgs<std::int16_t>& a) {
+  return Unsatisfied(hn::ScalableTag<std::int16_t>(), a);
+}
+void WeightsInt16(const LayeredArgs<std::int16_t>& a, std::int32_t* weights) {
+  SyndromeWeights(hn::ScalableTag<std::int16_t>(), a, weights);
+}
+void RefillInt16(const LayeredArgs<std::int16_t>& a, const std::int16_t* rows,
+                 std::uint64_t lanes) {
+  Refill(hn::ScalableTag<std::int16_t>(), a, rows, lanes);
+}
+void SignMasksInt16(const LayeredArgs<std::int16_t>& a, std::uint64_t* masks) {
+  SignMasks(hn::ScalableTag<std::int16_t>(), a, masks);
 }
 void ChannelInt16(const double* llr, std::size_t count, double scale, double clip,
                   std::int16_t* out) {
   Channel(llr, count, scale, clip, out);
 }
+void StartInt8(const LayeredArgs<std::int8_t>& a) {
+  Start(hn::ScalableTag<std::int8_t>(), a);
+}
+void IterateInt8(const LayeredArgs<std::int8_t>& a, std::uint64_t fresh, std::uint64_t frozen) {
+  Iterate(hn::ScalableTag<std::int8_t>(), a, fresh, frozen);
+}
+std::uint64_t UnsatisfiedInt8(const LayeredArgs<std::int8_t>& a) {
+  return Unsatisfied(hn::ScalableTag<std::int8_t>(), a);
+}
+void WeightsInt8(const LayeredArgs<std::int8_t>& a, std::int32_t* weights) {
+  SyndromeWeights(hn::ScalableTag<std::int8_t>(), a, weights);
+}
+void RefillInt8(const LayeredArgs<std::int8_t>& a, const std::int8_t* rows, std::uint64_t lanes) {
+  Refill(hn::ScalableTag<std::int8_t>(), a, rows, lanes);
+}
+void SignMasksInt8(const LayeredArgs<std::int8_t>& a, std::uint64_t* masks) {
+  SignMasks(hn::ScalableTag<std::int8_t>(), a, masks);
+}
 void ChannelInt8(const double* llr, std::size_t count, double scale, double clip,
                  std::int8_t* out) {
   Channel(llr, count, scale, clip, out);
-}
-void SignMasksFloat(const float* post, std::size_t n, std::uint64_t* masks) {
-  SignMasks(post, n, masks);
-}
-void SignMasksInt16(const std::int16_t* post, std::size_t n, std::uint64_t* masks) {
-  SignMasks(post, n, masks);
-}
-void SignMasksInt8(const std::int8_t* post, std::size_t n, std::uint64_t* masks) {
-  SignMasks(post, n, masks);
 }
 
 }  // namespace tannery::detail::HWY_NAMESPACE
@@ -442,14 +500,26 @@ namespace tannery::detail {
 HWY_EXPORT(FloatLanes);
 HWY_EXPORT(Int16Lanes);
 HWY_EXPORT(Int8Lanes);
-HWY_EXPORT(LayeredFloat);
-HWY_EXPORT(LayeredInt16);
-HWY_EXPORT(LayeredInt8);
+HWY_EXPORT(StartFloat);
+HWY_EXPORT(IterateFloat);
+HWY_EXPORT(UnsatisfiedFloat);
+HWY_EXPORT(WeightsFloat);
 HWY_EXPORT(ChannelFloat);
-HWY_EXPORT(ChannelInt16);
-HWY_EXPORT(ChannelInt8);
+HWY_EXPORT(RefillFloat);
 HWY_EXPORT(SignMasksFloat);
+HWY_EXPORT(StartInt16);
+HWY_EXPORT(IterateInt16);
+HWY_EXPORT(UnsatisfiedInt16);
+HWY_EXPORT(WeightsInt16);
+HWY_EXPORT(ChannelInt16);
+HWY_EXPORT(RefillInt16);
 HWY_EXPORT(SignMasksInt16);
+HWY_EXPORT(StartInt8);
+HWY_EXPORT(IterateInt8);
+HWY_EXPORT(UnsatisfiedInt8);
+HWY_EXPORT(WeightsInt8);
+HWY_EXPORT(ChannelInt8);
+HWY_EXPORT(RefillInt8);
 HWY_EXPORT(SignMasksInt8);
 
 std::size_t float_lanes() {
@@ -461,34 +531,70 @@ std::size_t int16_lanes() {
 std::size_t int8_lanes() {
   return HWY_DYNAMIC_DISPATCH(Int8Lanes)();
 }
-void layered_float(const LayeredArgs<float>& a) {
-  HWY_DYNAMIC_DISPATCH(LayeredFloat)(a);
+void start(const LayeredArgs<float>& a) {
+  HWY_DYNAMIC_DISPATCH(StartFloat)(a);
 }
-void layered_int16(const LayeredArgs<std::int16_t>& a) {
-  HWY_DYNAMIC_DISPATCH(LayeredInt16)(a);
+void iterate(const LayeredArgs<float>& a, std::uint64_t fresh, std::uint64_t frozen) {
+  HWY_DYNAMIC_DISPATCH(IterateFloat)(a, fresh, frozen);
 }
-void layered_int8(const LayeredArgs<std::int8_t>& a) {
-  HWY_DYNAMIC_DISPATCH(LayeredInt8)(a);
+std::uint64_t unsatisfied(const LayeredArgs<float>& a) {
+  return HWY_DYNAMIC_DISPATCH(UnsatisfiedFloat)(a);
+}
+void syndrome_weights(const LayeredArgs<float>& a, std::int32_t* weights) {
+  HWY_DYNAMIC_DISPATCH(WeightsFloat)(a, weights);
+}
+void refill(const LayeredArgs<float>& a, const float* rows, std::uint64_t lanes) {
+  HWY_DYNAMIC_DISPATCH(RefillFloat)(a, rows, lanes);
+}
+void sign_masks(const LayeredArgs<float>& a, std::uint64_t* masks) {
+  HWY_DYNAMIC_DISPATCH(SignMasksFloat)(a, masks);
 }
 void channel_values(const double* llr, std::size_t count, double scale, double clip, float* out) {
   HWY_DYNAMIC_DISPATCH(ChannelFloat)(llr, count, scale, clip, out);
+}
+void start(const LayeredArgs<std::int16_t>& a) {
+  HWY_DYNAMIC_DISPATCH(StartInt16)(a);
+}
+void iterate(const LayeredArgs<std::int16_t>& a, std::uint64_t fresh, std::uint64_t frozen) {
+  HWY_DYNAMIC_DISPATCH(IterateInt16)(a, fresh, frozen);
+}
+std::uint64_t unsatisfied(const LayeredArgs<std::int16_t>& a) {
+  return HWY_DYNAMIC_DISPATCH(UnsatisfiedInt16)(a);
+}
+void syndrome_weights(const LayeredArgs<std::int16_t>& a, std::int32_t* weights) {
+  HWY_DYNAMIC_DISPATCH(WeightsInt16)(a, weights);
+}
+void refill(const LayeredArgs<std::int16_t>& a, const std::int16_t* rows, std::uint64_t lanes) {
+  HWY_DYNAMIC_DISPATCH(RefillInt16)(a, rows, lanes);
+}
+void sign_masks(const LayeredArgs<std::int16_t>& a, std::uint64_t* masks) {
+  HWY_DYNAMIC_DISPATCH(SignMasksInt16)(a, masks);
 }
 void channel_values(const double* llr, std::size_t count, double scale, double clip,
                     std::int16_t* out) {
   HWY_DYNAMIC_DISPATCH(ChannelInt16)(llr, count, scale, clip, out);
 }
+void start(const LayeredArgs<std::int8_t>& a) {
+  HWY_DYNAMIC_DISPATCH(StartInt8)(a);
+}
+void iterate(const LayeredArgs<std::int8_t>& a, std::uint64_t fresh, std::uint64_t frozen) {
+  HWY_DYNAMIC_DISPATCH(IterateInt8)(a, fresh, frozen);
+}
+std::uint64_t unsatisfied(const LayeredArgs<std::int8_t>& a) {
+  return HWY_DYNAMIC_DISPATCH(UnsatisfiedInt8)(a);
+}
+void syndrome_weights(const LayeredArgs<std::int8_t>& a, std::int32_t* weights) {
+  HWY_DYNAMIC_DISPATCH(WeightsInt8)(a, weights);
+}
+void refill(const LayeredArgs<std::int8_t>& a, const std::int8_t* rows, std::uint64_t lanes) {
+  HWY_DYNAMIC_DISPATCH(RefillInt8)(a, rows, lanes);
+}
+void sign_masks(const LayeredArgs<std::int8_t>& a, std::uint64_t* masks) {
+  HWY_DYNAMIC_DISPATCH(SignMasksInt8)(a, masks);
+}
 void channel_values(const double* llr, std::size_t count, double scale, double clip,
                     std::int8_t* out) {
   HWY_DYNAMIC_DISPATCH(ChannelInt8)(llr, count, scale, clip, out);
-}
-void sign_masks(const float* post, std::size_t n, std::uint64_t* masks) {
-  HWY_DYNAMIC_DISPATCH(SignMasksFloat)(post, n, masks);
-}
-void sign_masks(const std::int16_t* post, std::size_t n, std::uint64_t* masks) {
-  HWY_DYNAMIC_DISPATCH(SignMasksInt16)(post, n, masks);
-}
-void sign_masks(const std::int8_t* post, std::size_t n, std::uint64_t* masks) {
-  HWY_DYNAMIC_DISPATCH(SignMasksInt8)(post, n, masks);
 }
 
 // In this file HWY_TARGETS lists every target compiled for the kernels above.

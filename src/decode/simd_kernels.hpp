@@ -18,8 +18,6 @@ struct LayeredArgs {
   const std::uint32_t* edge_var = nullptr;
   std::size_t n = 0, m = 0, max_degree = 0;
   std::size_t lanes = 0;  // frames in this batch (the kernel's vector width)
-  int iterations = 0;
-  bool early_stop = true;
   // Flooding (float only): all checks from the variable-to-check messages, then all variables.
   bool flooding = false;
   const std::uint32_t* var_start =
@@ -33,34 +31,38 @@ struct LayeredArgs {
   int alpha_eighths = 8;
   int beta_lsb = 0;
   int message_limit = 0, posterior_limit = 0;
-  // In: channel LLRs (posterior initialised from them). Out: posteriors, iterations used.
-  const T* channel = nullptr;               // n x lanes
-  T* posterior = nullptr;                   // n x lanes
-  T* messages = nullptr;                    // edges x lanes (check-to-variable)
-  T* scratch = nullptr;                     // 5 x max_degree x lanes
-  std::int32_t* iterations_used = nullptr;  // lanes
-  std::int32_t* syndrome_weight = nullptr;  // lanes: unsatisfied checks at exit
+  // Channel values (posteriors start from them) and the decoder state.
+  T* channel = nullptr;        // n x lanes
+  T* posterior = nullptr;      // n x lanes
+  T* messages = nullptr;       // edges x lanes (check-to-variable)
+  T* scratch = nullptr;        // 5 x max_degree x lanes
 };
 
 // Lanes per vector for the dispatched target.
 std::size_t float_lanes();
 std::size_t int16_lanes();
 std::size_t int8_lanes();
-void layered_float(const LayeredArgs<float>& args);
-void layered_int16(const LayeredArgs<std::int16_t>& args);
-void layered_int8(const LayeredArgs<std::int8_t>& args);
-// Channel values of a batch from count LLRs in lane layout (count: a multiple of 8): float32
-// clipped at +-clip (scale 1), or fixed point round(llr * scale), ties to even, saturated at
-// +-clip: the rule of LlrQuantizer.
-void channel_values(const double* llr, std::size_t count, double scale, double clip, float* out);
-void channel_values(const double* llr, std::size_t count, double scale, double clip,
-                    std::int16_t* out);
-void channel_values(const double* llr, std::size_t count, double scale, double clip,
-                    std::int8_t* out);
-// Hard decisions of n posteriors in lane layout: bit l of masks[v] set where lane l is negative.
-void sign_masks(const float* post, std::size_t n, std::uint64_t* masks);
-void sign_masks(const std::int16_t* post, std::size_t n, std::uint64_t* masks);
-void sign_masks(const std::int8_t* post, std::size_t n, std::uint64_t* masks);
+// The batch kernels, for T = float, int16 and int8 lanes. Lane sets are bit masks (bit l: lane
+// l). start: posteriors from the channel values, messages zero. iterate: one iteration; lanes
+// in `fresh` were given a new frame since (posterior = channel, messages count as zero), lanes
+// in `frozen` keep their posteriors. unsatisfied: lanes with a nonzero syndrome.
+// syndrome_weights: unsatisfied checks per lane. refill: channel values and posteriors of the
+// lanes in `lanes` from rows (n x lanes, the same layout). sign_masks: bit l of masks[v] set
+// where lane l of posterior v is negative. channel_values: count LLRs in lane layout
+// (count: a multiple of 8) to channel values: float32 clipped at +-clip (scale 1), or fixed point
+// round(llr * scale), ties to even, saturated at +-clip (the rule of LlrQuantizer).
+#define TANNERY_BATCH_KERNELS(T)                                                       \
+  void start(const LayeredArgs<T>& args);                                              \
+  void iterate(const LayeredArgs<T>& args, std::uint64_t fresh, std::uint64_t frozen); \
+  std::uint64_t unsatisfied(const LayeredArgs<T>& args);                               \
+  void syndrome_weights(const LayeredArgs<T>& args, std::int32_t* weights);            \
+  void refill(const LayeredArgs<T>& args, const T* rows, std::uint64_t lanes);         \
+  void sign_masks(const LayeredArgs<T>& args, std::uint64_t* masks);                   \
+  void channel_values(const double* llr, std::size_t count, double scale, double clip, T* out);
+TANNERY_BATCH_KERNELS(float)
+TANNERY_BATCH_KERNELS(std::int16_t)
+TANNERY_BATCH_KERNELS(std::int8_t)
+#undef TANNERY_BATCH_KERNELS
 // Targets the kernels were compiled for and this CPU supports, best first; restricting dispatch
 // to one of them (empty name: automatic). false when the name is unknown.
 std::vector<std::string> kernel_targets();

@@ -55,7 +55,7 @@ void accumulate(PointResult& total, const PointResult& chunk) {
 struct Simulator::Worker {
   std::unique_ptr<Decoder> decoder;
   std::vector<std::uint8_t> info, codewords, hard, is_info;
-  std::vector<std::uint64_t> info_masks, codeword_masks, hard_masks;  // lane layout
+  std::vector<std::uint64_t> info_masks, codeword_masks, errors;  // lane layout
   std::vector<double> llr, noise;
   std::vector<FrameOutcome> outcomes;
 };
@@ -65,7 +65,8 @@ Simulator::Simulator(const Code& code, SimulationConfig config)
   validate(config_.decoder, code_);
   if (config_.sweep.empty()) throw Error("the sweep has no points");
   for (double p : config_.sweep) check_channel_parameter(config_.channel.kind, p);
-  if (config_.chunk_frames == 0) throw Error("chunk size must be at least one frame");
+  if (config_.chunk_frames == 0)
+    config_.chunk_frames = default_chunk_frames(code_, config_.decoder);
   if (config_.stop.max_frames == 0) throw Error("--max-frames must be at least 1");
   if (!(config_.confidence > 0 && config_.confidence < 1))
     throw Error("confidence must be in (0, 1)");
@@ -141,56 +142,75 @@ void Simulator::run_frames(Worker& w, std::size_t index, const ChannelPoint& cha
   }
 }
 
-// Lane layout (AWGN with a batched decoder): a batch of frames generated side by side with
-// SIMD, bit-sliced encoding, errors counted on sign masks. The same numbers as run_frames.
+// Lane layout (AWGN with a batched decoder): the chunk's frames generated in groups of lanes()
+// side by side with SIMD, bit-sliced encoding, the decoder refilling lanes as frames finish.
+// The same numbers as run_frames.
 template <class Record>
 void Simulator::run_lanes(Worker& w, std::size_t index, const ChannelPoint& channel,
                           std::uint64_t first, std::size_t count, const Record& record) const {
   const std::size_t n = code_.n(), k = encoder_.k(), lanes = w.decoder->lanes();
+  const std::size_t groups = (count + lanes - 1) / lanes;
   w.info_masks.resize(k);
-  w.codeword_masks.resize(n);
-  w.hard_masks.resize(n);
-  w.llr.resize(n * lanes);
-  w.outcomes.resize(lanes);
+  w.codeword_masks.resize(groups * n);
+  w.llr.resize(groups * n * lanes);
   if (w.is_info.size() != n) {
     w.is_info.assign(n, 0);
     for (std::uint32_t p : encoder_.info_positions()) w.is_info[p] = 1;
   }
   const double scale = 2.0 / (channel.assumed_value * channel.assumed_value);
-  for (std::size_t g = 0; g < count; g += lanes) {
-    // A short last batch decodes frames beyond the chunk too; their results are not used.
-    const FrameGroup group{config_.seed, static_cast<std::uint32_t>(index), first + g, lanes};
-    const std::size_t used = std::min(lanes, count - g);
+  for (std::size_t g = 0; g < groups; ++g) {
+    // A short last group generates frames beyond the chunk too; they are not decoded.
+    const FrameGroup group{config_.seed, static_cast<std::uint32_t>(index), first + g * lanes,
+                           lanes};
+    const std::span<std::uint64_t> sent(w.codeword_masks.data() + g * n, n);
     if (config_.all_zero) {
-      std::fill(w.codeword_masks.begin(), w.codeword_masks.end(), 0);
+      std::fill(sent.begin(), sent.end(), 0);
     } else {
       group_bits(group, w.info_masks);
-      encoder_.encode_lanes(w.info_masks, w.codeword_masks);
+      encoder_.encode_lanes(w.info_masks, sent);
     }
-    group_gaussians(group, w.llr);
+    const std::span<double> llr(w.llr.data() + g * n * lanes, n * lanes);
+    group_gaussians(group, llr);
     // The arithmetic of transmit(), in the same order.
     for (std::size_t v = 0; v < n; ++v) {
-      double* row = w.llr.data() + v * lanes;
-      const std::uint64_t bits = w.codeword_masks[v];
+      double* row = llr.data() + v * lanes;
       for (std::size_t l = 0; l < lanes; ++l)
-        row[l] = scale * ((((bits >> l) & 1u) ? -1.0 : 1.0) + channel.value * row[l]);
+        row[l] = scale * ((((sent[v] >> l) & 1u) ? -1.0 : 1.0) + channel.value * row[l]);
     }
-    w.decoder->decode_lanes(w.llr, w.hard_masks, w.outcomes);
-    std::array<std::uint64_t, 64> coded{}, info_errors{};
-    for (std::size_t v = 0; v < n; ++v) {
-      for (std::uint64_t x = w.hard_masks[v] ^ w.codeword_masks[v]; x; x &= x - 1) {
-        const auto l = static_cast<std::size_t>(std::countr_zero(x));
-        ++coded[l];
-        info_errors[l] += w.is_info[v];
+  }
+  w.errors.assign(2 * count, 0);
+  w.outcomes.resize(count);
+  w.decoder->decode_groups(w.llr, count, [&](const Decoder::FinishedFrames& done) {
+    // Errors of the finished lanes, group by group (lane l holds a frame of group frame / lanes).
+    for (std::uint64_t left = done.lanes; left;) {
+      const std::size_t g = done.frame[static_cast<std::size_t>(std::countr_zero(left))] / lanes;
+      std::uint64_t in_group = 0;
+      for (std::uint64_t a = left; a; a &= a - 1) {
+        const auto l = static_cast<std::size_t>(std::countr_zero(a));
+        if (done.frame[l] / lanes == g) in_group |= std::uint64_t{1} << l;
+      }
+      left &= ~in_group;
+      const std::uint64_t* sent = w.codeword_masks.data() + g * n;
+      for (std::size_t v = 0; v < n; ++v) {
+        for (std::uint64_t x = (done.hard[v] ^ sent[v]) & in_group; x; x &= x - 1) {
+          const std::size_t f = done.frame[static_cast<std::size_t>(std::countr_zero(x))];
+          ++w.errors[2 * f];
+          w.errors[2 * f + 1] += w.is_info[v];
+        }
+      }
+      for (std::uint64_t a = in_group; a; a &= a - 1) {
+        const auto l = static_cast<std::size_t>(std::countr_zero(a));
+        w.outcomes[done.frame[l]] = done.outcome[l];
       }
     }
-    for (std::size_t l = 0; l < used; ++l) {
-      record(group.first + l, coded[l], info_errors[l], w.outcomes[l], [&] {
-        std::vector<float> frame(n);
-        for (std::size_t v = 0; v < n; ++v) frame[v] = static_cast<float>(w.llr[v * lanes + l]);
-        return frame;
-      });
-    }
+  });
+  for (std::size_t f = 0; f < count; ++f) {
+    record(first + f, w.errors[2 * f], w.errors[2 * f + 1], w.outcomes[f], [&] {
+      const double* column = w.llr.data() + f / lanes * n * lanes + f % lanes;
+      std::vector<float> frame(n);
+      for (std::size_t v = 0; v < n; ++v) frame[v] = static_cast<float>(column[v * lanes]);
+      return frame;
+    });
   }
 }
 
@@ -369,6 +389,15 @@ FrameData Simulator::replay(std::size_t point, std::uint64_t frame) const {
   auto decoder = make_decoder(code_, config_.decoder);
   decoder->decode(d.llr, d.hard, d.posterior, std::span(&d.outcome, 1), frame);
   return d;
+}
+
+std::uint32_t default_chunk_frames(const Code& code, const DecoderSettings& decoder) {
+  std::uint32_t frames = 64;
+  if (decoder.kernel == Kernel::simd) {
+    const std::size_t budget = (std::size_t{16} << 20) / sizeof(double);  // LLR values
+    while (frames < 1024 && 2 * frames * std::max<std::size_t>(code.n(), 1) <= budget) frames *= 2;
+  }
+  return frames;
 }
 
 std::vector<double> parse_sweep(const std::string& text) {

@@ -50,8 +50,8 @@ struct SimulationConfig {
   std::vector<double> sweep;  // Eb/N0 or Es/N0 (dB), p or epsilon
   StopRules stop;
   std::uint64_t seed = 1;
-  // A multiple of every batch width (64 int8 lanes of AVX-512), so SIMD batches are full.
-  std::uint32_t chunk_frames = 64;
+  // Frames per chunk; 0: automatic (default_chunk_frames).
+  std::uint32_t chunk_frames = 0;
   unsigned threads = 0;           // 0 = all cores
   bool all_zero = false;          // send the all-zero codeword (symmetric channel and decoder only)
   double confidence = 0.95;       // level of the reported intervals
@@ -149,6 +149,12 @@ class Simulator {
 void generate_frame(const FrameId& id, const ChannelPoint& channel, const Encoder& encoder,
                     bool all_zero, std::span<std::uint8_t> info, std::span<std::uint8_t> codeword,
                     std::span<double> noise, std::span<double> llr);
+
+// The automatic chunk size: 64 frames (a multiple of every SIMD batch width: 64 int8 lanes of
+// AVX-512), and for the SIMD kernels a power of two up to 1024 so the lanes of a batch can be
+// refilled many times in a chunk, as long as its channel LLRs stay within 16 MB. It depends on
+// the code and the settings only, never on the machine.
+std::uint32_t default_chunk_frames(const Code& code, const DecoderSettings& decoder);
 
 // Parses a sweep: a comma-separated list "1,1.5,2" and/or ranges "START:STEP:STOP" (inclusive,
 // tolerant to rounding). Throws Error on bad syntax, a zero or wrong-signed step, or > 10000

@@ -46,8 +46,9 @@ TEST_CASE(
           s.alpha = 0.625;
           s.beta = 0.5;
           s.quantization = parse_quantization(spec);
-          // Frames not a multiple of any lane count, LLRs from clean to hopeless, with infinities.
-          auto llr = noisy(code, 37, ++seed, 1.0, 2.5);
+          // Frames not a multiple of any lane count and more than the widest batch (lanes are
+          // refilled), LLRs from clean to hopeless, with infinities.
+          auto llr = noisy(code, 150, ++seed, 1.0, 2.5);
           llr[5] = INFINITY;
           llr[code.n() + 3] = -INFINITY;
           const Out reference = decode(code, s, llr);

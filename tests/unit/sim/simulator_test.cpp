@@ -123,11 +123,24 @@ TEST_CASE("Hamming (7,4) with ML over the BSC has block error 1 - (1-p)^7 - 7p(1
 
 TEST_CASE("the erasure channel decodes without NaN and stops by the rules", "[sim]") {
   SimulationConfig c = config(ChannelKind::bec, {0.5, 0.3}, 2000, 50);
-  const auto points = run(test::shipped("qc-rate-half-z54.qc"), c);
+  const Code code = test::shipped("qc-rate-half-z54.qc");
+  Simulator sim(code, c);
+  const auto points = sim.run({}, {}, nullptr);
   REQUIRE(points.size() == 2);
   CHECK(points[0].stop_reason == "frame errors");
   CHECK(points[0].frame_errors >= 50);
-  CHECK(points[0].frame_errors < 50 + c.chunk_frames * 2);  // whole chunks, in order
+  CHECK(sim.config().chunk_frames == 64);  // the automatic size for the reference decoders
+  CHECK(points[0].frame_errors < 50 + sim.config().chunk_frames * 2);  // whole chunks, in order
+}
+
+TEST_CASE("automatic chunk sizes", "[sim]") {
+  DecoderSettings reference, simd;
+  simd.kernel = Kernel::simd;
+  const Code small = test::shipped("qc-rate-half-z54.qc");
+  const Code large = construct_regular(64800, 3, 6, 1);
+  CHECK(default_chunk_frames(small, reference) == 64);
+  CHECK(default_chunk_frames(small, simd) == 1024);
+  CHECK(default_chunk_frames(large, simd) == 64);  // 2 x 64 x 64800 doubles would pass 16 MB
 }
 
 TEST_CASE("counts are identical for 1 and 2 threads", "[sim]") {
@@ -171,10 +184,10 @@ TEST_CASE("the lane pipeline of the batched decoders counts exactly as frame by 
   // Fixed point is bit-exact between the scalar reference (frame layout: per-frame Philox,
   // encoder, channel) and the SIMD kernel (lane layout: group Philox, bit-sliced encoder, sign
   // masks), so every count, failed frame and kept LLR must agree; a chunk that is not a
-  // multiple of the batch width leaves idle lanes.
+  // multiple of the batch width leaves idle lanes, one longer than a batch refills lanes.
   test::TargetGuard guard;
   const Code code = test::shipped("qc-rate-half-z54.qc");
-  for (std::uint32_t chunk : {64u, 45u}) {
+  for (std::uint32_t chunk : {64u, 45u, 200u}) {
     SimulationConfig c = config(ChannelKind::awgn, {1.5, 2.25}, 2000, 60);
     c.chunk_frames = chunk;
     c.keep_failures = 5;
