@@ -169,7 +169,7 @@ void Decoder::decode_batch(std::span<const double> llr, std::span<std::uint8_t> 
   }
 }
 
-void Decoder::decode_groups(std::span<const double>, std::size_t, const FramesDone&) {
+void Decoder::decode_groups(std::size_t, const GroupFill&, const FramesDone&) {
   TANNERY_ASSERT(!"decode_groups called on a decoder without lane layout");
 }
 

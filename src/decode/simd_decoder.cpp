@@ -113,15 +113,18 @@ class Batched final : public Decoder {
  public:
   std::size_t lanes() const noexcept override { return lanes_; }
 
-  void decode_groups(std::span<const double> llr, std::size_t frames,
-                     const FramesDone& done) override {
-    TANNERY_ASSERT(llr.size() == (frames + lanes_ - 1) / lanes_ * code_.n() * lanes_);
-    groups_.resize(llr.size());
-    if (quantize_)
-      channel_values(llr.data(), llr.size(), quantize_->scale(), quantize_->limit(),
-                     groups_.data());
-    else
-      channel_values(llr.data(), llr.size(), 1.0, kLlrLimit, groups_.data());
+  void decode_groups(std::size_t frames, const GroupFill& fill, const FramesDone& done) override {
+    const std::size_t group = code_.n() * lanes_, groups = (frames + lanes_ - 1) / lanes_;
+    groups_.resize(groups * group);
+    group_llr_.resize(group);
+    for (std::size_t g = 0; g < groups; ++g) {
+      fill(g, group_llr_);
+      if (quantize_)
+        channel_values(group_llr_.data(), group, quantize_->scale(), quantize_->limit(),
+                       groups_.data() + g * group);
+      else
+        channel_values(group_llr_.data(), group, 1.0, kLlrLimit, groups_.data() + g * group);
+    }
     stream(frames, done);
   }
 
@@ -238,6 +241,7 @@ class Batched final : public Decoder {
   std::vector<std::int32_t> weights_;
   std::vector<T> groups_;  // channel values of the frames being decoded, in groups
   std::vector<std::uint64_t> masks_;
+  std::vector<double> group_llr_;
   LayeredArgs<T> args_;
 };
 

@@ -152,14 +152,13 @@ void Simulator::run_lanes(Worker& w, std::size_t index, const ChannelPoint& chan
   const std::size_t groups = (count + lanes - 1) / lanes;
   w.info_masks.resize(k);
   w.codeword_masks.resize(groups * n);
-  w.llr.resize(groups * n * lanes);
   if (w.is_info.size() != n) {
     w.is_info.assign(n, 0);
     for (std::uint32_t p : encoder_.info_positions()) w.is_info[p] = 1;
   }
   const double scale = 2.0 / (channel.assumed_value * channel.assumed_value);
-  for (std::size_t g = 0; g < groups; ++g) {
-    // A short last group generates frames beyond the chunk too; they are not decoded.
+  // Group g on demand: a short last group generates frames beyond the chunk too (not decoded).
+  auto fill = [&](std::size_t g, std::span<double> llr) {
     const FrameGroup group{config_.seed, static_cast<std::uint32_t>(index), first + g * lanes,
                            lanes};
     const std::span<std::uint64_t> sent(w.codeword_masks.data() + g * n, n);
@@ -169,7 +168,6 @@ void Simulator::run_lanes(Worker& w, std::size_t index, const ChannelPoint& chan
       group_bits(group, w.info_masks);
       encoder_.encode_lanes(w.info_masks, sent);
     }
-    const std::span<double> llr(w.llr.data() + g * n * lanes, n * lanes);
     group_gaussians(group, llr);
     // The arithmetic of transmit(), in the same order.
     for (std::size_t v = 0; v < n; ++v) {
@@ -177,10 +175,10 @@ void Simulator::run_lanes(Worker& w, std::size_t index, const ChannelPoint& chan
       for (std::size_t l = 0; l < lanes; ++l)
         row[l] = scale * ((((sent[v] >> l) & 1u) ? -1.0 : 1.0) + channel.value * row[l]);
     }
-  }
+  };
   w.errors.assign(2 * count, 0);
   w.outcomes.resize(count);
-  w.decoder->decode_groups(w.llr, count, [&](const Decoder::FinishedFrames& done) {
+  w.decoder->decode_groups(count, fill, [&](const Decoder::FinishedFrames& done) {
     // Errors of the finished lanes, group by group (lane l holds a frame of group frame / lanes).
     for (std::uint64_t left = done.lanes; left;) {
       const std::size_t g = done.frame[static_cast<std::size_t>(std::countr_zero(left))] / lanes;
@@ -206,10 +204,14 @@ void Simulator::run_lanes(Worker& w, std::size_t index, const ChannelPoint& chan
   });
   for (std::size_t f = 0; f < count; ++f) {
     record(first + f, w.errors[2 * f], w.errors[2 * f + 1], w.outcomes[f], [&] {
-      const double* column = w.llr.data() + f / lanes * n * lanes + f % lanes;
-      std::vector<float> frame(n);
-      for (std::size_t v = 0; v < n; ++v) frame[v] = static_cast<float>(column[v * lanes]);
-      return frame;
+      // Regenerated alone: the same values as in its group.
+      w.info.resize(k);
+      w.codewords.resize(n);
+      w.noise.resize(n);
+      w.llr.resize(n);
+      generate_frame(FrameId{config_.seed, static_cast<std::uint32_t>(index), first + f}, channel,
+                     encoder_, config_.all_zero, w.info, w.codewords, w.noise, w.llr);
+      return std::vector<float>(w.llr.begin(), w.llr.end());
     });
   }
 }
@@ -394,7 +396,7 @@ FrameData Simulator::replay(std::size_t point, std::uint64_t frame) const {
 std::uint32_t default_chunk_frames(const Code& code, const DecoderSettings& decoder) {
   std::uint32_t frames = 64;
   if (decoder.kernel == Kernel::simd) {
-    const std::size_t budget = (std::size_t{16} << 20) / sizeof(double);  // LLR values
+    const std::size_t budget = (std::size_t{16} << 20) / sizeof(float);  // channel values
     while (frames < 1024 && 2 * frames * std::max<std::size_t>(code.n(), 1) <= budget) frames *= 2;
   }
   return frames;

@@ -54,9 +54,13 @@ void run(benchmark::State& state, const Case& c) {
   std::size_t decided = 0;
   for (auto _ : state) {
     if (lanes) {
-      decoder->decode_groups(llr, frames, [&](const Decoder::FinishedFrames& done) {
-        decided += done.hard[0] & done.lanes;
-      });
+      decoder->decode_groups(
+          frames,
+          [&](std::size_t index, std::span<double> group) {
+            std::copy_n(llr.begin() + static_cast<std::ptrdiff_t>(index * group.size()),
+                        group.size(), group.begin());
+          },
+          [&](const Decoder::FinishedFrames& done) { decided += done.hard[0] & done.lanes; });
     } else {
       decoder->decode(llr, hard, {}, out);
     }

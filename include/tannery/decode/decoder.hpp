@@ -94,11 +94,11 @@ class Decoder {
   // Lane layout, offered by the batched SIMD kernels: lanes() frames side by side (at most 64),
   // position v of frame l at [v * lanes() + l]; 0 when the decoder has no lane layout.
   virtual std::size_t lanes() const noexcept { return 0; }
-  // Decodes `frames` frames given in groups of lanes() in lane layout: llr holds
-  // ceil(frames / lanes()) groups of n x lanes() NaN-free LLRs, frame g * lanes() + l in lane l
-  // of group g (lanes past the last frame are ignored). Lane l decodes frames l, l + lanes(),
-  // l + 2 lanes(), ..., each as soon as the previous one finished, so lanes do not wait for the
-  // slowest frame of a group. done is called whenever frames finish.
+  // Decodes `frames` frames given in groups of lanes() in lane layout: fill(g, llr) writes group
+  // g's n x lanes() NaN-free LLRs, frame g * lanes() + l in lane l (lanes past the last frame
+  // are ignored); it is called once per group, in order, before decoding starts. Lane l decodes
+  // frames l, l + lanes(), l + 2 lanes(), ..., each as soon as the previous one finished, so
+  // lanes do not wait for the slowest frame of a group. done is called whenever frames finish.
   struct FinishedFrames {
     std::uint64_t lanes = 0;                // bit l: lane l finished frame[l]
     std::span<const std::size_t> frame;     // per lane
@@ -106,8 +106,8 @@ class Decoder {
     std::span<const std::uint64_t> hard;    // n masks: bit l = decision of lane l
   };
   using FramesDone = std::function<void(const FinishedFrames&)>;
-  virtual void decode_groups(std::span<const double> llr, std::size_t frames,
-                             const FramesDone& done);
+  using GroupFill = std::function<void(std::size_t, std::span<double>)>;
+  virtual void decode_groups(std::size_t frames, const GroupFill& fill, const FramesDone& done);
 
   const Code& code() const noexcept { return code_; }
   const DecoderSettings& settings() const noexcept { return settings_; }

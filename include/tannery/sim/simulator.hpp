@@ -152,7 +152,8 @@ void generate_frame(const FrameId& id, const ChannelPoint& channel, const Encode
 
 // The automatic chunk size: 64 frames (a multiple of every SIMD batch width: 64 int8 lanes of
 // AVX-512), and for the SIMD kernels a power of two up to 1024 so the lanes of a batch can be
-// refilled many times in a chunk, as long as its channel LLRs stay within 16 MB. It depends on
+// refilled many times in a chunk, as long as its float32 channel values stay within 16 MB (the
+// kernels keep a chunk's channel values to refill lanes from). It depends on
 // the code and the settings only, never on the machine.
 std::uint32_t default_chunk_frames(const Code& code, const DecoderSettings& decoder);
 

@@ -140,7 +140,7 @@ TEST_CASE("automatic chunk sizes", "[sim]") {
   const Code large = construct_regular(64800, 3, 6, 1);
   CHECK(default_chunk_frames(small, reference) == 64);
   CHECK(default_chunk_frames(small, simd) == 1024);
-  CHECK(default_chunk_frames(large, simd) == 64);  // 2 x 64 x 64800 doubles would pass 16 MB
+  CHECK(default_chunk_frames(large, simd) == 64);  // 128 x 64800 floats would pass 16 MB
 }
 
 TEST_CASE("counts are identical for 1 and 2 threads", "[sim]") {
