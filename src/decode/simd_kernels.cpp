@@ -125,7 +125,7 @@ struct Sweep {
   // The check's input on edge e: the extrinsic P - R (layered) or the variable-to-check
   // message (flooding). Fixed point: at posterior width (P - R can leave the lane's range).
   // With kMasked, lanes outside `stale` hold a new frame whose messages count as zero.
-  template <bool kFlood, bool kMasked>
+  template <bool kFlood, bool kMasked, bool kNarrow = true>
   HWY_INLINE V Extrinsic(std::size_t e, hn::Mask<D> stale) const {
     const D d;
     if constexpr (kFlood) {
@@ -139,7 +139,7 @@ struct Sweep {
       if constexpr (kFloat) {
         return hn::Sub(p, r);
       } else {
-        return hn::Min(hn::Max(hn::SaturatedSub(p, r), p_lo), p_hi);
+        return Posterior<kNarrow>(hn::SaturatedSub(p, r));
       }
     }
   }
@@ -150,6 +150,23 @@ struct Sweep {
   HWY_INLINE void Keep(T* where, V value, hn::Mask<D> frozen) const {
     const D d;
     hn::Store(kMasked ? hn::IfThenElse(frozen, hn::Load(d, where), value) : value, d, where);
+  }
+
+  // A fixed-point value (already saturated to the lane type) saturated to the posterior width;
+  // kNarrow: that width is below the lane's (otherwise only -128 / -32768 needs lifting).
+  template <bool kNarrow>
+  HWY_INLINE V Posterior(V x) const {
+    x = hn::Max(x, p_lo);
+    return kNarrow ? hn::Min(x, p_hi) : x;
+  }
+
+  // |t| as a min-sum check sees it: in fixed point saturated to the message width.
+  HWY_INLINE V Magnitude(V t) const {
+    if constexpr (kFloat) {
+      return hn::Abs(t);
+    } else {
+      return hn::Min(hn::Abs(t), m_hi);
+    }
   }
 
   // The magnitudes a min-sum check sends: rule applied to the two smallest inputs.
@@ -166,11 +183,10 @@ struct Sweep {
   }
 
   // One pass over all checks: new check-to-variable messages and (layered) posteriors.
-  template <bool kFlood, bool kMasked>
+  template <bool kFlood, bool kMasked, bool kNarrow>
   void Checks(hn::Mask<D> stale, hn::Mask<D> frozen) const {
     const D d;
     const DI di;
-    const VI one_i = hn::Set(di, hn::TFromD<DI>(1)), zero_i = hn::Zero(di);
     const V sign_bit = hn::BitCast(d, hn::Set(di, hwy::LimitsMin<hn::TFromD<DI>>()));
     T* const t_store = scratch;
     for (std::size_t c = 0; c < m; ++c) {
@@ -182,45 +198,43 @@ struct Sweep {
           continue;
         }
       }
-      // Pass 1: extrinsic t, the two smallest |t|, the position of the smallest (first
-      // occurrence wins ties), the parity of the signs (in the sign bit).
+      // Pass 1: extrinsic t, the two smallest |t| (as the check sees them), the parity of the
+      // signs (in the sign bit).
       V min1 = init, min2 = init, parity = hn::Zero(d);
-      VI at = zero_i, index = zero_i;
-      for (std::uint32_t i = 0; i < deg; ++i, index = hn::Add(index, one_i)) {
-        const V t = Extrinsic<kFlood, kMasked>(b + i, stale);
+      for (std::uint32_t i = 0; i < deg; ++i) {
+        const V t = Extrinsic<kFlood, kMasked, kNarrow>(b + i, stale);
         hn::Store(t, d, t_store + i * L);
-        V mag = hn::Abs(t);
-        if constexpr (!kFloat) mag = hn::Min(mag, m_hi);  // the check sees message width
-        at = hn::IfThenElse(hn::RebindMask(di, hn::Lt(mag, min1)), index, at);
+        const V mag = Magnitude(t);
         min2 = hn::Min(min2, hn::Max(min1, mag));
         min1 = hn::Min(min1, mag);
         parity = hn::Xor(parity, t);
       }
       // Pass 2: each edge gets the other edges' smallest magnitude with the sign of the others.
+      // The edge holding the smallest gets the second smallest; when several hold it the two are
+      // equal, so no position needs tracking.
       if (deg == 1) min1 = min2 = init;  // a check with one edge sends the saturation value
       V mag1 = Shape(min1), mag2 = Shape(min2);
-      index = zero_i;
       if constexpr (kFloat) {
         mag1 = hn::Xor(mag1, hn::And(parity, sign_bit));
         mag2 = hn::Xor(mag2, hn::And(parity, sign_bit));
-        for (std::uint32_t i = 0; i < deg; ++i, index = hn::Add(index, one_i)) {
+        for (std::uint32_t i = 0; i < deg; ++i) {
           const V t = hn::Load(d, t_store + i * L);
-          const V mag = hn::IfThenElse(hn::RebindMask(d, hn::Eq(at, index)), mag2, mag1);
+          const V mag = hn::IfThenElse(hn::Eq(Magnitude(t), min1), mag2, mag1);
           const V r = hn::Xor(mag, hn::And(t, sign_bit));
           hn::Store(r, d, msg + (b + i) * L);
           if constexpr (!kFlood) Keep<kMasked>(post + edge_var[b + i] * L, hn::Add(t, r), frozen);
         }
       } else {
         const V neg1 = hn::Neg(mag1), neg2 = hn::Neg(mag2);
-        for (std::uint32_t i = 0; i < deg; ++i, index = hn::Add(index, one_i)) {
+        for (std::uint32_t i = 0; i < deg; ++i) {
           const V t = hn::Load(d, t_store + i * L);
-          const auto own = hn::RebindMask(d, hn::Eq(at, index));
+          const auto own = hn::Eq(Magnitude(t), min1);
           // (IfNegativeThenElse would be one operation less but is wrong on SSSE3 in Highway
           // 1.0.3 for int8 lanes.)
           const V r =
               hn::IfThenElse(hn::Lt(hn::Xor(parity, t), hn::Zero(d)),
                              hn::IfThenElse(own, neg2, neg1), hn::IfThenElse(own, mag2, mag1));
-          const V p = hn::Min(hn::Max(hn::SaturatedAdd(t, r), p_lo), p_hi);
+          const V p = Posterior<kNarrow>(hn::SaturatedAdd(t, r));
           hn::Store(r, d, msg + (b + i) * L);
           Keep<kMasked>(post + edge_var[b + i] * L, p, frozen);
         }
@@ -305,12 +319,20 @@ void Iterate(D d, const LayeredArgs<hn::TFromD<D>>& a, std::uint64_t fresh,
   const auto frozen = hn::LoadMaskBits(d, bytes);
   const bool masked = (fresh | frozen_lanes) != 0;
   if (!(std::is_floating_point_v<T> && a.flooding)) {
-    masked ? sweep.template Checks<false, true>(stale, frozen)
-           : sweep.template Checks<false, false>(stale, frozen);
+    // Posteriors as wide as the lane need no upper clamp (float has none).
+    if constexpr (!std::is_floating_point_v<T>) {
+      if (a.posterior_limit < hwy::LimitsMax<T>()) {
+        masked ? sweep.template Checks<false, true, true>(stale, frozen)
+               : sweep.template Checks<false, false, true>(stale, frozen);
+        return;
+      }
+    }
+    masked ? sweep.template Checks<false, true, false>(stale, frozen)
+           : sweep.template Checks<false, false, false>(stale, frozen);
     return;
   }
-  masked ? sweep.template Checks<true, true>(stale, frozen)
-         : sweep.template Checks<true, false>(stale, frozen);
+  masked ? sweep.template Checks<true, true, false>(stale, frozen)
+         : sweep.template Checks<true, false, false>(stale, frozen);
   // Variables: posterior = channel + all check messages; each edge gets the others' sum.
   for (std::size_t v = 0; v < a.n; ++v) {
     V total = hn::Load(d, a.channel + v * L);
