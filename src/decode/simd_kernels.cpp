@@ -6,6 +6,7 @@
 #define HWY_TARGET_INCLUDE "src/decode/simd_kernels.cpp"
 #include <hwy/foreach_target.h>  // IWYU pragma: keep
 
+#include <hwy/cache_control.h>
 #include <hwy/contrib/math/math-inl.h>
 #include <hwy/highway.h>
 #include <cstring>
@@ -196,6 +197,13 @@ struct Sweep {
         if (rule == CheckRule::sum_product) {
           SumProductCheck<kFlood, kMasked>(b, deg, stale, frozen);
           continue;
+        }
+      }
+      if constexpr (!kFlood) {
+        // The next check's posteriors are scattered rows: ask for them while this one works.
+        if (c + 1 < m) {
+          for (std::uint32_t e = check_start[c + 1]; e < check_start[c + 2]; ++e)
+            hwy::Prefetch(post + edge_var[e] * L);
         }
       }
       // Pass 1: extrinsic t, the two smallest |t| (as the check sees them), the parity of the
