@@ -193,17 +193,17 @@ struct Sweep {
     for (std::size_t c = 0; c < m; ++c) {
       const std::uint32_t b = check_start[c], deg = check_start[c + 1] - b;
       if (deg == 0) continue;
-      if constexpr (kFloat) {
-        if (rule == CheckRule::sum_product) {
-          SumProductCheck<kFlood, kMasked>(b, deg, stale, frozen);
-          continue;
-        }
-      }
       if constexpr (!kFlood) {
         // The next check's posteriors are scattered rows: ask for them while this one works.
         if (c + 1 < m) {
           for (std::uint32_t e = check_start[c + 1]; e < check_start[c + 2]; ++e)
             hwy::Prefetch(post + edge_var[e] * L);
+        }
+      }
+      if constexpr (kFloat) {
+        if (rule == CheckRule::sum_product) {
+          SumProductCheck<kFlood, kMasked>(b, deg, stale, frozen);
+          continue;
         }
       }
       // Pass 1: extrinsic t, the two smallest |t| (as the check sees them), the parity of the
