@@ -9,6 +9,7 @@
 #include <hwy/cache_control.h>
 #include <hwy/contrib/math/math-inl.h>
 #include <hwy/highway.h>
+#include <bit>
 #include <cstring>
 #include <string>
 #include <type_traits>
@@ -27,9 +28,13 @@ V clamp_to(D d, V x, int limit) {
   return hn::Min(hn::Max(x, hn::Set(d, static_cast<T>(-limit))), hn::Set(d, static_cast<T>(limit)));
 }
 
-// floor(m * k / 8) for 0 <= m, 0 <= k <= 8 without overflow: (m >> 3) * k + ((m & 7) * k) >> 3.
+// floor(m * k / 8) for 0 <= m, 0 <= k <= 8 without overflow: (m >> 3) * k + ((m & 7) * k) >> 3,
+// or one shift when k is a power of two (alpha = 1/2, 3/4, 7/8).
 template <class D, class V>
 V times_eighths(D d, V m, int k) {
+  if (k == 0) return hn::Zero(d);
+  if ((k & (k - 1)) == 0)
+    return hn::ShiftRightSame(m, 3 - std::countr_zero(static_cast<unsigned>(k)));
   const V high = hn::ShiftRight<3>(m);
   const V low = hn::And(m, hn::Set(d, static_cast<hn::TFromD<D>>(7)));
   V acc_high = hn::Zero(d), acc_low = hn::Zero(d);
