@@ -110,7 +110,6 @@ class Batched final : public Decoder {
     args_.scratch = scratch_.get();
   }
 
- public:
   std::size_t lanes() const noexcept override { return lanes_; }
 
   void decode_groups(std::size_t frames, const GroupFill& fill, const FramesDone& done) override {
@@ -169,6 +168,7 @@ class Batched final : public Decoder {
   // as soon as the previous one is done (converged with early stop, or out of iterations); a
   // lane with no frame left idles (frozen) until the last one is done.
   void stream(std::size_t frames, const FramesDone& done) {
+    if (frames == 0) return;
     const std::size_t n = code_.n(), group = n * lanes_;
     const int max_iterations = settings_.iterations;
     std::array<std::size_t, 64> frame_of{};

@@ -284,6 +284,21 @@ TEST_CASE("a decoder is reusable and batches equal single frames", "[decode]") {
   }
 }
 
+TEST_CASE("an empty batch decodes to nothing with every kernel", "[decode]") {
+  const Code code = test::shipped("hamming-7-4.tanner");
+  for (Kernel kernel : {Kernel::reference, Kernel::simd}) {
+    DecoderSettings s = settings(Algorithm::min_sum, Schedule::layered, 10);
+    s.kernel = kernel;
+    auto dec = make_decoder(code, s);
+    dec->decode({}, {}, {}, {});
+    if (dec->lanes()) {
+      dec->decode_groups(
+          0, [](std::size_t, std::span<double>) { FAIL("no group to fill"); },
+          [](const Decoder::FinishedFrames&) { FAIL("no frame to finish"); });
+    }
+  }
+}
+
 TEST_CASE("impossible settings are refused with a clear message", "[decode]") {
   const Code big = test::shipped("regular-3-6-n2016.tanner");
   CHECK_THROWS_WITH(make_decoder(big, settings(Algorithm::ml)),
