@@ -399,8 +399,9 @@ void SyndromeWeights(D d, const LayeredArgs<hn::TFromD<D>>& a, std::int32_t* wei
   }
 }
 
-// New frames for the lanes in `lanes`: their channel values and posteriors from rows (n x L, the
-// same layout), the other lanes untouched.
+// New frames for the lanes in `lanes`: their posteriors (and, for flooding, channel values) from
+// rows (n x L, the same layout), the other lanes untouched. Layered decoding never reads the
+// channel values after the start, so they are not copied there.
 template <class D>
 void Refill(D d, const LayeredArgs<hn::TFromD<D>>& a, const hn::TFromD<D>* rows,
             std::uint64_t lanes) {
@@ -408,10 +409,11 @@ void Refill(D d, const LayeredArgs<hn::TFromD<D>>& a, const hn::TFromD<D>* rows,
   std::uint8_t bytes[8];
   std::memcpy(bytes, &lanes, 8);
   const auto take = hn::LoadMaskBits(d, bytes);
+  const bool channel = std::is_floating_point_v<hn::TFromD<D>> && a.flooding;
   for (std::size_t i = 0; i < a.n * L; i += L) {
     const auto x = hn::LoadU(d, rows + i);
-    hn::Store(hn::IfThenElse(take, x, hn::Load(d, a.channel + i)), d, a.channel + i);
-    hn::Store(hn::IfThenElse(take, x, hn::Load(d, a.posterior + i)), d, a.posterior + i);
+    hn::BlendedStore(x, take, d, a.posterior + i);
+    if (channel) hn::BlendedStore(x, take, d, a.channel + i);
   }
 }
 

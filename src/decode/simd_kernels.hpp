@@ -32,10 +32,10 @@ struct LayeredArgs {
   int beta_lsb = 0;
   int message_limit = 0, posterior_limit = 0;
   // Channel values (posteriors start from them) and the decoder state.
-  T* channel = nullptr;        // n x lanes
-  T* posterior = nullptr;      // n x lanes
-  T* messages = nullptr;       // edges x lanes (check-to-variable)
-  T* scratch = nullptr;        // 5 x max_degree x lanes
+  T* channel = nullptr;    // n x lanes
+  T* posterior = nullptr;  // n x lanes
+  T* messages = nullptr;   // edges x lanes (check-to-variable)
+  T* scratch = nullptr;    // 5 x max_degree x lanes
 };
 
 // Lanes per vector for the dispatched target.
@@ -46,9 +46,9 @@ std::size_t int8_lanes();
 // l). start: posteriors from the channel values, messages zero. iterate: one iteration; lanes
 // in `fresh` were given a new frame since (posterior = channel, messages count as zero), lanes
 // in `frozen` keep their posteriors. unsatisfied: lanes with a nonzero syndrome.
-// syndrome_weights: unsatisfied checks per lane. refill: channel values and posteriors of the
-// lanes in `lanes` from rows (n x lanes, the same layout). sign_masks: bit l of masks[v] set
-// where lane l of posterior v is negative. channel_values: count LLRs in lane layout
+// syndrome_weights: unsatisfied checks per lane. refill: posteriors (flooding: also channel
+// values) of the lanes in `lanes` from rows (n x lanes, the same layout). sign_masks: bit l of
+// masks[v] set where lane l of posterior v is negative. channel_values: count LLRs in lane layout
 // (count: a multiple of 8) to channel values: float32 clipped at +-clip (scale 1), or fixed point
 // round(llr * scale), ties to even, saturated at +-clip (the rule of LlrQuantizer).
 #define TANNERY_BATCH_KERNELS(T)                                                       \
