@@ -180,7 +180,8 @@ class Batched final : public Decoder {
               channel_.get());
     start(args_);  // posteriors = channel, messages zero
     masks_.resize(n);
-    std::vector<std::pair<std::size_t, std::uint64_t>> refills;  // group, lanes
+    std::vector<const T*> refill_rows;  // one per group that gives frames this iteration
+    std::vector<std::uint64_t> refill_lanes;
     while (active) {
       iterate(args_, fresh, ~active & all_lanes());
       fresh = 0;
@@ -197,7 +198,8 @@ class Batched final : public Decoder {
       if (!finished) continue;
       if (finished & unsat) syndrome_weights(args_, weights_.data());
       sign_masks(args_, masks_.data());
-      refills.clear();
+      refill_rows.clear();
+      refill_lanes.clear();
       for (std::uint64_t a = finished; a; a &= a - 1) {
         const auto l = static_cast<std::size_t>(std::countr_zero(a));
         FrameOutcome& o = outcome[l];
@@ -215,17 +217,18 @@ class Batched final : public Decoder {
         }
         frame_of[l] = next;
         iterations[l] = 0;
-        auto it = std::find_if(refills.begin(), refills.end(),
-                               [&](const auto& r) { return r.first == next / lanes_; });
-        if (it == refills.end())
-          refills.emplace_back(next / lanes_, bit(l));
-        else
-          it->second |= bit(l);
+        const T* rows = groups_.data() + next / lanes_ * group;
+        const auto at = std::find(refill_rows.begin(), refill_rows.end(), rows);
+        if (at == refill_rows.end()) {
+          refill_rows.push_back(rows);
+          refill_lanes.push_back(bit(l));
+        } else {
+          refill_lanes[static_cast<std::size_t>(at - refill_rows.begin())] |= bit(l);
+        }
+        fresh |= bit(l);
       }
-      for (const auto& [g, lanes] : refills) {
-        refill(args_, groups_.data() + g * group, lanes);
-        fresh |= lanes;
-      }
+      if (!refill_rows.empty())
+        refill(args_, refill_rows.data(), refill_lanes.data(), refill_rows.size());
     }
   }
 

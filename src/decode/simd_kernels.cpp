@@ -399,21 +399,35 @@ void SyndromeWeights(D d, const LayeredArgs<hn::TFromD<D>>& a, std::int32_t* wei
   }
 }
 
-// New frames for the lanes in `lanes`: their posteriors (and, for flooding, channel values) from
-// rows (n x L, the same layout), the other lanes untouched. Layered decoding never reads the
-// channel values after the start, so they are not copied there.
+// New frames: for each k < count, the lanes in lanes[k] take their posteriors (and, for flooding,
+// channel values) from rows[k] (n x L, the same layout); the other lanes are untouched. One pass
+// over the posteriors for all of them. Layered decoding never reads the channel values after the
+// start, so they are not copied there.
 template <class D>
-void Refill(D d, const LayeredArgs<hn::TFromD<D>>& a, const hn::TFromD<D>* rows,
-            std::uint64_t lanes) {
+void Refill(D d, const LayeredArgs<hn::TFromD<D>>& a, const hn::TFromD<D>* const* rows,
+            const std::uint64_t* lanes, std::size_t count) {
+  using M = hn::Mask<D>;
   constexpr std::size_t L = Sweep<D>::L;
+  constexpr std::size_t kMax = 64;
+  HWY_DASSERT(count >= 1 && count <= kMax);
+  M take[kMax];
+  std::uint64_t all = 0;
+  for (std::size_t k = 0; k < count; ++k) {
+    std::uint8_t bytes[8];
+    std::memcpy(bytes, &lanes[k], 8);
+    take[k] = hn::LoadMaskBits(d, bytes);
+    all |= lanes[k];
+  }
   std::uint8_t bytes[8];
-  std::memcpy(bytes, &lanes, 8);
-  const auto take = hn::LoadMaskBits(d, bytes);
+  std::memcpy(bytes, &all, 8);
+  const M any = hn::LoadMaskBits(d, bytes);
   const bool channel = std::is_floating_point_v<hn::TFromD<D>> && a.flooding;
   for (std::size_t i = 0; i < a.n * L; i += L) {
-    const auto x = hn::LoadU(d, rows + i);
-    hn::BlendedStore(x, take, d, a.posterior + i);
-    if (channel) hn::BlendedStore(x, take, d, a.channel + i);
+    auto x = hn::LoadU(d, rows[0] + i);
+    for (std::size_t k = 1; k < count; ++k)
+      x = hn::IfThenElse(take[k], hn::LoadU(d, rows[k] + i), x);
+    hn::BlendedStore(x, any, d, a.posterior + i);
+    if (channel) hn::BlendedStore(x, any, d, a.channel + i);
   }
 }
 
@@ -473,8 +487,9 @@ std::uint64_t UnsatisfiedFloat(const LayeredArgs<float>& a) {
 void WeightsFloat(const LayeredArgs<float>& a, std::int32_t* weights) {
   SyndromeWeights(hn::ScalableTag<float>(), a, weights);
 }
-void RefillFloat(const LayeredArgs<float>& a, const float* rows, std::uint64_t lanes) {
-  Refill(hn::ScalableTag<float>(), a, rows, lanes);
+void RefillFloat(const LayeredArgs<float>& a, const float* const* rows, const std::uint64_t* lanes,
+                 std::size_t count) {
+  Refill(hn::ScalableTag<float>(), a, rows, lanes, count);
 }
 void SignMasksFloat(const LayeredArgs<float>& a, std::uint64_t* masks) {
   SignMasks(hn::ScalableTag<float>(), a, masks);
@@ -494,9 +509,9 @@ std::uint64_t UnsatisfiedInt16(const LayeredArgs<std::int16_t>& a) {
 void WeightsInt16(const LayeredArgs<std::int16_t>& a, std::int32_t* weights) {
   SyndromeWeights(hn::ScalableTag<std::int16_t>(), a, weights);
 }
-void RefillInt16(const LayeredArgs<std::int16_t>& a, const std::int16_t* rows,
-                 std::uint64_t lanes) {
-  Refill(hn::ScalableTag<std::int16_t>(), a, rows, lanes);
+void RefillInt16(const LayeredArgs<std::int16_t>& a, const std::int16_t* const* rows,
+                 const std::uint64_t* lanes, std::size_t count) {
+  Refill(hn::ScalableTag<std::int16_t>(), a, rows, lanes, count);
 }
 void SignMasksInt16(const LayeredArgs<std::int16_t>& a, std::uint64_t* masks) {
   SignMasks(hn::ScalableTag<std::int16_t>(), a, masks);
@@ -517,8 +532,9 @@ std::uint64_t UnsatisfiedInt8(const LayeredArgs<std::int8_t>& a) {
 void WeightsInt8(const LayeredArgs<std::int8_t>& a, std::int32_t* weights) {
   SyndromeWeights(hn::ScalableTag<std::int8_t>(), a, weights);
 }
-void RefillInt8(const LayeredArgs<std::int8_t>& a, const std::int8_t* rows, std::uint64_t lanes) {
-  Refill(hn::ScalableTag<std::int8_t>(), a, rows, lanes);
+void RefillInt8(const LayeredArgs<std::int8_t>& a, const std::int8_t* const* rows,
+                const std::uint64_t* lanes, std::size_t count) {
+  Refill(hn::ScalableTag<std::int8_t>(), a, rows, lanes, count);
 }
 void SignMasksInt8(const LayeredArgs<std::int8_t>& a, std::uint64_t* masks) {
   SignMasks(hn::ScalableTag<std::int8_t>(), a, masks);
@@ -580,8 +596,9 @@ std::uint64_t unsatisfied(const LayeredArgs<float>& a) {
 void syndrome_weights(const LayeredArgs<float>& a, std::int32_t* weights) {
   HWY_DYNAMIC_DISPATCH(WeightsFloat)(a, weights);
 }
-void refill(const LayeredArgs<float>& a, const float* rows, std::uint64_t lanes) {
-  HWY_DYNAMIC_DISPATCH(RefillFloat)(a, rows, lanes);
+void refill(const LayeredArgs<float>& a, const float* const* rows, const std::uint64_t* lanes,
+            std::size_t count) {
+  HWY_DYNAMIC_DISPATCH(RefillFloat)(a, rows, lanes, count);
 }
 void sign_masks(const LayeredArgs<float>& a, std::uint64_t* masks) {
   HWY_DYNAMIC_DISPATCH(SignMasksFloat)(a, masks);
@@ -601,8 +618,9 @@ std::uint64_t unsatisfied(const LayeredArgs<std::int16_t>& a) {
 void syndrome_weights(const LayeredArgs<std::int16_t>& a, std::int32_t* weights) {
   HWY_DYNAMIC_DISPATCH(WeightsInt16)(a, weights);
 }
-void refill(const LayeredArgs<std::int16_t>& a, const std::int16_t* rows, std::uint64_t lanes) {
-  HWY_DYNAMIC_DISPATCH(RefillInt16)(a, rows, lanes);
+void refill(const LayeredArgs<std::int16_t>& a, const std::int16_t* const* rows,
+            const std::uint64_t* lanes, std::size_t count) {
+  HWY_DYNAMIC_DISPATCH(RefillInt16)(a, rows, lanes, count);
 }
 void sign_masks(const LayeredArgs<std::int16_t>& a, std::uint64_t* masks) {
   HWY_DYNAMIC_DISPATCH(SignMasksInt16)(a, masks);
@@ -623,8 +641,9 @@ std::uint64_t unsatisfied(const LayeredArgs<std::int8_t>& a) {
 void syndrome_weights(const LayeredArgs<std::int8_t>& a, std::int32_t* weights) {
   HWY_DYNAMIC_DISPATCH(WeightsInt8)(a, weights);
 }
-void refill(const LayeredArgs<std::int8_t>& a, const std::int8_t* rows, std::uint64_t lanes) {
-  HWY_DYNAMIC_DISPATCH(RefillInt8)(a, rows, lanes);
+void refill(const LayeredArgs<std::int8_t>& a, const std::int8_t* const* rows,
+            const std::uint64_t* lanes, std::size_t count) {
+  HWY_DYNAMIC_DISPATCH(RefillInt8)(a, rows, lanes, count);
 }
 void sign_masks(const LayeredArgs<std::int8_t>& a, std::uint64_t* masks) {
   HWY_DYNAMIC_DISPATCH(SignMasksInt8)(a, masks);

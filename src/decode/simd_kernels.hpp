@@ -46,18 +46,20 @@ std::size_t int8_lanes();
 // l). start: posteriors from the channel values, messages zero. iterate: one iteration; lanes
 // in `fresh` were given a new frame since (posterior = channel, messages count as zero), lanes
 // in `frozen` keep their posteriors. unsatisfied: lanes with a nonzero syndrome.
-// syndrome_weights: unsatisfied checks per lane. refill: posteriors (flooding: also channel
-// values) of the lanes in `lanes` from rows (n x lanes, the same layout). sign_masks: bit l of
+// syndrome_weights: unsatisfied checks per lane. refill: for each k < count (1 to 64),
+// posteriors (flooding: also channel values) of the lanes in lanes[k] from rows[k] (n x lanes,
+// the same layout). sign_masks: bit l of
 // masks[v] set where lane l of posterior v is negative. channel_values: count LLRs in lane layout
 // (count: a multiple of 8) to channel values: float32 clipped at +-clip (scale 1), or fixed point
 // round(llr * scale), ties to even, saturated at +-clip (the rule of LlrQuantizer).
-#define TANNERY_BATCH_KERNELS(T)                                                       \
-  void start(const LayeredArgs<T>& args);                                              \
-  void iterate(const LayeredArgs<T>& args, std::uint64_t fresh, std::uint64_t frozen); \
-  std::uint64_t unsatisfied(const LayeredArgs<T>& args);                               \
-  void syndrome_weights(const LayeredArgs<T>& args, std::int32_t* weights);            \
-  void refill(const LayeredArgs<T>& args, const T* rows, std::uint64_t lanes);         \
-  void sign_masks(const LayeredArgs<T>& args, std::uint64_t* masks);                   \
+#define TANNERY_BATCH_KERNELS(T)                                                            \
+  void start(const LayeredArgs<T>& args);                                                   \
+  void iterate(const LayeredArgs<T>& args, std::uint64_t fresh, std::uint64_t frozen);      \
+  std::uint64_t unsatisfied(const LayeredArgs<T>& args);                                    \
+  void syndrome_weights(const LayeredArgs<T>& args, std::int32_t* weights);                 \
+  void refill(const LayeredArgs<T>& args, const T* const* rows, const std::uint64_t* lanes, \
+              std::size_t count);                                                           \
+  void sign_masks(const LayeredArgs<T>& args, std::uint64_t* masks);                        \
   void channel_values(const double* llr, std::size_t count, double scale, double clip, T* out);
 TANNERY_BATCH_KERNELS(float)
 TANNERY_BATCH_KERNELS(std::int16_t)
