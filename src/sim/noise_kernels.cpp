@@ -194,8 +194,13 @@ void GaussiansOfFrame(std::uint64_t seed, std::uint32_t point, std::uint64_t fra
   }
 }
 
-void GaussiansOfGroup(std::uint64_t seed, std::uint32_t point, std::uint64_t first,
-                      std::size_t lanes, std::size_t count, double* out) {
+// Samples of frames first..first+lanes-1 in lane layout, each passed through out(row, lane
+// offset, lanes mask unused, value vector) before it is stored: identity for the noise itself,
+// the BPSK/AWGN channel for LLRs.
+template <class Transform>
+HWY_INLINE void OfGroup(std::uint64_t seed, std::uint32_t point, std::uint64_t first,
+                        std::size_t lanes, std::size_t count, double* out,
+                        const Transform& transform) {
   const DU du;
   const DD dd;
   constexpr std::size_t N = hn::MaxLanes(DU());
@@ -216,21 +221,45 @@ void GaussiansOfGroup(std::uint64_t seed, std::uint32_t point, std::uint64_t fir
       Philox(r, seed);
       BoxMuller(r, g0, g1);
       for (std::size_t j = 0; j < K && 2 * (block + j) < count; ++j) {
-        double* row0 = out + 2 * (block + j) * lanes + l0;
+        const std::size_t row = 2 * (block + j);
+        double* row0 = out + row * lanes + l0;
         double* row1 = row0 + lanes;
-        const bool second = 2 * (block + j) + 1 < count;
+        const bool second = row + 1 < count;
+        const VD x0 = transform(row, l0, g0[j]);
+        const VD x1 = second ? transform(row + 1, l0, g1[j]) : g1[j];
         if (width == N) {
-          hn::StoreU(g0[j], dd, row0);
-          if (second) hn::StoreU(g1[j], dd, row1);
+          hn::StoreU(x0, dd, row0);
+          if (second) hn::StoreU(x1, dd, row1);
         } else {
-          hn::Store(g0[j], dd, a);
-          hn::Store(g1[j], dd, b);
+          hn::Store(x0, dd, a);
+          hn::Store(x1, dd, b);
           std::memcpy(row0, a, width * sizeof(double));
           if (second) std::memcpy(row1, b, width * sizeof(double));
         }
       }
     }
   }
+}
+
+void GaussiansOfGroup(std::uint64_t seed, std::uint32_t point, std::uint64_t first,
+                      std::size_t lanes, std::size_t count, double* out) {
+  OfGroup(seed, point, first, lanes, count, out, [](std::size_t, std::size_t, VD x) { return x; });
+}
+
+// scale ((1 - 2 c) + sigma x): the arithmetic of transmit(), multiply then add, no fusing.
+void AwgnOfGroup(std::uint64_t seed, std::uint32_t point, std::uint64_t first, std::size_t lanes,
+                 std::size_t count, const std::uint64_t* codeword, double sigma, double scale,
+                 double* out) {
+  const DD dd;
+  const VD s = hn::Set(dd, sigma), k = hn::Set(dd, scale);
+  const VD plus = hn::Set(dd, 1.0), minus = hn::Set(dd, -1.0);
+  OfGroup(seed, point, first, lanes, count, out, [&](std::size_t row, std::size_t l0, VD x) {
+    std::uint8_t bytes[8] = {};
+    const std::uint64_t bits = codeword[row] >> l0;
+    std::memcpy(bytes, &bits, 8);
+    const VD sign = hn::IfThenElse(hn::LoadMaskBits(dd, bytes), minus, plus);
+    return hn::Mul(k, hn::Add(sign, hn::Mul(s, x)));
+  });
 }
 
 void BitsOfGroup(std::uint64_t seed, std::uint32_t point, std::uint64_t first, std::size_t lanes,
@@ -274,6 +303,7 @@ namespace tannery::detail {
 
 HWY_EXPORT(GaussiansOfFrame);
 HWY_EXPORT(GaussiansOfGroup);
+HWY_EXPORT(AwgnOfGroup);
 HWY_EXPORT(BitsOfGroup);
 
 void gaussians_of_frame(std::uint64_t seed, std::uint32_t point, std::uint64_t frame,
@@ -283,6 +313,11 @@ void gaussians_of_frame(std::uint64_t seed, std::uint32_t point, std::uint64_t f
 void gaussians_of_group(std::uint64_t seed, std::uint32_t point, std::uint64_t first,
                         std::size_t lanes, std::size_t count, double* out) {
   HWY_DYNAMIC_DISPATCH(GaussiansOfGroup)(seed, point, first, lanes, count, out);
+}
+void awgn_of_group(std::uint64_t seed, std::uint32_t point, std::uint64_t first, std::size_t lanes,
+                   std::size_t count, const std::uint64_t* codeword, double sigma, double scale,
+                   double* out) {
+  HWY_DYNAMIC_DISPATCH(AwgnOfGroup)(seed, point, first, lanes, count, codeword, sigma, scale, out);
 }
 void bits_of_group(std::uint64_t seed, std::uint32_t point, std::uint64_t first, std::size_t lanes,
                    std::size_t count, std::uint64_t* masks) {

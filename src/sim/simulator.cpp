@@ -168,13 +168,7 @@ void Simulator::run_lanes(Worker& w, std::size_t index, const ChannelPoint& chan
       group_bits(group, w.info_masks);
       encoder_.encode_lanes(w.info_masks, sent);
     }
-    group_gaussians(group, llr);
-    // The arithmetic of transmit(), in the same order.
-    for (std::size_t v = 0; v < n; ++v) {
-      double* row = llr.data() + v * lanes;
-      for (std::size_t l = 0; l < lanes; ++l)
-        row[l] = scale * ((((sent[v] >> l) & 1u) ? -1.0 : 1.0) + channel.value * row[l]);
-    }
+    group_awgn_llrs(group, sent, channel.value, scale, llr);
   };
   w.errors.assign(2 * count, 0);
   w.outcomes.resize(count);

@@ -37,5 +37,9 @@ struct FrameGroup {
 void group_bits(const FrameGroup& group, std::span<std::uint64_t> masks);
 // out[i * lanes + l] is frame_gaussians of frame first + l at position i, bit for bit.
 void group_gaussians(const FrameGroup& group, std::span<double> out);
+// The same samples as BPSK/AWGN channel LLRs: out[i * lanes + l] = scale * ((1 - 2 c) + sigma x)
+// with c bit l of codeword[i] and x the sample, rounded as transmit() computes it.
+void group_awgn_llrs(const FrameGroup& group, std::span<const std::uint64_t> codeword, double sigma,
+                     double scale, std::span<double> out);
 
 }  // namespace tannery
