@@ -7,7 +7,6 @@
 #include <hwy/foreach_target.h>  // IWYU pragma: keep
 
 #include <hwy/cache_control.h>
-#include <hwy/contrib/math/math-inl.h>
 #include <hwy/highway.h>
 #include <bit>
 #include <cstring>
@@ -21,12 +20,6 @@ HWY_BEFORE_NAMESPACE();
 namespace tannery::detail::HWY_NAMESPACE {
 
 namespace hn = hwy::HWY_NAMESPACE;
-
-template <class D, class V>
-V clamp_to(D d, V x, int limit) {
-  using T = hn::TFromD<D>;
-  return hn::Min(hn::Max(x, hn::Set(d, static_cast<T>(-limit))), hn::Set(d, static_cast<T>(limit)));
-}
 
 // floor(m * k / 8) for 0 <= m, 0 <= k <= 8 without overflow: (m >> 3) * k + ((m & 7) * k) >> 3,
 // or one shift when k is a power of two (alpha = 1/2, 3/4, 7/8).
