@@ -45,36 +45,43 @@ void check_channel_parameter(ChannelKind kind, double parameter) {
   }
 }
 
-void transmit(const ChannelPoint& channel, std::span<const std::uint8_t> codeword,
-              std::span<const double> noise, std::span<double> llr) {
-  const std::size_t n = codeword.size();
+double llr_magnitude(const ChannelPoint& channel) {
   switch (channel.kind) {
-    case ChannelKind::awgn: {
-      const double scale = 2.0 / (channel.assumed_value * channel.assumed_value);
-      for (std::size_t i = 0; i < n; ++i) {
-        const double y = (codeword[i] ? -1.0 : 1.0) + channel.value * noise[i];
-        llr[i] = scale * y;
-      }
-      return;
-    }
+    case ChannelKind::awgn:
+      return 2.0 / (channel.assumed_value * channel.assumed_value);
     case ChannelKind::bsc: {
       const double p = channel.assumed_value;
       // p = 0 gives certainty; p = 1/2 gives no information; p > 1/2 flips the sign as it should.
-      const double magnitude =
-          p == 0 ? std::numeric_limits<double>::infinity()
-                 : (p == 1 ? -std::numeric_limits<double>::infinity() : std::log((1 - p) / p));
+      return p == 0 ? std::numeric_limits<double>::infinity()
+                    : (p == 1 ? -std::numeric_limits<double>::infinity() : std::log((1 - p) / p));
+    }
+    case ChannelKind::bec:
+      return std::numeric_limits<double>::infinity();
+  }
+  return 0;
+}
+
+void transmit(const ChannelPoint& channel, std::span<const std::uint8_t> codeword,
+              std::span<const double> noise, std::span<double> llr) {
+  const std::size_t n = codeword.size();
+  const double magnitude = llr_magnitude(channel);
+  switch (channel.kind) {
+    case ChannelKind::awgn:
+      for (std::size_t i = 0; i < n; ++i) {
+        const double y = (codeword[i] ? -1.0 : 1.0) + channel.value * noise[i];
+        llr[i] = magnitude * y;
+      }
+      return;
+    case ChannelKind::bsc:
       for (std::size_t i = 0; i < n; ++i) {
         const std::uint8_t received = codeword[i] ^ (noise[i] < channel.value ? 1 : 0);
         llr[i] = received ? -magnitude : magnitude;
       }
       return;
-    }
-    case ChannelKind::bec: {
-      const double inf = std::numeric_limits<double>::infinity();
+    case ChannelKind::bec:
       for (std::size_t i = 0; i < n; ++i)
-        llr[i] = noise[i] < channel.value ? 0.0 : (codeword[i] ? -inf : inf);
+        llr[i] = noise[i] < channel.value ? 0.0 : (codeword[i] ? -magnitude : magnitude);
       return;
-    }
   }
 }
 

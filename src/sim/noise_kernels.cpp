@@ -197,7 +197,25 @@ void GaussiansOfFrame(std::uint64_t seed, std::uint32_t point, std::uint64_t fra
 // Samples of frames first..first+lanes-1 in lane layout, each passed through out(row, lane
 // offset, lanes mask unused, value vector) before it is stored: identity for the noise itself,
 // the BPSK/AWGN channel for LLRs.
-template <class Transform>
+// A double in [0, 1) from the top 53 bits of (hi << 32 | lo), exactly: the two halves of the
+// 53-bit integer converted by the 2^52 trick, recombined without rounding.
+HWY_INLINE VD Uniform53(VU hi, VU lo) {
+  const DU du;
+  const DD dd;
+  const VU v = hn::ShiftRight<11>(hn::Or(hn::ShiftLeft<32>(hi), lo));
+  const VU magic = hn::Set(du, 0x4330000000000000ull);
+  const VD two52 = hn::Set(dd, 4503599627370496.0);
+  const VD high = hn::Sub(hn::BitCast(dd, hn::Or(hn::ShiftRight<32>(v), magic)), two52);
+  const VD low =
+      hn::Sub(hn::BitCast(dd, hn::Or(hn::And(v, hn::Set(du, 0xFFFFFFFFull)), magic)), two52);
+  return hn::Mul(hn::Add(hn::Mul(high, hn::Set(dd, 4294967296.0)), low),
+                 hn::Set(dd, 1.1102230246251565e-16));  // 2^-53
+}
+
+// Values of stream 1 for frames first..first+lanes-1 in lane layout: Gaussian samples, or the
+// uniforms of frame_uniforms (kUniform), each passed through transform(position, first lane,
+// value) before it is stored.
+template <bool kUniform, class Transform>
 HWY_INLINE void OfGroup(std::uint64_t seed, std::uint32_t point, std::uint64_t first,
                         std::size_t lanes, std::size_t count, double* out,
                         const Transform& transform) {
@@ -219,7 +237,14 @@ HWY_INLINE void OfGroup(std::uint64_t seed, std::uint32_t point, std::uint64_t f
         r[3][j] = Splat32(point * 2ull + 1);
       }
       Philox(r, seed);
-      BoxMuller(r, g0, g1);
+      if constexpr (kUniform) {
+        for (std::size_t j = 0; j < K; ++j) {
+          g0[j] = Uniform53(r[0][j], r[1][j]);
+          g1[j] = Uniform53(r[2][j], r[3][j]);
+        }
+      } else {
+        BoxMuller(r, g0, g1);
+      }
       for (std::size_t j = 0; j < K && 2 * (block + j) < count; ++j) {
         const std::size_t row = 2 * (block + j);
         double* row0 = out + row * lanes + l0;
@@ -243,22 +268,42 @@ HWY_INLINE void OfGroup(std::uint64_t seed, std::uint32_t point, std::uint64_t f
 
 void GaussiansOfGroup(std::uint64_t seed, std::uint32_t point, std::uint64_t first,
                       std::size_t lanes, std::size_t count, double* out) {
-  OfGroup(seed, point, first, lanes, count, out, [](std::size_t, std::size_t, VD x) { return x; });
+  OfGroup<false>(seed, point, first, lanes, count, out,
+                 [](std::size_t, std::size_t, VD x) { return x; });
 }
 
-// scale ((1 - 2 c) + sigma x): the arithmetic of transmit(), multiply then add, no fusing.
-void AwgnOfGroup(std::uint64_t seed, std::uint32_t point, std::uint64_t first, std::size_t lanes,
-                 std::size_t count, const std::uint64_t* codeword, double sigma, double scale,
-                 double* out) {
+// The channel LLRs of transmit(), lane by lane: kind 0 AWGN, scale ((1 - 2 c) + value x)
+// (multiply then add, no fusing); kind 1 BSC, +-magnitude with the bit flipped where the
+// uniform is below value; kind 2 BEC, 0 where the uniform is below value, else +-magnitude.
+void ChannelOfGroup(std::uint64_t seed, std::uint32_t point, std::uint64_t first, std::size_t lanes,
+                    std::size_t count, const std::uint64_t* codeword, int kind, double value,
+                    double magnitude, double* out) {
   const DD dd;
-  const VD s = hn::Set(dd, sigma), k = hn::Set(dd, scale);
+  const VD v = hn::Set(dd, value), k = hn::Set(dd, magnitude);
   const VD plus = hn::Set(dd, 1.0), minus = hn::Set(dd, -1.0);
-  OfGroup(seed, point, first, lanes, count, out, [&](std::size_t row, std::size_t l0, VD x) {
+  auto sent = [&](std::size_t row, std::size_t l0) {
     std::uint8_t bytes[8] = {};
     const std::uint64_t bits = codeword[row] >> l0;
     std::memcpy(bytes, &bits, 8);
-    const VD sign = hn::IfThenElse(hn::LoadMaskBits(dd, bytes), minus, plus);
-    return hn::Mul(k, hn::Add(sign, hn::Mul(s, x)));
+    return hn::LoadMaskBits(dd, bytes);
+  };
+  if (kind == 0) {
+    OfGroup<false>(seed, point, first, lanes, count, out,
+                   [&](std::size_t row, std::size_t l0, VD x) {
+                     const VD sign = hn::IfThenElse(sent(row, l0), minus, plus);
+                     return hn::Mul(k, hn::Add(sign, hn::Mul(v, x)));
+                   });
+    return;
+  }
+  const VD negative = hn::Neg(k), zero = hn::Zero(dd);
+  OfGroup<true>(seed, point, first, lanes, count, out, [&](std::size_t row, std::size_t l0, VD u) {
+    const auto one = sent(row, l0), hit = hn::Lt(u, v);
+    if (kind == 1) {
+      const auto received =
+          hn::MaskFromVec(hn::Xor(hn::VecFromMask(dd, one), hn::VecFromMask(dd, hit)));
+      return hn::IfThenElse(received, negative, k);
+    }
+    return hn::IfThenElse(hit, zero, hn::IfThenElse(one, negative, k));
   });
 }
 
@@ -303,7 +348,7 @@ namespace tannery::detail {
 
 HWY_EXPORT(GaussiansOfFrame);
 HWY_EXPORT(GaussiansOfGroup);
-HWY_EXPORT(AwgnOfGroup);
+HWY_EXPORT(ChannelOfGroup);
 HWY_EXPORT(BitsOfGroup);
 
 void gaussians_of_frame(std::uint64_t seed, std::uint32_t point, std::uint64_t frame,
@@ -314,10 +359,11 @@ void gaussians_of_group(std::uint64_t seed, std::uint32_t point, std::uint64_t f
                         std::size_t lanes, std::size_t count, double* out) {
   HWY_DYNAMIC_DISPATCH(GaussiansOfGroup)(seed, point, first, lanes, count, out);
 }
-void awgn_of_group(std::uint64_t seed, std::uint32_t point, std::uint64_t first, std::size_t lanes,
-                   std::size_t count, const std::uint64_t* codeword, double sigma, double scale,
-                   double* out) {
-  HWY_DYNAMIC_DISPATCH(AwgnOfGroup)(seed, point, first, lanes, count, codeword, sigma, scale, out);
+void channel_of_group(std::uint64_t seed, std::uint32_t point, std::uint64_t first,
+                      std::size_t lanes, std::size_t count, const std::uint64_t* codeword, int kind,
+                      double value, double magnitude, double* out) {
+  HWY_DYNAMIC_DISPATCH(ChannelOfGroup)
+  (seed, point, first, lanes, count, codeword, kind, value, magnitude, out);
 }
 void bits_of_group(std::uint64_t seed, std::uint32_t point, std::uint64_t first, std::size_t lanes,
                    std::size_t count, std::uint64_t* masks) {

@@ -50,11 +50,14 @@ void group_bits(const FrameGroup& group, std::span<std::uint64_t> masks) {
                         masks.data());
 }
 
-void group_awgn_llrs(const FrameGroup& group, std::span<const std::uint64_t> codeword, double sigma,
-                     double scale, std::span<double> out) {
+void group_channel_llrs(const FrameGroup& group, const ChannelPoint& channel,
+                        std::span<const std::uint64_t> codeword, std::span<double> out) {
   TANNERY_ASSERT(group.lanes > 0 && out.size() == codeword.size() * group.lanes);
-  detail::awgn_of_group(group.seed, group.point, group.first, group.lanes, codeword.size(),
-                        codeword.data(), sigma, scale, out.data());
+  const int kind =
+      channel.kind == ChannelKind::awgn ? 0 : (channel.kind == ChannelKind::bsc ? 1 : 2);
+  detail::channel_of_group(group.seed, group.point, group.first, group.lanes, codeword.size(),
+                           codeword.data(), kind, channel.value, llr_magnitude(channel),
+                           out.data());
 }
 
 void group_gaussians(const FrameGroup& group, std::span<double> out) {

@@ -142,7 +142,7 @@ void Simulator::run_frames(Worker& w, std::size_t index, const ChannelPoint& cha
   }
 }
 
-// Lane layout (AWGN with a batched decoder): the chunk's frames generated in groups of lanes()
+// Lane layout (a batched decoder): the chunk's frames generated in groups of lanes()
 // side by side with SIMD, bit-sliced encoding, the decoder refilling lanes as frames finish.
 // The same numbers as run_frames.
 template <class Record>
@@ -156,7 +156,6 @@ void Simulator::run_lanes(Worker& w, std::size_t index, const ChannelPoint& chan
     w.is_info.assign(n, 0);
     for (std::uint32_t p : encoder_.info_positions()) w.is_info[p] = 1;
   }
-  const double scale = 2.0 / (channel.assumed_value * channel.assumed_value);
   // Group g on demand: a short last group generates frames beyond the chunk too (not decoded).
   auto fill = [&](std::size_t g, std::span<double> llr) {
     const FrameGroup group{config_.seed, static_cast<std::uint32_t>(index), first + g * lanes,
@@ -168,7 +167,7 @@ void Simulator::run_lanes(Worker& w, std::size_t index, const ChannelPoint& chan
       group_bits(group, w.info_masks);
       encoder_.encode_lanes(w.info_masks, sent);
     }
-    group_awgn_llrs(group, sent, channel.value, scale, llr);
+    group_channel_llrs(group, channel, sent, llr);
   };
   w.errors.assign(2 * count, 0);
   w.outcomes.resize(count);
@@ -243,8 +242,7 @@ PointResult Simulator::run_point(std::size_t index, PointResult total,
     return total;
   }
 
-  const std::size_t lanes =
-      channel.kind == ChannelKind::awgn ? make_decoder(code_, config_.decoder)->lanes() : 0;
+  const std::size_t lanes = make_decoder(code_, config_.decoder)->lanes();
   auto work = [&](Worker& w) {
     for (;;) {
       if (stop.load()) break;

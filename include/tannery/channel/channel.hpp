@@ -32,10 +32,14 @@ struct ChannelPoint {
 // Validates a sweep value: p and epsilon in [0, 1], Eb/N0 finite. Throws Error.
 void check_channel_parameter(ChannelKind kind, double parameter);
 
-// Transmits one codeword and computes its channel LLRs. uniforms: 2 uniform draws per bit in
-// [0, 1) for AWGN (Box-Muller pairs), 1 per bit for BSC/BEC, supplied by the caller's RNG.
-// AWGN: y = (1 - 2c) + sigma z, L = 2 y / sigma_assumed^2; BSC: L = +-log((1-p)/p);
-// BEC: L = +-Inf when received, 0 when erased.
+// The LLR factor of a channel: 2 / sigma_assumed^2 (AWGN, times the received value),
+// log((1 - p)/p) for the assumed p (BSC; +-Inf at p = 0 or 1), +Inf (BEC).
+double llr_magnitude(const ChannelPoint& channel);
+
+// Transmits one codeword and computes its channel LLRs from one noise value per bit: a standard
+// Gaussian z for AWGN, a uniform u in [0, 1) for BSC/BEC (the caller's RNG).
+// AWGN: y = (1 - 2c) + sigma z, L = 2 y / sigma_assumed^2; BSC: the bit flips when u < p,
+// L = +-log((1-p)/p); BEC: erased (L = 0) when u < epsilon, else L = +-Inf.
 void transmit(const ChannelPoint& channel, std::span<const std::uint8_t> codeword,
               std::span<const double> gaussian_or_uniform, std::span<double> llr);
 

@@ -7,6 +7,8 @@
 #include <cstdint>
 #include <span>
 
+#include "tannery/channel/channel.hpp"
+
 namespace tannery {
 
 struct FrameId {
@@ -37,9 +39,10 @@ struct FrameGroup {
 void group_bits(const FrameGroup& group, std::span<std::uint64_t> masks);
 // out[i * lanes + l] is frame_gaussians of frame first + l at position i, bit for bit.
 void group_gaussians(const FrameGroup& group, std::span<double> out);
-// The same samples as BPSK/AWGN channel LLRs: out[i * lanes + l] = scale * ((1 - 2 c) + sigma x)
-// with c bit l of codeword[i] and x the sample, rounded as transmit() computes it.
-void group_awgn_llrs(const FrameGroup& group, std::span<const std::uint64_t> codeword, double sigma,
-                     double scale, std::span<double> out);
+// The channel LLRs of the group: out[i * lanes + l] is what transmit() gives frame first + l at
+// position i from its stream-1 noise (frame_gaussians for AWGN, frame_uniforms for BSC/BEC),
+// codeword bit l of codeword[i] sent; bit for bit.
+void group_channel_llrs(const FrameGroup& group, const ChannelPoint& channel,
+                        std::span<const std::uint64_t> codeword, std::span<double> out);
 
 }  // namespace tannery

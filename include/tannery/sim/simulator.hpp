@@ -1,14 +1,14 @@
 // Monte Carlo error-rate simulation over a sweep of channel parameters.
 //
 // Frame pipeline: random information bits -> systematic encoder -> BPSK -> channel -> LLRs ->
-// decoder -> counts. With a batched (SIMD) decoder on AWGN the pipeline runs in the decoder's
-// lane layout: Philox, Box-Muller, encoding (bit-sliced) and error counting for a whole batch of
-// frames at once, giving the same numbers as frame by frame. Frames run in fixed-size chunks on
-// worker threads; completed chunks are added to the point's totals strictly in chunk order and the
-// stop rules are evaluated after each one, so work past the stopping chunk is discarded and the
-// counts are identical for any number of threads. A run interrupted at a chunk boundary resumes to
-// exactly the counts of an uninterrupted run. Only the wall-clock limit breaks this (it depends on
-// the machine).
+// decoder -> counts. With a batched (SIMD) decoder the pipeline runs in the decoder's
+// lane layout: Philox, Box-Muller or uniforms, channel LLRs, encoding (bit-sliced) and error
+// counting for a whole batch of frames at once, giving the same numbers as frame by frame. Frames
+// run in fixed-size chunks on worker threads; completed chunks are added to the point's totals
+// strictly in chunk order and the stop rules are evaluated after each one, so work past the
+// stopping chunk is discarded and the counts are identical for any number of threads. A run
+// interrupted at a chunk boundary resumes to exactly the counts of an uninterrupted run. Only the
+// wall-clock limit breaks this (it depends on the machine).
 #pragma once
 
 #include <atomic>
@@ -129,7 +129,7 @@ class Simulator {
   PointResult run_point(std::size_t index, PointResult start,
                         const std::function<void(const Progress&)>& progress,
                         const std::atomic<bool>* interrupt);
-  // One chunk in frame layout or, for AWGN with a batched decoder, in lane layout (same
+  // One chunk in frame layout or, with a batched decoder, in lane layout (same
   // numbers); record(frame, coded errors, information errors, outcome, llr getter) per frame.
   template <class Record>
   void run_frames(Worker& w, std::size_t index, const ChannelPoint& channel, std::uint64_t first,

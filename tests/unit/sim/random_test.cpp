@@ -97,28 +97,39 @@ TEST_CASE("Box-Muller samples have the radius and angle of their Philox words", 
   CHECK(worst_angle < 1e-14);
 }
 
-TEST_CASE("group AWGN LLRs equal each frame's transmit() of its noise, on every target",
+TEST_CASE("group channel LLRs equal each frame's transmit() of its noise, on every target",
           "[random]") {
   test::TargetGuard guard;
   const std::size_t n = 77, lanes = 21;
   const FrameGroup group{5, 2, 1000, lanes};
   std::vector<std::uint64_t> codeword(n);
   for (std::size_t v = 0; v < n; ++v) codeword[v] = 0x9E3779B97F4A7C15ull * (v + 1);
-  const ChannelPoint channel{ChannelKind::awgn, 0.8, 0.75};  // sigma, assumed sigma
-  const double scale = 2.0 / (channel.assumed_value * channel.assumed_value);
-  for (const auto& target : simd_targets()) {
-    force_simd_target(target);
-    std::vector<double> llr(n * lanes), noise(n), frame_llr(n);
-    group_awgn_llrs(group, codeword, channel.value, scale, llr);
-    std::vector<std::uint8_t> bits(n);
-    for (std::size_t l = 0; l < lanes; ++l) {
-      frame_gaussians(FrameId{group.seed, group.point, group.first + l}, noise);
-      for (std::size_t v = 0; v < n; ++v) bits[v] = (codeword[v] >> l) & 1u;
-      transmit(channel, bits, noise, frame_llr);
-      for (std::size_t v = 0; v < n; ++v) {
-        INFO("target " << target << " lane " << l << " position " << v);
-        REQUIRE(llr[v * lanes + l] == frame_llr[v]);  // exact
+  // sigma or p or epsilon, and the assumed value (mismatched for AWGN and BSC).
+  for (const ChannelPoint channel :
+       {ChannelPoint{ChannelKind::awgn, 0.8, 0.75}, ChannelPoint{ChannelKind::bsc, 0.3, 0.25},
+        ChannelPoint{ChannelKind::bsc, 0.1, 0.0}, ChannelPoint{ChannelKind::bec, 0.4, 0.4}}) {
+    for (const auto& target : simd_targets()) {
+      force_simd_target(target);
+      std::vector<double> llr(n * lanes), noise(n), frame_llr(n);
+      group_channel_llrs(group, channel, codeword, llr);
+      std::vector<std::uint8_t> bits(n);
+      std::size_t erased_or_flipped = 0;
+      for (std::size_t l = 0; l < lanes; ++l) {
+        const FrameId id{group.seed, group.point, group.first + l};
+        if (channel.kind == ChannelKind::awgn)
+          frame_gaussians(id, noise);
+        else
+          frame_uniforms(id, noise);
+        for (std::size_t v = 0; v < n; ++v) bits[v] = (codeword[v] >> l) & 1u;
+        transmit(channel, bits, noise, frame_llr);
+        for (std::size_t v = 0; v < n; ++v) {
+          INFO("channel " << channel_name(channel.kind) << " target " << target << " lane " << l
+                          << " position " << v);
+          REQUIRE(llr[v * lanes + l] == frame_llr[v]);  // exact (Inf included)
+          erased_or_flipped += noise[v] < channel.value;
+        }
       }
+      if (channel.kind != ChannelKind::awgn) CHECK(erased_or_flipped > 100);  // not vacuous
     }
   }
 }
