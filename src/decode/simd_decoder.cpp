@@ -47,6 +47,7 @@ class Batched final : public Decoder {
       lanes_ = int16_lanes();
     else
       lanes_ = int8_lanes();
+    TANNERY_ASSERT(lanes_ <= 64);  // lane sets are 64-bit masks (x86 vectors hold at most 64)
     std::size_t max_degree = 0;
     for (std::size_t c = 0; c < code.m(); ++c)
       max_degree = std::max(max_degree, code.check_degree(c));
