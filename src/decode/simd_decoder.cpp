@@ -41,12 +41,7 @@ template <class T>
 class Batched final : public Decoder {
  public:
   Batched(const Code& code, const DecoderSettings& settings) : Decoder(code, settings) {
-    if constexpr (std::is_same_v<T, float>)
-      lanes_ = float_lanes();
-    else if constexpr (std::is_same_v<T, std::int16_t>)
-      lanes_ = int16_lanes();
-    else
-      lanes_ = int8_lanes();
+    lanes_ = lane_count(T{});
     TANNERY_ASSERT(lanes_ <= 64);  // lane sets are 64-bit masks (x86 vectors hold at most 64)
     std::size_t max_degree = 0;
     for (std::size_t c = 0; c < code.m(); ++c)
@@ -117,13 +112,11 @@ class Batched final : public Decoder {
     const std::size_t group = code_.n() * lanes_, groups = (frames + lanes_ - 1) / lanes_;
     groups_.resize(groups * group);
     group_llr_.resize(group);
+    const double scale = quantize_ ? quantize_->scale() : 1.0;
+    const double clip = quantize_ ? quantize_->limit() : kLlrLimit;
     for (std::size_t g = 0; g < groups; ++g) {
       fill(g, group_llr_);
-      if (quantize_)
-        channel_values(group_llr_.data(), group, quantize_->scale(), quantize_->limit(),
-                       groups_.data() + g * group);
-      else
-        channel_values(group_llr_.data(), group, 1.0, kLlrLimit, groups_.data() + g * group);
+      channel_values(group_llr_.data(), group, scale, clip, groups_.data() + g * group);
     }
     stream(frames, done);
   }
@@ -136,21 +129,20 @@ class Batched final : public Decoder {
     return out;
   }
 
-  // Frame layout: quantized into groups (frame f in lane f % lanes), then streamed.
+  // Frame layout: frames transposed into groups (frame f in lane f % lanes, idle lanes zero).
   void decode_batch(std::span<const double> llr, std::span<std::uint8_t> hard,
                     std::span<double> posterior, std::span<FrameOutcome> outcome) override {
     const std::size_t n = code_.n(), frames = outcome.size();
     const double scale =
         settings_.quantization ? std::ldexp(1.0, -settings_.quantization->fraction_bits) : 1.0;
-    groups_.assign((frames + lanes_ - 1) / lanes_ * n * lanes_, T(0));
-    for (std::size_t f = 0; f < frames; ++f) {
-      T* to = groups_.data() + f / lanes_ * n * lanes_ + f % lanes_;
-      for (std::size_t v = 0; v < n; ++v) {
-        const double x = llr[f * n + v];
-        to[v * lanes_] = quantize_ ? static_cast<T>((*quantize_)(x)) : static_cast<T>(clip_llr(x));
+    auto fill = [&](std::size_t g, std::span<double> group) {
+      for (std::size_t l = 0; l < lanes_; ++l) {
+        const std::size_t f = g * lanes_ + l;
+        for (std::size_t v = 0; v < n; ++v)
+          group[v * lanes_ + l] = f < frames ? llr[f * n + v] : 0.0;
       }
-    }
-    stream(frames, [&](const FinishedFrames& done) {
+    };
+    decode_groups(frames, fill, [&](const FinishedFrames& done) {
       for (std::uint64_t a = done.lanes; a; a &= a - 1) {
         const auto l = static_cast<std::size_t>(std::countr_zero(a));
         const std::size_t f = done.frame[l];

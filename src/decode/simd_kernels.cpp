@@ -459,83 +459,37 @@ void Channel(const double* llr, std::size_t count, double scale, double clip, T*
   }
 }
 
-std::size_t FloatLanes() {
-  return hn::Lanes(hn::ScalableTag<float>());
-}
-std::size_t Int16Lanes() {
-  return hn::Lanes(hn::ScalableTag<std::int16_t>());
-}
-std::size_t Int8Lanes() {
-  return hn::Lanes(hn::ScalableTag<std::int8_t>());
-}
-void StartFloat(const LayeredArgs<float>& a) {
-  Start(hn::ScalableTag<float>(), a);
-}
-void IterateFloat(const LayeredArgs<float>& a, std::uint64_t fresh, std::uint64_t frozen) {
-  Iterate(hn::ScalableTag<float>(), a, fresh, frozen);
-}
-std::uint64_t UnsatisfiedFloat(const LayeredArgs<float>& a) {
-  return Unsatisfied(hn::ScalableTag<float>(), a);
-}
-void WeightsFloat(const LayeredArgs<float>& a, std::int32_t* weights) {
-  SyndromeWeights(hn::ScalableTag<float>(), a, weights);
-}
-void RefillFloat(const LayeredArgs<float>& a, const float* const* rows, const std::uint64_t* lanes,
-                 std::size_t count) {
-  Refill(hn::ScalableTag<float>(), a, rows, lanes, count);
-}
-void SignMasksFloat(const LayeredArgs<float>& a, std::uint64_t* masks) {
-  SignMasks(hn::ScalableTag<float>(), a, masks);
-}
-void ChannelFloat(const double* llr, std::size_t count, double scale, double clip, float* out) {
-  Channel(llr, count, scale, clip, out);
-}
-void StartInt16(const LayeredArgs<std::int16_t>& a) {
-  Start(hn::ScalableTag<std::int16_t>(), a);
-}
-void IterateInt16(const LayeredArgs<std::int16_t>& a, std::uint64_t fresh, std::uint64_t frozen) {
-  Iterate(hn::ScalableTag<std::int16_t>(), a, fresh, frozen);
-}
-std::uint64_t UnsatisfiedInt16(const LayeredArgs<std::int16_t>& a) {
-  return Unsatisfied(hn::ScalableTag<std::int16_t>(), a);
-}
-void WeightsInt16(const LayeredArgs<std::int16_t>& a, std::int32_t* weights) {
-  SyndromeWeights(hn::ScalableTag<std::int16_t>(), a, weights);
-}
-void RefillInt16(const LayeredArgs<std::int16_t>& a, const std::int16_t* const* rows,
-                 const std::uint64_t* lanes, std::size_t count) {
-  Refill(hn::ScalableTag<std::int16_t>(), a, rows, lanes, count);
-}
-void SignMasksInt16(const LayeredArgs<std::int16_t>& a, std::uint64_t* masks) {
-  SignMasks(hn::ScalableTag<std::int16_t>(), a, masks);
-}
-void ChannelInt16(const double* llr, std::size_t count, double scale, double clip,
-                  std::int16_t* out) {
-  Channel(llr, count, scale, clip, out);
-}
-void StartInt8(const LayeredArgs<std::int8_t>& a) {
-  Start(hn::ScalableTag<std::int8_t>(), a);
-}
-void IterateInt8(const LayeredArgs<std::int8_t>& a, std::uint64_t fresh, std::uint64_t frozen) {
-  Iterate(hn::ScalableTag<std::int8_t>(), a, fresh, frozen);
-}
-std::uint64_t UnsatisfiedInt8(const LayeredArgs<std::int8_t>& a) {
-  return Unsatisfied(hn::ScalableTag<std::int8_t>(), a);
-}
-void WeightsInt8(const LayeredArgs<std::int8_t>& a, std::int32_t* weights) {
-  SyndromeWeights(hn::ScalableTag<std::int8_t>(), a, weights);
-}
-void RefillInt8(const LayeredArgs<std::int8_t>& a, const std::int8_t* const* rows,
-                const std::uint64_t* lanes, std::size_t count) {
-  Refill(hn::ScalableTag<std::int8_t>(), a, rows, lanes, count);
-}
-void SignMasksInt8(const LayeredArgs<std::int8_t>& a, std::uint64_t* masks) {
-  SignMasks(hn::ScalableTag<std::int8_t>(), a, masks);
-}
-void ChannelInt8(const double* llr, std::size_t count, double scale, double clip,
-                 std::int8_t* out) {
-  Channel(llr, count, scale, clip, out);
-}
+// Plain entry points per lane type for HWY_EXPORT, named Step##Type.
+#define TANNERY_TARGET_KERNELS(T, Type)                                                         \
+  std::size_t Lanes##Type() {                                                                   \
+    return hn::Lanes(hn::ScalableTag<T>());                                                     \
+  }                                                                                             \
+  void Start##Type(const LayeredArgs<T>& a) {                                                   \
+    Start(hn::ScalableTag<T>(), a);                                                             \
+  }                                                                                             \
+  void Iterate##Type(const LayeredArgs<T>& a, std::uint64_t fresh, std::uint64_t frozen) {      \
+    Iterate(hn::ScalableTag<T>(), a, fresh, frozen);                                            \
+  }                                                                                             \
+  std::uint64_t Unsatisfied##Type(const LayeredArgs<T>& a) {                                    \
+    return Unsatisfied(hn::ScalableTag<T>(), a);                                                \
+  }                                                                                             \
+  void Weights##Type(const LayeredArgs<T>& a, std::int32_t* weights) {                          \
+    SyndromeWeights(hn::ScalableTag<T>(), a, weights);                                          \
+  }                                                                                             \
+  void Refill##Type(const LayeredArgs<T>& a, const T* const* rows, const std::uint64_t* lanes,  \
+                    std::size_t count) {                                                        \
+    Refill(hn::ScalableTag<T>(), a, rows, lanes, count);                                        \
+  }                                                                                             \
+  void SignMasks##Type(const LayeredArgs<T>& a, std::uint64_t* masks) {                         \
+    SignMasks(hn::ScalableTag<T>(), a, masks);                                                  \
+  }                                                                                             \
+  void Channel##Type(const double* llr, std::size_t count, double scale, double clip, T* out) { \
+    Channel(llr, count, scale, clip, out);                                                      \
+  }
+TANNERY_TARGET_KERNELS(float, Float)
+TANNERY_TARGET_KERNELS(std::int16_t, Int16)
+TANNERY_TARGET_KERNELS(std::int8_t, Int8)
+#undef TANNERY_TARGET_KERNELS
 
 }  // namespace tannery::detail::HWY_NAMESPACE
 HWY_AFTER_NAMESPACE();
@@ -543,108 +497,45 @@ HWY_AFTER_NAMESPACE();
 #if HWY_ONCE
 namespace tannery::detail {
 
-HWY_EXPORT(FloatLanes);
-HWY_EXPORT(Int16Lanes);
-HWY_EXPORT(Int8Lanes);
-HWY_EXPORT(StartFloat);
-HWY_EXPORT(IterateFloat);
-HWY_EXPORT(UnsatisfiedFloat);
-HWY_EXPORT(WeightsFloat);
-HWY_EXPORT(ChannelFloat);
-HWY_EXPORT(RefillFloat);
-HWY_EXPORT(SignMasksFloat);
-HWY_EXPORT(StartInt16);
-HWY_EXPORT(IterateInt16);
-HWY_EXPORT(UnsatisfiedInt16);
-HWY_EXPORT(WeightsInt16);
-HWY_EXPORT(ChannelInt16);
-HWY_EXPORT(RefillInt16);
-HWY_EXPORT(SignMasksInt16);
-HWY_EXPORT(StartInt8);
-HWY_EXPORT(IterateInt8);
-HWY_EXPORT(UnsatisfiedInt8);
-HWY_EXPORT(WeightsInt8);
-HWY_EXPORT(ChannelInt8);
-HWY_EXPORT(RefillInt8);
-HWY_EXPORT(SignMasksInt8);
-
-std::size_t float_lanes() {
-  return HWY_DYNAMIC_DISPATCH(FloatLanes)();
-}
-std::size_t int16_lanes() {
-  return HWY_DYNAMIC_DISPATCH(Int16Lanes)();
-}
-std::size_t int8_lanes() {
-  return HWY_DYNAMIC_DISPATCH(Int8Lanes)();
-}
-void start(const LayeredArgs<float>& a) {
-  HWY_DYNAMIC_DISPATCH(StartFloat)(a);
-}
-void iterate(const LayeredArgs<float>& a, std::uint64_t fresh, std::uint64_t frozen) {
-  HWY_DYNAMIC_DISPATCH(IterateFloat)(a, fresh, frozen);
-}
-std::uint64_t unsatisfied(const LayeredArgs<float>& a) {
-  return HWY_DYNAMIC_DISPATCH(UnsatisfiedFloat)(a);
-}
-void syndrome_weights(const LayeredArgs<float>& a, std::int32_t* weights) {
-  HWY_DYNAMIC_DISPATCH(WeightsFloat)(a, weights);
-}
-void refill(const LayeredArgs<float>& a, const float* const* rows, const std::uint64_t* lanes,
-            std::size_t count) {
-  HWY_DYNAMIC_DISPATCH(RefillFloat)(a, rows, lanes, count);
-}
-void sign_masks(const LayeredArgs<float>& a, std::uint64_t* masks) {
-  HWY_DYNAMIC_DISPATCH(SignMasksFloat)(a, masks);
-}
-void channel_values(const double* llr, std::size_t count, double scale, double clip, float* out) {
-  HWY_DYNAMIC_DISPATCH(ChannelFloat)(llr, count, scale, clip, out);
-}
-void start(const LayeredArgs<std::int16_t>& a) {
-  HWY_DYNAMIC_DISPATCH(StartInt16)(a);
-}
-void iterate(const LayeredArgs<std::int16_t>& a, std::uint64_t fresh, std::uint64_t frozen) {
-  HWY_DYNAMIC_DISPATCH(IterateInt16)(a, fresh, frozen);
-}
-std::uint64_t unsatisfied(const LayeredArgs<std::int16_t>& a) {
-  return HWY_DYNAMIC_DISPATCH(UnsatisfiedInt16)(a);
-}
-void syndrome_weights(const LayeredArgs<std::int16_t>& a, std::int32_t* weights) {
-  HWY_DYNAMIC_DISPATCH(WeightsInt16)(a, weights);
-}
-void refill(const LayeredArgs<std::int16_t>& a, const std::int16_t* const* rows,
-            const std::uint64_t* lanes, std::size_t count) {
-  HWY_DYNAMIC_DISPATCH(RefillInt16)(a, rows, lanes, count);
-}
-void sign_masks(const LayeredArgs<std::int16_t>& a, std::uint64_t* masks) {
-  HWY_DYNAMIC_DISPATCH(SignMasksInt16)(a, masks);
-}
-void channel_values(const double* llr, std::size_t count, double scale, double clip,
-                    std::int16_t* out) {
-  HWY_DYNAMIC_DISPATCH(ChannelInt16)(llr, count, scale, clip, out);
-}
-void start(const LayeredArgs<std::int8_t>& a) {
-  HWY_DYNAMIC_DISPATCH(StartInt8)(a);
-}
-void iterate(const LayeredArgs<std::int8_t>& a, std::uint64_t fresh, std::uint64_t frozen) {
-  HWY_DYNAMIC_DISPATCH(IterateInt8)(a, fresh, frozen);
-}
-std::uint64_t unsatisfied(const LayeredArgs<std::int8_t>& a) {
-  return HWY_DYNAMIC_DISPATCH(UnsatisfiedInt8)(a);
-}
-void syndrome_weights(const LayeredArgs<std::int8_t>& a, std::int32_t* weights) {
-  HWY_DYNAMIC_DISPATCH(WeightsInt8)(a, weights);
-}
-void refill(const LayeredArgs<std::int8_t>& a, const std::int8_t* const* rows,
-            const std::uint64_t* lanes, std::size_t count) {
-  HWY_DYNAMIC_DISPATCH(RefillInt8)(a, rows, lanes, count);
-}
-void sign_masks(const LayeredArgs<std::int8_t>& a, std::uint64_t* masks) {
-  HWY_DYNAMIC_DISPATCH(SignMasksInt8)(a, masks);
-}
-void channel_values(const double* llr, std::size_t count, double scale, double clip,
-                    std::int8_t* out) {
-  HWY_DYNAMIC_DISPATCH(ChannelInt8)(llr, count, scale, clip, out);
-}
+// The dispatching functions of simd_kernels.hpp for one lane type.
+#define TANNERY_DISPATCH_KERNELS(T, Type)                                                        \
+  HWY_EXPORT(Lanes##Type);                                                                       \
+  HWY_EXPORT(Start##Type);                                                                       \
+  HWY_EXPORT(Iterate##Type);                                                                     \
+  HWY_EXPORT(Unsatisfied##Type);                                                                 \
+  HWY_EXPORT(Weights##Type);                                                                     \
+  HWY_EXPORT(Refill##Type);                                                                      \
+  HWY_EXPORT(SignMasks##Type);                                                                   \
+  HWY_EXPORT(Channel##Type);                                                                     \
+  std::size_t lane_count(T) {                                                                    \
+    return HWY_DYNAMIC_DISPATCH(Lanes##Type)();                                                  \
+  }                                                                                              \
+  void start(const LayeredArgs<T>& a) {                                                          \
+    HWY_DYNAMIC_DISPATCH(Start##Type)(a);                                                        \
+  }                                                                                              \
+  void iterate(const LayeredArgs<T>& a, std::uint64_t fresh, std::uint64_t frozen) {             \
+    HWY_DYNAMIC_DISPATCH(Iterate##Type)(a, fresh, frozen);                                       \
+  }                                                                                              \
+  std::uint64_t unsatisfied(const LayeredArgs<T>& a) {                                           \
+    return HWY_DYNAMIC_DISPATCH(Unsatisfied##Type)(a);                                           \
+  }                                                                                              \
+  void syndrome_weights(const LayeredArgs<T>& a, std::int32_t* weights) {                        \
+    HWY_DYNAMIC_DISPATCH(Weights##Type)(a, weights);                                             \
+  }                                                                                              \
+  void refill(const LayeredArgs<T>& a, const T* const* rows, const std::uint64_t* lanes,         \
+              std::size_t count) {                                                               \
+    HWY_DYNAMIC_DISPATCH(Refill##Type)(a, rows, lanes, count);                                   \
+  }                                                                                              \
+  void sign_masks(const LayeredArgs<T>& a, std::uint64_t* masks) {                               \
+    HWY_DYNAMIC_DISPATCH(SignMasks##Type)(a, masks);                                             \
+  }                                                                                              \
+  void channel_values(const double* llr, std::size_t count, double scale, double clip, T* out) { \
+    HWY_DYNAMIC_DISPATCH(Channel##Type)(llr, count, scale, clip, out);                           \
+  }
+TANNERY_DISPATCH_KERNELS(float, Float)
+TANNERY_DISPATCH_KERNELS(std::int16_t, Int16)
+TANNERY_DISPATCH_KERNELS(std::int8_t, Int8)
+#undef TANNERY_DISPATCH_KERNELS
 
 // In this file HWY_TARGETS lists every target compiled for the kernels above.
 std::vector<std::string> kernel_targets() {

@@ -38,21 +38,19 @@ struct LayeredArgs {
   T* scratch = nullptr;    // 5 x max_degree x lanes
 };
 
-// Lanes per vector for the dispatched target.
-std::size_t float_lanes();
-std::size_t int16_lanes();
-std::size_t int8_lanes();
-// The batch kernels, for T = float, int16 and int8 lanes. Lane sets are bit masks (bit l: lane
-// l). start: posteriors from the channel values, messages zero. iterate: one iteration; lanes
-// in `fresh` were given a new frame since (posterior = channel, messages count as zero), lanes
-// in `frozen` keep their posteriors. unsatisfied: lanes with a nonzero syndrome.
-// syndrome_weights: unsatisfied checks per lane. refill: for each k < count (1 to 64),
-// posteriors (flooding: also channel values) of the lanes in lanes[k] from rows[k] (n x lanes,
-// the same layout). sign_masks: bit l of
-// masks[v] set where lane l of posterior v is negative. channel_values: count LLRs in lane layout
-// (count: a multiple of 8) to channel values: float32 clipped at +-clip (scale 1), or fixed point
-// round(llr * scale), ties to even, saturated at +-clip (the rule of LlrQuantizer).
+// The batch kernels, for T = float, int16 and int8 lanes. lane_count: lanes per vector of T for
+// the dispatched target (call as lane_count(T{})). Lane sets are bit masks (bit l: lane l).
+// start: posteriors from the channel values, messages zero. iterate: one iteration; lanes in
+// `fresh` were given a new frame since (posterior = channel, messages count as zero), lanes in
+// `frozen` keep their posteriors. unsatisfied: lanes with a nonzero syndrome. syndrome_weights:
+// unsatisfied checks per lane. refill: for each k < count (1 to 64), posteriors (flooding: also
+// channel values) of the lanes in lanes[k] from rows[k] (n x lanes, the same layout).
+// sign_masks: bit l of masks[v] set where lane l of posterior v is negative. channel_values:
+// count LLRs in lane layout (count: a multiple of 8) to channel values: float32 clipped at +-clip
+// (scale 1), or fixed point round(llr * scale), ties to even, saturated at +-clip (the rule of
+// LlrQuantizer).
 #define TANNERY_BATCH_KERNELS(T)                                                            \
+  std::size_t lane_count(T);                                                                \
   void start(const LayeredArgs<T>& args);                                                   \
   void iterate(const LayeredArgs<T>& args, std::uint64_t fresh, std::uint64_t frozen);      \
   std::uint64_t unsatisfied(const LayeredArgs<T>& args);                                    \

@@ -272,12 +272,12 @@ void GaussiansOfGroup(std::uint64_t seed, std::uint32_t point, std::uint64_t fir
                  [](std::size_t, std::size_t, VD x) { return x; });
 }
 
-// The channel LLRs of transmit(), lane by lane: kind 0 AWGN, scale ((1 - 2 c) + value x)
-// (multiply then add, no fusing); kind 1 BSC, +-magnitude with the bit flipped where the
-// uniform is below value; kind 2 BEC, 0 where the uniform is below value, else +-magnitude.
+// The channel LLRs of transmit(), lane by lane: AWGN scale ((1 - 2 c) + value x) (multiply then
+// add, no fusing); BSC +-magnitude with the bit flipped where the uniform is below value; BEC 0
+// where the uniform is below value, else +-magnitude.
 void ChannelOfGroup(std::uint64_t seed, std::uint32_t point, std::uint64_t first, std::size_t lanes,
-                    std::size_t count, const std::uint64_t* codeword, int kind, double value,
-                    double magnitude, double* out) {
+                    std::size_t count, const std::uint64_t* codeword, ChannelKind kind,
+                    double value, double magnitude, double* out) {
   const DD dd;
   const VD v = hn::Set(dd, value), k = hn::Set(dd, magnitude);
   const VD plus = hn::Set(dd, 1.0), minus = hn::Set(dd, -1.0);
@@ -287,7 +287,7 @@ void ChannelOfGroup(std::uint64_t seed, std::uint32_t point, std::uint64_t first
     std::memcpy(bytes, &bits, 8);
     return hn::LoadMaskBits(dd, bytes);
   };
-  if (kind == 0) {
+  if (kind == ChannelKind::awgn) {
     OfGroup<false>(seed, point, first, lanes, count, out,
                    [&](std::size_t row, std::size_t l0, VD x) {
                      const VD sign = hn::IfThenElse(sent(row, l0), minus, plus);
@@ -298,7 +298,7 @@ void ChannelOfGroup(std::uint64_t seed, std::uint32_t point, std::uint64_t first
   const VD negative = hn::Neg(k), zero = hn::Zero(dd);
   OfGroup<true>(seed, point, first, lanes, count, out, [&](std::size_t row, std::size_t l0, VD u) {
     const auto one = sent(row, l0), hit = hn::Lt(u, v);
-    if (kind == 1) {
+    if (kind == ChannelKind::bsc) {
       const auto received =
           hn::MaskFromVec(hn::Xor(hn::VecFromMask(dd, one), hn::VecFromMask(dd, hit)));
       return hn::IfThenElse(received, negative, k);
@@ -360,8 +360,8 @@ void gaussians_of_group(std::uint64_t seed, std::uint32_t point, std::uint64_t f
   HWY_DYNAMIC_DISPATCH(GaussiansOfGroup)(seed, point, first, lanes, count, out);
 }
 void channel_of_group(std::uint64_t seed, std::uint32_t point, std::uint64_t first,
-                      std::size_t lanes, std::size_t count, const std::uint64_t* codeword, int kind,
-                      double value, double magnitude, double* out) {
+                      std::size_t lanes, std::size_t count, const std::uint64_t* codeword,
+                      ChannelKind kind, double value, double magnitude, double* out) {
   HWY_DYNAMIC_DISPATCH(ChannelOfGroup)
   (seed, point, first, lanes, count, codeword, kind, value, magnitude, out);
 }

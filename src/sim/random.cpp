@@ -53,10 +53,8 @@ void group_bits(const FrameGroup& group, std::span<std::uint64_t> masks) {
 void group_channel_llrs(const FrameGroup& group, const ChannelPoint& channel,
                         std::span<const std::uint64_t> codeword, std::span<double> out) {
   TANNERY_ASSERT(group.lanes > 0 && out.size() == codeword.size() * group.lanes);
-  const int kind =
-      channel.kind == ChannelKind::awgn ? 0 : (channel.kind == ChannelKind::bsc ? 1 : 2);
   detail::channel_of_group(group.seed, group.point, group.first, group.lanes, codeword.size(),
-                           codeword.data(), kind, channel.value, llr_magnitude(channel),
+                           codeword.data(), channel.kind, channel.value, llr_magnitude(channel),
                            out.data());
 }
 

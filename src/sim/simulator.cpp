@@ -54,14 +54,15 @@ void accumulate(PointResult& total, const PointResult& chunk) {
 // Per-thread state: a decoder and the buffers of one chunk, reused for every chunk.
 struct Simulator::Worker {
   std::unique_ptr<Decoder> decoder;
-  std::vector<std::uint8_t> info, codewords, hard, is_info;
+  std::vector<std::uint8_t> info, codewords, hard;
   std::vector<std::uint64_t> info_masks, codeword_masks, errors;  // lane layout
   std::vector<double> llr, noise;
   std::vector<FrameOutcome> outcomes;
 };
 
 Simulator::Simulator(const Code& code, SimulationConfig config)
-    : code_(code), config_(std::move(config)), encoder_(code) {
+    : code_(code), config_(std::move(config)), encoder_(code), is_info_(code.n(), 0) {
+  for (std::uint32_t p : encoder_.info_positions()) is_info_[p] = 1;
   validate(config_.decoder, code_);
   if (config_.sweep.empty()) throw Error("the sweep has no points");
   for (double p : config_.sweep) check_channel_parameter(config_.channel.kind, p);
@@ -152,10 +153,6 @@ void Simulator::run_lanes(Worker& w, std::size_t index, const ChannelPoint& chan
   const std::size_t groups = (count + lanes - 1) / lanes;
   w.info_masks.resize(k);
   w.codeword_masks.resize(groups * n);
-  if (w.is_info.size() != n) {
-    w.is_info.assign(n, 0);
-    for (std::uint32_t p : encoder_.info_positions()) w.is_info[p] = 1;
-  }
   // Group g on demand: a short last group generates frames beyond the chunk too (not decoded).
   auto fill = [&](std::size_t g, std::span<double> llr) {
     const FrameGroup group{config_.seed, static_cast<std::uint32_t>(index), first + g * lanes,
@@ -186,7 +183,7 @@ void Simulator::run_lanes(Worker& w, std::size_t index, const ChannelPoint& chan
         for (std::uint64_t x = (done.hard[v] ^ sent[v]) & in_group; x; x &= x - 1) {
           const std::size_t f = done.frame[static_cast<std::size_t>(std::countr_zero(x))];
           ++w.errors[2 * f];
-          w.errors[2 * f + 1] += w.is_info[v];
+          w.errors[2 * f + 1] += is_info_[v];
         }
       }
       for (std::uint64_t a = in_group; a; a &= a - 1) {
@@ -242,7 +239,6 @@ PointResult Simulator::run_point(std::size_t index, PointResult total,
     return total;
   }
 
-  const std::size_t lanes = make_decoder(code_, config_.decoder)->lanes();
   auto work = [&](Worker& w) {
     for (;;) {
       if (stop.load()) break;
@@ -272,7 +268,7 @@ PointResult Simulator::run_point(std::size_t index, PointResult total,
         c.failed_frames.push_back(frame);
         if (r.kept.size() < config_.keep_failures) r.kept.push_back(KeptFrame{index, frame, llr()});
       };
-      if (lanes) {
+      if (w.decoder->lanes()) {
         run_lanes(w, index, channel, first, count, record);
       } else {
         run_frames(w, index, channel, first, count, record);

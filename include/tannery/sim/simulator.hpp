@@ -141,6 +141,7 @@ class Simulator {
   const Code& code_;
   SimulationConfig config_;
   Encoder encoder_;
+  std::vector<std::uint8_t> is_info_;  // 1 at the information positions
   std::vector<KeptFrame> kept_;
 };
 
