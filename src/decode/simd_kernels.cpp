@@ -184,10 +184,14 @@ struct Sweep {
   // One pass over all checks: new check-to-variable messages and (layered) posteriors.
   template <bool kFlood, bool kMasked, bool kNarrow>
   void Checks(hn::Mask<D> stale, hn::Mask<D> frozen) const {
-    const D d;
-    const DI di;
-    const V sign_bit = hn::BitCast(d, hn::Set(di, hwy::LimitsMin<hn::TFromD<DI>>()));
-    T* const t_store = scratch;
+    // A local copy: vector stores may alias any object in memory, this one never (the calls
+    // below are inlined), so its fields stay in registers.
+    const Sweep self = *this;
+    self.template ChecksOf<kFlood, kMasked, kNarrow>(stale, frozen);
+  }
+
+  template <bool kFlood, bool kMasked, bool kNarrow>
+  HWY_INLINE void ChecksOf(hn::Mask<D> stale, hn::Mask<D> frozen) const {
     for (std::size_t c = 0; c < m; ++c) {
       const std::uint32_t b = check_start[c], deg = check_start[c + 1] - b;
       if (deg == 0) continue;
@@ -198,52 +202,102 @@ struct Sweep {
             hwy::Prefetch(post + edge_var[e] * L);
         }
       }
-      if constexpr (kFloat) {
-        if (rule == CheckRule::sum_product) {
-          SumProductCheck<kFlood, kMasked>(b, deg, stale, frozen);
-          continue;
-        }
+      // Checks of the common degrees are compiled for their degree.
+      switch (deg) {
+#define TANNERY_DEGREE(k)                                 \
+  case k:                                                 \
+    Check<kFlood, kMasked, kNarrow, k>(b, stale, frozen); \
+    break;
+        TANNERY_DEGREE(2)
+        TANNERY_DEGREE(3)
+        TANNERY_DEGREE(4)
+        TANNERY_DEGREE(5)
+        TANNERY_DEGREE(6)
+        TANNERY_DEGREE(7)
+        TANNERY_DEGREE(8)
+        TANNERY_DEGREE(9)
+        TANNERY_DEGREE(10)
+        TANNERY_DEGREE(11)
+        TANNERY_DEGREE(12)
+        TANNERY_DEGREE(13)
+        TANNERY_DEGREE(14)
+        TANNERY_DEGREE(15)
+        TANNERY_DEGREE(16)
+#undef TANNERY_DEGREE
+        default:
+          Check<kFlood, kMasked, kNarrow, 0>(b, stale, frozen, deg);
       }
-      // Pass 1: extrinsic t, the two smallest |t| (as the check sees them), the parity of the
-      // signs (in the sign bit).
-      V min1 = init, min2 = init, parity = hn::Zero(d);
-      for (std::uint32_t i = 0; i < deg; ++i) {
-        const V t = Extrinsic<kFlood, kMasked, kNarrow>(b + i, stale);
-        hn::Store(t, d, t_store + i * L);
-        const V mag = Magnitude(t);
-        min2 = hn::Min(min2, hn::Max(min1, mag));
-        min1 = hn::Min(min1, mag);
-        parity = hn::Xor(parity, t);
+    }
+  }
+
+  template <bool kFlood, bool kMasked, bool kNarrow, std::uint32_t kDeg>
+  HWY_INLINE void Check(std::uint32_t b, hn::Mask<D> stale, hn::Mask<D> frozen,
+                        std::uint32_t deg = kDeg) const {
+    if constexpr (kFloat) {
+      if (rule == CheckRule::sum_product) {
+        SumProductCheck<kFlood, kMasked, kDeg>(b, stale, frozen, deg);
+        return;
       }
-      // Pass 2: each edge gets the other edges' smallest magnitude with the sign of the others.
-      // The edge holding the smallest gets the second smallest; when several hold it the two are
-      // equal, so no position needs tracking.
-      if (deg == 1) min1 = min2 = init;  // a check with one edge sends the saturation value
-      V mag1 = Shape(min1), mag2 = Shape(min2);
-      if constexpr (kFloat) {
-        mag1 = hn::Xor(mag1, hn::And(parity, sign_bit));
-        mag2 = hn::Xor(mag2, hn::And(parity, sign_bit));
-        for (std::uint32_t i = 0; i < deg; ++i) {
-          const V t = hn::Load(d, t_store + i * L);
-          const V mag = hn::IfThenElse(hn::Eq(Magnitude(t), min1), mag2, mag1);
-          const V r = hn::Xor(mag, hn::And(t, sign_bit));
-          hn::Store(r, d, msg + (b + i) * L);
-          if constexpr (!kFlood) Keep<kMasked>(post + edge_var[b + i] * L, hn::Add(t, r), frozen);
-        }
+    }
+    MinSumCheck<kFlood, kMasked, kNarrow, kDeg>(b, stale, frozen, deg);
+  }
+
+  // One min-sum check starting at edge b, of degree kDeg known at compile time (its extrinsics
+  // and magnitudes stay in registers) or, with kDeg = 0, of degree deg (they go through the
+  // scratch rows).
+  template <bool kFlood, bool kMasked, bool kNarrow, std::uint32_t kDeg>
+  HWY_INLINE void MinSumCheck(std::uint32_t b, hn::Mask<D> stale, hn::Mask<D> frozen,
+                              std::uint32_t deg = kDeg) const {
+    const D d;
+    const DI di;
+    const V sign_bit = hn::BitCast(d, hn::Set(di, hwy::LimitsMin<hn::TFromD<DI>>()));
+    constexpr bool kKnown = kDeg != 0;
+    V held_t[kKnown ? kDeg : 1], held_mag[kKnown ? kDeg : 1];
+    T* const t_row = scratch;
+    T* const mag_row = scratch + max_degree * L;
+    // Pass 1: extrinsic t, the two smallest |t| (as the check sees them), the parity of the
+    // signs (in the sign bit).
+    V min1 = init, min2 = init, parity = hn::Zero(d);
+#pragma GCC unroll 16
+    for (std::uint32_t i = 0; i < deg; ++i) {
+      const V t = Extrinsic<kFlood, kMasked, kNarrow>(b + i, stale);
+      const V mag = Magnitude(t);
+      if constexpr (kKnown) {
+        held_t[i] = t;
+        held_mag[i] = mag;
       } else {
-        const V neg1 = hn::Neg(mag1), neg2 = hn::Neg(mag2);
-        for (std::uint32_t i = 0; i < deg; ++i) {
-          const V t = hn::Load(d, t_store + i * L);
-          const auto own = hn::Eq(Magnitude(t), min1);
-          // (IfNegativeThenElse would be one operation less but is wrong on SSSE3 in Highway
-          // 1.0.3 for int8 lanes.)
-          const V r =
-              hn::IfThenElse(hn::Lt(hn::Xor(parity, t), hn::Zero(d)),
-                             hn::IfThenElse(own, neg2, neg1), hn::IfThenElse(own, mag2, mag1));
-          const V p = Posterior<kNarrow>(hn::SaturatedAdd(t, r));
-          hn::Store(r, d, msg + (b + i) * L);
-          Keep<kMasked>(post + edge_var[b + i] * L, p, frozen);
-        }
+        hn::Store(t, d, t_row + i * L);
+        hn::Store(mag, d, mag_row + i * L);
+      }
+      min2 = hn::Min(min2, hn::Max(min1, mag));
+      min1 = hn::Min(min1, mag);
+      parity = hn::Xor(parity, t);
+    }
+    // Pass 2: each edge gets the other edges' smallest magnitude with the sign of the others.
+    // The edge holding the smallest gets the second smallest; when several hold it the two are
+    // equal, so no position needs tracking.
+    if (deg == 1) min1 = min2 = init;  // a check with one edge sends the saturation value
+    V mag1 = Shape(min1), mag2 = Shape(min2);
+    if constexpr (kFloat) {
+      mag1 = hn::Xor(mag1, hn::And(parity, sign_bit));
+      mag2 = hn::Xor(mag2, hn::And(parity, sign_bit));
+    }
+#pragma GCC unroll 16
+    for (std::uint32_t i = 0; i < deg; ++i) {
+      const V t = kKnown ? held_t[i] : hn::Load(d, t_row + i * L);
+      const V mag = kKnown ? held_mag[i] : hn::Load(d, mag_row + i * L);
+      const V r_mag = hn::IfThenElse(hn::Eq(mag, min1), mag2, mag1);
+      const std::size_t e = b + i;
+      if constexpr (kFloat) {
+        const V r = hn::Xor(r_mag, hn::And(t, sign_bit));
+        hn::Store(r, d, msg + e * L);
+        if constexpr (!kFlood) Keep<kMasked>(post + edge_var[e] * L, hn::Add(t, r), frozen);
+      } else {
+        // (IfNegativeThenElse would be one operation less but is wrong on SSSE3 in Highway
+        // 1.0.3 for int8 lanes.)
+        const V r = hn::IfThenElse(hn::Lt(hn::Xor(parity, t), hn::Zero(d)), hn::Neg(r_mag), r_mag);
+        hn::Store(r, d, msg + e * L);
+        Keep<kMasked>(post + edge_var[e] * L, Posterior<kNarrow>(hn::SaturatedAdd(t, r)), frozen);
       }
     }
   }
@@ -252,39 +306,56 @@ struct Sweep {
   // tanh(|t|/2) = (1 - e) / (1 + e); the others' product is N/D with N, D the products of
   // numerators and denominators (prefix times suffix), and 2 atanh(N/D) = log((D + N)/(D - N)),
   // capped at log(2^24) (the float32 resolution of a product near 1; messages near +-16.6).
-  template <bool kFlood, bool kMasked>
-  HWY_INLINE void SumProductCheck(std::uint32_t b, std::uint32_t deg, hn::Mask<D> stale,
-                                  hn::Mask<D> frozen) const {
+  template <bool kFlood, bool kMasked, std::uint32_t kDeg>
+  HWY_INLINE void SumProductCheck(std::uint32_t b, hn::Mask<D> stale, hn::Mask<D> frozen,
+                                  std::uint32_t deg = kDeg) const {
     const D d;
     const V one = hn::Set(d, T(1)), cap = hn::Set(d, T(1 << 24));
     const V sign_bit = hn::Set(d, T(-0.0));
-    T* const t_store = scratch;
-    T* const num = scratch + max_degree * L;
-    T* const den = num + max_degree * L;
-    T* const fwd_num = den + max_degree * L;
-    T* const fwd_den = fwd_num + max_degree * L;
+    // Per edge: t, numerator, denominator and the products of the earlier edges' ones; in
+    // registers for a known degree, else in the scratch rows.
+    constexpr bool kKnown = kDeg != 0;
+    V held[5][kKnown ? kDeg : 1];
+    const auto put = [&](int what, std::uint32_t i, V x) HWY_ATTR {
+      if constexpr (kKnown) {
+        held[what][i] = x;
+      } else {
+        hn::Store(x, d, scratch + (what * max_degree + i) * L);
+      }
+    };
+    const auto get = [&](int what, std::uint32_t i) HWY_ATTR {
+      if constexpr (kKnown) {
+        return held[what][i];
+      } else {
+        return hn::Load(d, scratch + (what * max_degree + i) * L);
+      }
+    };
+    enum { kT, kNum, kDen, kFwdNum, kFwdDen };
     V run_num = one, run_den = one, parity = hn::Zero(d);
+#pragma GCC unroll 16
     for (std::uint32_t i = 0; i < deg; ++i) {
       const V t = Extrinsic<kFlood, kMasked>(b + i, stale);
-      hn::Store(t, d, t_store + i * L);
+      put(kT, i, t);
       parity = hn::Xor(parity, t);
       const V e = ExpNeg(d, hn::Abs(t));
       const V nu = hn::Sub(one, e), de = hn::Add(one, e);
-      hn::Store(nu, d, num + i * L);
-      hn::Store(de, d, den + i * L);
-      hn::Store(run_num, d, fwd_num + i * L);
-      hn::Store(run_den, d, fwd_den + i * L);
+      put(kNum, i, nu);
+      put(kDen, i, de);
+      put(kFwdNum, i, run_num);
+      put(kFwdDen, i, run_den);
       run_num = hn::Mul(run_num, nu);
       run_den = hn::Mul(run_den, de);
     }
     parity = hn::And(parity, sign_bit);
     V back_num = one, back_den = one;
-    for (std::uint32_t i = deg; i-- > 0;) {
-      const V t = hn::Load(d, t_store + i * L);
-      const V nu = hn::Mul(hn::Load(d, fwd_num + i * L), back_num);
-      const V de = hn::Mul(hn::Load(d, fwd_den + i * L), back_den);
-      back_num = hn::Mul(back_num, hn::Load(d, num + i * L));
-      back_den = hn::Mul(back_den, hn::Load(d, den + i * L));
+#pragma GCC unroll 16
+    for (std::uint32_t j = 0; j < deg; ++j) {
+      const std::uint32_t i = deg - 1 - j;
+      const V t = get(kT, i), nu_i = get(kNum, i);
+      const V nu = hn::Mul(get(kFwdNum, i), back_num);
+      const V de = hn::Mul(get(kFwdDen, i), back_den);
+      back_num = hn::Mul(back_num, nu_i);
+      back_den = hn::Mul(back_den, get(kDen, i));
       const V ratio = hn::Min(hn::Div(hn::Add(de, nu), hn::Sub(de, nu)), cap);
       const V mag = deg == 1 ? init : LogAtLeastOne(d, ratio);
       const V r = hn::Xor(mag, hn::And(hn::Xor(parity, t), sign_bit));
