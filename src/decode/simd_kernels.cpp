@@ -94,6 +94,7 @@ struct Sweep {
   explicit Sweep(const LayeredArgs<T>& a)
       : m(a.m),
         check_start(a.check_start),
+        edges(a.check_start[a.m]),
         edge_var(a.edge_var),
         post(a.posterior),
         msg(a.messages),
@@ -111,6 +112,7 @@ struct Sweep {
 
   const std::size_t m;
   const std::uint32_t* const check_start;
+  const std::uint32_t edges;
   const std::uint32_t* const edge_var;
   T* const post;
   T* const msg;
@@ -195,13 +197,6 @@ struct Sweep {
     for (std::size_t c = 0; c < m; ++c) {
       const std::uint32_t b = check_start[c], deg = check_start[c + 1] - b;
       if (deg == 0) continue;
-      if constexpr (!kFlood) {
-        // The next check's posteriors are scattered rows: ask for them while this one works.
-        if (c + 1 < m) {
-          for (std::uint32_t e = check_start[c + 1]; e < check_start[c + 2]; ++e)
-            hwy::Prefetch(post + edge_var[e] * L);
-        }
-      }
       // Checks of the common degrees are compiled for their degree.
       switch (deg) {
 #define TANNERY_DEGREE(k)                                 \
@@ -225,6 +220,10 @@ struct Sweep {
         TANNERY_DEGREE(16)
 #undef TANNERY_DEGREE
         default:
+          if (!kFlood && c + 1 < m) {
+            for (std::uint32_t e = check_start[c + 1]; e < check_start[c + 2]; ++e)
+              hwy::Prefetch(post + edge_var[e] * L);
+          }
           Check<kFlood, kMasked, kNarrow, 0>(b, stale, frozen, deg);
       }
     }
@@ -233,6 +232,15 @@ struct Sweep {
   template <bool kFlood, bool kMasked, bool kNarrow, std::uint32_t kDeg>
   HWY_INLINE void Check(std::uint32_t b, hn::Mask<D> stale, hn::Mask<D> frozen,
                         std::uint32_t deg = kDeg) const {
+    // Layered: the next check's posteriors are scattered rows; ask for them while this one
+    // works (with the default degree above; here the rows of the next deg edges, which are the
+    // next check's when the degrees agree, as along a layer of a quasi-cyclic code).
+    if constexpr (!kFlood && kDeg != 0) {
+      if (b + 2 * kDeg <= edges) {
+#pragma GCC unroll 16
+        for (std::uint32_t i = 0; i < kDeg; ++i) hwy::Prefetch(post + edge_var[b + kDeg + i] * L);
+      }
+    }
     if constexpr (kFloat) {
       if (rule == CheckRule::sum_product) {
         SumProductCheck<kFlood, kMasked, kDeg>(b, stale, frozen, deg);
