@@ -4,7 +4,8 @@ checked by this script: weighted least squares on 4000 Chebyshev nodes (near-min
 worst error on 200 001 points evaluated in float32 by Horner's rule as the kernel does.
 
   2^f, f in [-1/2, 1/2], degree 6, relative error
-  log(1 + x) / x, x in [-1/4, 1/2], degree 8 (log(1 + x) = x times it), absolute error of log
+  log(1 + x) / x, x in [sqrt(1/2) - 1, sqrt(2) - 1], degree 8 (log(1 + x) = x times it), absolute
+  error of log
 
 Run: /usr/bin/python3 scripts/fit-kernel-polynomials.py   (needs python3-numpy)
 """
@@ -32,8 +33,9 @@ err_exp2 = np.max(np.abs(horner32(exp2, xs) / 2.0 ** xs.astype(np.float64) - 1))
 def log1p_over_x(x):
     return np.where(x == 0, 1.0, np.log1p(x) / np.where(x == 0, 1, x))
 
-logc = fit(log1p_over_x, -0.25, 0.5, 8, lambda x: np.abs(x) + 1e-3)
-xs = np.linspace(-0.25, 0.5, 200001).astype(np.float32)
+lo, hi = np.sqrt(0.5) - 1, np.sqrt(2) - 1
+logc = fit(log1p_over_x, lo, hi, 8, lambda x: np.abs(x) + 1e-3)
+xs = np.linspace(lo, hi, 200001).astype(np.float32)
 err_log = np.max(np.abs(np.float32(xs * horner32(logc, xs)) - np.log1p(xs.astype(np.float64))))
 
 for name, c in (("kExp2", exp2), ("kLog1pOverX", logc)):
