@@ -14,8 +14,8 @@ share() {  # label, simulate options...
   perf report -i "$WORK/perf.data" --no-children --sort symbol 2> /dev/null | grep '%' |
     grep -v '^#' | awk -v label="$label" '
       { p = $1; sub("%", "", p)
-        if ($0 ~ /Iterate|Sweep|Refill|Unsatisfied|Weights|SignMasks|Channel|Start|stream/) d += p
-        else if ($0 ~ /OfGroup|OfFrame/) g += p
+        if ($0 ~ /OfGroup|OfFrame/) g += p  # noise kernels (ChannelOfGroup before Channel)
+        else if ($0 ~ /Iterate|Sweep|Refill|Unsatisfied|Weights|SignMasks|Channel|Start|stream/) d += p
         else o += p }
       END { printf "%-34s decoder %5.1f%%   noise %5.1f%%   other %5.1f%%", label, d, g, o }'
   /usr/bin/python3 -c 'import json, sys
