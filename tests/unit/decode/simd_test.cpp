@@ -27,9 +27,14 @@ TEST_CASE(
   const std::vector<std::string> targets = simd_targets();
   REQUIRE(!targets.empty());
   INFO("targets: " << targets.size());
-  const std::vector<Code> codes = {test::shipped("qc-rate-half-z54.qc"),
-                                   test::random_code(40, 90, 0.07, 3),
-                                   test::shipped("hamming-15-11.tanner")};
+  // Check degrees 7-8; 0-13 (random); 8; 12-28 (random, dense: degrees past 16 take the
+  // kernels' generic path, the others their per-degree code).
+  const std::vector<Code> codes = {
+      test::shipped("qc-rate-half-z54.qc"), test::random_code(40, 90, 0.07, 3),
+      test::shipped("hamming-15-11.tanner"), test::random_code(12, 110, 0.18, 4)};
+  std::size_t past_16 = 0;
+  for (std::size_t c = 0; c < codes.back().m(); ++c) past_16 += codes.back().check_degree(c) > 16;
+  REQUIRE((past_16 > 0 && past_16 < codes.back().m()));  // both paths
   const std::vector<std::string> specs = {"6.2", "5.1:5:7", "8.3:8:8", "6.2:6:12", "4.1:4:16"};
   const Algorithm algorithms[] = {Algorithm::min_sum, Algorithm::normalized_min_sum,
                                   Algorithm::offset_min_sum};
@@ -79,39 +84,42 @@ TEST_CASE("float SIMD kernels agree with the double reference within tolerance o
   // 1 - 2^-23 (messages near +-16.6 at most). Decisions must be identical on frames both converge;
   // posteriors of min-sum agree to 1e-3 relative on frames that converge.
   test::TargetGuard guard;
-  const Code code = test::shipped("qc-rate-half-z54.qc");
-  for (auto [a, schedule] : {std::pair{Algorithm::min_sum, Schedule::layered},
-                             std::pair{Algorithm::normalized_min_sum, Schedule::layered},
-                             std::pair{Algorithm::offset_min_sum, Schedule::layered},
-                             std::pair{Algorithm::sum_product, Schedule::layered},
-                             std::pair{Algorithm::min_sum, Schedule::flooding},
-                             std::pair{Algorithm::normalized_min_sum, Schedule::flooding},
-                             std::pair{Algorithm::sum_product, Schedule::flooding}}) {
-    DecoderSettings s;
-    s.algorithm = a;
-    s.schedule = schedule;
-    s.iterations = 30;
-    const auto llr =
-        noisy(code, 45, 99, 3.0, 2.45);  // consistent Gaussian LLRs (var = 2 mean), ~2 dB
-    const Out reference = decode(code, s, llr);
-    s.kernel = Kernel::simd;
-    for (const auto& target : simd_targets()) {
-      force_simd_target(target);
-      const Out simd = decode(code, s, llr);
-      std::size_t both = 0;
-      for (std::size_t f = 0; f < simd.outcome.size(); ++f) {
-        if (!simd.outcome[f].converged || !reference.outcome[f].converged) continue;
-        ++both;
-        INFO("target " << target << " algorithm " << algorithm_name(a) << " "
-                       << schedule_name(schedule) << " frame " << f);
-        for (std::size_t v = 0; v < code.n(); ++v) {
-          REQUIRE(simd.hard[f * code.n() + v] == reference.hard[f * code.n() + v]);
+  // The qc code (check degrees 7 and 8) and a dense random one (degrees 12-28: the kernels'
+  // per-degree code and their generic path), each at LLRs where most frames converge.
+  for (auto [code, mean] : {std::pair{test::shipped("qc-rate-half-z54.qc"), 3.0},
+                            std::pair{test::random_code(12, 110, 0.18, 4), 9.0}})
+    for (auto [a, schedule] : {std::pair{Algorithm::min_sum, Schedule::layered},
+                               std::pair{Algorithm::normalized_min_sum, Schedule::layered},
+                               std::pair{Algorithm::offset_min_sum, Schedule::layered},
+                               std::pair{Algorithm::sum_product, Schedule::layered},
+                               std::pair{Algorithm::min_sum, Schedule::flooding},
+                               std::pair{Algorithm::normalized_min_sum, Schedule::flooding},
+                               std::pair{Algorithm::sum_product, Schedule::flooding}}) {
+      DecoderSettings s;
+      s.algorithm = a;
+      s.schedule = schedule;
+      s.iterations = 30;
+      // Consistent Gaussian LLRs (var = 2 mean); mean 3 is about 2 dB for the rate-1/2 code.
+      const auto llr = noisy(code, 45, 99, mean, std::sqrt(2 * mean));
+      const Out reference = decode(code, s, llr);
+      s.kernel = Kernel::simd;
+      for (const auto& target : simd_targets()) {
+        force_simd_target(target);
+        const Out simd = decode(code, s, llr);
+        std::size_t both = 0;
+        for (std::size_t f = 0; f < simd.outcome.size(); ++f) {
+          if (!simd.outcome[f].converged || !reference.outcome[f].converged) continue;
+          ++both;
+          INFO("target " << target << " algorithm " << algorithm_name(a) << " "
+                         << schedule_name(schedule) << " frame " << f);
+          for (std::size_t v = 0; v < code.n(); ++v) {
+            REQUIRE(simd.hard[f * code.n() + v] == reference.hard[f * code.n() + v]);
+          }
         }
+        CHECK(both >= 25);  // the comparison is not vacuous: most of the 45 frames converge
       }
-      CHECK(both >= 25);  // the comparison is not vacuous: most of the 45 frames converge
+      force_simd_target("");
     }
-    force_simd_target("");
-  }
 }
 
 TEST_CASE("the quantize SPEC syntax", "[simd]") {
