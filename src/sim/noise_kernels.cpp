@@ -27,12 +27,12 @@ using VD = hn::Vec<DD>;
 // halve it.
 constexpr std::size_t K = 2;
 
-// The 64-bit product of the 32-bit value in each lane and m.
+// The 64-bit product of the low 32 bits of each lane and m (the high 32 bits are ignored).
 template <std::uint64_t m>
 HWY_INLINE VU Mul32(VU x) {
   const DU du;
 #if HWY_TARGET == HWY_SCALAR
-  return hn::Set(du, hn::GetLane(x) * m);
+  return hn::Set(du, (hn::GetLane(x) & 0xFFFFFFFFull) * m);
 #else
   const hn::Repartition<std::uint32_t, DU> d32;
   return hn::MulEven(hn::BitCast(d32, x), hn::BitCast(d32, hn::Set(du, m)));
@@ -40,10 +40,11 @@ HWY_INLINE VU Mul32(VU x) {
 }
 
 // Philox4x32 with 10 rounds (Random123's constants) on counters c[0..3] (the four words, in the
-// low halves of 64-bit lanes), the key the same for every lane; the output replaces c.
+// low halves of 64-bit lanes), the key the same for every lane; the output replaces c. Between
+// rounds the high halves hold leftovers (the products' high words), which nothing reads: the
+// multiplications take the low halves, and the output is masked once at the end.
 HWY_INLINE void Philox(VU (&c)[4][K], std::uint64_t seed) {
   const DU du;
-  const VU low = hn::Set(du, 0xFFFFFFFFull);
   std::uint32_t k0 = static_cast<std::uint32_t>(seed), k1 = static_cast<std::uint32_t>(seed >> 32);
   for (int round = 0; round < 10; ++round) {
     if (round > 0) k0 += 0x9E3779B9u, k1 += 0xBB67AE85u;
@@ -51,13 +52,15 @@ HWY_INLINE void Philox(VU (&c)[4][K], std::uint64_t seed) {
     for (std::size_t j = 0; j < K; ++j) {
       const VU p0 = Mul32<0xD2511F53ull>(c[0][j]);
       const VU p1 = Mul32<0xCD9E8D57ull>(c[2][j]);
-      const VU n0 = hn::Xor(hn::Xor(hn::ShiftRight<32>(p1), c[1][j]), key0);
-      const VU n2 = hn::Xor(hn::Xor(hn::ShiftRight<32>(p0), c[3][j]), key1);
-      c[1][j] = hn::And(p1, low);
-      c[3][j] = hn::And(p0, low);
-      c[0][j] = n0;
-      c[2][j] = n2;
+      c[0][j] = hn::Xor3(hn::ShiftRight<32>(p1), c[1][j], key0);
+      c[2][j] = hn::Xor3(hn::ShiftRight<32>(p0), c[3][j], key1);
+      c[1][j] = p1;
+      c[3][j] = p0;
     }
+  }
+  const VU low = hn::Set(du, 0xFFFFFFFFull);
+  for (auto& word : c) {
+    for (VU& v : word) v = hn::And(v, low);
   }
 }
 
