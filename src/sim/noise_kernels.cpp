@@ -1,12 +1,15 @@
 // Philox4x32-10 and the Box-Muller transform in SIMD, compiled for every Highway target. The
-// arithmetic is IEEE add, subtract, multiply, divide and square root in a fixed order (this file
-// is compiled without floating-point contraction), plus integer and bit operations, so every
-// target gives the same bits, and a frame's samples do not depend on how frames are batched.
+// arithmetic is IEEE add, subtract, multiply, fused multiply-add, divide and square root in a
+// fixed order (this file is compiled without floating-point contraction; targets without an FMA
+// instruction use the C library's correctly rounded fma), plus integer and bit operations, so
+// every target gives the same bits, and a frame's samples do not depend on how frames are
+// batched.
 #undef HWY_TARGET_INCLUDE
 #define HWY_TARGET_INCLUDE "src/sim/noise_kernels.cpp"
 #include <hwy/foreach_target.h>  // IWYU pragma: keep
 
 #include <hwy/highway.h>
+#include <cmath>
 #include <cstring>
 
 #include "src/sim/noise_kernels.hpp"
@@ -64,6 +67,23 @@ HWY_INLINE void Philox(VU (&c)[4][K], std::uint64_t seed) {
   }
 }
 
+// a * b + c rounded once, on every target: the fused multiply-add instruction where the target
+// has one, else the C library's fma lane by lane (correctly rounded as well, only slower).
+HWY_INLINE VD Fma(VD a, VD b, VD c) {
+#if HWY_NATIVE_FMA
+  return hn::MulAdd(a, b, c);
+#else
+  const DD dd;
+  constexpr std::size_t N = hn::MaxLanes(DD());
+  alignas(64) double x[N], y[N], z[N];
+  hn::Store(a, dd, x);
+  hn::Store(b, dd, y);
+  hn::Store(c, dd, z);
+  for (std::size_t i = 0; i < N; ++i) x[i] = std::fma(x[i], y[i], z[i]);
+  return hn::Load(dd, x);
+#endif
+}
+
 // A double in [1, 2) whose 52 fraction bits are the top 52 bits of x.
 HWY_INLINE VD OneToTwo(VU x) {
   return hn::BitCast(DD(), hn::Or(hn::ShiftRight<12>(x), hn::Set(DU(), 0x3FF0000000000000ull)));
@@ -92,13 +112,12 @@ HWY_INLINE void Ln(VD (&x)[K]) {
     p[j] = hn::Set(dd, 1.0 / 21);
   }
   for (int i = 9; i >= 0; --i) {
-    for (std::size_t j = 0; j < K; ++j)
-      p[j] = hn::Add(hn::Mul(p[j], x[j]), hn::Set(dd, 1.0 / (2 * i + 1)));
+    for (std::size_t j = 0; j < K; ++j) p[j] = Fma(p[j], x[j], hn::Set(dd, 1.0 / (2 * i + 1)));
   }
   for (std::size_t j = 0; j < K; ++j) {
     const VD log_m = hn::Mul(hn::Add(s[j], s[j]), p[j]);
-    x[j] = hn::Add(hn::Mul(k[j], hn::Set(dd, 6.93147180369123816490e-01)),
-                   hn::Add(hn::Mul(k[j], hn::Set(dd, 1.90821492927058770002e-10)), log_m));
+    x[j] = Fma(k[j], hn::Set(dd, 6.93147180369123816490e-01),
+               Fma(k[j], hn::Set(dd, 1.90821492927058770002e-10), log_m));
   }
 }
 
@@ -121,13 +140,13 @@ HWY_INLINE void SinCos(const VD (&a)[K], VD (&sin_a)[K], VD (&cos_a)[K]) {
   }
   for (int i = 16; i >= 2; i -= 2) {
     for (std::size_t j = 0; j < K; ++j) {
-      sin_a[j] = hn::Add(hn::Mul(sin_a[j], z[j]), hn::Set(dd, TaylorCoefficient(i - 1)));
-      cos_a[j] = hn::Add(hn::Mul(cos_a[j], z[j]), hn::Set(dd, TaylorCoefficient(i)));
+      sin_a[j] = Fma(sin_a[j], z[j], hn::Set(dd, TaylorCoefficient(i - 1)));
+      cos_a[j] = Fma(cos_a[j], z[j], hn::Set(dd, TaylorCoefficient(i)));
     }
   }
   for (std::size_t j = 0; j < K; ++j) {
     sin_a[j] = hn::Mul(sin_a[j], a[j]);
-    cos_a[j] = hn::Add(hn::Mul(cos_a[j], z[j]), hn::Set(dd, TaylorCoefficient(0)));
+    cos_a[j] = Fma(cos_a[j], z[j], hn::Set(dd, TaylorCoefficient(0)));
   }
 }
 
