@@ -22,7 +22,8 @@ void frame_bits(const FrameId& id, std::span<std::uint8_t> bits);
 // Standard normal samples, stream 1 of the frame: Box-Muller on one Philox output per pair, the
 // radius sqrt(-2 ln(1 - u)) from the first 64 bits (u with 52-bit resolution, so |x| < 8.5),
 // the angle from the second (octant and 52-bit position). Computed with IEEE add, multiply,
-// divide and square root in a fixed order: the same bits on every machine and SIMD target.
+// fused multiply-add, divide and square root in a fixed order: the same bits on every machine
+// and SIMD target.
 void frame_gaussians(const FrameId& id, std::span<double> out);
 // Uniforms in [0, 1) with 53-bit resolution: stream 1 of the frame (BSC flips, BEC erasures).
 void frame_uniforms(const FrameId& id, std::span<double> out);
