@@ -122,17 +122,18 @@ struct Sweep {
 
   // The check's input on edge e: the extrinsic P - R (layered) or the variable-to-check
   // message (flooding). Fixed point: at posterior width (P - R can leave the lane's range).
-  // With kMasked, lanes outside `stale` hold a new frame whose messages count as zero.
+  // With kMasked, lanes outside `stale` hold a new frame whose messages count as zero. row: the
+  // posterior row of the edge's variable.
   template <bool kFlood, bool kMasked, bool kNarrow = true>
-  HWY_INLINE V Extrinsic(std::size_t e, hn::Mask<D> stale) const {
+  HWY_INLINE V Extrinsic(std::size_t e, const T* row, hn::Mask<D> stale) const {
     const D d;
     if constexpr (kFlood) {
       if constexpr (kMasked) {
-        return hn::IfThenElse(stale, hn::Load(d, v2c + e * L), hn::Load(d, post + edge_var[e] * L));
+        return hn::IfThenElse(stale, hn::Load(d, v2c + e * L), hn::Load(d, row));
       }
       return hn::Load(d, v2c + e * L);
     } else {
-      const V p = hn::Load(d, post + edge_var[e] * L);
+      const V p = hn::Load(d, row);
       const V r = kMasked ? hn::MaskedLoad(stale, d, msg + e * L) : hn::Load(d, msg + e * L);
       if constexpr (kFloat) {
         return hn::Sub(p, r);
@@ -258,6 +259,7 @@ struct Sweep {
     const V sign_bit = hn::BitCast(d, hn::Set(di, hwy::LimitsMin<hn::TFromD<DI>>()));
     constexpr bool kKnown = kDeg != 0;
     V held_t[kKnown ? kDeg : 1], held_mag[kKnown ? kDeg : 1];
+    T* rows[kKnown ? kDeg : 1];  // posterior rows, not re-read from edge_var after the stores
     T* const t_row = scratch;
     T* const mag_row = scratch + max_degree * L;
     // Pass 1: extrinsic t, the two smallest |t| (as the check sees them), the parity of the
@@ -265,9 +267,11 @@ struct Sweep {
     V min1 = init, min2 = init, parity = hn::Zero(d);
 #pragma GCC unroll 16
     for (std::uint32_t i = 0; i < deg; ++i) {
-      const V t = Extrinsic<kFlood, kMasked, kNarrow>(b + i, stale);
+      T* const row = post + edge_var[b + i] * L;
+      const V t = Extrinsic<kFlood, kMasked, kNarrow>(b + i, row, stale);
       const V mag = Magnitude(t);
       if constexpr (kKnown) {
+        rows[i] = row;
         held_t[i] = t;
         held_mag[i] = mag;
       } else {
@@ -293,16 +297,17 @@ struct Sweep {
       const V mag = kKnown ? held_mag[i] : hn::Load(d, mag_row + i * L);
       const V r_mag = hn::IfThenElse(hn::Eq(mag, min1), mag2, mag1);
       const std::size_t e = b + i;
+      T* const row = kKnown ? rows[i] : post + edge_var[e] * L;
       if constexpr (kFloat) {
         const V r = hn::Xor(r_mag, hn::And(t, sign_bit));
         hn::Store(r, d, msg + e * L);
-        if constexpr (!kFlood) Keep<kMasked>(post + edge_var[e] * L, hn::Add(t, r), frozen);
+        if constexpr (!kFlood) Keep<kMasked>(row, hn::Add(t, r), frozen);
       } else {
         // (IfNegativeThenElse would be one operation less but is wrong on SSSE3 in Highway
         // 1.0.3 for int8 lanes.)
         const V r = hn::IfThenElse(hn::Lt(hn::Xor(parity, t), hn::Zero(d)), hn::Neg(r_mag), r_mag);
         hn::Store(r, d, msg + e * L);
-        Keep<kMasked>(post + edge_var[e] * L, Posterior<kNarrow>(hn::SaturatedAdd(t, r)), frozen);
+        Keep<kMasked>(row, Posterior<kNarrow>(hn::SaturatedAdd(t, r)), frozen);
       }
     }
   }
@@ -321,6 +326,7 @@ struct Sweep {
     // registers for a known degree, else in the scratch rows.
     constexpr bool kKnown = kDeg != 0;
     V held[5][kKnown ? kDeg : 1];
+    T* rows[kKnown ? kDeg : 1];  // posterior rows, not re-read from edge_var after the stores
     const auto put = [&](int what, std::uint32_t i, V x) HWY_ATTR {
       if constexpr (kKnown) {
         held[what][i] = x;
@@ -339,7 +345,9 @@ struct Sweep {
     V run_num = one, run_den = one, parity = hn::Zero(d);
 #pragma GCC unroll 16
     for (std::uint32_t i = 0; i < deg; ++i) {
-      const V t = Extrinsic<kFlood, kMasked>(b + i, stale);
+      T* const row = post + edge_var[b + i] * L;
+      if constexpr (kKnown) rows[i] = row;
+      const V t = Extrinsic<kFlood, kMasked>(b + i, row, stale);
       put(kT, i, t);
       parity = hn::Xor(parity, t);
       const V e = ExpNeg(d, hn::Abs(t));
@@ -365,7 +373,9 @@ struct Sweep {
       const V mag = deg == 1 ? init : LogAtLeastOne(d, ratio);
       const V r = hn::Xor(mag, hn::And(hn::Xor(parity, t), sign_bit));
       hn::Store(r, d, msg + (b + i) * L);
-      if constexpr (!kFlood) Keep<kMasked>(post + edge_var[b + i] * L, hn::Add(t, r), frozen);
+      if constexpr (!kFlood) {
+        Keep<kMasked>(kKnown ? rows[i] : post + edge_var[b + i] * L, hn::Add(t, r), frozen);
+      }
     }
   }
 };
