@@ -171,13 +171,14 @@ struct Sweep {
   // The magnitudes a min-sum check sends: rule applied to the two smallest inputs.
   HWY_INLINE V Shape(V x) const {
     const D d;
-    if constexpr (kFloat) {
-      if (rule == CheckRule::normalized) return hn::Mul(x, alpha);
-      if (rule == CheckRule::offset) return hn::Max(hn::Sub(x, beta), hn::Zero(d));
-    } else {
-      if (rule == CheckRule::normalized) return hn::Sub(x, times_eighths(d, x, shrink));
-      if (rule == CheckRule::offset) return hn::Max(hn::Sub(x, beta), hn::Zero(d));
+    if (rule == CheckRule::normalized) {
+      if constexpr (kFloat) {
+        return hn::Mul(x, alpha);
+      } else {
+        return hn::Sub(x, times_eighths(d, x, shrink));
+      }
     }
+    if (rule == CheckRule::offset) return hn::Max(hn::Sub(x, beta), hn::Zero(d));
     return x;
   }
 
@@ -218,10 +219,6 @@ struct Sweep {
         TANNERY_DEGREE(16)
 #undef TANNERY_DEGREE
         default:
-          if (!kFlood && c + 1 < m) {
-            for (std::uint32_t e = check_start[c + 1]; e < check_start[c + 2]; ++e)
-              hwy::Prefetch(post + edge_var[e] * L);
-          }
           Check<kFlood, kMasked, kNarrow, 0>(b, stale, frozen, deg);
       }
     }
@@ -231,12 +228,12 @@ struct Sweep {
   HWY_INLINE void Check(std::uint32_t b, hn::Mask<D> stale, hn::Mask<D> frozen,
                         std::uint32_t deg = kDeg) const {
     // Layered: the next check's posteriors are scattered rows; ask for them while this one
-    // works (with the default degree above; here the rows of the next deg edges, which are the
-    // next check's when the degrees agree, as along a layer of a quasi-cyclic code).
-    if constexpr (!kFlood && kDeg != 0) {
-      if (b + 2 * kDeg <= edges) {
+    // works: the rows of the next deg edges, which are the next check's when the degrees agree
+    // (as along a layer of a quasi-cyclic code).
+    if constexpr (!kFlood) {
+      if (b + 2 * deg <= edges) {
 #pragma GCC unroll 16
-        for (std::uint32_t i = 0; i < kDeg; ++i) hwy::Prefetch(post + edge_var[b + kDeg + i] * L);
+        for (std::uint32_t i = 0; i < deg; ++i) hwy::Prefetch(post + edge_var[b + deg + i] * L);
       }
     }
     if constexpr (kFloat) {
@@ -248,20 +245,45 @@ struct Sweep {
     MinSumCheck<kFlood, kMasked, kNarrow, kDeg>(b, stale, frozen, deg);
   }
 
+  // A per-edge value of one check (edge i, under name `slot`): in registers (`held`) when the
+  // check's degree kDeg is known at compile time, else in the scratch rows (kDeg = 0). Likewise
+  // the edge's posterior row in pass 2: kept from pass 1, or looked up again.
+  template <std::uint32_t kDeg>
+  HWY_INLINE void Put(V (&held)[kDeg ? kDeg : 1], int slot, std::uint32_t i, V x) const {
+    if constexpr (kDeg != 0) {
+      held[i] = x;
+    } else {
+      hn::Store(x, D(), scratch + (slot * max_degree + i) * L);
+    }
+  }
+  template <std::uint32_t kDeg>
+  HWY_INLINE V Get(const V (&held)[kDeg ? kDeg : 1], int slot, std::uint32_t i) const {
+    if constexpr (kDeg != 0) {
+      return held[i];
+    } else {
+      return hn::Load(D(), scratch + (slot * max_degree + i) * L);
+    }
+  }
+  template <std::uint32_t kDeg>
+  HWY_INLINE T* Row(T* const (&rows)[kDeg ? kDeg : 1], std::uint32_t b, std::uint32_t i) const {
+    if constexpr (kDeg != 0) {
+      return rows[i];
+    } else {
+      return post + edge_var[b + i] * L;
+    }
+  }
+
   // One min-sum check starting at edge b, of degree kDeg known at compile time (its extrinsics
-  // and magnitudes stay in registers) or, with kDeg = 0, of degree deg (they go through the
-  // scratch rows).
+  // and magnitudes stay in registers) or, with kDeg = 0, of degree deg.
   template <bool kFlood, bool kMasked, bool kNarrow, std::uint32_t kDeg>
   HWY_INLINE void MinSumCheck(std::uint32_t b, hn::Mask<D> stale, hn::Mask<D> frozen,
                               std::uint32_t deg = kDeg) const {
     const D d;
     const DI di;
     const V sign_bit = hn::BitCast(d, hn::Set(di, hwy::LimitsMin<hn::TFromD<DI>>()));
-    constexpr bool kKnown = kDeg != 0;
-    V held_t[kKnown ? kDeg : 1], held_mag[kKnown ? kDeg : 1];
-    T* rows[kKnown ? kDeg : 1];  // posterior rows, not re-read from edge_var after the stores
-    T* const t_row = scratch;
-    T* const mag_row = scratch + max_degree * L;
+    constexpr std::uint32_t kHeld = kDeg ? kDeg : 1;
+    V held_t[kHeld], held_mag[kHeld];
+    T* rows[kHeld];
     // Pass 1: extrinsic t, the two smallest |t| (as the check sees them), the parity of the
     // signs (in the sign bit).
     V min1 = init, min2 = init, parity = hn::Zero(d);
@@ -270,14 +292,9 @@ struct Sweep {
       T* const row = post + edge_var[b + i] * L;
       const V t = Extrinsic<kFlood, kMasked, kNarrow>(b + i, row, stale);
       const V mag = Magnitude(t);
-      if constexpr (kKnown) {
-        rows[i] = row;
-        held_t[i] = t;
-        held_mag[i] = mag;
-      } else {
-        hn::Store(t, d, t_row + i * L);
-        hn::Store(mag, d, mag_row + i * L);
-      }
+      rows[kDeg ? i : 0] = row;
+      Put<kDeg>(held_t, 0, i, t);
+      Put<kDeg>(held_mag, 1, i, mag);
       min2 = hn::Min(min2, hn::Max(min1, mag));
       min1 = hn::Min(min1, mag);
       parity = hn::Xor(parity, t);
@@ -293,11 +310,10 @@ struct Sweep {
     }
 #pragma GCC unroll 16
     for (std::uint32_t i = 0; i < deg; ++i) {
-      const V t = kKnown ? held_t[i] : hn::Load(d, t_row + i * L);
-      const V mag = kKnown ? held_mag[i] : hn::Load(d, mag_row + i * L);
+      const V t = Get<kDeg>(held_t, 0, i), mag = Get<kDeg>(held_mag, 1, i);
       const V r_mag = hn::IfThenElse(hn::Eq(mag, min1), mag2, mag1);
       const std::size_t e = b + i;
-      T* const row = kKnown ? rows[i] : post + edge_var[e] * L;
+      T* const row = Row<kDeg>(rows, b, i);
       if constexpr (kFloat) {
         const V r = hn::Xor(r_mag, hn::And(t, sign_bit));
         hn::Store(r, d, msg + e * L);
@@ -322,31 +338,20 @@ struct Sweep {
     const D d;
     const V one = hn::Set(d, T(1)), cap = hn::Set(d, T(1 << 24));
     const V sign_bit = hn::Set(d, T(-0.0));
-    // Per edge: t, numerator, denominator and the products of the earlier edges' ones; in
-    // registers for a known degree, else in the scratch rows.
-    constexpr bool kKnown = kDeg != 0;
-    V held[5][kKnown ? kDeg : 1];
-    T* rows[kKnown ? kDeg : 1];  // posterior rows, not re-read from edge_var after the stores
-    const auto put = [&](int what, std::uint32_t i, V x) HWY_ATTR {
-      if constexpr (kKnown) {
-        held[what][i] = x;
-      } else {
-        hn::Store(x, d, scratch + (what * max_degree + i) * L);
-      }
-    };
-    const auto get = [&](int what, std::uint32_t i) HWY_ATTR {
-      if constexpr (kKnown) {
-        return held[what][i];
-      } else {
-        return hn::Load(d, scratch + (what * max_degree + i) * L);
-      }
-    };
+    // Per edge: t, numerator, denominator and the products of the earlier edges' ones.
+    constexpr std::uint32_t kHeld = kDeg ? kDeg : 1;
     enum { kT, kNum, kDen, kFwdNum, kFwdDen };
+    V held[5][kHeld];
+    T* rows[kHeld];
+    const auto put = [&](int slot, std::uint32_t i, V x)
+                         HWY_ATTR { Put<kDeg>(held[slot], slot, i, x); };
+    const auto get = [&](int slot, std::uint32_t i)
+                         HWY_ATTR { return Get<kDeg>(held[slot], slot, i); };
     V run_num = one, run_den = one, parity = hn::Zero(d);
 #pragma GCC unroll 16
     for (std::uint32_t i = 0; i < deg; ++i) {
       T* const row = post + edge_var[b + i] * L;
-      if constexpr (kKnown) rows[i] = row;
+      rows[kDeg ? i : 0] = row;
       const V t = Extrinsic<kFlood, kMasked>(b + i, row, stale);
       put(kT, i, t);
       parity = hn::Xor(parity, t);
@@ -373,9 +378,7 @@ struct Sweep {
       const V mag = deg == 1 ? init : LogAtLeastOne(d, ratio);
       const V r = hn::Xor(mag, hn::And(hn::Xor(parity, t), sign_bit));
       hn::Store(r, d, msg + (b + i) * L);
-      if constexpr (!kFlood) {
-        Keep<kMasked>(kKnown ? rows[i] : post + edge_var[b + i] * L, hn::Add(t, r), frozen);
-      }
+      if constexpr (!kFlood) Keep<kMasked>(Row<kDeg>(rows, b, i), hn::Add(t, r), frozen);
     }
   }
 };
