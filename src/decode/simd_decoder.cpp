@@ -2,7 +2,6 @@
 // lane-interleaved layout, runs the dispatched kernel and transposes the results back.
 #include <fmt/format.h>
 #include <hwy/aligned_allocator.h>
-#include <hwy/targets.h>
 #include <algorithm>
 #include <array>
 #include <bit>
