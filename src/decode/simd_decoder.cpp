@@ -181,15 +181,15 @@ class Batched final : public Decoder {
       for (std::uint64_t a = active; a; a &= a - 1)
         at_limit |= ++iterations[std::countr_zero(a)] == max_iterations;
       if (!settings_.early_stop && !at_limit) continue;
-      const std::uint64_t unsat = unsatisfied(args_);
+      sign_masks(args_, masks_.data());
+      const std::uint64_t unsat = unsatisfied();
       std::uint64_t finished = settings_.early_stop ? active & ~unsat : 0;
       for (std::uint64_t a = active; a; a &= a - 1) {
         const int l = std::countr_zero(a);
         if (iterations[l] == max_iterations) finished |= bit(l);
       }
       if (!finished) continue;
-      if (finished & unsat) syndrome_weights(args_, weights_.data());
-      sign_masks(args_, masks_.data());
+      if (finished & unsat) count_unsatisfied(finished & unsat);
       refill_rows.clear();
       refill_lanes.clear();
       for (std::uint64_t a = finished; a; a &= a - 1) {
@@ -221,6 +221,28 @@ class Batched final : public Decoder {
       }
       if (!refill_rows.empty())
         refill(args_, refill_rows.data(), refill_lanes.data(), refill_rows.size());
+    }
+  }
+
+  // Syndromes of all lanes at once from the hard decisions in masks_: bit l of check c's parity
+  // is lane l's syndrome bit (one XOR of 64-bit masks per edge, where the posteriors themselves
+  // would be a vector row each).
+  std::uint64_t parity(std::size_t c) const noexcept {
+    std::uint64_t p = 0;
+    for (std::uint32_t e = check_start_[c]; e < check_start_[c + 1]; ++e) p ^= masks_[edge_var_[e]];
+    return p;
+  }
+  // Lanes with an unsatisfied check.
+  std::uint64_t unsatisfied() const noexcept {
+    std::uint64_t any = 0;
+    for (std::size_t c = 0; c < code_.m(); ++c) any |= parity(c);
+    return any;
+  }
+  // weights_[l] = unsatisfied checks of lane l, for the lanes in `lanes`.
+  void count_unsatisfied(std::uint64_t lanes) {
+    for (std::uint64_t a = lanes; a; a &= a - 1) weights_[std::countr_zero(a)] = 0;
+    for (std::size_t c = 0; c < code_.m(); ++c) {
+      for (std::uint64_t a = parity(c) & lanes; a; a &= a - 1) ++weights_[std::countr_zero(a)];
     }
   }
 

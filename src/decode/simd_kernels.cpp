@@ -101,7 +101,6 @@ struct Sweep {
         rule(a.rule),
         shrink(8 - a.alpha_eighths),
         init(hn::Set(D(), kFloat ? T(1e5) : static_cast<T>(a.message_limit))),
-        m_hi(hn::Set(D(), static_cast<T>(a.message_limit))),
         p_lo(hn::Set(D(), static_cast<T>(-a.posterior_limit))),
         p_hi(hn::Set(D(), static_cast<T>(a.posterior_limit))),
         alpha(hn::Set(D(), static_cast<T>(a.alpha))),
@@ -118,7 +117,7 @@ struct Sweep {
   const std::size_t max_degree;
   const CheckRule rule;
   const int shrink;
-  const V init, m_hi, p_lo, p_hi, alpha, beta;
+  const V init, p_lo, p_hi, alpha, beta;
 
   // The check's input on edge e: the extrinsic P - R (layered) or the variable-to-check
   // message (flooding). Fixed point: at posterior width (P - R can leave the lane's range).
@@ -157,15 +156,6 @@ struct Sweep {
   HWY_INLINE V Posterior(V x) const {
     x = hn::Max(x, p_lo);
     return kNarrow ? hn::Min(x, p_hi) : x;
-  }
-
-  // |t| as a min-sum check sees it: in fixed point saturated to the message width.
-  HWY_INLINE V Magnitude(V t) const {
-    if constexpr (kFloat) {
-      return hn::Abs(t);
-    } else {
-      return hn::Min(hn::Abs(t), m_hi);
-    }
   }
 
   // The magnitudes a min-sum check sends: rule applied to the two smallest inputs.
@@ -284,14 +274,17 @@ struct Sweep {
     constexpr std::uint32_t kHeld = kDeg ? kDeg : 1;
     V held_t[kHeld], held_mag[kHeld];
     T* rows[kHeld];
-    // Pass 1: extrinsic t, the two smallest |t| (as the check sees them), the parity of the
-    // signs (in the sign bit).
+    // Pass 1: extrinsic t, the two smallest |t|, the parity of the signs (in the sign bit).
+    // Fixed point: the reference saturates |t| to the message width first; starting both
+    // minima at that limit gives the same minima, and where the unsaturated |t| differs from
+    // the saturated one (both at least the limit) the minima are equal, so pass 2's choice
+    // between them cannot change.
     V min1 = init, min2 = init, parity = hn::Zero(d);
 #pragma GCC unroll 16
     for (std::uint32_t i = 0; i < deg; ++i) {
       T* const row = post + edge_var[b + i] * L;
       const V t = Extrinsic<kFlood, kMasked, kNarrow>(b + i, row, stale);
-      const V mag = Magnitude(t);
+      const V mag = hn::Abs(t);
       rows[kDeg ? i : 0] = row;
       Put<kDeg>(held_t, 0, i, t);
       Put<kDeg>(held_mag, 1, i, mag);
@@ -441,46 +434,6 @@ void Iterate(D d, const LayeredArgs<hn::TFromD<D>>& a, std::uint64_t fresh,
   }
 }
 
-// Sign bit of the XOR of check c's posteriors = parity of its negative ones, per lane.
-template <class D>
-HWY_INLINE hn::Vec<hn::RebindToSigned<D>> Parity(D d, const LayeredArgs<hn::TFromD<D>>& a,
-                                                 std::size_t c) {
-  constexpr std::size_t L = Sweep<D>::L;
-  const hn::RebindToSigned<D> di;
-  auto par = hn::Zero(di);
-  for (std::uint32_t e = a.check_start[c]; e < a.check_start[c + 1]; ++e)
-    par = hn::Xor(par, hn::BitCast(di, hn::Load(d, a.posterior + a.edge_var[e] * L)));
-  return par;
-}
-
-// Vectorised syndrome: bit l set when lane l has an unsatisfied check.
-template <class D>
-std::uint64_t Unsatisfied(D d, const LayeredArgs<hn::TFromD<D>>& a) {
-  const hn::RebindToSigned<D> di;
-  auto unsatisfied = hn::Zero(di);
-  for (std::size_t c = 0; c < a.m; ++c) unsatisfied = hn::Or(unsatisfied, Parity(d, a, c));
-  std::uint8_t bytes[8] = {};
-  hn::StoreMaskBits(di, hn::Lt(unsatisfied, hn::Zero(di)), bytes);
-  std::uint64_t bits = 0;
-  std::memcpy(&bits, bytes, 8);
-  return Sweep<D>::L >= 64 ? bits : bits & ((std::uint64_t{1} << Sweep<D>::L) - 1);
-}
-
-// Unsatisfied checks per lane.
-template <class D>
-void SyndromeWeights(D d, const LayeredArgs<hn::TFromD<D>>& a, std::int32_t* weights) {
-  constexpr std::size_t L = Sweep<D>::L;
-  const hn::RebindToSigned<D> di;
-  alignas(64) hn::TFromD<decltype(di)> lanes[hn::MaxLanes(di)];
-  for (std::size_t l = 0; l < L; ++l) weights[l] = 0;
-  for (std::size_t c = 0; c < a.m; ++c) {
-    const auto par = Parity(d, a, c);
-    if (hn::AllFalse(di, hn::Lt(par, hn::Zero(di)))) continue;
-    hn::Store(par, di, lanes);
-    for (std::size_t l = 0; l < L; ++l) weights[l] += lanes[l] < 0;
-  }
-}
-
 // New frames: for each k < count, the lanes in lanes[k] take their posteriors (and, for flooding,
 // channel values) from rows[k] (n x L, the same layout); the other lanes are untouched. One pass
 // over the posteriors for all of them. Layered decoding never reads the channel values after the
@@ -559,12 +512,6 @@ void Channel(const double* llr, std::size_t count, double scale, double clip, T*
   void Iterate##Type(const LayeredArgs<T>& a, std::uint64_t fresh, std::uint64_t frozen) {      \
     Iterate(hn::ScalableTag<T>(), a, fresh, frozen);                                            \
   }                                                                                             \
-  std::uint64_t Unsatisfied##Type(const LayeredArgs<T>& a) {                                    \
-    return Unsatisfied(hn::ScalableTag<T>(), a);                                                \
-  }                                                                                             \
-  void Weights##Type(const LayeredArgs<T>& a, std::int32_t* weights) {                          \
-    SyndromeWeights(hn::ScalableTag<T>(), a, weights);                                          \
-  }                                                                                             \
   void Refill##Type(const LayeredArgs<T>& a, const T* const* rows, const std::uint64_t* lanes,  \
                     std::size_t count) {                                                        \
     Refill(hn::ScalableTag<T>(), a, rows, lanes, count);                                        \
@@ -591,8 +538,6 @@ namespace tannery::detail {
   HWY_EXPORT(Lanes##Type);                                                                       \
   HWY_EXPORT(Start##Type);                                                                       \
   HWY_EXPORT(Iterate##Type);                                                                     \
-  HWY_EXPORT(Unsatisfied##Type);                                                                 \
-  HWY_EXPORT(Weights##Type);                                                                     \
   HWY_EXPORT(Refill##Type);                                                                      \
   HWY_EXPORT(SignMasks##Type);                                                                   \
   HWY_EXPORT(Channel##Type);                                                                     \
@@ -604,12 +549,6 @@ namespace tannery::detail {
   }                                                                                              \
   void iterate(const LayeredArgs<T>& a, std::uint64_t fresh, std::uint64_t frozen) {             \
     HWY_DYNAMIC_DISPATCH(Iterate##Type)(a, fresh, frozen);                                       \
-  }                                                                                              \
-  std::uint64_t unsatisfied(const LayeredArgs<T>& a) {                                           \
-    return HWY_DYNAMIC_DISPATCH(Unsatisfied##Type)(a);                                           \
-  }                                                                                              \
-  void syndrome_weights(const LayeredArgs<T>& a, std::int32_t* weights) {                        \
-    HWY_DYNAMIC_DISPATCH(Weights##Type)(a, weights);                                             \
   }                                                                                              \
   void refill(const LayeredArgs<T>& a, const T* const* rows, const std::uint64_t* lanes,         \
               std::size_t count) {                                                               \

@@ -42,10 +42,10 @@ struct LayeredArgs {
 // the dispatched target (call as lane_count(T{})). Lane sets are bit masks (bit l: lane l).
 // start: posteriors from the channel values, messages zero. iterate: one iteration; lanes in
 // `fresh` were given a new frame since (posterior = channel, messages count as zero), lanes in
-// `frozen` keep their posteriors. unsatisfied: lanes with a nonzero syndrome. syndrome_weights:
-// unsatisfied checks per lane. refill: for each k < count (1 to 64), posteriors (flooding: also
-// channel values) of the lanes in lanes[k] from rows[k] (n x lanes, the same layout).
-// sign_masks: bit l of masks[v] set where lane l of posterior v is negative. channel_values:
+// `frozen` keep their posteriors. refill: for each k < count (1 to 64), posteriors (flooding:
+// also channel values) of the lanes in lanes[k] from rows[k] (n x lanes, the same layout).
+// sign_masks: bit l of masks[v] set where lane l of posterior v is negative (the hard decisions,
+// from which the caller computes syndromes). channel_values:
 // count LLRs in lane layout (count: a multiple of 8) to channel values: float32 clipped at +-clip
 // (scale 1), or fixed point round(llr * scale), ties to even, saturated at +-clip (the rule of
 // LlrQuantizer).
@@ -53,8 +53,6 @@ struct LayeredArgs {
   std::size_t lane_count(T);                                                                \
   void start(const LayeredArgs<T>& args);                                                   \
   void iterate(const LayeredArgs<T>& args, std::uint64_t fresh, std::uint64_t frozen);      \
-  std::uint64_t unsatisfied(const LayeredArgs<T>& args);                                    \
-  void syndrome_weights(const LayeredArgs<T>& args, std::int32_t* weights);                 \
   void refill(const LayeredArgs<T>& args, const T* const* rows, const std::uint64_t* lanes, \
               std::size_t count);                                                           \
   void sign_masks(const LayeredArgs<T>& args, std::uint64_t* masks);                        \
