@@ -458,6 +458,9 @@ void Refill(D d, const LayeredArgs<hn::TFromD<D>>& a, const hn::TFromD<D>* const
   const M any = hn::LoadMaskBits(d, bytes);
   const bool channel = std::is_floating_point_v<hn::TFromD<D>> && a.flooding;
   for (std::size_t i = 0; i < a.n * L; i += L) {
+    // The groups are far (a chunk's channel values outgrow the core's caches): ask for their
+    // rows some way ahead (prefetching past the end is harmless).
+    for (std::size_t k = 0; k < count; ++k) hwy::Prefetch(rows[k] + i + 32 * L);
     auto x = hn::LoadU(d, rows[0] + i);
     for (std::size_t k = 1; k < count; ++k)
       x = hn::IfThenElse(take[k], hn::LoadU(d, rows[k] + i), x);
