@@ -4,6 +4,7 @@
 #include <hwy/aligned_allocator.h>
 #include <algorithm>
 #include <array>
+#include <atomic>
 #include <bit>
 #include <cmath>
 #include <optional>
@@ -30,6 +31,14 @@ void force_simd_target(const std::string& name) {
 std::string active_simd_target() {
   const auto targets = simd_targets();
   return targets.empty() ? std::string("none") : targets.front();
+}
+
+namespace {
+std::atomic<std::size_t> compress_above{kCompressAboveBytes};
+}  // namespace
+
+void compress_simd_checks_above(std::size_t bytes) {
+  compress_above = bytes;
 }
 
 namespace detail {
@@ -92,16 +101,25 @@ class Batched final : public Decoder {
     // Aligned buffers (Highway's Load needs vector alignment).
     channel_ = hwy::AllocateAligned<T>(code.n() * lanes_);
     posterior_ = hwy::AllocateAligned<T>(code.n() * lanes_);
-    messages_ = hwy::AllocateAligned<T>(std::max<std::size_t>(code.edges(), 1) * lanes_);
+    const std::size_t edges = std::max<std::size_t>(code.edges(), 1);
+    if (!args_.flooding && args_.rule != CheckRule::sum_product &&
+        edges * lanes_ * sizeof(T) > compress_above) {
+      check_magnitudes_ = hwy::AllocateAligned<T>(2 * std::max<std::size_t>(code.m(), 1) * lanes_);
+      edge_marks_ = hwy::AllocateAligned<std::uint8_t>(2 * edges * mask_bytes(lanes_));
+      args_.check_magnitudes = check_magnitudes_.get();
+      args_.edge_marks = edge_marks_.get();
+    } else {
+      messages_ = hwy::AllocateAligned<T>(edges * lanes_);
+      args_.messages = messages_.get();
+    }
     scratch_ = hwy::AllocateAligned<T>(5 * args_.max_degree * lanes_);
     if (args_.flooding) {
-      v2c_ = hwy::AllocateAligned<T>(std::max<std::size_t>(code.edges(), 1) * lanes_);
+      v2c_ = hwy::AllocateAligned<T>(edges * lanes_);
       args_.v2c = v2c_.get();
     }
     weights_.resize(lanes_);
     args_.channel = channel_.get();
     args_.posterior = posterior_.get();
-    args_.messages = messages_.get();
     args_.scratch = scratch_.get();
   }
 
@@ -254,7 +272,8 @@ class Batched final : public Decoder {
   std::size_t lanes_ = 1;
   std::optional<LlrQuantizer> quantize_;
   std::vector<std::uint32_t> check_start_, edge_var_, var_start_, var_edge_;
-  hwy::AlignedFreeUniquePtr<T[]> channel_, posterior_, messages_, scratch_, v2c_;
+  hwy::AlignedFreeUniquePtr<T[]> channel_, posterior_, messages_, check_magnitudes_, scratch_, v2c_;
+  hwy::AlignedFreeUniquePtr<std::uint8_t[]> edge_marks_;
   std::vector<std::int32_t> weights_;
   std::vector<T> groups_;  // channel values of the frames being decoded, in groups
   std::vector<std::uint64_t> masks_;

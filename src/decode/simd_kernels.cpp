@@ -87,6 +87,7 @@ struct Sweep {
   using VI = hn::Vec<DI>;
   static constexpr bool kFloat = std::is_floating_point_v<T>;
   static constexpr std::size_t L = hn::MaxLanes(D());
+  static constexpr std::size_t kMaskBytes = mask_bytes(L);
 
   explicit Sweep(const LayeredArgs<T>& a)
       : m(a.m),
@@ -95,6 +96,8 @@ struct Sweep {
         edge_var(a.edge_var),
         post(a.posterior),
         msg(a.messages),
+        mags(a.check_magnitudes),
+        marks(a.edge_marks),
         v2c(a.v2c),
         scratch(a.scratch),
         max_degree(a.max_degree),
@@ -112,6 +115,8 @@ struct Sweep {
   const std::uint32_t* const edge_var;
   T* const post;
   T* const msg;
+  T* const mags;
+  std::uint8_t* const marks;
   T* const v2c;
   T* const scratch;
   const std::size_t max_degree;
@@ -119,10 +124,9 @@ struct Sweep {
   const int shrink;
   const V init, p_lo, p_hi, alpha, beta;
 
-  // The check's input on edge e: the extrinsic P - R (layered) or the variable-to-check
-  // message (flooding). Fixed point: at posterior width (P - R can leave the lane's range).
-  // With kMasked, lanes outside `stale` hold a new frame whose messages count as zero. row: the
-  // posterior row of the edge's variable.
+  // The check's input on edge e from a message kept per edge: the extrinsic P - R (layered) or
+  // the variable-to-check message (flooding). With kMasked, lanes outside `stale` hold a new
+  // frame whose messages count as zero. row: the posterior row of the edge's variable.
   template <bool kFlood, bool kMasked, bool kNarrow = true>
   HWY_INLINE V Extrinsic(std::size_t e, const T* row, hn::Mask<D> stale) const {
     const D d;
@@ -132,14 +136,36 @@ struct Sweep {
       }
       return hn::Load(d, v2c + e * L);
     } else {
-      const V p = hn::Load(d, row);
       const V r = kMasked ? hn::MaskedLoad(stale, d, msg + e * L) : hn::Load(d, msg + e * L);
-      if constexpr (kFloat) {
-        return hn::Sub(p, r);
-      } else {
-        return Posterior<kNarrow>(hn::SaturatedSub(p, r));
-      }
+      return Minus<kNarrow>(hn::Load(d, row), r);
     }
+  }
+
+  // P - R; fixed point: at posterior width (P - R can leave the lane's range).
+  template <bool kNarrow>
+  HWY_INLINE V Minus(V p, V r) const {
+    if constexpr (kFloat) {
+      return hn::Sub(p, r);
+    } else {
+      return Posterior<kNarrow>(hn::SaturatedSub(p, r));
+    }
+  }
+
+  // A min-sum check's last message on edge e from its compressed state (old1, old2: the
+  // magnitudes it sent); zero in lanes outside `stale` (kMasked).
+  template <bool kMasked>
+  HWY_INLINE V Compressed(std::size_t e, V old1, V old2, hn::Mask<D> stale) const {
+    const D d;
+    const std::uint8_t* mark = marks + e * 2 * kMaskBytes;
+    const V mag = hn::IfThenElse(hn::LoadMaskBits(d, mark), old2, old1);
+    const V r = hn::IfThenElse(hn::LoadMaskBits(d, mark + kMaskBytes), hn::Neg(mag), mag);
+    return kMasked ? hn::IfThenElseZero(stale, r) : r;
+  }
+
+  // Lanes whose sign bit is set (also for -0.0).
+  HWY_INLINE hn::Mask<D> Negative(V x) const {
+    const DI di;
+    return hn::RebindMask(D(), hn::Lt(hn::BitCast(di, x), hn::Zero(di)));
   }
 
   // Stores a posterior, keeping the lanes that already stopped when some have. (Their messages
@@ -173,24 +199,25 @@ struct Sweep {
   }
 
   // One pass over all checks: new check-to-variable messages and (layered) posteriors.
-  template <bool kFlood, bool kMasked, bool kNarrow>
+  // kCompressed: layered min-sum with compressed check state (LayeredArgs).
+  template <bool kFlood, bool kMasked, bool kNarrow, bool kCompressed = false>
   void Checks(hn::Mask<D> stale, hn::Mask<D> frozen) const {
     // A local copy: vector stores may alias any object in memory, this one never (the calls
     // below are inlined), so its fields stay in registers.
     const Sweep self = *this;
-    self.template ChecksOf<kFlood, kMasked, kNarrow>(stale, frozen);
+    self.template ChecksOf<kFlood, kMasked, kNarrow, kCompressed>(stale, frozen);
   }
 
-  template <bool kFlood, bool kMasked, bool kNarrow>
+  template <bool kFlood, bool kMasked, bool kNarrow, bool kCompressed>
   HWY_INLINE void ChecksOf(hn::Mask<D> stale, hn::Mask<D> frozen) const {
     for (std::size_t c = 0; c < m; ++c) {
       const std::uint32_t b = check_start[c], deg = check_start[c + 1] - b;
       if (deg == 0) continue;
       // Checks of the common degrees are compiled for their degree.
       switch (deg) {
-#define TANNERY_DEGREE(k)                                 \
-  case k:                                                 \
-    Check<kFlood, kMasked, kNarrow, k>(b, stale, frozen); \
+#define TANNERY_DEGREE(k)                                                 \
+  case k:                                                                 \
+    Check<kFlood, kMasked, kNarrow, kCompressed, k>(c, b, stale, frozen); \
     break;
         TANNERY_DEGREE(2)
         TANNERY_DEGREE(3)
@@ -209,13 +236,13 @@ struct Sweep {
         TANNERY_DEGREE(16)
 #undef TANNERY_DEGREE
         default:
-          Check<kFlood, kMasked, kNarrow, 0>(b, stale, frozen, deg);
+          Check<kFlood, kMasked, kNarrow, kCompressed, 0>(c, b, stale, frozen, deg);
       }
     }
   }
 
-  template <bool kFlood, bool kMasked, bool kNarrow, std::uint32_t kDeg>
-  HWY_INLINE void Check(std::uint32_t b, hn::Mask<D> stale, hn::Mask<D> frozen,
+  template <bool kFlood, bool kMasked, bool kNarrow, bool kCompressed, std::uint32_t kDeg>
+  HWY_INLINE void Check(std::size_t c, std::uint32_t b, hn::Mask<D> stale, hn::Mask<D> frozen,
                         std::uint32_t deg = kDeg) const {
     // Layered: the next check's posteriors are scattered rows; ask for them while this one
     // works: the rows of the next deg edges, which are the next check's when the degrees agree
@@ -226,13 +253,13 @@ struct Sweep {
         for (std::uint32_t i = 0; i < deg; ++i) hwy::Prefetch(post + edge_var[b + deg + i] * L);
       }
     }
-    if constexpr (kFloat) {
+    if constexpr (kFloat && !kCompressed) {
       if (rule == CheckRule::sum_product) {
         SumProductCheck<kFlood, kMasked, kDeg>(b, stale, frozen, deg);
         return;
       }
     }
-    MinSumCheck<kFlood, kMasked, kNarrow, kDeg>(b, stale, frozen, deg);
+    MinSumCheck<kFlood, kMasked, kNarrow, kCompressed, kDeg>(c, b, stale, frozen, deg);
   }
 
   // A per-edge value of one check (edge i, under name `slot`): in registers (`held`) when the
@@ -263,14 +290,13 @@ struct Sweep {
     }
   }
 
-  // One min-sum check starting at edge b, of degree kDeg known at compile time (its extrinsics
-  // and magnitudes stay in registers) or, with kDeg = 0, of degree deg.
-  template <bool kFlood, bool kMasked, bool kNarrow, std::uint32_t kDeg>
-  HWY_INLINE void MinSumCheck(std::uint32_t b, hn::Mask<D> stale, hn::Mask<D> frozen,
+  // Min-sum check c starting at edge b, of degree kDeg known at compile time (its extrinsics
+  // and magnitudes stay in registers) or, with kDeg = 0, of degree deg; its messages kept one
+  // per edge or (kCompressed, layered) compressed.
+  template <bool kFlood, bool kMasked, bool kNarrow, bool kCompressed, std::uint32_t kDeg>
+  HWY_INLINE void MinSumCheck(std::size_t c, std::uint32_t b, hn::Mask<D> stale, hn::Mask<D> frozen,
                               std::uint32_t deg = kDeg) const {
     const D d;
-    const DI di;
-    const V sign_bit = hn::BitCast(d, hn::Set(di, hwy::LimitsMin<hn::TFromD<DI>>()));
     constexpr std::uint32_t kHeld = kDeg ? kDeg : 1;
     V held_t[kHeld], held_mag[kHeld];
     T* rows[kHeld];
@@ -280,10 +306,18 @@ struct Sweep {
     // the saturated one (both at least the limit) the minima are equal, so pass 2's choice
     // between them cannot change.
     V min1 = init, min2 = init, parity = hn::Zero(d);
+    T* const sent = mags + 2 * c * L;  // the magnitudes check c sent (layered)
+    V old1 = hn::Zero(d), old2 = hn::Zero(d);
+    if constexpr (kCompressed) old1 = hn::Load(d, sent), old2 = hn::Load(d, sent + L);
 #pragma GCC unroll 16
     for (std::uint32_t i = 0; i < deg; ++i) {
       T* const row = post + edge_var[b + i] * L;
-      const V t = Extrinsic<kFlood, kMasked, kNarrow>(b + i, row, stale);
+      V t;
+      if constexpr (kCompressed) {
+        t = Minus<kNarrow>(hn::Load(d, row), Compressed<kMasked>(b + i, old1, old2, stale));
+      } else {
+        t = Extrinsic<kFlood, kMasked, kNarrow>(b + i, row, stale);
+      }
       const V mag = hn::Abs(t);
       rows[kDeg ? i : 0] = row;
       Put<kDeg>(held_t, 0, i, t);
@@ -297,26 +331,44 @@ struct Sweep {
     // equal, so no position needs tracking.
     if (deg == 1) min1 = min2 = init;  // a check with one edge sends the saturation value
     V mag1 = Shape(min1), mag2 = Shape(min2);
-    if constexpr (kFloat) {
+    const V sign_bit = hn::Set(d, T(-0.0));  // (float)
+    if constexpr (kCompressed) {
+      hn::Store(mag1, d, sent);
+      hn::Store(mag2, d, sent + L);
+    } else if constexpr (kFloat) {  // the sign of the others' parity, applied once
       mag1 = hn::Xor(mag1, hn::And(parity, sign_bit));
       mag2 = hn::Xor(mag2, hn::And(parity, sign_bit));
     }
 #pragma GCC unroll 16
     for (std::uint32_t i = 0; i < deg; ++i) {
       const V t = Get<kDeg>(held_t, 0, i), mag = Get<kDeg>(held_mag, 1, i);
-      const V r_mag = hn::IfThenElse(hn::Eq(mag, min1), mag2, mag1);
+      const auto lowest = hn::Eq(mag, min1);
+      const V r_mag = hn::IfThenElse(lowest, mag2, mag1);
       const std::size_t e = b + i;
-      T* const row = Row<kDeg>(rows, b, i);
-      if constexpr (kFloat) {
-        const V r = hn::Xor(r_mag, hn::And(t, sign_bit));
+      V r;
+      if constexpr (kFloat && !kCompressed) {
+        r = hn::Xor(r_mag, hn::And(t, sign_bit));
         hn::Store(r, d, msg + e * L);
-        if constexpr (!kFlood) Keep<kMasked>(row, hn::Add(t, r), frozen);
       } else {
         // (IfNegativeThenElse would be one operation less but is wrong on SSSE3 in Highway
         // 1.0.3 for int8 lanes.)
-        const V r = hn::IfThenElse(hn::Lt(hn::Xor(parity, t), hn::Zero(d)), hn::Neg(r_mag), r_mag);
-        hn::Store(r, d, msg + e * L);
-        Keep<kMasked>(row, Posterior<kNarrow>(hn::SaturatedAdd(t, r)), frozen);
+        const auto negative = Negative(hn::Xor(parity, t));
+        r = hn::IfThenElse(negative, hn::Neg(r_mag), r_mag);
+        if constexpr (kCompressed) {
+          std::uint8_t* const mark = marks + e * 2 * kMaskBytes;
+          hn::StoreMaskBits(d, lowest, mark);
+          hn::StoreMaskBits(d, negative, mark + kMaskBytes);
+        } else {
+          hn::Store(r, d, msg + e * L);
+        }
+      }
+      if constexpr (!kFlood) {
+        T* const row = Row<kDeg>(rows, b, i);
+        if constexpr (kFloat) {
+          Keep<kMasked>(row, hn::Add(t, r), frozen);
+        } else {
+          Keep<kMasked>(row, Posterior<kNarrow>(hn::SaturatedAdd(t, r)), frozen);
+        }
       }
     }
   }
@@ -384,7 +436,14 @@ void Start(D d, const LayeredArgs<hn::TFromD<D>>& a) {
   const std::size_t edges = a.check_start[a.m];
   for (std::size_t i = 0; i < a.n * L; i += L)
     hn::Store(hn::Load(d, a.channel + i), d, a.posterior + i);
-  for (std::size_t i = 0; i < edges * L; i += L) hn::Store(hn::Zero(d), d, a.messages + i);
+  if (a.messages) {
+    for (std::size_t i = 0; i < edges * L; i += L) hn::Store(hn::Zero(d), d, a.messages + i);
+  }
+  if (a.check_magnitudes) {
+    for (std::size_t i = 0; i < 2 * a.m * L; i += L)
+      hn::Store(hn::Zero(d), d, a.check_magnitudes + i);
+    std::memset(a.edge_marks, 0, edges * 2 * mask_bytes(L));
+  }
   if (std::is_floating_point_v<hn::TFromD<D>> && a.flooding) {
     for (std::size_t e = 0; e < edges; ++e)
       hn::Store(hn::Load(d, a.channel + a.edge_var[e] * L), d, a.v2c + e * L);
@@ -410,10 +469,20 @@ void Iterate(D d, const LayeredArgs<hn::TFromD<D>>& a, std::uint64_t fresh,
     // Posteriors as wide as the lane need no upper clamp (float has none).
     if constexpr (!std::is_floating_point_v<T>) {
       if (a.posterior_limit < hwy::LimitsMax<T>()) {
+        if (a.check_magnitudes) {
+          masked ? sweep.template Checks<false, true, true, true>(stale, frozen)
+                 : sweep.template Checks<false, false, true, true>(stale, frozen);
+          return;
+        }
         masked ? sweep.template Checks<false, true, true>(stale, frozen)
                : sweep.template Checks<false, false, true>(stale, frozen);
         return;
       }
+    }
+    if (a.check_magnitudes) {
+      masked ? sweep.template Checks<false, true, false, true>(stale, frozen)
+             : sweep.template Checks<false, false, false, true>(stale, frozen);
+      return;
     }
     masked ? sweep.template Checks<false, true, false>(stale, frozen)
            : sweep.template Checks<false, false, false>(stale, frozen);

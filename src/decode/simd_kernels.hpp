@@ -34,9 +34,20 @@ struct LayeredArgs {
   // Channel values (posteriors start from them) and the decoder state.
   T* channel = nullptr;    // n x lanes
   T* posterior = nullptr;  // n x lanes
-  T* messages = nullptr;   // edges x lanes (check-to-variable)
-  T* scratch = nullptr;    // 5 x max_degree x lanes
+  // Check-to-variable messages: sum-product and flooding keep one per edge; layered min-sum
+  // keeps each check's state compressed, as a hardware decoder would: the two magnitudes it
+  // sends (rule applied) and, per edge, two lane masks of mask_bytes(lanes) bytes: the edge
+  // held the smallest input (it was sent the second magnitude), its message was negative.
+  T* messages = nullptr;               // edges x lanes (sum-product, flooding)
+  T* check_magnitudes = nullptr;       // m x 2 x lanes (layered min-sum)
+  std::uint8_t* edge_marks = nullptr;  // edges x 2 x mask_bytes(lanes) (layered min-sum)
+  T* scratch = nullptr;                // 5 x max_degree x lanes
 };
+
+// Bytes of a lane mask (one bit per lane).
+constexpr std::size_t mask_bytes(std::size_t lanes) {
+  return (lanes + 7) / 8;
+}
 
 // The batch kernels, for T = float, int16 and int8 lanes. lane_count: lanes per vector of T for
 // the dispatched target (call as lane_count(T{})). Lane sets are bit masks (bit l: lane l).

@@ -119,7 +119,10 @@ inline std::vector<double> gaussian_llrs(std::size_t count, std::uint64_t seed, 
 
 // Restores automatic SIMD target choice when a test ends, even on failure.
 struct TargetGuard {
-  ~TargetGuard() { force_simd_target(""); }
+  ~TargetGuard() {
+    force_simd_target("");
+    compress_simd_checks_above();
+  }
 };
 
 }  // namespace tannery::test

@@ -135,4 +135,13 @@ std::vector<std::string> simd_targets();
 void force_simd_target(const std::string& name);
 std::string active_simd_target();
 
+// The SIMD kernels keep layered min-sum check state compressed (per check the two magnitudes
+// it sends, per edge two bits of each lane: smallest input, negative message; the same
+// results) when one message per edge would take more than this many bytes: less memory
+// traffic where the messages outgrow the core's caches, a few more operations per edge where
+// they fit. Applies to decoders made afterwards; the default restores kCompressAboveBytes
+// (for tests and for reproducing a figure).
+inline constexpr std::size_t kCompressAboveBytes = std::size_t{1} << 20;
+void compress_simd_checks_above(std::size_t bytes = kCompressAboveBytes);
+
 }  // namespace tannery

@@ -61,15 +61,20 @@ TEST_CASE(
           s.kernel = Kernel::simd;
           for (const auto& target : targets) {
             force_simd_target(target);
-            const Out simd = decode(code, s, llr);
-            INFO("target " << target << " spec " << spec << " algorithm " << algorithm_name(a)
-                           << " early " << early);
-            REQUIRE(simd.hard == reference.hard);
-            REQUIRE(simd.posterior == reference.posterior);
-            for (std::size_t f = 0; f < simd.outcome.size(); ++f) {
-              REQUIRE(simd.outcome[f].iterations == reference.outcome[f].iterations);
-              REQUIRE(simd.outcome[f].syndrome_weight == reference.outcome[f].syndrome_weight);
+            // Check state kept per edge (these small codes by default) and compressed.
+            for (std::size_t above : {kCompressAboveBytes, std::size_t{0}}) {
+              compress_simd_checks_above(above);
+              const Out simd = decode(code, s, llr);
+              INFO("target " << target << " spec " << spec << " algorithm " << algorithm_name(a)
+                             << " early " << early << " compressed " << (above == 0));
+              REQUIRE(simd.hard == reference.hard);
+              REQUIRE(simd.posterior == reference.posterior);
+              for (std::size_t f = 0; f < simd.outcome.size(); ++f) {
+                REQUIRE(simd.outcome[f].iterations == reference.outcome[f].iterations);
+                REQUIRE(simd.outcome[f].syndrome_weight == reference.outcome[f].syndrome_weight);
+              }
             }
+            compress_simd_checks_above();
           }
           force_simd_target("");
         }
@@ -117,6 +122,17 @@ TEST_CASE("float SIMD kernels agree with the double reference within tolerance o
           }
         }
         CHECK(both >= 25);  // the comparison is not vacuous: most of the 45 frames converge
+        if (schedule == Schedule::layered && a != Algorithm::sum_product) {
+          // Compressed check state: the same float operations, so the same bits.
+          compress_simd_checks_above(0);
+          const Out compressed = decode(code, s, llr);
+          compress_simd_checks_above();
+          INFO("target " << target << " algorithm " << algorithm_name(a) << " compressed");
+          REQUIRE(compressed.hard == simd.hard);
+          REQUIRE(compressed.posterior == simd.posterior);
+          for (std::size_t f = 0; f < simd.outcome.size(); ++f)
+            REQUIRE(compressed.outcome[f].iterations == simd.outcome[f].iterations);
+        }
       }
       force_simd_target("");
     }
