@@ -1,5 +1,5 @@
 #!/usr/bin/python3
-"""Polynomials of the float32 sum-product kernel (src/decode/simd_kernels.cpp), refitted and
+"""Polynomials of the float32 sum-product kernel (src/decode/simd_kernels-inl.h), refitted and
 checked by this script: weighted least squares on 4000 Chebyshev nodes (near-minimax), then the
 worst error on 200 001 points evaluated in float32 by Horner's rule as the kernel does.
 

@@ -1,18 +1,21 @@
 // Batched layered decoders, one frame per SIMD lane (inter-frame), compiled for every Highway
-// target and dispatched at run time. The arithmetic mirrors the scalar references exactly:
-// src/decode/fixed_point.cpp for integer lanes (bit-exact) and the min-sum/sum-product rules
-// of src/decode/belief_propagation.cpp in float32 for float lanes.
-#undef HWY_TARGET_INCLUDE
-#define HWY_TARGET_INCLUDE "src/decode/simd_kernels.cpp"
-#include <hwy/foreach_target.h>  // IWYU pragma: keep
+// target and dispatched at run time; included by simd_kernels_{float,int16,int8}.cpp, one
+// translation unit per lane type so that they compile in parallel. The arithmetic mirrors the
+// scalar references exactly: src/decode/fixed_point.cpp for integer lanes (bit-exact) and the
+// min-sum/sum-product rules of src/decode/belief_propagation.cpp in float32 for float lanes.
+// Per-target include guard (Highway's convention for code included once per target).
+#if defined(TANNERY_DECODE_SIMD_KERNELS_INL_H_) == defined(HWY_TARGET_TOGGLE)
+#ifdef TANNERY_DECODE_SIMD_KERNELS_INL_H_
+#undef TANNERY_DECODE_SIMD_KERNELS_INL_H_
+#else
+#define TANNERY_DECODE_SIMD_KERNELS_INL_H_
+#endif
 
 #include <hwy/cache_control.h>
 #include <hwy/highway.h>
 #include <bit>
 #include <cstring>
-#include <string>
 #include <type_traits>
-#include <vector>
 
 #include "src/decode/simd_kernels.hpp"
 
@@ -594,17 +597,13 @@ void Channel(const double* llr, std::size_t count, double scale, double clip, T*
   void Channel##Type(const double* llr, std::size_t count, double scale, double clip, T* out) { \
     Channel(llr, count, scale, clip, out);                                                      \
   }
-TANNERY_TARGET_KERNELS(float, Float)
-TANNERY_TARGET_KERNELS(std::int16_t, Int16)
-TANNERY_TARGET_KERNELS(std::int8_t, Int8)
-#undef TANNERY_TARGET_KERNELS
-
 }  // namespace tannery::detail::HWY_NAMESPACE
 HWY_AFTER_NAMESPACE();
 
-#if HWY_ONCE
-namespace tannery::detail {
+#endif  // per-target include guard
 
+#ifndef TANNERY_DECODE_SIMD_KERNELS_DISPATCH_
+#define TANNERY_DECODE_SIMD_KERNELS_DISPATCH_
 // The dispatching functions of simd_kernels.hpp for one lane type.
 #define TANNERY_DISPATCH_KERNELS(T, Type)                                                        \
   HWY_EXPORT(Lanes##Type);                                                                       \
@@ -632,31 +631,4 @@ namespace tannery::detail {
   void channel_values(const double* llr, std::size_t count, double scale, double clip, T* out) { \
     HWY_DYNAMIC_DISPATCH(Channel##Type)(llr, count, scale, clip, out);                           \
   }
-TANNERY_DISPATCH_KERNELS(float, Float)
-TANNERY_DISPATCH_KERNELS(std::int16_t, Int16)
-TANNERY_DISPATCH_KERNELS(std::int8_t, Int8)
-#undef TANNERY_DISPATCH_KERNELS
-
-// In this file HWY_TARGETS lists every target compiled for the kernels above.
-std::vector<std::string> kernel_targets() {
-  std::vector<std::string> names;
-  for (std::int64_t t : hwy::SupportedAndGeneratedTargets()) names.emplace_back(hwy::TargetName(t));
-  return names;
-}
-
-bool force_kernel_target(const std::string& name) {
-  hwy::SetSupportedTargetsForTest(0);
-  if (!name.empty()) {
-    std::int64_t chosen = 0;
-    for (std::int64_t t : hwy::SupportedAndGeneratedTargets()) {
-      if (name == hwy::TargetName(t)) chosen = t;
-    }
-    if (chosen == 0) return false;
-    hwy::SetSupportedTargetsForTest(chosen);
-  }
-  hwy::GetChosenTarget().Update(hwy::SupportedTargets());
-  return true;
-}
-
-}  // namespace tannery::detail
 #endif
