@@ -1,8 +1,9 @@
 #!/bin/bash
 # Share of simulation time spent in the decoder, by `perf record` on one thread, for three SIMD
-# decoders at a waterfall point of the shipped (3,6)-regular code (early stop, 50 iterations),
-# 1-3 s each so that start-up costs do not count. "stream" holds the lane refill bookkeeping and
-# the syndromes (decoder).
+# decoders at points along the waterfall of the shipped (3,6)-regular code (early stop, 50
+# iterations), 1-3 s each so that start-up costs do not count. "decoder" includes the lane
+# refills, the syndromes (in `stream`) and the conversion of LLRs to channel values; "noise" is
+# Philox, Box-Muller, the channel LLRs and the information bits.
 # Usage: scripts/decoder-share.sh [build/tannery]   (needs perf: Debian package linux-perf)
 set -euo pipefail
 T=${1:-build/tannery}
@@ -19,13 +20,19 @@ share() {  # label, simulate options...
         if ($0 ~ /OfGroup|OfFrame/) g += p  # noise kernels (ChannelOfGroup before Channel)
         else if ($0 ~ /Iterate|Sweep|Refill|SignMasks|Channel|Start|stream/) d += p
         else o += p }
-      END { printf "%-34s decoder %5.1f%%   noise %5.1f%%   other %5.1f%%", label, d, g, o }'
+      END { printf "%-33s decoder %5.1f%%  noise %5.1f%%  other %5.1f%%", label, d, g, o }'
   /usr/bin/python3 -c 'import json, sys
 p = json.load(open(sys.argv[1]))["points"][0]
-print("   %8.0f frames/s" % p["frames_per_second"])' "$WORK/run.json"
+print("  FER %7.2g  %4.1f iterations  %7.0f frames/s" % (p["fer"], p["mean_iterations"],
+      p["frames_per_second"]))' "$WORK/run.json"
 }
-share "int8 offset min-sum 6.2, 2.0 dB" --algorithm offset-min-sum --quantize 6.2 --sweep 2.0 \
-  --max-frames 204800
-share "float32 normalized min-sum, 2.0 dB" --algorithm normalized-min-sum --sweep 2.0 \
-  --max-frames 102400
-share "float32 sum-product, 1.75 dB" --algorithm sum-product --sweep 1.75 --max-frames 40960
+for db in 1.5 1.75 2.0 2.25; do
+  share "int8 offset min-sum 6.2, $db dB" --algorithm offset-min-sum --quantize 6.2 --sweep $db \
+    --max-frames 102400
+done
+for db in 1.5 1.75 2.0 2.25; do
+  share "float32 NMS, $db dB" --algorithm normalized-min-sum --sweep $db --max-frames 51200
+done
+for db in 1.5 1.75 2.0; do
+  share "float32 sum-product, $db dB" --algorithm sum-product --sweep $db --max-frames 20480
+done
