@@ -309,9 +309,13 @@ struct Sweep {
     // the saturated one (both at least the limit) the minima are equal, so pass 2's choice
     // between them cannot change.
     V min1 = init, min2 = init, parity = hn::Zero(d);
-    T* const sent = mags + 2 * c * L;  // the magnitudes check c sent (layered)
+    T* sent = nullptr;  // compressed: the magnitudes check c sent last time, and will send
     V old1 = hn::Zero(d), old2 = hn::Zero(d);
-    if constexpr (kCompressed) old1 = hn::Load(d, sent), old2 = hn::Load(d, sent + L);
+    if constexpr (kCompressed) {
+      sent = mags + 2 * c * L;
+      old1 = hn::Load(d, sent);
+      old2 = hn::Load(d, sent + L);
+    }
 #pragma GCC unroll 16
     for (std::uint32_t i = 0; i < deg; ++i) {
       T* const row = post + edge_var[b + i] * L;
