@@ -56,6 +56,7 @@ struct Simulator::Worker {
   std::unique_ptr<Decoder> decoder;
   std::vector<std::uint8_t> info, codewords, hard;
   std::vector<std::uint64_t> info_masks, codeword_masks, errors;  // lane layout
+  std::vector<std::uint64_t> wide_codewords;  // 64 frames, bit-sliced (narrow lanes)
   std::vector<double> llr, noise;
   std::vector<FrameOutcome> outcomes;
 };
@@ -153,6 +154,12 @@ void Simulator::run_lanes(Worker& w, std::size_t index, const ChannelPoint& chan
   const std::size_t groups = (count + lanes - 1) / lanes;
   w.info_masks.resize(k);
   w.codeword_masks.resize(groups * n);
+  w.wide_codewords.resize(n);
+  // Information bits and codewords are bit-sliced in 64-bit masks: with fewer lanes they are
+  // made for 64 frames at once, `per` groups, each group taking its slice (the decoder asks for
+  // the groups in order).
+  const std::size_t per = std::max<std::size_t>(64 / lanes, 1);
+  const std::uint64_t keep = lanes >= 64 ? ~std::uint64_t{0} : (std::uint64_t{1} << lanes) - 1;
   // Group g on demand: a short last group generates frames beyond the chunk too (not decoded).
   auto fill = [&](std::size_t g, std::span<double> llr) {
     const FrameGroup group{config_.seed, static_cast<std::uint32_t>(index), first + g * lanes,
@@ -161,8 +168,13 @@ void Simulator::run_lanes(Worker& w, std::size_t index, const ChannelPoint& chan
     if (config_.all_zero) {
       std::fill(sent.begin(), sent.end(), 0);
     } else {
-      group_bits(group, w.info_masks);
-      encoder_.encode_lanes(w.info_masks, sent);
+      if (g % per == 0) {
+        const FrameGroup wide{group.seed, group.point, group.first, per * lanes};
+        group_bits(wide, w.info_masks);
+        encoder_.encode_lanes(w.info_masks, w.wide_codewords);
+      }
+      const auto shift = static_cast<unsigned>(g % per * lanes);
+      for (std::size_t v = 0; v < n; ++v) sent[v] = (w.wide_codewords[v] >> shift) & keep;
     }
     group_channel_llrs(group, channel, sent, llr);
   };
