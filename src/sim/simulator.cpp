@@ -181,27 +181,34 @@ void Simulator::run_lanes(Worker& w, std::size_t index, const ChannelPoint& chan
   w.errors.assign(2 * count, 0);
   w.outcomes.resize(count);
   w.decoder->decode_groups(count, fill, [&](const Decoder::FinishedFrames& done) {
-    // Errors of the finished lanes, group by group (lane l holds a frame of group frame / lanes).
-    for (std::uint64_t left = done.lanes; left;) {
+    // Errors of the finished lanes in one pass over the positions: lane l holds a frame of
+    // group frame / lanes, whose sent bits are bit l of that group's masks.
+    std::array<const std::uint64_t*, 64> sent;
+    std::array<std::uint64_t, 64> in_group;
+    std::size_t groups_done = 0;
+    for (std::uint64_t left = done.lanes; left; ++groups_done) {
       const std::size_t g = done.frame[static_cast<std::size_t>(std::countr_zero(left))] / lanes;
-      std::uint64_t in_group = 0;
+      std::uint64_t in = 0;
       for (std::uint64_t a = left; a; a &= a - 1) {
         const auto l = static_cast<std::size_t>(std::countr_zero(a));
-        if (done.frame[l] / lanes == g) in_group |= std::uint64_t{1} << l;
+        if (done.frame[l] / lanes == g) in |= std::uint64_t{1} << l;
       }
-      left &= ~in_group;
-      const std::uint64_t* sent = w.codeword_masks.data() + g * n;
-      for (std::size_t v = 0; v < n; ++v) {
-        for (std::uint64_t x = (done.hard[v] ^ sent[v]) & in_group; x; x &= x - 1) {
-          const std::size_t f = done.frame[static_cast<std::size_t>(std::countr_zero(x))];
-          ++w.errors[2 * f];
-          w.errors[2 * f + 1] += is_info_[v];
-        }
+      left &= ~in;
+      sent[groups_done] = w.codeword_masks.data() + g * n;
+      in_group[groups_done] = in;
+    }
+    for (std::size_t v = 0; v < n; ++v) {
+      std::uint64_t expected = 0;
+      for (std::size_t i = 0; i < groups_done; ++i) expected |= sent[i][v] & in_group[i];
+      for (std::uint64_t x = (done.hard[v] ^ expected) & done.lanes; x; x &= x - 1) {
+        const std::size_t f = done.frame[static_cast<std::size_t>(std::countr_zero(x))];
+        ++w.errors[2 * f];
+        w.errors[2 * f + 1] += is_info_[v];
       }
-      for (std::uint64_t a = in_group; a; a &= a - 1) {
-        const auto l = static_cast<std::size_t>(std::countr_zero(a));
-        w.outcomes[done.frame[l]] = done.outcome[l];
-      }
+    }
+    for (std::uint64_t a = done.lanes; a; a &= a - 1) {
+      const auto l = static_cast<std::size_t>(std::countr_zero(a));
+      w.outcomes[done.frame[l]] = done.outcome[l];
     }
   });
   for (std::size_t f = 0; f < count; ++f) {
