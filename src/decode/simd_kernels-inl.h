@@ -202,6 +202,19 @@ struct Sweep {
   }
 
   // One pass over all checks: new check-to-variable messages and (layered) posteriors.
+  // A layered pass: with or without new frames (masked), the check state kept per edge or
+  // compressed.
+  template <bool kNarrow>
+  void Layered(bool masked, bool compressed, hn::Mask<D> stale, hn::Mask<D> frozen) const {
+    if (compressed) {
+      masked ? Checks<false, true, kNarrow, true>(stale, frozen)
+             : Checks<false, false, kNarrow, true>(stale, frozen);
+    } else {
+      masked ? Checks<false, true, kNarrow>(stale, frozen)
+             : Checks<false, false, kNarrow>(stale, frozen);
+    }
+  }
+
   // kCompressed: layered min-sum with compressed check state (LayeredArgs).
   template <bool kFlood, bool kMasked, bool kNarrow, bool kCompressed = false>
   void Checks(hn::Mask<D> stale, hn::Mask<D> frozen) const {
@@ -473,26 +486,15 @@ void Iterate(D d, const LayeredArgs<hn::TFromD<D>>& a, std::uint64_t fresh,
   const auto frozen = hn::LoadMaskBits(d, bytes);
   const bool masked = (fresh | frozen_lanes) != 0;
   if (!(std::is_floating_point_v<T> && a.flooding)) {
+    const bool compressed = a.check_magnitudes != nullptr;
     // Posteriors as wide as the lane need no upper clamp (float has none).
     if constexpr (!std::is_floating_point_v<T>) {
       if (a.posterior_limit < hwy::LimitsMax<T>()) {
-        if (a.check_magnitudes) {
-          masked ? sweep.template Checks<false, true, true, true>(stale, frozen)
-                 : sweep.template Checks<false, false, true, true>(stale, frozen);
-          return;
-        }
-        masked ? sweep.template Checks<false, true, true>(stale, frozen)
-               : sweep.template Checks<false, false, true>(stale, frozen);
+        sweep.template Layered<true>(masked, compressed, stale, frozen);
         return;
       }
     }
-    if (a.check_magnitudes) {
-      masked ? sweep.template Checks<false, true, false, true>(stale, frozen)
-             : sweep.template Checks<false, false, false, true>(stale, frozen);
-      return;
-    }
-    masked ? sweep.template Checks<false, true, false>(stale, frozen)
-           : sweep.template Checks<false, false, false>(stale, frozen);
+    sweep.template Layered<false>(masked, compressed, stale, frozen);
     return;
   }
   masked ? sweep.template Checks<true, true, false>(stale, frozen)
