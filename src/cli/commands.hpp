@@ -58,7 +58,7 @@ struct DecoderOptions {
   double alpha = 0.75;
   double beta = 0.5;
   int flip_threshold = 0;
-  std::string kernel = "reference";
+  std::string kernel = "auto";
   std::string quantize;
   std::string simd_target;
   CLI::Option* alpha_option = nullptr;

@@ -97,7 +97,7 @@ void run(const DecodeOptions& o) {
   OutputFile bits_out(o.output, o.strict), posterior_out(o.posterior, o.strict),
       report_out(o.report, o.strict);
   if (report_format == "csv")
-    report_out.write("frame,converged,iterations,syndrome_weight,changed_bits\n");
+    report_out.write("frame,converged,iterations,syndrome_weight,undecided_bits,changed_bits\n");
 
   const unsigned threads =
       o.threads ? o.threads : std::max(1u, std::thread::hardware_concurrency());
@@ -125,26 +125,29 @@ void run(const DecodeOptions& o) {
     std::string report;
     for (std::size_t f = 0; f < got; ++f) {
       const std::uint8_t* h = hard.data() + f * n;
-      if (o.codeword)
-        std::copy(h, h + n, selected.begin());
-      else {
-        for (std::size_t i = 0; i < encoder.k(); ++i) selected[i] = h[encoder.info_positions()[i]];
+      // An undecided bit (kUndecided) is written as 0; the report counts it.
+      if (o.codeword) {
+        for (std::size_t i = 0; i < n; ++i) selected[i] = h[i] & 1u;
+      } else {
+        for (std::size_t i = 0; i < encoder.k(); ++i)
+          selected[i] = h[encoder.info_positions()[i]] & 1u;
       }
       append_bits(text, selected, out_format);
       const FrameOutcome& r = outcomes[f];
       std::size_t changed = 0;
-      for (std::size_t i = 0; i < n; ++i) changed += h[i] != (llr[f * n + i] < 0 ? 1 : 0);
+      for (std::size_t i = 0; i < n; ++i) changed += h[i] != decide(llr[f * n + i]);
       failures += r.converged ? 0 : 1;
       iterations += static_cast<std::uint64_t>(r.iterations);
       if (report_out.enabled()) {
         report += report_format == "csv"
-                      ? fmt::format("{},{},{},{},{}\n", frames + f, r.converged ? 1 : 0,
-                                    r.iterations, r.syndrome_weight, changed)
+                      ? fmt::format("{},{},{},{},{},{}\n", frames + f, r.converged ? 1 : 0,
+                                    r.iterations, r.syndrome_weight, r.undecided, changed)
                       : fmt::format(
                             "{{\"frame\": {}, \"converged\": {}, \"iterations\": {}, "
-                            "\"syndrome_weight\": {}, "
+                            "\"syndrome_weight\": {}, \"undecided_bits\": {}, "
                             "\"changed_bits\": {}}}\n",
-                            frames + f, r.converged, r.iterations, r.syndrome_weight, changed);
+                            frames + f, r.converged, r.iterations, r.syndrome_weight, r.undecided,
+                            changed);
       }
     }
     bits_out.write(text);
@@ -231,8 +234,9 @@ void add_decode(CLI::App& app) {
   sub->add_option("--posterior", o->posterior,
                   "write posterior LLRs as float32 little-endian, n per frame");
   sub->add_option("--report", o->report,
-                  "per-frame report: frame, converged, iterations, syndrome weight, bits "
-                  "changed versus the channel's hard decisions");
+                  "per-frame report: frame, converged, iterations, syndrome weight, undecided "
+                  "bits (posterior exactly 0, written as 0), bits changed versus the channel's "
+                  "hard decisions");
   sub->add_option("--report-format", o->report_format,
                   "csv or jsonl (default: from the extension, else csv)")
       ->check(CLI::IsMember({"csv", "jsonl"}));

@@ -35,9 +35,10 @@ void DecoderOptions::add_to(CLI::App& sub) {
   group
       ->add_option(
           "--kernel", kernel,
-          "reference (scalar double precision, the definition) or simd (batched float32 or integer "
-          "lanes, one frame per lane; layered schedule)")
-      ->check(CLI::IsMember({"reference", "simd"}))
+          "auto (simd where it implements the algorithm and schedule, else reference), "
+          "reference (scalar double precision, the definition) or simd (batched float32 or "
+          "integer lanes, one frame per lane)")
+      ->check(CLI::IsMember({"auto", "reference", "simd"}))
       ->capture_default_str();
   group->add_option(
       "--quantize", quantize,
@@ -61,7 +62,7 @@ DecoderSettings DecoderOptions::settings() const {
   s.alpha = alpha;
   s.beta = beta;
   s.flip_threshold = flip_threshold;
-  s.kernel = kernel == "simd" ? Kernel::simd : Kernel::reference;
+  s.kernel = *parse_kernel(kernel);
   if (!quantize.empty()) {
     s.quantization = parse_quantization(quantize);
     if (!s.quantization)

@@ -4,11 +4,12 @@
 
 #include "commands.hpp"
 #include "tannery/error.hpp"
+#include "tannery/version.hpp"
 
 int main(int argc, char** argv) {
   CLI::App app{
       "tannery: design, inspect, decode and simulate error-correcting codes on Tanner graphs"};
-  app.set_version_flag("--version", "tannery " TANNERY_VERSION);
+  app.set_version_flag("--version", "tannery " + std::string(tannery::version()));
   app.require_subcommand(1);
   app.footer("Run 'tannery SUBCOMMAND --help' for the options and an example of each subcommand.");
   tannery::cli::add_inspect(app);

@@ -15,6 +15,7 @@
 #include "tannery/report/results.hpp"
 #include "tannery/report/scenario.hpp"
 #include "tannery/report/sha256.hpp"
+#include "tannery/version.hpp"
 
 namespace tannery::cli {
 
@@ -62,8 +63,7 @@ void apply_scenario(const Scenario& sc, SimulateOptions& o, const CLI::App& sub)
   if (!given("--alpha")) o.decoder.alpha = c.decoder.alpha;
   if (!given("--beta")) o.decoder.beta = c.decoder.beta;
   if (!given("--flip-threshold")) o.decoder.flip_threshold = c.decoder.flip_threshold;
-  if (!given("--kernel"))
-    o.decoder.kernel = c.decoder.kernel == Kernel::simd ? "simd" : "reference";
+  if (!given("--kernel")) o.decoder.kernel = kernel_name(c.decoder.kernel);
   if (!given("--quantize") && c.decoder.quantization)
     o.decoder.quantize = quantization_spec(*c.decoder.quantization);
   if (!given("--channel")) o.channel = channel_name(c.channel.kind);
@@ -249,7 +249,7 @@ void run(SimulateOptions o, const CLI::App& sub) {
   if (!o.replay.empty()) return replay(o, code, sim);
 
   RunRecord record;
-  record.tool_version = TANNERY_VERSION;
+  record.tool_version = std::string(version());
   record.created = utc_now();
   record.code = code_record(o.input.code, code, sim.encoder());
   if (!o.resume.empty() && record.code.matrix_sha256 != previous.code.matrix_sha256) {

@@ -44,6 +44,21 @@ Ensemble ensemble_of(const ThresholdOptions& o) {
   return Ensemble::from_code(degree_profile(o.input.load()));
 }
 
+// Decoder options that describe an implementation, not the ensemble's asymptotic decoder: density
+// evolution here follows unquantized messages, a flooding schedule and unbounded iterations, so
+// these are refused rather than printed as if applied.
+void refuse_implementation_options(const CLI::App& sub) {
+  for (const char* name : {"--quantize", "--schedule", "--iterations", "--kernel",
+                           "--no-early-stop", "--simd-target", "--flip-threshold"}) {
+    if (sub.get_option(name)->count() > 0) {
+      throw Error(fmt::format(
+          "threshold does not take {}: density evolution here models the unquantized decoder "
+          "(flooding, unlimited iterations, infinite length); drop the option",
+          name));
+    }
+  }
+}
+
 void run(const ThresholdOptions& o) {
   const Ensemble e = ensemble_of(o);
   e.validate();
@@ -138,7 +153,10 @@ void add_threshold(CLI::App& app) {
       ->capture_default_str();
   sub->add_flag("--json", o->json, "print one JSON object (threshold, ebn0_db, rate, gap_db, ...)");
   o->decoder.add_to(*sub);
-  sub->callback([o] { run(*o); });
+  sub->callback([o, sub] {
+    refuse_implementation_options(*sub);
+    run(*o);
+  });
 }
 
 }  // namespace tannery::cli

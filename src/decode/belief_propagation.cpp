@@ -53,12 +53,10 @@ class BeliefPropagation final : public Decoder {
         flooding_iteration();
       else
         layered_iteration();
-      for (std::size_t v = 0; v < code.n(); ++v) hard[v] = total_[v] < 0 ? 1 : 0;
-      outcome.iterations = it;
-      outcome.syndrome_weight = static_cast<std::uint32_t>(syndrome_weight(code, hard));
-      if (settings_.early_stop && outcome.syndrome_weight == 0) break;
+      for (std::size_t v = 0; v < code.n(); ++v) hard[v] = decide(total_[v]);
+      outcome = assess(code, hard, it);
+      if (settings_.early_stop && outcome.converged) break;
     }
-    outcome.converged = outcome.syndrome_weight == 0;
     if (!posterior.empty()) std::copy(total_.begin(), total_.end(), posterior.begin());
     return outcome;
   }

@@ -1,5 +1,7 @@
 // Hard-decision message passing for the BSC (Gallager's algorithm B): a variable tells a check
-// its channel bit unless at least `threshold` of its other checks say otherwise.
+// its channel bit unless at least `threshold` of its other checks say otherwise. A position
+// whose channel LLR is 0 (an erasure) has no channel bit to start from: its decisions are
+// guesses and it stays undecided (this decoder is for the BSC, not for erasures).
 #include <vector>
 
 #include "decoders.hpp"
@@ -33,7 +35,7 @@ class BitFlip final : public Decoder {
         std::size_t against = 0;  // checks that say the bit is not r
         for (std::uint32_t e : edges) against += c2v_[e] != r;
         // Decision: majority of the channel bit and all checks; a tie keeps the channel bit.
-        hard[v] = 2 * against > edges.size() ? r ^ 1 : r;
+        hard[v] = llr[v] == 0 ? kUndecided : (2 * against > edges.size() ? r ^ 1 : r);
         if (!posterior.empty()) {
           // Vote margin for 0 (channel counts one vote): a soft-looking summary, not an LLR.
           const double for_r = 1.0 + static_cast<double>(edges.size() - against);
@@ -49,11 +51,9 @@ class BitFlip final : public Decoder {
           v2c_[e] = others_against >= threshold && edges.size() > 1 ? r ^ 1 : r;
         }
       }
-      outcome.iterations = it;
-      outcome.syndrome_weight = static_cast<std::uint32_t>(syndrome_weight(code, hard));
-      if (settings_.early_stop && outcome.syndrome_weight == 0) break;
+      outcome = assess(code, hard, it);
+      if (settings_.early_stop && outcome.converged) break;
     }
-    outcome.converged = outcome.syndrome_weight == 0;
     return outcome;
   }
 

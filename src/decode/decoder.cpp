@@ -26,7 +26,49 @@ constexpr std::pair<Schedule, std::string_view> kSchedules[] = {
     {Schedule::layered, "layered"},
 };
 
+constexpr std::pair<Kernel, std::string_view> kKernels[] = {
+    {Kernel::automatic, "auto"},
+    {Kernel::reference, "reference"},
+    {Kernel::simd, "simd"},
+};
+
+std::size_t max_check_degree(const Code& code) {
+  std::size_t max_degree = 0;
+  for (std::size_t c = 0; c < code.m(); ++c)
+    max_degree = std::max(max_degree, code.check_degree(c));
+  return max_degree;
+}
+
+constexpr std::size_t kMaxSimdCheckDegree = 127;
+
 }  // namespace
+
+std::string_view kernel_name(Kernel k) {
+  for (auto [value, name] : kKernels) {
+    if (value == k) return name;
+  }
+  return "?";
+}
+std::optional<Kernel> parse_kernel(std::string_view name) {
+  for (auto [value, n] : kKernels) {
+    if (n == name) return value;
+  }
+  return std::nullopt;
+}
+
+bool simd_supports(const DecoderSettings& s, const Code& code) {
+  const bool algorithm_ok =
+      s.algorithm == Algorithm::sum_product || s.algorithm == Algorithm::min_sum ||
+      s.algorithm == Algorithm::normalized_min_sum || s.algorithm == Algorithm::offset_min_sum;
+  return algorithm_ok && (!s.quantization || s.schedule == Schedule::layered) &&
+         max_check_degree(code) <= kMaxSimdCheckDegree;
+}
+
+DecoderSettings resolve_kernel(DecoderSettings s, const Code& code) {
+  if (s.kernel == Kernel::automatic)
+    s.kernel = simd_supports(s, code) ? Kernel::simd : Kernel::reference;
+  return s;
+}
 
 std::string_view algorithm_name(Algorithm a) {
   for (auto [value, name] : kAlgorithms) {
@@ -90,12 +132,11 @@ void validate(const DecoderSettings& s, const Code& code) {
     if (!min_sum_family && s.algorithm != Algorithm::sum_product) {
       throw Error(fmt::format("no SIMD kernel for {}", algorithm_name(s.algorithm)));
     }
-    std::size_t max_degree = 0;
-    for (std::size_t c = 0; c < code.m(); ++c)
-      max_degree = std::max(max_degree, code.check_degree(c));
-    if (max_degree > 127)
-      throw Error(fmt::format(
-          "the batched decoders handle check degrees up to 127, this code has {}", max_degree));
+    const std::size_t max_degree = max_check_degree(code);
+    if (s.kernel == Kernel::simd && max_degree > kMaxSimdCheckDegree)
+      throw Error(
+          fmt::format("the batched decoders handle check degrees up to {}, this code has {}",
+                      kMaxSimdCheckDegree, max_degree));
   }
   if (s.algorithm == Algorithm::ml) {
     const std::size_t k = Encoder(code).k();
@@ -138,9 +179,18 @@ std::string describe(const DecoderSettings& s) {
                              : std::string(" threshold=majority");
   }
   if (s.quantization) text += fmt::format(" fixed-point {}", quantization_spec(*s.quantization));
-  if (s.kernel == Kernel::simd) text += " (SIMD)";
+  text += fmt::format(" ({} kernel)", kernel_name(s.kernel));
   return text + fmt::format(", {}, {} iterations{}", schedule_name(s.schedule), s.iterations,
                             s.early_stop ? ", early stop" : ", no early stop");
+}
+
+FrameOutcome assess(const Code& code, std::span<const std::uint8_t> hard, int iterations) {
+  FrameOutcome o;
+  o.iterations = iterations;
+  o.syndrome_weight = static_cast<std::uint32_t>(syndrome_weight(code, hard));
+  for (std::uint8_t h : hard) o.undecided += h == kUndecided;
+  o.converged = o.syndrome_weight == 0 && o.undecided == 0;
+  return o;
 }
 
 void Decoder::decode(std::span<const double> llr, std::span<std::uint8_t> hard,
@@ -173,7 +223,8 @@ void Decoder::decode_groups(std::size_t, const GroupFill&, const FramesDone&) {
   TANNERY_ASSERT(!"decode_groups called on a decoder without lane layout");
 }
 
-std::unique_ptr<Decoder> make_decoder(const Code& code, const DecoderSettings& settings) {
+std::unique_ptr<Decoder> make_decoder(const Code& code, const DecoderSettings& requested) {
+  const DecoderSettings settings = resolve_kernel(requested, code);
   validate(settings, code);
   if (settings.kernel == Kernel::simd) return detail::make_simd(code, settings);
   if (settings.quantization) return detail::make_fixed_point(code, settings);

@@ -77,12 +77,10 @@ class FixedPoint final : public Decoder {
           posterior_[vars[i]] = saturate(static_cast<std::int64_t>(t_[i]) + r, q_.posterior_bits);
         }
       }
-      for (std::size_t v = 0; v < code.n(); ++v) hard[v] = posterior_[v] < 0 ? 1 : 0;
-      outcome.iterations = it;
-      outcome.syndrome_weight = static_cast<std::uint32_t>(syndrome_weight(code, hard));
-      if (settings_.early_stop && outcome.syndrome_weight == 0) break;
+      for (std::size_t v = 0; v < code.n(); ++v) hard[v] = decide(posterior_[v]);
+      outcome = assess(code, hard, it);
+      if (settings_.early_stop && outcome.converged) break;
     }
-    outcome.converged = outcome.syndrome_weight == 0;
     if (!posterior.empty()) {
       for (std::size_t v = 0; v < code.n(); ++v)
         posterior[v] = std::ldexp(posterior_[v], -q_.fraction_bits);

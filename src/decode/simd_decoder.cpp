@@ -118,6 +118,7 @@ class Batched final : public Decoder {
       args_.v2c = v2c_.get();
     }
     weights_.resize(lanes_);
+    undecided_.resize(lanes_);
     args_.channel = channel_.get();
     args_.posterior = posterior_.get();
     args_.scratch = scratch_.get();
@@ -164,7 +165,7 @@ class Batched final : public Decoder {
         const auto l = static_cast<std::size_t>(std::countr_zero(a));
         const std::size_t f = done.frame[l];
         for (std::size_t v = 0; v < n; ++v) {
-          hard[f * n + v] = (done.hard[v] >> l) & 1u;
+          hard[f * n + v] = (done.undecided[v] >> l) & 1u ? kUndecided : (done.hard[v] >> l) & 1u;
           if (!posterior.empty())
             posterior[f * n + v] = static_cast<double>(posterior_[v * lanes_ + l]) * scale;
         }
@@ -190,6 +191,7 @@ class Batched final : public Decoder {
               channel_.get());
     start(args_);  // posteriors = channel, messages zero
     masks_.resize(n);
+    zeros_.resize(n);
     std::vector<const T*> refill_rows;  // one per group that gives frames this iteration
     std::vector<std::uint64_t> refill_lanes;
     while (active) {
@@ -199,8 +201,10 @@ class Batched final : public Decoder {
       for (std::uint64_t a = active; a; a &= a - 1)
         at_limit |= ++iterations[std::countr_zero(a)] == max_iterations;
       if (!settings_.early_stop && !at_limit) continue;
-      sign_masks(args_, masks_.data());
-      const std::uint64_t unsat = unsatisfied();
+      sign_masks(args_, masks_.data(), zeros_.data());
+      std::uint64_t undecided = 0;
+      for (std::uint64_t z : zeros_) undecided |= z;
+      const std::uint64_t unsat = unsatisfied() | undecided;
       std::uint64_t finished = settings_.early_stop ? active & ~unsat : 0;
       for (std::uint64_t a = active; a; a &= a - 1) {
         const int l = std::countr_zero(a);
@@ -208,6 +212,7 @@ class Batched final : public Decoder {
       }
       if (!finished) continue;
       if (finished & unsat) count_unsatisfied(finished & unsat);
+      if (finished & undecided) count_undecided(finished & undecided);
       refill_rows.clear();
       refill_lanes.clear();
       for (std::uint64_t a = finished; a; a &= a - 1) {
@@ -215,9 +220,10 @@ class Batched final : public Decoder {
         FrameOutcome& o = outcome[l];
         o.iterations = iterations[l];
         o.syndrome_weight = unsat & bit(l) ? static_cast<std::uint32_t>(weights_[l]) : 0;
-        o.converged = o.syndrome_weight == 0;
+        o.undecided = undecided & bit(l) ? static_cast<std::uint32_t>(undecided_[l]) : 0;
+        o.converged = o.syndrome_weight == 0 && o.undecided == 0;
       }
-      done(FinishedFrames{finished, frame_of, outcome, masks_});
+      done(FinishedFrames{finished, frame_of, outcome, masks_, zeros_});
       for (std::uint64_t a = finished; a; a &= a - 1) {
         const auto l = static_cast<std::size_t>(std::countr_zero(a));
         const std::size_t next = frame_of[l] + lanes_;
@@ -264,6 +270,14 @@ class Batched final : public Decoder {
     }
   }
 
+  // undecided_[l] = zero posteriors of lane l, for the lanes in `lanes`.
+  void count_undecided(std::uint64_t lanes) {
+    for (std::uint64_t a = lanes; a; a &= a - 1) undecided_[std::countr_zero(a)] = 0;
+    for (std::uint64_t z : zeros_) {
+      for (std::uint64_t a = z & lanes; a; a &= a - 1) ++undecided_[std::countr_zero(a)];
+    }
+  }
+
   static std::uint64_t bit(std::size_t l) noexcept { return std::uint64_t{1} << l; }
   std::uint64_t all_lanes() const noexcept {
     return lanes_ >= 64 ? ~std::uint64_t{0} : (std::uint64_t{1} << lanes_) - 1;
@@ -274,9 +288,9 @@ class Batched final : public Decoder {
   std::vector<std::uint32_t> check_start_, edge_var_, var_start_, var_edge_;
   hwy::AlignedFreeUniquePtr<T[]> channel_, posterior_, messages_, check_magnitudes_, scratch_, v2c_;
   hwy::AlignedFreeUniquePtr<std::uint8_t[]> edge_marks_;
-  std::vector<std::int32_t> weights_;
+  std::vector<std::int32_t> weights_, undecided_;
   std::vector<T> groups_;  // channel values of the frames being decoded, in groups
-  std::vector<std::uint64_t> masks_;
+  std::vector<std::uint64_t> masks_, zeros_;  // per variable: negative, zero posterior lanes
   std::vector<double> group_llr_;
   LayeredArgs<T> args_;
 };

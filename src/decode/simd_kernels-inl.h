@@ -397,10 +397,24 @@ struct Sweep {
   // tanh(|t|/2) = (1 - e) / (1 + e); the others' product is N/D with N, D the products of
   // numerators and denominators (prefix times suffix), and 2 atanh(N/D) = log((D + N)/(D - N)),
   // capped at log(2^24) (the float32 resolution of a product near 1; messages near +-16.6).
+  // A check of degree 2 passes each input on to the other edge unchanged (the exact rule), so
+  // opposite inputs still cancel to exactly 0 (an undecided bit) as they do in exact arithmetic.
   template <bool kFlood, bool kMasked, std::uint32_t kDeg>
   HWY_INLINE void SumProductCheck(std::uint32_t b, hn::Mask<D> stale, hn::Mask<D> frozen,
                                   std::uint32_t deg = kDeg) const {
     const D d;
+    if constexpr (kDeg == 2) {
+      const V limit = hn::Set(d, T(16.635532333438686));  // log(2^24), the cap of the general case
+      T* const row[2] = {post + edge_var[b] * L, post + edge_var[b + 1] * L};
+      const V t[2] = {Extrinsic<kFlood, kMasked>(b, row[0], stale),
+                      Extrinsic<kFlood, kMasked>(b + 1, row[1], stale)};
+      for (std::uint32_t i = 0; i < 2; ++i) {
+        const V r = hn::Min(hn::Max(t[1 - i], hn::Neg(limit)), limit);
+        hn::Store(r, d, msg + (b + i) * L);
+        if constexpr (!kFlood) Keep<kMasked>(row[i], hn::Add(t[i], r), frozen);
+      }
+      return;
+    }
     const V one = hn::Set(d, T(1)), cap = hn::Set(d, T(1 << 24));
     const V sign_bit = hn::Set(d, T(-0.0));
     // Per edge: t, numerator, denominator and the products of the earlier edges' ones.
@@ -547,14 +561,20 @@ void Refill(D d, const LayeredArgs<hn::TFromD<D>>& a, const hn::TFromD<D>* const
   }
 }
 
-// Hard decisions: bit l of masks[v] set where lane l of posterior v is negative.
+// Hard decisions: bit l of masks[v] set where lane l of posterior v is negative, of zeros[v]
+// where it is zero (undecided; -0.0 too).
 template <class D>
-void SignMasks(D d, const LayeredArgs<hn::TFromD<D>>& a, std::uint64_t* masks) {
+void SignMasks(D d, const LayeredArgs<hn::TFromD<D>>& a, std::uint64_t* masks,
+               std::uint64_t* zeros) {
   constexpr std::size_t L = Sweep<D>::L;
   for (std::size_t v = 0; v < a.n; ++v) {
+    const auto x = hn::Load(d, a.posterior + v * L);
     std::uint8_t bytes[8] = {};
-    hn::StoreMaskBits(d, hn::Lt(hn::Load(d, a.posterior + v * L), hn::Zero(d)), bytes);
+    hn::StoreMaskBits(d, hn::Lt(x, hn::Zero(d)), bytes);
     std::memcpy(&masks[v], bytes, 8);
+    std::uint8_t zero_bytes[8] = {};
+    hn::StoreMaskBits(d, hn::Eq(x, hn::Zero(d)), zero_bytes);
+    std::memcpy(&zeros[v], zero_bytes, 8);
   }
 }
 
@@ -597,8 +617,8 @@ void Channel(const double* llr, std::size_t count, double scale, double clip, T*
                     std::size_t count) {                                                        \
     Refill(hn::ScalableTag<T>(), a, rows, lanes, count);                                        \
   }                                                                                             \
-  void SignMasks##Type(const LayeredArgs<T>& a, std::uint64_t* masks) {                         \
-    SignMasks(hn::ScalableTag<T>(), a, masks);                                                  \
+  void SignMasks##Type(const LayeredArgs<T>& a, std::uint64_t* masks, std::uint64_t* zeros) {   \
+    SignMasks(hn::ScalableTag<T>(), a, masks, zeros);                                           \
   }                                                                                             \
   void Channel##Type(const double* llr, std::size_t count, double scale, double clip, T* out) { \
     Channel(llr, count, scale, clip, out);                                                      \
@@ -631,8 +651,8 @@ HWY_AFTER_NAMESPACE();
               std::size_t count) {                                                               \
     HWY_DYNAMIC_DISPATCH(Refill##Type)(a, rows, lanes, count);                                   \
   }                                                                                              \
-  void sign_masks(const LayeredArgs<T>& a, std::uint64_t* masks) {                               \
-    HWY_DYNAMIC_DISPATCH(SignMasks##Type)(a, masks);                                             \
+  void sign_masks(const LayeredArgs<T>& a, std::uint64_t* masks, std::uint64_t* zeros) {         \
+    HWY_DYNAMIC_DISPATCH(SignMasks##Type)(a, masks, zeros);                                      \
   }                                                                                              \
   void channel_values(const double* llr, std::size_t count, double scale, double clip, T* out) { \
     HWY_DYNAMIC_DISPATCH(Channel##Type)(llr, count, scale, clip, out);                           \

@@ -55,18 +55,18 @@ constexpr std::size_t mask_bytes(std::size_t lanes) {
 // `fresh` were given a new frame since (posterior = channel, messages count as zero), lanes in
 // `frozen` keep their posteriors. refill: for each k < count (1 to 64), posteriors (flooding:
 // also channel values) of the lanes in lanes[k] from rows[k] (n x lanes, the same layout).
-// sign_masks: bit l of masks[v] set where lane l of posterior v is negative (the hard decisions,
-// from which the caller computes syndromes). channel_values:
-// count LLRs in lane layout (count: a multiple of 8) to channel values: float32 clipped at +-clip
-// (scale 1), or fixed point round(llr * scale), ties to even, saturated at +-clip (the rule of
-// LlrQuantizer).
+// sign_masks: bit l of masks[v] set where lane l of posterior v is negative, of zeros[v] where
+// it is zero (the hard decisions and the undecided bits, from which the caller computes syndromes).
+// channel_values: count LLRs in lane layout (count: a multiple of 8) to channel values: float32
+// clipped at +-clip (scale 1), or fixed point round(llr * scale), ties to even, saturated at +-clip
+// (the rule of LlrQuantizer).
 #define TANNERY_BATCH_KERNELS(T)                                                            \
   std::size_t lane_count(T);                                                                \
   void start(const LayeredArgs<T>& args);                                                   \
   void iterate(const LayeredArgs<T>& args, std::uint64_t fresh, std::uint64_t frozen);      \
   void refill(const LayeredArgs<T>& args, const T* const* rows, const std::uint64_t* lanes, \
               std::size_t count);                                                           \
-  void sign_masks(const LayeredArgs<T>& args, std::uint64_t* masks);                        \
+  void sign_masks(const LayeredArgs<T>& args, std::uint64_t* masks, std::uint64_t* zeros);  \
   void channel_values(const double* llr, std::size_t count, double scale, double clip, T* out);
 TANNERY_BATCH_KERNELS(float)
 TANNERY_BATCH_KERNELS(std::int16_t)

@@ -4,6 +4,7 @@
 #include <unistd.h>
 #include <algorithm>
 #include <cstdio>
+#include <cstdlib>
 #include <filesystem>
 #include <fstream>
 #include <iostream>
@@ -216,6 +217,18 @@ void write_alist(const Code& code, std::ostream& out) {
 
 // ---- Matrix Market ----------------------------------------------------------------------------
 
+// A Matrix Market value as a binary entry: any integer or real spelling of 0 or 1 (scipy writes
+// "1.000000000000000e+00" for float matrices); any other value is an error naming the line.
+bool mtx_binary_value(const TextReader& in, const Line& line, std::string_view token) {
+  const std::string text(token);
+  char* end = nullptr;
+  const double v = std::strtod(text.c_str(), &end);
+  const bool number = !text.empty() && end == text.c_str() + text.size();
+  if (number && v == 1) return true;
+  if (number && v == 0) return false;
+  in.fail(line.number, fmt::format("value {} is not a binary entry (0 or 1)", quote(token)));
+}
+
 Code read_mtx(TextReader& in, std::string_view text) {
   Line line;
   // The banner starts with '%', the comment character, so read it before the tokenizer.
@@ -229,25 +242,49 @@ Code read_mtx(TextReader& in, std::string_view text) {
   }
   if (tag != "%%MatrixMarket" || object != "matrix")
     in.fail(1, "expected a '%%MatrixMarket matrix' banner");
-  if (layout != "coordinate")
-    in.fail(1, fmt::format("Matrix Market layout '{}' is not supported (use coordinate)", layout));
-  if (field != "pattern" && field != "integer" && field != "real") {
-    in.fail(1,
-            fmt::format("Matrix Market field '{}' is not supported (use pattern, integer or real)",
-                        field));
+  if (layout != "coordinate" && layout != "array") {
+    in.fail(1, fmt::format("Matrix Market layout '{}' is not supported (use coordinate or array)",
+                           layout));
+  }
+  const bool array = layout == "array";
+  if (field != "integer" && field != "real" && (array || field != "pattern")) {
+    in.fail(1, fmt::format("Matrix Market field '{}' is not supported (use {}integer or real)",
+                           field, array ? "" : "pattern, "));
   }
   if (symmetry != "general")
     in.fail(1, fmt::format("Matrix Market symmetry '{}' is not supported (use general)", symmetry));
   if (!in.next(line)) in.fail(in.line_number(), "Matrix Market: file ends before the size line");
-  if (line.tokens.size() != 3)
-    in.fail(line.number, "Matrix Market: expected 'rows columns entries'");
+  if (line.tokens.size() != (array ? 2u : 3u)) {
+    in.fail(line.number, array ? "Matrix Market: expected 'rows columns'"
+                               : "Matrix Market: expected 'rows columns entries'");
+  }
   const auto m = static_cast<std::size_t>(in.integer_in(line, line.tokens[0], 0, kMaxDim, "rows"));
   const auto n =
       static_cast<std::size_t>(in.integer_in(line, line.tokens[1], 0, kMaxDim, "columns"));
+  std::vector<std::vector<std::uint32_t>> checks(m);
+  if (array) {
+    // Every entry, column after column (the format's column-major order), one or more per line.
+    const std::size_t total = m * n;
+    std::size_t at = 0;
+    while (in.next(line)) {
+      for (std::string_view token : line.tokens) {
+        if (at == total)
+          in.fail(line.number, fmt::format("more values than the {} x {} declared", m, n));
+        if (mtx_binary_value(in, line, token))
+          checks[at % m].push_back(static_cast<std::uint32_t>(at / m));
+        ++at;
+      }
+    }
+    if (at != total) {
+      in.fail(in.line_number(),
+              fmt::format("size line declares {} x {} = {} values but the file has {}", m, n, total,
+                          at));
+    }
+    return Code::from_checks(n, checks);
+  }
   const auto nnz = static_cast<std::size_t>(
       in.integer_in(line, line.tokens[2], 0, std::int64_t{1} << 31, "entries"));
   const std::size_t want = field == "pattern" ? 2 : 3;
-  std::vector<std::vector<std::uint32_t>> checks(m);
   std::map<std::pair<std::uint32_t, std::uint32_t>, std::size_t> seen;
   std::size_t entries = 0;
   while (in.next(line)) {
@@ -261,14 +298,7 @@ Code read_mtx(TextReader& in, std::string_view text) {
         in.integer_in(line, line.tokens[0], 1, static_cast<std::int64_t>(m), "row") - 1);
     const auto c = static_cast<std::uint32_t>(
         in.integer_in(line, line.tokens[1], 1, static_cast<std::int64_t>(n), "column") - 1);
-    if (want == 3) {
-      const std::string_view value = line.tokens[2];
-      const bool one = value == "1" || value == "1.0" || value == "1.";
-      const bool zero = value == "0" || value == "0.0" || value == "0.";
-      if (!one && !zero)
-        in.fail(line.number, fmt::format("value {} is not a binary entry (0 or 1)", quote(value)));
-      if (zero) continue;
-    }
+    if (want == 3 && !mtx_binary_value(in, line, line.tokens[2])) continue;
     auto [it, fresh] = seen.emplace(std::pair{r, c}, line.number);
     if (!fresh) {
       in.fail(line.number,

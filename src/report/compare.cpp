@@ -90,12 +90,42 @@ std::optional<double> fer_crossing(const std::vector<PointResult>& points, doubl
   return std::nullopt;
 }
 
+namespace {
+
+// One-sided Cochran-Mantel-Haenszel test over 2x2 tables (errors/frames of the current and the
+// reference run per point): is the current run's error probability larger at the points taken
+// together? A normal approximation (Mantel and Haenszel 1959, from memory); 1 when no point has
+// variance.
+double mantel_haenszel_p(const std::vector<PointComparison>& points) {
+  double excess = 0, variance = 0;
+  for (const auto& pc : points) {
+    const double a = static_cast<double>(pc.current.frame_errors);
+    const double n1 = static_cast<double>(pc.current.frames),
+                 n2 = static_cast<double>(pc.reference.frames);
+    const double m1 = a + static_cast<double>(pc.reference.frame_errors), total = n1 + n2;
+    if (total < 2) continue;
+    excess += a - n1 * m1 / total;
+    variance += n1 * n2 * m1 * (total - m1) / (total * total * (total - 1));
+  }
+  if (variance <= 0) return excess > 0 ? 0.0 : 1.0;
+  return normal_tail(excess / std::sqrt(variance));
+}
+
+}  // namespace
+
 Comparison compare_runs(const RunRecord& cur, const RunRecord& ref, const CompareOptions& o) {
   if (cur.config.channel.kind != ref.config.channel.kind ||
       cur.config.channel.measure != ref.config.channel.measure) {
     throw Error("the two runs sweep different channel parameters; nothing to compare");
   }
+  if (!cur.code.matrix_sha256.empty() && !ref.code.matrix_sha256.empty() &&
+      cur.code.matrix_sha256 != ref.code.matrix_sha256) {
+    throw Error(fmt::format(
+        "the two runs simulate different codes (matrix SHA-256 {}... vs {}...); nothing to compare",
+        cur.code.matrix_sha256.substr(0, 12), ref.code.matrix_sha256.substr(0, 12)));
+  }
   Comparison c;
+  c.unit = cur.config.channel.kind == ChannelKind::awgn ? "dB" : parameter_key(cur.config.channel);
   const std::string differences = setting_differences(cur, ref);
   if (!differences.empty()) c.warnings.push_back("settings differ: " + differences);
   for (const auto& p : cur.points) {
@@ -119,9 +149,10 @@ Comparison compare_runs(const RunRecord& cur, const RunRecord& ref, const Compar
   }
   if (c.points.empty()) throw Error("the two runs have no sweep point in common");
 
-  const bool same_seed = cur.config.seed == ref.config.seed &&
-                         cur.config.all_zero == ref.config.all_zero &&
-                         cur.config.chunk_frames == ref.config.chunk_frames;
+  // Frames depend only on (seed, point, frame), not on the chunk size: the same seed and data
+  // mode mean the same frames.
+  const bool same_seed =
+      cur.config.seed == ref.config.seed && cur.config.all_zero == ref.config.all_zero;
   const bool pairable =
       same_seed && std::all_of(c.points.begin(), c.points.end(), [](const PointComparison& p) {
         return has_all_failures(p.current) && has_all_failures(p.reference);
@@ -134,10 +165,13 @@ Comparison compare_runs(const RunRecord& cur, const RunRecord& ref, const Compar
   }
   if (c.mode == CompareMode::paired && !pairable) {
     throw Error(
-        "a paired comparison needs the same seed and chunk size and complete failed-frame lists in "
+        "a paired comparison needs the same seed and data mode and complete failed-frame lists in "
         "both files");
   }
-  c.level = (1 - o.confidence) / static_cast<double>(2 * c.points.size());
+  // Two tests per point and, with more than one point, one over all points together.
+  const bool combined = c.mode != CompareMode::exact && c.points.size() > 1;
+  c.tests = 2 * c.points.size() + (combined ? 1 : 0);
+  c.level = (1 - o.confidence) / static_cast<double>(c.tests);
   for (auto& pc : c.points) {
     const PointResult &p = pc.current, &r = pc.reference;
     pc.p_ber = ber_p(p, r);
@@ -146,8 +180,11 @@ Comparison compare_runs(const RunRecord& cur, const RunRecord& ref, const Compar
       const bool equal = p.frames == r.frames && p.frame_errors == r.frame_errors &&
                          p.bit_errors == r.bit_errors &&
                          p.iteration_histogram == r.iteration_histogram;
-      pc.regression = !equal;
-      pc.note = equal ? "identical counts" : "counts differ from the reference";
+      // The same frames decoded twice: any higher error rate is a real loss, not noise.
+      const bool worse = p.fer() > r.fer() || p.ber() > r.ber();
+      pc.regression = !equal && worse;
+      pc.note = equal ? "identical counts"
+                      : (worse ? "counts differ (worse)" : "counts differ (better or equal rates)");
       continue;
     }
     if (c.mode == CompareMode::paired) {
@@ -174,21 +211,60 @@ Comparison compare_runs(const RunRecord& cur, const RunRecord& ref, const Compar
     pc.note = pc.regression ? (pc.p_fer < c.level ? "FER worse" : "BER worse")
                             : "no evidence of a regression";
   }
+  if (combined) {
+    if (c.mode == CompareMode::paired) {
+      c.combined_test = "paired McNemar over all points";
+      std::uint64_t a = 0, b = 0;
+      for (const auto& pc : c.points) a += pc.only_current, b += pc.only_reference;
+      c.p_combined = binomial_half_upper_p(a, a + b);
+    } else {
+      c.combined_test = "Cochran-Mantel-Haenszel over all points";
+      c.p_combined = mantel_haenszel_p(c.points);
+    }
+  }
   if (o.tolerance) {
+    // The tolerance alone decides; the point tests are shown for information.
+    for (auto& pc : c.points) pc.regression = false;
     const bool higher_better = cur.config.channel.kind == ChannelKind::awgn;
+    const std::string unit = c.unit == "dB" ? " dB" : "";
     c.current_crossing = fer_crossing(cur.points, o.at_fer, higher_better);
     c.reference_crossing = fer_crossing(ref.points, o.at_fer, higher_better);
-    if (!c.current_crossing || !c.reference_crossing) {
+    if (!c.reference_crossing) {
       throw Error(fmt::format(
-          "cannot apply the tolerance: the {} curve does not cross FER {:g} between its points",
-          c.current_crossing ? "reference" : "current", o.at_fer));
+          "cannot apply the tolerance: the reference curve does not cross FER {:g} between its "
+          "points",
+          o.at_fer));
     }
-    c.shift = higher_better ? *c.current_crossing - *c.reference_crossing
-                            : *c.reference_crossing - *c.current_crossing;
-    c.regression = *c.shift > *o.tolerance;
-    c.reasons.push_back(fmt::format(
-        "at FER {:g} the current curve is {:+.4f} behind the reference (tolerance {:g})", o.at_fer,
-        *c.shift, *o.tolerance));
+    if (!c.current_crossing) {
+      const bool never_reaches = std::all_of(cur.points.begin(), cur.points.end(),
+                                             [&](const auto& p) { return p.fer() >= o.at_fer; });
+      const bool always_below = std::all_of(cur.points.begin(), cur.points.end(),
+                                            [&](const auto& p) { return p.fer() < o.at_fer; });
+      if (never_reaches) {
+        c.regression = true;
+        c.reasons.push_back(
+            fmt::format("the current curve never reaches FER {:g} in its sweep (the reference does "
+                        "at {:.4f}{})",
+                        o.at_fer, *c.reference_crossing, unit));
+      } else if (always_below) {
+        c.reasons.push_back(fmt::format(
+            "the current curve is below FER {:g} at every point (the reference reaches it at "
+            "{:.4f}{})",
+            o.at_fer, *c.reference_crossing, unit));
+      } else {
+        throw Error(fmt::format(
+            "cannot apply the tolerance: the current curve does not cross FER {:g} once between "
+            "its points",
+            o.at_fer));
+      }
+    } else {
+      c.shift = higher_better ? *c.current_crossing - *c.reference_crossing
+                              : *c.reference_crossing - *c.current_crossing;
+      c.regression = *c.shift > *o.tolerance;
+      c.reasons.push_back(fmt::format(
+          "at FER {:g} the current curve is {:+.4f}{} behind the reference (tolerance {:g}{})",
+          o.at_fer, *c.shift, unit, *o.tolerance, unit));
+    }
   } else {
     for (const auto& pc : c.points) {
       if (pc.regression) {
@@ -196,6 +272,17 @@ Comparison compare_runs(const RunRecord& cur, const RunRecord& ref, const Compar
         c.reasons.push_back(fmt::format("point {:g}: {}", pc.parameter, pc.note));
       }
     }
+    if (c.p_combined && *c.p_combined < c.level) {
+      c.regression = true;
+      c.reasons.push_back(fmt::format("all points together: worse ({}, p = {:.3g})",
+                                      c.combined_test, *c.p_combined));
+    }
+  }
+  // A point the reference has and the current run lacks was not checked: never a pass.
+  for (double p : c.only_reference) {
+    c.regression = true;
+    c.reasons.push_back(
+        fmt::format("point {:g} of the reference is missing from the current run", p));
   }
   return c;
 }
@@ -212,7 +299,7 @@ std::string comparison_text(const Comparison& c, const ChannelSpec& channel,
           ? "counts must match"
           : (c.mode == CompareMode::paired ? "McNemar on discordant frames"
                                            : "Fisher exact on FER, clustered z on BER"),
-      c.level, o.confidence * 100, 2 * c.points.size());
+      c.level, o.confidence * 100, c.tests);
   out += fmt::format("{:>9}  {:>31}  {:>31}  {:>16}  {:>9}  {:>9}  {}\n",
                      parameter_heading(channel), "current FER [interval]",
                      "reference FER [interval]", "discordant c/r", "p(FER)", "p(BER)", "verdict");
@@ -228,7 +315,12 @@ std::string comparison_text(const Comparison& c, const ChannelSpec& channel,
         "{:>9.3g}  {}\n",
         pc.parameter, pc.current.fer(), a.fer.low, a.fer.high, pc.reference.fer(), b.fer.low,
         b.fer.high, discordant, pc.p_fer, pc.p_ber,
-        pc.regression ? "REGRESSION: " + pc.note : pc.note);
+        o.tolerance ? pc.note + " (not used: tolerance mode)"
+                    : (pc.regression ? "REGRESSION: " + pc.note : pc.note));
+  }
+  if (c.p_combined) {
+    out += fmt::format("all points: {}, p = {:.3g}{}\n", c.combined_test, *c.p_combined,
+                       o.tolerance ? " (not used: tolerance mode)" : "");
   }
   for (double p : c.only_current) out += fmt::format("{:>9.4g}  only in the current run\n", p);
   for (double p : c.only_reference) out += fmt::format("{:>9.4g}  only in the reference\n", p);
@@ -247,6 +339,8 @@ std::string comparison_json(const Comparison& c, const CompareOptions& o) {
   j["reasons"] = c.reasons;
   j["only_current"] = c.only_current;
   j["only_reference"] = c.only_reference;
+  j["tests"] = c.tests;
+  if (c.p_combined) j["combined"] = {{"test", c.combined_test}, {"p", *c.p_combined}};
   j["points"] = nlohmann::json::array();
   for (const auto& pc : c.points) {
     j["points"].push_back({{"parameter", pc.parameter},
@@ -266,6 +360,7 @@ std::string comparison_json(const Comparison& c, const CompareOptions& o) {
   if (c.shift) {
     j["tolerance"] = {{"at_fer", o.at_fer},
                       {"allowed", *o.tolerance},
+                      {"unit", c.unit},
                       {"shift", *c.shift},
                       {"current_crossing", *c.current_crossing},
                       {"reference_crossing", *c.reference_crossing}};

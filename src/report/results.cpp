@@ -144,7 +144,7 @@ std::string results_json(const RunRecord& run) {
       {"alpha", c.decoder.alpha},
       {"beta", c.decoder.beta},
       {"flip_threshold", c.decoder.flip_threshold},
-      {"kernel", c.decoder.kernel == Kernel::simd ? "simd" : "reference"},
+      {"kernel", kernel_name(c.decoder.kernel)},
       {"quantize",
        c.decoder.quantization ? json(quantization_spec(*c.decoder.quantization)) : json(nullptr)},
       {"description", describe(c.decoder)}};
@@ -237,9 +237,9 @@ RunRecord parse_results(const json& j, const std::string& source) {
   // Files written before the batched kernels existed have no "kernel": the reference decoders.
   const std::string kernel =
       dec.contains("kernel") ? get<std::string>(dec, "kernel", source, "decoder") : "reference";
-  if (kernel != "simd" && kernel != "reference")
-    throw Error(fmt::format("{}: unknown decoder kernel '{}'", source, kernel));
-  c.decoder.kernel = kernel == "simd" ? Kernel::simd : Kernel::reference;
+  const auto parsed = parse_kernel(kernel);
+  if (!parsed) throw Error(fmt::format("{}: unknown decoder kernel '{}'", source, kernel));
+  c.decoder.kernel = *parsed;
   if (dec.contains("quantize") && !dec["quantize"].is_null()) {
     c.decoder.quantization =
         parse_quantization(get<std::string>(dec, "quantize", source, "decoder"));

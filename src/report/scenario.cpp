@@ -115,11 +115,11 @@ Scenario read_scenario(const std::string& path) {
     r.get(d, "alpha", c.decoder.alpha);
     r.get(d, "beta", c.decoder.beta);
     r.get(d, "flip_threshold", c.decoder.flip_threshold);
-    std::string kernel = "reference", quantize;
+    std::string kernel = "auto", quantize;
     r.get(d, "kernel", kernel);
-    if (kernel != "reference" && kernel != "simd")
-      r.fail(r.node(d, "kernel"), "kernel must be \"reference\" or \"simd\"");
-    c.decoder.kernel = kernel == "simd" ? Kernel::simd : Kernel::reference;
+    const auto parsed = parse_kernel(kernel);
+    if (!parsed) r.fail(r.node(d, "kernel"), "kernel must be \"auto\", \"reference\" or \"simd\"");
+    c.decoder.kernel = parsed.value_or(Kernel::automatic);
     r.get(d, "quantize", quantize);
     if (!quantize.empty()) {
       c.decoder.quantization = parse_quantization(quantize);

@@ -64,6 +64,7 @@ struct Simulator::Worker {
 Simulator::Simulator(const Code& code, SimulationConfig config)
     : code_(code), config_(std::move(config)), encoder_(code), is_info_(code.n(), 0) {
   for (std::uint32_t p : encoder_.info_positions()) is_info_[p] = 1;
+  config_.decoder = resolve_kernel(config_.decoder, code_);
   validate(config_.decoder, code_);
   if (config_.sweep.empty()) throw Error("the sweep has no points");
   for (double p : config_.sweep) check_channel_parameter(config_.channel.kind, p);
@@ -200,7 +201,9 @@ void Simulator::run_lanes(Worker& w, std::size_t index, const ChannelPoint& chan
     for (std::size_t v = 0; v < n; ++v) {
       std::uint64_t expected = 0;
       for (std::size_t i = 0; i < groups_done; ++i) expected |= sent[i][v] & in_group[i];
-      for (std::uint64_t x = (done.hard[v] ^ expected) & done.lanes; x; x &= x - 1) {
+      // An undecided bit is an error whatever was sent.
+      const std::uint64_t wrong = (done.hard[v] ^ expected) | done.undecided[v];
+      for (std::uint64_t x = wrong & done.lanes; x; x &= x - 1) {
         const std::size_t f = done.frame[static_cast<std::size_t>(std::countr_zero(x))];
         ++w.errors[2 * f];
         w.errors[2 * f + 1] += is_info_[v];
@@ -402,7 +405,7 @@ FrameData Simulator::replay(std::size_t point, std::uint64_t frame) const {
 
 std::uint32_t default_chunk_frames(const Code& code, const DecoderSettings& decoder) {
   std::uint32_t frames = 64;
-  if (decoder.kernel == Kernel::simd) {
+  if (resolve_kernel(decoder, code).kernel == Kernel::simd) {
     const std::size_t budget = (std::size_t{16} << 20) / sizeof(float);  // channel values
     while (frames < 1024 && 2 * frames * std::max<std::size_t>(code.n(), 1) <= budget) frames *= 2;
   }

@@ -2,7 +2,8 @@
 . "$(dirname "$0")/lib.sh"
 SIMS="$2"
 cd "$WORK"
-Q=(--code qc-rate-half-z54 --plot "" --quiet --frame-errors 1000000)
+# The scalar reference decoder, as in the README's figures of this demonstration.
+Q=(--code qc-rate-half-z54 --plot "" --quiet --frame-errors 1000000 --kernel reference)
 
 # A deliberately degraded decoder: plain min-sum against the sum-product reference, same seed.
 "$T" simulate --scenario "$SIMS/qc-sum-product.toml" --algorithm min-sum --output ms.json --plot "" --quiet || fail "min-sum run"

@@ -21,6 +21,12 @@ expect_exit 2 "$T" threshold --regular 3,6 --code hamming-7-4
 expect_in "exactly one of" "$WORK/err"
 expect_exit 2 "$T" threshold --lambda 2:0.5 --rho 6:1
 expect_in "lambda coefficients sum to 0.5" "$WORK/err"
+# Options of a decoder implementation are refused, never printed as if applied.
+for opt in "--quantize 6.2" "--schedule layered" "--iterations 10" "--kernel simd" "--no-early-stop"; do
+  # shellcheck disable=SC2086
+  expect_exit 2 "$T" threshold --regular 3,6 --algorithm min-sum $opt
+  expect_in "threshold does not take ${opt%% *}" "$WORK/err"
+done
 
 expect_exit 0 "$T" construct peg --length 504 --rate 0.5 --seed 4 -o peg.alist
 expect_in "girth = 8" "$WORK/err"

@@ -22,7 +22,9 @@ head -1 one.csv | grep -q "^parameter,frames,frame_errors,bit_errors,bits,fer,be
 import json, sys
 j = json.load(open(sys.argv[1]))
 assert j["format"] == "tannery-results" and j["version"] == 1
-assert len(j["code"]["sha256"]) == 64 and j["run"]["seed"] == 1 and j["run"]["chunk_frames"] == 64
+# min-sum runs on the SIMD kernel by default, in chunks of 1024 frames for this short code
+assert len(j["code"]["sha256"]) == 64 and j["run"]["seed"] == 1 and j["run"]["chunk_frames"] == 1024
+assert j["decoder"]["kernel"] == "simd", j["decoder"]
 for p in j["points"]:
     for k in ["parameter", "frames", "frame_errors", "bit_errors", "bits", "fer", "ber", "fer_low", "fer_high",
               "mean_iterations"]:
@@ -44,7 +46,8 @@ for target in $TARGETS; do
 done
 
 # Interrupt with SIGINT part-way, then resume: the same counts as an uninterrupted run.
-RESUME=(--code qc-rate-half-z54 --algorithm sum-product --sweep 1.25,1.75 --frame-errors 400 --max-frames 20000 --plot "")
+# The reference kernel: slow enough that the run is still going when the signal arrives.
+RESUME=(--code qc-rate-half-z54 --algorithm sum-product --kernel reference --sweep 1.25,1.75 --frame-errors 400 --max-frames 20000 --plot "")
 "$T" simulate "${RESUME[@]}" --output full.json --quiet || fail "full run"
 # A background job of a non-interactive shell starts with SIGINT ignored; tannery installs its
 # own handler, so the signal still reaches it.

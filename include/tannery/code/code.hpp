@@ -79,8 +79,8 @@ class Code {
   std::optional<QuasiCyclic> qc_;
 };
 
-// Syndrome weight of a hard-decision word (one byte per bit, 0 or 1): the number of
-// unsatisfied checks. O(E).
+// Syndrome weight of a hard-decision word (one byte per bit, its lowest bit the value): the
+// number of unsatisfied checks. O(E).
 std::size_t syndrome_weight(const Code& code, std::span<const std::uint8_t> word);
 
 }  // namespace tannery

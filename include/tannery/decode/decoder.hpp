@@ -45,9 +45,12 @@ struct Quantization {
 std::optional<Quantization> parse_quantization(std::string_view spec);  // empty on bad syntax
 std::string quantization_spec(const Quantization& q);
 
-// Which implementation decodes: the scalar reference (double precision, the definition) or the
-// batched SIMD kernels (float32, or integer lanes when quantized; layered schedule).
-enum class Kernel { reference, simd };
+// Which implementation decodes: the scalar reference (double precision, the definition), the
+// batched SIMD kernels (float32, or integer lanes when quantized) or automatic: the SIMD kernels
+// where they implement the algorithm and schedule, the reference otherwise (resolve_kernel).
+enum class Kernel { automatic, reference, simd };
+std::string_view kernel_name(Kernel k);  // "auto", "reference", "simd"
+std::optional<Kernel> parse_kernel(std::string_view name);
 
 struct DecoderSettings {
   Algorithm algorithm = Algorithm::sum_product;
@@ -57,11 +60,18 @@ struct DecoderSettings {
   double alpha = 0.75;     // normalized min-sum: check messages scaled by alpha, 0 < alpha <= 1
   double beta = 0.5;       // offset min-sum: check magnitudes reduced by beta >= 0 (floored at 0)
   int flip_threshold = 0;  // bit-flip: other checks that must disagree to flip; 0 = majority
-  Kernel kernel = Kernel::reference;
+  Kernel kernel = Kernel::automatic;
   std::optional<Quantization> quantization;  // fixed-point min-sum family (layered)
 
   bool operator==(const DecoderSettings&) const = default;
 };
+
+// Whether the SIMD kernels implement these settings on this code: the min-sum family and
+// sum-product, check degrees up to 127 (fixed point: layered schedule only).
+bool simd_supports(const DecoderSettings& settings, const Code& code);
+// The settings with Kernel::automatic replaced by the kernel that will decode (simd where
+// simd_supports, else reference); other kernels unchanged.
+DecoderSettings resolve_kernel(DecoderSettings settings, const Code& code);
 
 // Throws Error for impossible settings (ml above k = 24, a layered bit-flip, alpha outside (0,
 // 1]...).
@@ -69,11 +79,22 @@ void validate(const DecoderSettings& settings, const Code& code);
 // One line such as "sum-product, flooding, 50 iterations, early stop".
 std::string describe(const DecoderSettings& settings);
 
+// Hard decisions are 0, 1 or kUndecided: a posterior LLR of exactly 0 (an erasure never
+// resolved, a tie) decides nothing. An undecided bit is an error whatever was sent, and a frame
+// with one has not converged, whatever its syndrome.
+inline constexpr std::uint8_t kUndecided = 2;
+constexpr std::uint8_t decide(double posterior) noexcept {
+  return posterior < 0 ? 1 : (posterior > 0 ? 0 : kUndecided);
+}
+
 struct FrameOutcome {
   int iterations = 0;                 // iterations run (ml: 1)
-  bool converged = false;             // hard decisions satisfy every check
-  std::uint32_t syndrome_weight = 0;  // unsatisfied checks at exit
+  bool converged = false;             // every bit decided and every check satisfied
+  std::uint32_t syndrome_weight = 0;  // unsatisfied checks at exit (undecided bits taken as 0)
+  std::uint32_t undecided = 0;        // undecided bits at exit
 };
+// The outcome of hard decisions after `iterations`: syndrome weight, undecided bits, converged.
+FrameOutcome assess(const Code& code, std::span<const std::uint8_t> hard, int iterations);
 
 // Magnitude at which channel LLRs and messages are clipped: ±Inf and huge inputs become
 // certainties of this size (a probability of error near e^-1e5, zero in double precision),
@@ -84,7 +105,8 @@ class Decoder {
  public:
   virtual ~Decoder() = default;
 
-  // Decodes outcome.size() frames. llr and hard hold frames x n values; posterior is frames x n
+  // Decodes outcome.size() frames. llr and hard (0, 1, kUndecided) hold frames x n values;
+  // posterior is frames x n
   // or empty (not wanted). A NaN input throws Error naming the frame (first_frame + index in
   // the batch) and the position; nothing is decoded then.
   void decode(std::span<const double> llr, std::span<std::uint8_t> hard,
@@ -100,10 +122,11 @@ class Decoder {
   // frames l, l + lanes(), l + 2 lanes(), ..., each as soon as the previous one finished, so
   // lanes do not wait for the slowest frame of a group. done is called whenever frames finish.
   struct FinishedFrames {
-    std::uint64_t lanes = 0;                // bit l: lane l finished frame[l]
-    std::span<const std::size_t> frame;     // per lane
-    std::span<const FrameOutcome> outcome;  // per lane
-    std::span<const std::uint64_t> hard;    // n masks: bit l = decision of lane l
+    std::uint64_t lanes = 0;                   // bit l: lane l finished frame[l]
+    std::span<const std::size_t> frame;        // per lane
+    std::span<const FrameOutcome> outcome;     // per lane
+    std::span<const std::uint64_t> hard;       // n masks: bit l = decision of lane l (1: negative)
+    std::span<const std::uint64_t> undecided;  // n masks: bit l = lane l's posterior is zero
   };
   using FramesDone = std::function<void(const FinishedFrames&)>;
   using GroupFill = std::function<void(std::size_t, std::span<double>)>;

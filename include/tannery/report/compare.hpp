@@ -1,12 +1,16 @@
 // Comparing a run against a stored reference curve, with statistics instead of eyeballing.
 //
-// Modes: exact (same seed, settings and tool version: counts must be identical), paired (same
-// seed, failed-frame indices recorded: exact McNemar test on the frames only one run failed),
-// unpaired (otherwise: Fisher's exact test on the FER, a clustered z-test on the BER). Per-point
-// tests are one-sided ("is the current run worse?") at level (1 - confidence) divided by the
-// number of tests (Bonferroni), so the false-alarm rate of a whole comparison stays at or below
-// its nominal level. With a tolerance, the verdict is instead whether the current curve reaches
-// the target FER more than that far (in sweep units, dB for AWGN) behind the reference.
+// Modes: exact (same seed, settings and build: counts should be identical; differing counts are a
+// regression only when an error rate is higher), paired (same seed, failed-frame indices
+// recorded: exact McNemar test on the frames only one run failed), unpaired (otherwise: Fisher's
+// exact test on the FER, a clustered z-test on the BER). Per-point tests are one-sided ("is the
+// current run worse?"); with several points one more test takes them together (paired: McNemar
+// on the summed discordant counts; unpaired: Cochran-Mantel-Haenszel), so a small loss at every
+// point is caught. All run at level (1 - confidence) divided by the number of tests (Bonferroni),
+// so the false-alarm rate of a whole comparison stays at or below its nominal level. With a
+// tolerance, the verdict is instead whether the current curve reaches the target FER more than
+// that far (in sweep units, dB for AWGN) behind the reference; a current curve that never
+// reaches it is a regression. Points of the reference missing from the current run fail.
 #pragma once
 
 #include <optional>
@@ -42,14 +46,18 @@ struct Comparison {
   std::vector<std::string> warnings;
   std::vector<PointComparison> points;
   std::vector<double> only_current, only_reference;  // parameters present in one file only
+  std::size_t tests = 0;                             // tests sharing the level (Bonferroni)
+  std::string combined_test;         // over all points together (more than one point)
+  std::optional<double> p_combined;  // its one-sided p-value
+  std::string unit;                  // of the sweep and the shift: "dB", "p" or "epsilon"
   std::optional<double> current_crossing, reference_crossing, shift;
   bool regression = false;
   std::vector<std::string> reasons;
 };
 
 std::string_view compare_mode_name(CompareMode mode);
-// Throws Error when the runs cannot be compared (different channels, no common point, or a
-// tolerance check on curves that do not cross the target FER).
+// Throws Error when the runs cannot be compared (different channels or codes, no common point,
+// or a tolerance check on a reference curve that does not cross the target FER).
 Comparison compare_runs(const RunRecord& current, const RunRecord& reference,
                         const CompareOptions& options);
 

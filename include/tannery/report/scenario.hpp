@@ -4,7 +4,7 @@
 //   description = "..."
 //   code = "qc-rate-half-z54"        # shipped name or path (relative to the scenario file)
 //   [decoder]  algorithm, schedule, iterations, early_stop, alpha, beta, flip_threshold,
-//              kernel = "reference"|"simd", quantize = "6.2"
+//              kernel = "auto"|"reference"|"simd", quantize = "6.2"
 //   [channel]  kind = "awgn"|"bsc"|"bec", sweep = "1:0.5:3" or [1.0, 1.5], snr = "ebn0"|"esn0",
 //              design_rate, snr_offset_db, assumed_crossover
 //   [stop]     frame_errors, max_frames, max_seconds, stop_below_fer

@@ -20,6 +20,7 @@ Run run(const Code& code, const DecoderSettings& s, const std::vector<double>& l
 DecoderSettings settings(Algorithm a, Schedule sch = Schedule::flooding, int iterations = 50,
                          bool early = true) {
   DecoderSettings s;
+  s.kernel = Kernel::reference;  // these tests define the reference decoders
   s.algorithm = a;
   s.schedule = sch;
   s.iterations = iterations;
@@ -313,4 +314,81 @@ TEST_CASE("impossible settings are refused with a clear message", "[decode]") {
   CHECK_THROWS_WITH(make_decoder(big, s), Catch::Contains("iterations must be between"));
   CHECK(parse_algorithm("normalized-min-sum") == Algorithm::normalized_min_sum);
   CHECK_FALSE(parse_algorithm("belief").has_value());
+}
+
+TEST_CASE("a zero posterior is undecided, and a frame with one has not converged", "[decode]") {
+  CHECK(decide(1e-300) == 0);
+  CHECK(decide(-1e-300) == 1);
+  CHECK(decide(0.0) == kUndecided);
+  CHECK(decide(-0.0) == kUndecided);
+  const Code code = test::shipped("repetition-5.tanner");
+  std::vector<DecoderSettings> all;
+  for (Algorithm a : {Algorithm::sum_product, Algorithm::min_sum, Algorithm::offset_min_sum}) {
+    for (Schedule sch : {Schedule::flooding, Schedule::layered}) {
+      for (Kernel k : {Kernel::reference, Kernel::simd}) {
+        DecoderSettings s = settings(a, sch, 20);
+        s.kernel = k;
+        all.push_back(s);
+      }
+    }
+    DecoderSettings q =
+        settings(a == Algorithm::sum_product ? Algorithm::min_sum : a, Schedule::layered, 20);
+    q.quantization = parse_quantization("6.2");
+    for (Kernel k : {Kernel::reference, Kernel::simd}) {
+      q.kernel = k;
+      all.push_back(q);
+    }
+  }
+  all.push_back(settings(Algorithm::ml));
+  all.push_back(settings(Algorithm::bit_flip));
+  for (const DecoderSettings& s : all) {
+    INFO(describe(s));
+    // Every bit erased: nothing can be decided (the all-zero guess would be "right" half the
+    // time on random data and always with the all-zero codeword).
+    const Run erased = run(code, s, std::vector<double>(5, 0.0));
+    for (std::uint8_t h : erased.hard) CHECK(h == kUndecided);
+    CHECK(erased.outcome[0].undecided == 5);
+    CHECK_FALSE(erased.outcome[0].converged);
+    // A tie on a BSC-like input: two votes for 0, two for 1 and one erasure. Decoders that add
+    // the votes exactly leave every bit undecided; offset min-sum weighs them unequally (its
+    // decision is its own) and bit-flipping breaks ties by the channel bit.
+    const Run tie = run(code, s, {1.5, -1.5, 0.0, 1.5, -1.5});
+    if (s.algorithm != Algorithm::bit_flip && s.algorithm != Algorithm::offset_min_sum) {
+      for (std::uint8_t h : tie.hard) CHECK(h == kUndecided);
+      CHECK_FALSE(tie.outcome[0].converged);
+    }
+    // One known bit resolves every erasure (bit-flipping excepted: it has no erasure rule).
+    const Run one = run(code, s, {0.0, 0.0, -3.0, 0.0, 0.0});
+    if (s.algorithm != Algorithm::bit_flip) {
+      for (std::uint8_t h : one.hard) CHECK(h == 1);
+      CHECK(one.outcome[0].converged);
+      CHECK(one.outcome[0].undecided == 0);
+    } else {
+      CHECK(one.outcome[0].undecided == 4);
+    }
+  }
+}
+
+TEST_CASE("the automatic kernel is the SIMD kernel wherever one implements the settings",
+          "[decode]") {
+  const Code code = test::shipped("qc-rate-half-z54.qc");
+  DecoderSettings s;
+  CHECK(s.kernel == Kernel::automatic);
+  CHECK(resolve_kernel(s, code).kernel == Kernel::simd);  // sum-product, flooding
+  s.algorithm = Algorithm::offset_min_sum;
+  s.quantization = parse_quantization("6.2");
+  CHECK(resolve_kernel(s, code).kernel == Kernel::reference);  // fixed point: layered only
+  s.schedule = Schedule::layered;
+  CHECK(resolve_kernel(s, code).kernel == Kernel::simd);
+  for (Algorithm a : {Algorithm::ml, Algorithm::bit_flip}) {
+    DecoderSettings t;
+    t.algorithm = a;
+    CHECK(resolve_kernel(t, test::shipped("hamming-7-4.tanner")).kernel == Kernel::reference);
+  }
+  DecoderSettings r;
+  r.kernel = Kernel::reference;
+  CHECK(resolve_kernel(r, code).kernel == Kernel::reference);
+  for (Kernel k : {Kernel::automatic, Kernel::reference, Kernel::simd})
+    CHECK(parse_kernel(kernel_name(k)) == k);
+  CHECK_FALSE(parse_kernel("fast"));
 }

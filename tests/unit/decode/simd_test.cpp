@@ -44,6 +44,7 @@ TEST_CASE(
       for (Algorithm a : algorithms) {
         for (bool early : {true, false}) {
           DecoderSettings s;
+          s.kernel = Kernel::reference;
           s.algorithm = a;
           s.schedule = Schedule::layered;
           s.iterations = 12;
@@ -101,6 +102,7 @@ TEST_CASE("float SIMD kernels agree with the double reference within tolerance o
                                std::pair{Algorithm::normalized_min_sum, Schedule::flooding},
                                std::pair{Algorithm::sum_product, Schedule::flooding}}) {
       DecoderSettings s;
+      s.kernel = Kernel::reference;
       s.algorithm = a;
       s.schedule = schedule;
       s.iterations = 30;

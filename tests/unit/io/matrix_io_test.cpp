@@ -51,6 +51,15 @@ TEST_CASE("readers accept the common variants", "[io]") {
   CHECK(parse_code("%%MatrixMarket matrix coordinate integer general\n% c\n2 3 5\n1 1 1\n1 2 1\n2 "
                    "2 1\n2 3 1\n1 3 0\n",
                    "m") == ref);
+  // Real values in exponent form, and the dense array layout (column-major), as scipy writes
+  // them (the scipy round trip itself is tests/cli/scipy_mmread.sh).
+  CHECK(
+      parse_code("%%MatrixMarket matrix coordinate real general\n2 3 4\n1 1 1.000000000000000e+00\n"
+                 "1 2 1.0\n2 2 1e0\n2 3 1.\n",
+                 "m") == ref);
+  CHECK(parse_code("%%MatrixMarket matrix array real general\n2 3\n1.0e+00\n0.0e+00\n1.0e+00\n"
+                   "1.0e+00\n0.0e+00\n1.0e+00\n",
+                   "m") == ref);
   CHECK(parse_code("110\n011\n", "d") == ref);
   const Code qc = parse_code("# base\n0 -\n1 2\n", "q", ReadOptions{std::nullopt, 3});
   CHECK(qc.n() == 6);
@@ -166,11 +175,26 @@ TEST_CASE("bad inputs give one-line errors with file and line", "[io][bad-input]
        {},
        {},
        "bad:2: rows 1000000000000 is out of range"},
-      {"mtx array layout",
-       "%%MatrixMarket matrix array integer general\n2 2\n1\n0\n0\n1\n",
+      {"mtx array layout, too few values",
+       "%%MatrixMarket matrix array integer general\n2 2\n1\n0\n0\n",
        {},
        {},
-       "bad:1: Matrix Market layout 'array' is not supported"},
+       "declares 2 x 2 = 4 values but the file has 3"},
+      {"mtx array layout, a real value other than 0 or 1",
+       "%%MatrixMarket matrix array real general\n2 2\n1.0e+00\n0\n5.0e-01\n1\n",
+       {},
+       {},
+       "bad:5: value '5.0e-01' is not a binary entry"},
+      {"mtx array layout has no pattern field",
+       "%%MatrixMarket matrix array pattern general\n2 2\n",
+       {},
+       {},
+       "bad:1: Matrix Market field 'pattern' is not supported (use integer or real)"},
+      {"mtx symmetric",
+       "%%MatrixMarket matrix coordinate pattern symmetric\n2 2 1\n1 1\n",
+       {},
+       {},
+       "bad:1: Matrix Market symmetry 'symmetric' is not supported"},
       {"qc shift >= Z",
        "Z = 5\n0 1\n2 7\n",
        {},

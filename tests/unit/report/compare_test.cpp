@@ -109,7 +109,10 @@ TEST_CASE("mode selection, unmatched points and warnings", "[compare]") {
   CHECK(c.mode == CompareMode::exact);
   CHECK(c.only_current == std::vector<double>{1});
   CHECK(c.only_reference == std::vector<double>{3});
-  CHECK_FALSE(c.regression);
+  CHECK(c.regression);  // the reference's point 3 was not checked: never a pass
+  CHECK_THAT(c.reasons.back(), Catch::Contains("point 3 of the reference is missing"));
+  b.points.pop_back();
+  CHECK_FALSE(compare_runs(a, b, CompareOptions{}).regression);
   b.config.seed = 2;
   c = compare_runs(a, b, CompareOptions{});
   CHECK(c.mode == CompareMode::unpaired);
@@ -128,4 +131,86 @@ TEST_CASE("mode selection, unmatched points and warnings", "[compare]") {
   CHECK(c.mode == CompareMode::paired);
   CHECK(c.points[0].only_current == 0);
   CHECK_FALSE(c.regression);
+}
+
+TEST_CASE("exact mode calls fewer errors better, more errors a regression", "[compare]") {
+  const RunRecord ref = run_of({point(1, 1000, 20)}, 1);
+  const RunRecord fewer = run_of({point(1, 1000, 19)}, 1), more = run_of({point(1, 1000, 21)}, 1);
+  const Comparison better = compare_runs(fewer, ref, CompareOptions{});
+  CHECK(better.mode == CompareMode::exact);
+  CHECK_FALSE(better.regression);
+  CHECK_THAT(better.points[0].note, Catch::Contains("counts differ (better"));
+  const Comparison worse = compare_runs(more, ref, CompareOptions{});
+  CHECK(worse.regression);
+  CHECK_THAT(worse.points[0].note, Catch::Contains("counts differ (worse)"));
+  CHECK(compare_runs(ref, ref, CompareOptions{}).points[0].note == "identical counts");
+}
+
+TEST_CASE("different codes cannot be compared", "[compare]") {
+  RunRecord a = run_of({point(1, 1000, 20)}, 1), b = a;
+  a.code.matrix_sha256 = std::string(64, 'a');
+  b.code.matrix_sha256 = std::string(64, 'b');
+  CHECK_THROWS_WITH(compare_runs(a, b, CompareOptions{}), Catch::Contains("different codes"));
+}
+
+TEST_CASE("pairing needs the same frames, not the same chunk size", "[compare]") {
+  RunRecord a = run_of({point(1, 1000, 3)}, 1), b = a;
+  b.config.decoder.algorithm = Algorithm::min_sum;
+  a.config.chunk_frames = 64;
+  b.config.chunk_frames = 1024;
+  for (auto* r : {&a, &b}) r->points[0].failed_frames = {5, 50, 500};
+  CHECK(compare_runs(a, b, CompareOptions{}).mode == CompareMode::paired);
+}
+
+TEST_CASE("a small loss at every point is caught by the test over all points", "[compare]") {
+  // Five points; at each the current run alone fails 12 frames and the reference alone 5. Per
+  // point P(X >= 12), X ~ Binomial(17, 1/2) = 0.0717 (textbook arithmetic: 9402 / 131 072), far
+  // above the per-test level 0.05 / 11; together P(X >= 60), X ~ Binomial(85, 1/2) < 1e-4.
+  RunRecord cur, ref;
+  for (auto* r : {&cur, &ref}) r->tool_version = "test", r->config.seed = 1;
+  ref.config.decoder.algorithm = Algorithm::min_sum;
+  for (int i = 0; i < 5; ++i) {
+    PointResult c = point(i, 10000, 12), r = point(i, 10000, 5);
+    for (std::uint64_t f = 0; f < 12; ++f) c.failed_frames.push_back(f);
+    for (std::uint64_t f = 0; f < 5; ++f) r.failed_frames.push_back(100 + f);
+    cur.points.push_back(c);
+    ref.points.push_back(r);
+  }
+  const Comparison c = compare_runs(cur, ref, CompareOptions{});
+  CHECK(c.mode == CompareMode::paired);
+  CHECK(c.tests == 11);
+  CHECK(c.points[0].p_fer == Approx(9402.0 / 131072).epsilon(1e-12));
+  for (const auto& pc : c.points) CHECK_FALSE(pc.regression);
+  REQUIRE(c.p_combined);
+  CHECK(*c.p_combined < 1e-4);
+  CHECK(c.regression);
+  // Unpaired (different seeds): Cochran-Mantel-Haenszel over the five tables also catches it
+  // where no single Fisher test does (12/10000 against 5/10000 per point).
+  for (auto& p : ref.points) p.failed_frames.clear();
+  ref.config.seed = 2;
+  const Comparison u = compare_runs(cur, ref, CompareOptions{});
+  CHECK(u.mode == CompareMode::unpaired);
+  for (const auto& pc : u.points) CHECK_FALSE(pc.regression);
+  CHECK(*u.p_combined < u.level);
+  CHECK(u.regression);
+}
+
+TEST_CASE("a tolerance check on a curve that never reaches the target FER", "[compare]") {
+  const RunRecord ref =
+      run_of({point(1, 10000, 1000), point(2, 10000, 100), point(3, 100000, 100)}, 1);
+  CompareOptions o;
+  o.tolerance = 0.1;
+  // Above the target everywhere: a regression (exit 1), with the unit in the reason.
+  const RunRecord stuck =
+      run_of({point(1, 1000, 900), point(2, 1000, 500), point(3, 1000, 200)}, 2);
+  const Comparison c = compare_runs(stuck, ref, o);
+  CHECK(c.regression);
+  CHECK_THAT(c.reasons[0], Catch::Contains("never reaches FER 0.01"));
+  CHECK_THAT(c.reasons[0], Catch::Contains("dB"));
+  for (const auto& pc : c.points) CHECK_FALSE(pc.regression);  // rows agree with the verdict
+  // Below it everywhere: ahead of the reference.
+  const RunRecord ahead = run_of({point(1, 10000, 50), point(2, 10000, 5), point(3, 10000, 1)}, 2);
+  CHECK_FALSE(compare_runs(ahead, ref, o).regression);
+  const Comparison shifted = compare_runs(ref, ref, o);
+  CHECK_THAT(shifted.reasons[0], Catch::Contains("+0.0000 dB behind"));
 }

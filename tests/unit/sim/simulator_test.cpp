@@ -15,6 +15,7 @@ namespace {
 SimulationConfig config(ChannelKind kind, std::vector<double> sweep, std::uint64_t max_frames,
                         std::uint64_t frame_errors = 1'000'000'000) {
   SimulationConfig c;
+  c.decoder.kernel = Kernel::reference;
   c.channel.kind = kind;
   c.sweep = std::move(sweep);
   c.stop.max_frames = max_frames;
@@ -134,13 +135,15 @@ TEST_CASE("the erasure channel decodes without NaN and stops by the rules", "[si
 }
 
 TEST_CASE("automatic chunk sizes", "[sim]") {
-  DecoderSettings reference, simd;
+  DecoderSettings reference, simd, automatic;
+  reference.kernel = Kernel::reference;
   simd.kernel = Kernel::simd;
   const Code small = test::shipped("qc-rate-half-z54.qc");
   const Code large = construct_regular(64800, 3, 6, 1);
   CHECK(default_chunk_frames(small, reference) == 64);
   CHECK(default_chunk_frames(small, simd) == 1024);
-  CHECK(default_chunk_frames(large, simd) == 64);  // 128 x 64800 floats would pass 16 MB
+  CHECK(default_chunk_frames(small, automatic) == 1024);  // sum-product: the SIMD kernel
+  CHECK(default_chunk_frames(large, simd) == 64);         // 128 x 64800 floats would pass 16 MB
 }
 
 TEST_CASE("counts are identical for 1 and 2 threads", "[sim]") {
