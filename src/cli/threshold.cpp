@@ -21,6 +21,7 @@ struct ThresholdOptions {
   std::string channel = "awgn";
   std::string method = "discretized";
   DecoderOptions decoder;
+  std::optional<double> at;
   bool json = false;
 };
 
@@ -75,6 +76,7 @@ void run(const ThresholdOptions& o) {
     r.limit = 1 - r.rate;
     r.method = "exact density evolution (BEC)";
     r.accuracy = 1e-6;
+    r.target = 1e-12;  // the recursion's own stopping point
   } else if (kind == ChannelKind::bsc) {
     r = bsc_threshold(e, d);
   } else {
@@ -83,6 +85,15 @@ void run(const ThresholdOptions& o) {
   }
   const char* unit =
       kind == ChannelKind::awgn ? "sigma" : (kind == ChannelKind::bsc ? "p" : "epsilon");
+  // --at: where density evolution ends at one channel point (Eb/N0 in dB for AWGN at the design
+  // rate, p for the BSC).
+  std::optional<double> error_at;
+  if (o.at) {
+    if (kind == ChannelKind::bec) throw Error("--at applies to awgn and bsc");
+    const double value =
+        kind == ChannelKind::awgn ? awgn_sigma(*o.at, SnrMeasure::ebn0, r.rate) : *o.at;
+    error_at = density_evolution_error(e, d, kind, value);
+  }
   if (o.json) {
     nlohmann::json j = {{"channel", o.channel},     {"algorithm", algorithm_name(d.algorithm)},
                         {"threshold", r.threshold}, {"parameter", unit},
@@ -94,6 +105,15 @@ void run(const ThresholdOptions& o) {
     } else {
       j["ebn0_db"] = nullptr;
       j["gap_db"] = nullptr;
+    }
+    j["target_error_probability"] = r.target;
+    if (error_at) j["at"] = {{"parameter", *o.at}, {"error_probability", *error_at}};
+    j["stalled"] = r.stalled;
+    if (r.stalled) {
+      j["stall"] = {{"waterfall", r.waterfall},
+                    {"floor", r.floor},
+                    {"waterfall_ebn0_db",
+                     kind == ChannelKind::awgn ? nlohmann::json(r.waterfall_ebn0_db) : nullptr}};
     }
     fmt::print("{}\n", j.dump(2));
     return;
@@ -107,9 +127,22 @@ void run(const ThresholdOptions& o) {
                          return fmt::format("{}:{:.6g}", p.first, p.second);
                        }),
                        ","));
-  fmt::print("decoder {} on {}; {}\n", describe(d).substr(0, describe(d).find(',')), o.channel,
-             r.method);
-  fmt::print("threshold {} = {:.5f} (accuracy about {:g})\n", unit, r.threshold, r.accuracy);
+  const std::string decoder = describe(d);
+  fmt::print("decoder {} on {}; {}\n", decoder.substr(0, decoder.find(" (")), o.channel, r.method);
+  if (r.stalled) {
+    // Never a plain threshold: the error probability stops at a floor after the waterfall.
+    const std::string where =
+        kind == ChannelKind::awgn ? fmt::format(" (Eb/N0 = {:.4f} dB)", r.waterfall_ebn0_db) : "";
+    fmt::print(
+        "density evolution STALLS: from {} = {:.5f}{} the error probability falls only to a floor "
+        "({:.3g} there, lower on better channels), not to zero\n",
+        unit, r.waterfall, where, r.floor);
+    fmt::print("it falls below {:g} from {} = {:.5f} (accuracy about {:g}):\n", r.target, unit,
+               r.threshold, r.accuracy);
+  } else {
+    fmt::print("threshold {} = {:.5f} (accuracy about {:g}; error probability below {:g})\n", unit,
+               r.threshold, r.accuracy, r.target);
+  }
   if (kind == ChannelKind::awgn) {
     fmt::print(
         "          Eb/N0 = {:.4f} dB; Shannon limit at this rate {:.4f} dB (sigma {:.5f}); gap "
@@ -117,6 +150,11 @@ void run(const ThresholdOptions& o) {
         r.ebn0_db, r.ebn0_db - r.gap_db, r.limit, r.gap_db);
   } else {
     fmt::print("capacity limit at this rate: {} = {:.5f}\n", unit, r.limit);
+  }
+  if (error_at) {
+    fmt::print("at {} = {:g}{} density evolution ends at error probability {:.4g}\n",
+               kind == ChannelKind::awgn ? "Eb/N0" : "p", *o.at,
+               kind == ChannelKind::awgn ? " dB" : "", *error_at);
   }
 }
 
@@ -133,7 +171,10 @@ void add_threshold(CLI::App& app) {
       "  tannery threshold --regular 3,6 --channel bec --json\n"
       "  tannery threshold --lambda 2:0.3,3:0.7 --rho 6:1 --algorithm normalized-min-sum --alpha "
       "0.8\n"
-      "  tannery threshold --code qc-rate-half-z54 --method gaussian");
+      "  tannery threshold --code qc-rate-half-z54 --method gaussian\n"
+      "  tannery threshold --code qc-rate-half-z54 --algorithm normalized-min-sum --at 2\n"
+      "A min-sum ensemble whose error probability stops at a floor after the waterfall is reported "
+      "as a stall (the floor and where it falls below the target), never as a plain threshold.");
   o->input.add_to(*sub, false, "");
   sub->get_option("--code")->required(false);
   sub->add_option("--regular", o->regular, "regular ensemble DV,DC (variable and check degrees)");
@@ -151,6 +192,9 @@ void add_threshold(CLI::App& app) {
          "awgn: discretized (density evolution on an LLR grid) or gaussian (fast approximation)")
       ->check(CLI::IsMember({"discretized", "gaussian"}))
       ->capture_default_str();
+  sub->add_option("--at", o->at,
+                  "also report where density evolution ends at this point: Eb/N0 in dB at the "
+                  "design rate (awgn) or p (bsc); the error probability of the messages");
   sub->add_flag("--json", o->json, "print one JSON object (threshold, ebn0_db, rate, gap_db, ...)");
   o->decoder.add_to(*sub);
   sub->callback([o, sub] {

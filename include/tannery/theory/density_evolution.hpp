@@ -26,14 +26,25 @@ struct Ensemble {
 
 enum class ThresholdMethod { exact, discretized, gaussian };
 
+// The threshold is the worst channel at which density evolution drives the error probability of
+// the messages below `target`. The min-sum family can instead stall at a floor after its
+// waterfall (normalized min-sum with degree-2 variables): then `stalled`, `waterfall` is the worst
+// channel at which the error probability falls to a floor (a fixed point below 1/20 of the
+// channel's error probability), `floor` the error probability it stalls at there, and
+// `threshold` where it finally falls below the target.
 struct ThresholdResult {
   double threshold = 0;  // sigma (AWGN), p (BSC) or epsilon (BEC)
-  double ebn0_db = 0;    // AWGN: Eb/N0 at the threshold for the design rate
-  double rate = 0;       // design rate
-  double limit = 0;      // capacity limit at that rate, in the same units as threshold
-  double gap_db = 0;     // AWGN: Eb/N0 gap to the Shannon limit; BSC/BEC: 0
-  std::string method;    // "exact (BEC)", "discretized DE, grid ..." or "Gaussian approximation"
-  double accuracy = 0;   // stated accuracy of the threshold value
+  double target = 0;     // error probability that counts as decoded (0: exact, the BEC)
+  bool stalled = false;
+  double waterfall = 0;          // stalled: channel value where the error falls to the floor
+  double waterfall_ebn0_db = 0;  // stalled, AWGN: the same as Eb/N0
+  double floor = 0;              // stalled: error probability at the waterfall's end
+  double ebn0_db = 0;            // AWGN: Eb/N0 at the threshold for the design rate
+  double rate = 0;               // design rate
+  double limit = 0;              // capacity limit at that rate, in the same units as threshold
+  double gap_db = 0;             // AWGN: Eb/N0 gap to the Shannon limit; BSC/BEC: 0
+  std::string method;   // "exact (BEC)", "discretized DE, grid ..." or "Gaussian approximation"
+  double accuracy = 0;  // stated accuracy of the threshold value
 };
 
 // BEC: exact recursion x <- eps lambda(1 - rho(1 - x)), bisection on eps.
@@ -45,6 +56,11 @@ double bec_threshold(const Ensemble& e);
 ThresholdResult awgn_threshold(const Ensemble& e, const DecoderSettings& decoder,
                                ThresholdMethod method);
 ThresholdResult bsc_threshold(const Ensemble& e, const DecoderSettings& decoder);
+// Where discretized density evolution ends at one channel value (AWGN sigma or BSC p): the error
+// probability of the messages, below 1e-7 when it converges, else the fixed point it stalls at
+// (a failure or, past the waterfall, a floor).
+double density_evolution_error(const Ensemble& e, const DecoderSettings& decoder, ChannelKind kind,
+                               double value);
 
 // Normal approximation of the finite-length limit (Polyanskiy, Poor, Verdu 2010):
 // log2 M* ~ n C - sqrt(n V) Qinv(eps) + log2(n) / 2. Returns the smallest FER achievable by a
