@@ -1,4 +1,5 @@
 #include <fmt/format.h>
+#include <filesystem>
 #include <iostream>
 #include <sstream>
 
@@ -21,7 +22,10 @@ void CodeInput::add_to(CLI::App& sub, bool positional, const std::string& defaul
     opt->required();
   else
     opt->capture_default_str();
-  sub.add_option("--format,--from", format, "input matrix format, instead of detecting it")
+  // Format options name the file they describe: --code-format (the matrix), --input-format and
+  // --output-format (captures and bits); --from is convert's name, --format the older one.
+  sub.add_option("--code-format,--from,--format", format,
+                 "matrix format of CODE, instead of detecting it")
       ->check(CLI::IsMember({"tannery", "alist", "mtx", "qc", "dense"}));
   sub.add_option("--lifting", lifting,
                  "lifting size Z (circulant size) for a qc base table that does not state it")
@@ -49,6 +53,52 @@ std::istream& open_input(const std::string& path, std::ifstream& file) {
   file.open(path, std::ios::binary);
   if (!file) throw Error(fmt::format("{}: cannot open file", path));
   return file;
+}
+
+std::string count_of(std::uint64_t count, std::string_view noun) {
+  return fmt::format("{} {}{}", count, noun, count == 1 ? "" : "s");
+}
+
+namespace {
+
+// Whether two path arguments name the same file (both "-" counts as the same stream).
+bool same_file(const std::string& a, const std::string& b) {
+  if (a == "-" || b == "-") return a == b;
+  std::error_code ec;
+  if (std::filesystem::exists(a, ec) && std::filesystem::exists(b, ec))
+    return std::filesystem::equivalent(a, b, ec);
+  return std::filesystem::weakly_canonical(a, ec) == std::filesystem::weakly_canonical(b, ec);
+}
+
+}  // namespace
+
+void check_paths(const std::vector<PathArgument>& inputs,
+                 const std::vector<PathArgument>& outputs) {
+  auto used = [](const PathArgument& p) { return !p.path.empty(); };
+  for (std::size_t i = 0; i < inputs.size(); ++i) {
+    for (std::size_t j = i + 1; j < inputs.size(); ++j) {
+      if (used(inputs[i]) && used(inputs[j]) && inputs[i].path == "-" && inputs[j].path == "-") {
+        throw Error(fmt::format("{} and {} cannot both read standard input", inputs[i].option,
+                                inputs[j].option));
+      }
+    }
+  }
+  for (std::size_t i = 0; i < outputs.size(); ++i) {
+    if (!used(outputs[i])) continue;
+    for (std::size_t j = i + 1; j < outputs.size(); ++j) {
+      if (used(outputs[j]) && same_file(outputs[i].path, outputs[j].path)) {
+        throw Error(fmt::format("{} and {} would both write {}", outputs[i].option,
+                                outputs[j].option,
+                                outputs[i].path == "-" ? "standard output" : outputs[i].path));
+      }
+    }
+    for (const PathArgument& in : inputs) {
+      if (used(in) && outputs[i].path != "-" && same_file(in.path, outputs[i].path)) {
+        throw Error(fmt::format("{} {} is also the input {}: refusing to overwrite an input",
+                                outputs[i].option, outputs[i].path, in.option));
+      }
+    }
+  }
 }
 
 Code CodeInput::load() const {

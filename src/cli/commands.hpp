@@ -86,6 +86,7 @@ void install_interrupt_handler();
 #include <fstream>
 #include <istream>
 #include <map>
+#include <vector>
 
 namespace tannery::cli {
 
@@ -95,5 +96,21 @@ std::map<std::size_t, double> parse_degree_map(const std::string& text, const st
 // Standard input for "-", else the file opened in binary mode (kept in `file`); Error if
 // unreadable.
 std::istream& open_input(const std::string& path, std::ifstream& file);
+
+// Plots: the format from the name's extension, .svg (also '-' and no extension), .png or .pdf
+// (rendered by rsvg-convert); check_plot_path refuses any other before work starts.
+void check_plot_path(const std::string& path);
+void write_plot(const std::string& path, const std::string& svg);
+
+// "1 thread", "2 threads": a count with its noun in the right number.
+std::string count_of(std::uint64_t count, std::string_view noun);
+
+// A file argument and the option that gave it ("--output", "INPUT"); empty paths are unused.
+struct PathArgument {
+  std::string option, path;
+};
+// Refuses arguments that would collide: two inputs on standard input, two outputs on standard
+// output or on one file, an output that is one of the inputs (it would be destroyed).
+void check_paths(const std::vector<PathArgument>& inputs, const std::vector<PathArgument>& outputs);
 
 }  // namespace tannery::cli

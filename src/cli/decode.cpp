@@ -32,6 +32,8 @@ struct DecodeOptions {
   std::string report_format;
   bool strict = false;
   unsigned threads = 0;
+  std::string truth;
+  std::optional<std::uint64_t> max_failures;
 };
 
 // Decodes frames [0, frames) of a batch on all threads; frame order is kept by construction.
@@ -65,6 +67,11 @@ void decode_parallel(std::vector<std::unique_ptr<Decoder>>& decoders, std::size_
 }
 
 void run(const DecodeOptions& o) {
+  check_paths({{"--code", o.input.code},
+               {"INPUT", o.capture},
+               {"--puncture", o.puncture},
+               {"--truth", o.truth}},
+              {{"--output", o.output}, {"--posterior", o.posterior}, {"--report", o.report}});
   const Code code = o.input.load();
   const Encoder encoder(code);
   const DecoderSettings settings = o.decoder.settings();
@@ -91,13 +98,26 @@ void run(const DecodeOptions& o) {
   std::istream* in = &open_input(o.capture, file);
   CaptureReader reader(*in, o.capture == "-" ? "<stdin>" : o.capture, format, o.scale, received);
 
+  // --truth: the information bits that were sent, as encode writes them (text, k per frame).
+  std::ifstream truth_file;
+  std::optional<BitFrameReader> truth;
+  if (!o.truth.empty()) {
+    truth.emplace(open_input(o.truth, truth_file), o.truth, BitFormat::text, encoder.k());
+  }
+  std::vector<std::uint8_t> sent;
+  std::uint64_t truth_frame_errors = 0, truth_bit_errors = 0;
+
   std::string report_format = o.report_format;
   if (report_format.empty())
     report_format = o.report.ends_with(".jsonl") || o.report.ends_with(".json") ? "jsonl" : "csv";
   OutputFile bits_out(o.output, o.strict), posterior_out(o.posterior, o.strict),
       report_out(o.report, o.strict);
-  if (report_format == "csv")
-    report_out.write("frame,converged,iterations,syndrome_weight,undecided_bits,changed_bits\n");
+  if (report_format == "csv") {
+    report_out.write(
+        fmt::format("frame,converged,iterations,syndrome_weight,undecided_bits,"
+                    "changed_bits{}\n",
+                    truth ? ",bit_errors" : ""));
+  }
 
   const unsigned threads =
       o.threads ? o.threads : std::max(1u, std::thread::hardware_concurrency());
@@ -121,10 +141,23 @@ void run(const DecodeOptions& o) {
     outcomes.resize(got);
     posterior.resize(posterior_out.enabled() ? got * n : 0);
     decode_parallel(decoders, n, got, frames, llr, hard, posterior, outcomes);
+    if (truth && truth->read(got, sent) != got) {
+      throw Error(fmt::format(
+          "{}: {}; decoding stopped at frame {}, where the check against it ends", o.truth,
+          truth->error().value_or("ends before the capture"), frames + truth->frames_read()));
+    }
     text.clear();
     std::string report;
     for (std::size_t f = 0; f < got; ++f) {
       const std::uint8_t* h = hard.data() + f * n;
+      // Information bits against the truth; an undecided bit is an error whatever was sent.
+      std::uint64_t bit_errors = 0;
+      if (truth) {
+        for (std::size_t i = 0; i < encoder.k(); ++i)
+          bit_errors += h[encoder.info_positions()[i]] != sent[f * encoder.k() + i];
+        truth_bit_errors += bit_errors;
+        truth_frame_errors += bit_errors > 0;
+      }
       // An undecided bit (kUndecided) is written as 0; the report counts it.
       if (o.codeword) {
         for (std::size_t i = 0; i < n; ++i) selected[i] = h[i] & 1u;
@@ -140,14 +173,15 @@ void run(const DecodeOptions& o) {
       iterations += static_cast<std::uint64_t>(r.iterations);
       if (report_out.enabled()) {
         report += report_format == "csv"
-                      ? fmt::format("{},{},{},{},{},{}\n", frames + f, r.converged ? 1 : 0,
-                                    r.iterations, r.syndrome_weight, r.undecided, changed)
+                      ? fmt::format("{},{},{},{},{},{}{}\n", frames + f, r.converged ? 1 : 0,
+                                    r.iterations, r.syndrome_weight, r.undecided, changed,
+                                    truth ? fmt::format(",{}", bit_errors) : "")
                       : fmt::format(
                             "{{\"frame\": {}, \"converged\": {}, \"iterations\": {}, "
                             "\"syndrome_weight\": {}, \"undecided_bits\": {}, "
-                            "\"changed_bits\": {}}}\n",
+                            "\"changed_bits\": {}{}}}\n",
                             frames + f, r.converged, r.iterations, r.syndrome_weight, r.undecided,
-                            changed);
+                            changed, truth ? fmt::format(", \"bit_errors\": {}", bit_errors) : "");
       }
     }
     bits_out.write(text);
@@ -174,15 +208,33 @@ void run(const DecodeOptions& o) {
   const double fps = seconds > 0 ? static_cast<double>(frames) / seconds : 0;
   fmt::print(stderr,
              "decoded {} frames: {} did not converge; {:.0f} frames/s, {:.3f} coded Mbit/s, {:.3g} "
-             "edge-updates/s ({} threads)\n",
+             "edge-updates/s ({})\n",
              frames, failures, fps, fps * static_cast<double>(n) / 1e6,
              seconds > 0
                  ? static_cast<double>(iterations) * static_cast<double>(code.edges()) / seconds
                  : 0.0,
-             threads);
+             count_of(threads, "thread"));
+  if (truth) {
+    const double bits = static_cast<double>(frames) * static_cast<double>(encoder.k());
+    fmt::print(stderr,
+               "against {}: {} frame errors in {} frames (FER {:.4g}), {} bit errors in {:.0f} "
+               "information bits (BER {:.4g})\n",
+               o.truth, truth_frame_errors, frames,
+               frames ? static_cast<double>(truth_frame_errors) / static_cast<double>(frames) : 0.0,
+               truth_bit_errors, bits,
+               bits > 0 ? static_cast<double>(truth_bit_errors) / bits : 0.0);
+  }
   if (reader.error()) {
-    throw Error(fmt::format("{}; the {} complete frames before it were decoded and written",
-                            *reader.error(), frames));
+    throw Error(frames == 0 ? *reader.error()
+                            : fmt::format("{}; decoded and written before it: {}", *reader.error(),
+                                          count_of(frames, "complete frame")));
+  }
+  if (o.max_failures && failures > *o.max_failures) {
+    fmt::print(stderr,
+               "tannery: {} frames did not converge, more than --max-failures {} (a capture read "
+               "with the wrong format or meaning fails nearly every frame)\n",
+               failures, *o.max_failures);
+    throw CheckFailed{1};
   }
 }
 
@@ -200,7 +252,8 @@ void add_decode(CLI::App& app) {
       "  tannery decode --code my.alist rx.txt --input-format text --meaning samples "
       "--noise-variance 0.5\n"
       "Binary inputs are little-endian frames of n values (n minus punctured/shortened "
-      "positions).");
+      "positions).\n"
+      "Exit status: 0 decoded, 1 more frames failed than --max-failures, 2 error.");
   o->input.add_to(*sub, false, "");
   sub->add_option("INPUT", o->capture, "capture file ('-' = stdin)")->required();
   sub->add_option("--input-format", o->input_format,
@@ -223,7 +276,7 @@ void add_decode(CLI::App& app) {
   sub->add_option("--puncture", o->puncture,
                   "map of positions the capture lacks: lines 'punctured LIST' (LLR 0) or "
                   "'shortened LIST' (known 0)");
-  sub->add_option("--output", o->output, "decoded bits ('-' = stdout)")->capture_default_str();
+  sub->add_option("-o,--output", o->output, "decoded bits ('-' = stdout)")->capture_default_str();
   sub->add_option("--output-format", o->output_format,
                   "text (0/1, a line per frame), packed (MSB first, frames padded "
                   "to bytes) or bytes (one byte per bit)")
@@ -243,6 +296,12 @@ void add_decode(CLI::App& app) {
   sub->add_flag("--strict", o->strict,
                 "refuse the whole input if any part is bad (outputs appear only on success)");
   sub->add_option("--threads", o->threads, "worker threads (default: all cores)");
+  sub->add_option("--truth", o->truth,
+                  "the information bits that were sent (text, k per frame, as 'tannery encode' "
+                  "writes them): count frame and bit errors against them");
+  sub->add_option("--max-failures", o->max_failures,
+                  "exit with status 1 when more frames than this did not converge (default: "
+                  "never), so scripts notice e.g. a capture read with the wrong format");
   o->decoder.add_to(*sub);
   sub->callback([o] { run(*o); });
 }

@@ -22,7 +22,7 @@ struct EncodeOptions {
   std::string output_format;
   std::uint64_t demo = 0;
   std::string channel = "awgn";
-  double snr = 2.0;
+  double at = 2.0;
   std::uint64_t seed = 1;
   std::string meaning = "llr";
   double scale = 1.0;
@@ -49,8 +49,10 @@ void encode_bits(const EncodeOptions& o, const Code& code, const Encoder& encode
   }
   out.commit();
   if (reader.error()) {
-    throw Error(fmt::format("{}; the {} complete frames before it were encoded and written",
-                            *reader.error(), reader.frames_read()));
+    throw Error(reader.frames_read() == 0
+                    ? *reader.error()
+                    : fmt::format("{}; encoded and written before it: {}", *reader.error(),
+                                  count_of(reader.frames_read(), "complete frame")));
   }
 }
 
@@ -59,11 +61,11 @@ void demo_capture(const EncodeOptions& o, const Code& code, const Encoder& encod
   const SampleFormat format =
       *parse_sample_format(o.output_format.empty() ? "f32" : o.output_format);
   const ChannelKind kind = *parse_channel(o.channel);
-  check_channel_parameter(kind, o.snr);
+  check_channel_parameter(kind, o.at);
   const double rate = static_cast<double>(encoder.k()) / static_cast<double>(code.n());
-  ChannelPoint channel{kind, o.snr, o.snr};
+  ChannelPoint channel{kind, o.at, o.at};
   if (kind == ChannelKind::awgn)
-    channel.value = channel.assumed_value = awgn_sigma(o.snr, SnrMeasure::ebn0, rate);
+    channel.value = channel.assumed_value = awgn_sigma(o.at, SnrMeasure::ebn0, rate);
   if (o.meaning == "samples" && kind != ChannelKind::awgn)
     throw Error("--meaning samples needs --channel awgn");
   OutputFile out(o.output, false), truth(o.truth, false);
@@ -85,7 +87,7 @@ void demo_capture(const EncodeOptions& o, const Code& code, const Encoder& encod
   out.commit();
   truth.commit();
   fmt::print(stderr, "wrote {} frames of n = {} ({}; {} at {} {}, seed {})\n", o.demo, code.n(),
-             sample_format_name(format), channel_name(kind), o.snr,
+             sample_format_name(format), channel_name(kind), o.at,
              kind == ChannelKind::awgn ? "dB Eb/N0" : "", o.seed);
 }
 
@@ -98,7 +100,7 @@ void add_encode(CLI::App& app) {
   sub->footer(
       "Examples:\n"
       "  printf '0101\\n1111\\n' | tannery encode --code hamming-7-4\n"
-      "  tannery encode --code qc-rate-half-z54 --demo 1000 --snr 2.5 --seed 7 --output demo.f32 "
+      "  tannery encode --code qc-rate-half-z54 --demo 1000 --at 2.5 --seed 7 -o demo.f32 "
       "--truth demo.bits");
   o->input.add_to(*sub, false, "");
   sub->add_option("INPUT", o->bits, "information bits, k per frame ('-' = stdin)")
@@ -107,7 +109,7 @@ void add_encode(CLI::App& app) {
                   "text (0/1, whitespace ignored), packed or bytes")
       ->check(CLI::IsMember({"text", "packed", "bytes"}))
       ->capture_default_str();
-  sub->add_option("--output", o->output, "output file ('-' = stdout)")->capture_default_str();
+  sub->add_option("-o,--output", o->output, "output file ('-' = stdout)")->capture_default_str();
   sub->add_option(
       "--output-format", o->output_format,
       "codewords: text, packed or bytes (default text); demo captures: f32, f64, i8, i16 or text "
@@ -117,9 +119,8 @@ void add_encode(CLI::App& app) {
   sub->add_option("--channel", o->channel, "demo channel: awgn, bsc or bec")
       ->check(CLI::IsMember({"awgn", "bsc", "bec"}))
       ->capture_default_str();
-  sub->add_option(
-         "--snr", o->snr,
-         "demo channel parameter: Eb/N0 in dB (awgn, true rate k/n), p (bsc) or epsilon (bec)")
+  sub->add_option("--at", o->at,
+                  "demo channel point: Eb/N0 in dB (awgn, true rate k/n), p (bsc) or epsilon (bec)")
       ->capture_default_str();
   sub->add_option("--seed", o->seed, "demo seed (frames as tannery simulate's point 0)")
       ->capture_default_str();
@@ -131,6 +132,8 @@ void add_encode(CLI::App& app) {
       ->capture_default_str();
   sub->add_option("--truth", o->truth, "demo: also write the sent information bits (text)");
   sub->callback([o] {
+    check_paths({{"--code", o->input.code}, {"INPUT", o->demo > 0 ? "" : o->bits}},
+                {{"--output", o->output}, {"--truth", o->truth}});
     const Code code = o->input.load();
     const Encoder encoder(code);
     if (o->demo > 0)

@@ -1,7 +1,9 @@
 // tannery plot RESULT.json... -o FILE.svg
 #include <fmt/format.h>
+#include <unistd.h>
 #include <cstdio>
 #include <cstdlib>
+#include <filesystem>
 
 #include "commands.hpp"
 #include "tannery/error.hpp"
@@ -25,21 +27,40 @@ struct PlotCommand {
 
 }  // namespace
 
-// Writes the SVG, or a PNG rendered from it (by rsvg-convert from Debian's librsvg2-bin) when the
-// name ends in .png.
+void check_plot_path(const std::string& path) {
+  const std::string extension = std::filesystem::path(path).extension().string();
+  if (path == "-" || extension.empty() || extension == ".svg" || extension == ".png" ||
+      extension == ".pdf")
+    return;
+  throw Error(fmt::format(
+      "{}: plots are written as .svg, .png or .pdf (from the name's extension), not '{}'", path,
+      extension));
+}
+
 void write_plot(const std::string& path, const std::string& svg) {
-  if (!path.ends_with(".png")) return write_file_atomically(path, svg);
+  check_plot_path(path);
+  const bool png = path.ends_with(".png"), pdf = path.ends_with(".pdf");
+  if (!png && !pdf) return write_file_atomically(path, svg);
   if (std::system("command -v rsvg-convert > /dev/null 2>&1") != 0) {
-    throw Error(
-        "PNG output needs rsvg-convert (apt-get install librsvg2-bin); write an .svg instead");
+    throw Error(fmt::format(
+        "{}: {} output needs rsvg-convert (apt-get install librsvg2-bin); write an .svg instead",
+        path, png ? "PNG" : "PDF"));
   }
-  const std::string source = path + ".svg";
+  // Rendered next to the destination, then renamed into place (never half a file there).
+  const std::string source = fmt::format("{}.{}.svg", path, ::getpid());
+  const std::string rendered = fmt::format("{}.{}.part", path, ::getpid());
   write_file_atomically(source, svg);
   const std::string command =
-      fmt::format("rsvg-convert --background-color=white '{}' -o '{}'", source, path);
+      fmt::format("rsvg-convert --format={} --background-color=white '{}' -o '{}'",
+                  png ? "png" : "pdf", source, rendered);
   const int status = std::system(command.c_str());
   std::remove(source.c_str());
-  if (status != 0) throw Error(fmt::format("{}: rsvg-convert failed", path));
+  std::error_code ec;
+  if (status == 0) std::filesystem::rename(rendered, path, ec);
+  if (status != 0 || ec) {
+    std::remove(rendered.c_str());
+    throw Error(fmt::format("{}: rsvg-convert failed", path));
+  }
 }
 
 void add_plot(CLI::App& app) {
@@ -51,7 +72,7 @@ void add_plot(CLI::App& app) {
       "0.75'");
   sub->add_option("RESULT", o->inputs, "results files written by tannery simulate")->required();
   sub->add_option("-o,--output", o->output,
-                  "SVG file to write ('-' = stdout); a .png name is rendered to PNG")
+                  "plot file: .svg ('-' = stdout), or .png / .pdf (rendered by rsvg-convert)")
       ->required();
   sub->add_option("--label", o->labels,
                   "legend label per results file, in order (default: the decoder)");
@@ -68,6 +89,7 @@ void add_plot(CLI::App& app) {
                   "draw a vertical line at this sweep value, e.g. a threshold from tannery "
                   "threshold (dB for AWGN)");
   sub->callback([o] {
+    check_plot_path(o->output);
     std::vector<PlotRun> runs;
     for (std::size_t i = 0; i < o->inputs.size(); ++i) {
       RunRecord r = parse_results_json(read_text_file(o->inputs[i]), o->inputs[i]);

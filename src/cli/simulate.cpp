@@ -157,7 +157,7 @@ void write_outputs(const SimulateOptions& o, const RunRecord& record) {
   if (!o.output.empty()) write_file_atomically(o.output, results_json(record));
   if (!o.csv.empty()) write_file_atomically(o.csv, results_csv(record));
   if (!o.plot.empty() && !record.points.empty()) {
-    write_file_atomically(o.plot, plot_svg({PlotRun{run_label(record), record}}, PlotOptions{}));
+    write_plot(o.plot, plot_svg({PlotRun{run_label(record), record}}, PlotOptions{}));
   }
 }
 
@@ -171,10 +171,10 @@ void print_throughput(const RunRecord& record, double wall) {
   fmt::print(
       "throughput: {:.0f} frames/s, {:.3f} coded Mbit/s, {:.3f} information Mbit/s, {:.3g} "
       "edge-updates/s "
-      "({:.3g} per thread, {} threads)\n",
+      "({:.3g} per thread, {})\n",
       fps, fps * static_cast<double>(record.code.n) / 1e6,
       fps * static_cast<double>(record.code.k) / 1e6, edge_rate, edge_rate / record.threads_used,
-      record.threads_used);
+      count_of(record.threads_used, "thread"));
 }
 
 void replay(const SimulateOptions& o, const Code& code, const Simulator& sim) {
@@ -210,37 +210,104 @@ void replay(const SimulateOptions& o, const Code& code, const Simulator& sim) {
   }
 }
 
+// The run the options describe (all but threads and the kept failures).
+SimulationConfig config_of(const SimulateOptions& o) {
+  SimulationConfig config;
+  config.decoder = o.decoder.settings();
+  config.channel.kind = *parse_channel(o.channel);
+  config.channel.measure = o.snr == "esn0" ? SnrMeasure::esn0 : SnrMeasure::ebn0;
+  config.channel.design_rate = o.design_rate;
+  config.channel.snr_offset_db = o.snr_offset;
+  config.channel.assumed_crossover = o.assumed_p;
+  if (config.channel.kind != ChannelKind::awgn &&
+      (o.snr_offset != 0 || o.design_rate || o.snr != "ebn0")) {
+    throw Error("--snr, --design-rate and --snr-offset apply to --channel awgn only");
+  }
+  if (config.channel.kind != ChannelKind::bsc && o.assumed_p)
+    throw Error("--assumed-p applies to --channel bsc only");
+  config.sweep = parse_sweep(o.sweep.empty() ? default_sweep(config.channel.kind) : o.sweep);
+  config.stop = StopRules{o.frame_errors, o.max_frames, o.max_seconds, o.stop_below};
+  config.seed = o.seed;
+  config.chunk_frames = o.chunk;
+  config.all_zero = o.all_zero;
+  config.confidence = o.confidence;
+  return config;
+}
+
+// What a resumed run's command line would change in the recorded run, one item per setting.
+std::vector<std::string> resume_conflicts(const SimulationConfig& recorded,
+                                          const SimulationConfig& asked, const Code& recorded_code,
+                                          const Code& asked_code) {
+  std::vector<std::string> d;
+  auto differ = [&](bool same, std::string what) {
+    if (!same) d.push_back(std::move(what));
+  };
+  differ(recorded_code == asked_code, "the code");
+  differ(recorded.decoder == asked.decoder,
+         fmt::format("decoder: {} (recorded: {})", describe(asked.decoder),
+                     describe(recorded.decoder)));
+  differ(recorded.channel == asked.channel, "channel settings");
+  differ(recorded.sweep == asked.sweep, "the sweep");
+  differ(recorded.stop == asked.stop, "stop rules");
+  differ(recorded.seed == asked.seed,
+         fmt::format("seed {} (recorded: {})", asked.seed, recorded.seed));
+  differ(
+      recorded.chunk_frames == asked.chunk_frames,
+      fmt::format("chunk of {} frames (recorded: {})", asked.chunk_frames, recorded.chunk_frames));
+  differ(recorded.all_zero == asked.all_zero, "--all-zero");
+  differ(recorded.confidence == asked.confidence,
+         fmt::format("confidence {} (recorded: {})", asked.confidence, recorded.confidence));
+  return d;
+}
+
 void run(SimulateOptions o, const CLI::App& sub) {
   RunRecord previous;
   SimulationConfig config;
   if (!o.scenario.empty() && !o.resume.empty())
     throw Error("--scenario and --resume exclude each other");
   if (!o.scenario.empty()) apply_scenario(read_scenario(o.scenario), o, sub);
+  std::optional<Code> asked_code;
   if (!o.resume.empty()) {
+    // The recorded run continues exactly; options on the command line may repeat its settings
+    // but not change them (threads, outputs and --save-failures apply freely).
     previous = parse_results_json(read_text_file(o.resume), o.resume);
     config = previous.config;
+    const std::string given_code = o.input.code;
     o.input.code = previous.code.path;
+    Scenario recorded;
+    recorded.code = previous.code.path;
+    recorded.config = previous.config;
+    apply_scenario(recorded, o, sub);
+    SimulationConfig asked = config_of(o);
+    if (asked.chunk_frames == 0) asked.chunk_frames = config.chunk_frames;
+    if (sub.get_option("--code")->count() > 0) {
+      CodeInput other = o.input;
+      other.code = given_code;
+      asked_code = other.load();
+    }
+    const Code recorded_code = o.input.load();
+    asked.decoder = resolve_kernel(asked.decoder, recorded_code);
+    const auto conflicts =
+        resume_conflicts(config, asked, recorded_code, asked_code ? *asked_code : recorded_code);
+    if (!conflicts.empty()) {
+      std::string list;
+      for (const auto& c : conflicts) list += (list.empty() ? "" : "; ") + c;
+      throw Error(fmt::format(
+          "--resume {}: the command line changes the recorded run ({}); a resumed run continues "
+          "exactly as recorded: drop those options, or start a new run with --output",
+          o.resume, list));
+    }
     if (o.output == "tannery-run.json") o.output = o.resume;
   } else {
-    config.decoder = o.decoder.settings();
-    config.channel.kind = *parse_channel(o.channel);
-    config.channel.measure = o.snr == "esn0" ? SnrMeasure::esn0 : SnrMeasure::ebn0;
-    config.channel.design_rate = o.design_rate;
-    config.channel.snr_offset_db = o.snr_offset;
-    config.channel.assumed_crossover = o.assumed_p;
-    if (config.channel.kind != ChannelKind::awgn &&
-        (o.snr_offset != 0 || o.design_rate || o.snr != "ebn0")) {
-      throw Error("--snr, --design-rate and --snr-offset apply to --channel awgn only");
-    }
-    if (config.channel.kind != ChannelKind::bsc && o.assumed_p)
-      throw Error("--assumed-p applies to --channel bsc only");
-    config.sweep = parse_sweep(o.sweep.empty() ? default_sweep(config.channel.kind) : o.sweep);
-    config.stop = StopRules{o.frame_errors, o.max_frames, o.max_seconds, o.stop_below};
-    config.seed = o.seed;
-    config.chunk_frames = o.chunk;
-    config.all_zero = o.all_zero;
-    config.confidence = o.confidence;
+    config = config_of(o);
   }
+  check_plot_path(o.plot);
+  check_paths({{"--code", o.input.code}, {"--scenario", o.scenario}},
+              {{"--output", o.output},
+               {"--csv", o.csv},
+               {"--plot", o.plot},
+               {"--failures", o.save_failures ? o.failures : ""},
+               {"--replay-llr", o.replay_llr}});
   config.threads = o.threads ? o.threads : std::max(1u, std::thread::hardware_concurrency());
   config.keep_failures = o.save_failures;
 
@@ -252,6 +319,7 @@ void run(SimulateOptions o, const CLI::App& sub) {
   record.tool_version = std::string(version());
   record.created = utc_now();
   record.code = code_record(o.input.code, code, sim.encoder());
+  if (!o.resume.empty()) record.code.source = previous.code.source;
   if (!o.resume.empty() && record.code.matrix_sha256 != previous.code.matrix_sha256) {
     throw Error(fmt::format("resume: {} no longer holds the matrix the run used (SHA-256 differs)",
                             o.input.code));
@@ -269,9 +337,9 @@ void run(SimulateOptions o, const CLI::App& sub) {
                    ? fmt::format(" (Eb/N0 uses R = {:.4f}, {} rate)", sim.rate(),
                                  config.channel.design_rate ? "design" : "true")
                    : std::string());
-    fmt::print("decoder {}; channel {}; seed {}, chunks of {} frames, {} threads{}\n",
-               describe(config.decoder), channel_name(config.channel.kind), config.seed,
-               sim.config().chunk_frames, config.threads,
+    fmt::print("decoder {}; channel {}; seed {}, chunks of {} frames, {}{}\n",
+               describe(sim.config().decoder), channel_name(config.channel.kind), config.seed,
+               sim.config().chunk_frames, count_of(config.threads, "thread"),
                config.all_zero ? "; all-zero codeword" : "");
     std::fflush(stdout);
   }
@@ -393,12 +461,16 @@ void add_simulate(CLI::App& app) {
       ->check(CLI::Range(1, 1 << 20));
   sub->add_option("--confidence", o->confidence, "level of the FER and BER intervals")
       ->capture_default_str();
-  sub->add_option("--output", o->output, "results file (JSON; '' for none)")->capture_default_str();
+  sub->add_option("-o,--output", o->output, "results file (JSON; '' for none)")
+      ->capture_default_str();
   sub->add_option("--csv", o->csv, "also write the points as CSV");
-  sub->add_option("--plot", o->plot, "SVG plot of FER and BER ('' for none)")
+  sub->add_option("--plot", o->plot,
+                  "plot of FER and BER: .svg, or .png / .pdf rendered by rsvg-convert ('' for "
+                  "none)")
       ->capture_default_str();
   sub->add_option("--resume", o->resume,
-                  "continue the run recorded in this results file (its settings are used)");
+                  "continue the run recorded in this results file with its settings (options "
+                  "that would change them are refused; threads and outputs apply)");
   sub->add_flag("--quiet", o->quiet, "print nothing but errors");
   sub->add_option("--replay", o->replay,
                   "decode one frame again, POINT:FRAME (indices from 0), and report it");

@@ -43,11 +43,13 @@ T get_le(const char* p) {
   return std::bit_cast<T>(bits);
 }
 
+// Rounded and saturated to the symmetric range +-max (as fixed-point LLRs are: -128 has no
+// positive counterpart, so +-Inf become +-127 alike).
 template <class I>
 I saturate(double x) {
-  const double r = std::nearbyint(x);
-  if (r >= static_cast<double>(std::numeric_limits<I>::max())) return std::numeric_limits<I>::max();
-  if (r <= static_cast<double>(std::numeric_limits<I>::min())) return std::numeric_limits<I>::min();
+  const double r = std::nearbyint(x), top = static_cast<double>(std::numeric_limits<I>::max());
+  if (r >= top) return std::numeric_limits<I>::max();
+  if (r <= -top) return static_cast<I>(-std::numeric_limits<I>::max());
   return static_cast<I>(r);
 }
 
@@ -212,13 +214,52 @@ bool CaptureReader::next_token(std::string& token, std::uint64_t& at, std::uint6
   return !token.empty();
 }
 
+bool CaptureReader::line_ends_next() {
+  for (int c = in_.peek(); c != EOF; c = in_.peek()) {
+    if (c == '\n') return true;
+    if (c != ' ' && c != '\t' && c != '\r' && c != ',') return false;
+    in_.get();
+    ++offset_;
+  }
+  return true;
+}
+
+bool CaptureReader::close_line() {
+  if (token_line_ == 0 || error_) return true;
+  if (lines_are_frames_ == -1) {
+    lines_are_frames_ = line_values_ == frame_values_ ? 1 : 0;
+    return true;
+  }
+  if (lines_are_frames_ == 1 && line_values_ != frame_values_) {
+    error_ = fmt::format(
+        "{}:{}: the line holds {} values, frames are {} (the first line is one frame, so every "
+        "line must be)",
+        source_, token_line_, line_values_, frame_values_);
+    done_ = true;
+    return false;
+  }
+  return true;
+}
+
 std::size_t CaptureReader::read_text(std::size_t max_frames, std::vector<double>& out) {
   std::string token;
   std::uint64_t at = 0, line = 0;
   std::size_t values = 0;
   out.resize(max_frames * frame_values_);
   while (values < out.size()) {
-    if (!next_token(token, at, line)) break;
+    if (!next_token(token, at, line)) {
+      if (!close_line()) values -= line_values_;  // the short last line is no frame
+      break;
+    }
+    if (line != token_line_) {
+      if (!close_line()) {
+        values -= line_values_;
+        break;
+      }
+      token_line_ = line;
+      line_values_ = 0;
+    }
+    ++line_values_;
     double v = 0;
     const auto [ptr, ec] = std::from_chars(token.data(), token.data() + token.size(), v);
     const std::uint64_t index = frames_ * frame_values_ + values;
@@ -234,6 +275,17 @@ std::size_t CaptureReader::read_text(std::size_t max_frames, std::vector<double>
       break;
     }
     out[values++] = v * scale_;
+    // Lines are frames: a line's frame is complete only if the line ends here.
+    if (lines_are_frames_ == 1 && line_values_ == frame_values_ && line_ == line &&
+        !line_ends_next()) {
+      error_ = fmt::format(
+          "{}:{}: the line holds more than {} values (the first line is one frame, "
+          "so every line must be)",
+          source_, line, frame_values_);
+      done_ = true;
+      values -= frame_values_;
+      break;
+    }
   }
   const std::size_t frames = values / frame_values_;
   if (!done_ && values < out.size()) {
@@ -351,6 +403,8 @@ std::size_t BitFrameReader::read(std::size_t max_frames, std::vector<std::uint8_
     }
   }
   frames_ += frames;
+  // No frame at all is an error, as for captures (encode of an empty input is never intended).
+  if (done_ && !error_ && frames_ == 0) error_ = fmt::format("{}: empty input: no frames", source_);
   return frames;
 }
 
@@ -392,7 +446,11 @@ PunctureMap read_puncture_map(const std::string& path, std::size_t n) {
       } catch (const std::exception&) {
         throw Error(fmt::format("{}:{}: '{}' is not an index or a range A-B", path, number, item));
       }
-      if (a > b || b >= n)
+      if (a > b) {
+        throw Error(fmt::format("{}:{}: range '{}' runs backwards (write it as {}-{})", path,
+                                number, item, b, a));
+      }
+      if (b >= n)
         throw Error(fmt::format("{}:{}: '{}' is outside 0..{}", path, number, item, n - 1));
       for (std::size_t i = a; i <= b; ++i) {
         if (map.state[i] != PunctureMap::sent)

@@ -511,7 +511,9 @@ MatrixFormat detect_format(std::string_view text, const std::string& source) {
     if (row_width != width) same_width = false;
   } while (in.next(line));
   if (has_lifting || has_zero_block) return MatrixFormat::qc;
-  if (all_binary && same_width) return MatrixFormat::dense;
+  // Nothing but 0/1 is a dense matrix even with rows of different widths (the reader then names
+  // the ragged row); an alist of 0/1 numbers only could describe no more than a 1 x 1 matrix.
+  if (all_binary && (same_width || rows > 2)) return MatrixFormat::dense;
   return MatrixFormat::alist;
 }
 

@@ -57,8 +57,9 @@ void OutputFile::commit() {
   std::error_code ec;
   std::filesystem::rename(temp_, path_, ec);
   if (ec) {
-    std::remove(temp_.c_str());
-    throw Error(fmt::format("{}: cannot rename into place: {}", path_, ec.message()));
+    // Nothing computed is lost: the finished output stays in the temporary file.
+    throw Error(fmt::format("{}: cannot rename into place ({}); the output is kept in {}", path_,
+                            ec.message(), temp_));
   }
 }
 

@@ -72,8 +72,14 @@ std::pair<double, std::string> capacity_limit(const RunRecord& run) {
 
 std::string run_label(const RunRecord& run) {
   const DecoderSettings& d = run.config.decoder;
-  return fmt::format("{}/{}, {}", algorithm_name(d.algorithm), schedule_name(d.schedule),
-                     run.code.source);
+  std::string decoder(algorithm_name(d.algorithm));
+  if (d.algorithm == Algorithm::normalized_min_sum) decoder += fmt::format(" {}", d.alpha);
+  if (d.algorithm == Algorithm::offset_min_sum) decoder += fmt::format(" {}", d.beta);
+  const std::string kernel = d.quantization
+                                 ? fmt::format("fixed point {}", quantization_spec(*d.quantization))
+                                 : fmt::format("{} kernel", kernel_name(d.kernel));
+  return fmt::format("{}/{}, {}, {}, {}", decoder, schedule_name(d.schedule), kernel,
+                     channel_name(run.config.channel.kind), run.code.source);
 }
 
 std::string plot_svg(const std::vector<PlotRun>& runs, const PlotOptions& options) {
@@ -92,6 +98,17 @@ std::string plot_svg(const std::vector<PlotRun>& runs, const PlotOptions& option
   }
   if (!std::isfinite(xmin)) throw Error("plot: the results files have no points");
   const RunRecord& first = runs.front().run;
+  // One horizontal axis: every run must sweep the same quantity.
+  for (const auto& r : runs) {
+    const ChannelSpec &a = first.config.channel, &b = r.run.config.channel;
+    if (a.kind != b.kind || (a.kind == ChannelKind::awgn && a.measure != b.measure)) {
+      throw Error(fmt::format(
+          "plot: '{}' sweeps {} on {} and '{}' sweeps {} on {}: they cannot share one axis; plot "
+          "them separately",
+          runs.front().label, parameter_heading(a), channel_name(a.kind), r.label,
+          parameter_heading(b), channel_name(b.kind)));
+    }
+  }
   const bool awgn_ebn0 = first.config.channel.kind == ChannelKind::awgn &&
                          first.config.channel.measure == SnrMeasure::ebn0;
   const auto [limit, limit_label] = options.references

@@ -4,7 +4,7 @@ cd "$WORK"
 
 # Round trip encode -> channel -> decode on every shipped code, at an SNR where all frames decode.
 for code in hamming-7-4 hamming-15-11 repetition-5 parity-8 regular-3-6-n2016 qc-rate-half-z54; do
-  "$T" encode --code $code --demo 60 --snr 10 --seed 3 --output $code.f32 --truth $code.truth 2>/dev/null || fail "demo $code"
+  "$T" encode --code $code --demo 60 --at 10 --seed 3 --output $code.f32 --truth $code.truth 2>/dev/null || fail "demo $code"
   "$T" decode --code $code $code.f32 --output $code.got 2>/dev/null || fail "decode $code"
   cmp -s $code.truth $code.got || fail "round trip on $code"
 done
@@ -27,12 +27,12 @@ cmp -s info.txt info_back.txt || fail "information bits back"
 
 # Every input encoding decodes to the same bits.
 C=qc-rate-half-z54
-"$T" encode --code $C --demo 40 --snr 4 --seed 9 --output d.f32 --truth d.truth 2>/dev/null
-"$T" encode --code $C --demo 40 --snr 4 --seed 9 --output d.f64 --output-format f64 2>/dev/null
-"$T" encode --code $C --demo 40 --snr 4 --seed 9 --output d.txt --output-format text 2>/dev/null
-"$T" encode --code $C --demo 40 --snr 4 --seed 9 --output d.i16 --output-format i16 --scale 0.001 2>/dev/null
-"$T" encode --code $C --demo 40 --snr 4 --seed 9 --output d.i8 --output-format i8 --scale 0.25 2>/dev/null
-"$T" encode --code $C --demo 40 --snr 4 --seed 9 --output d.y --output-format f32 --meaning samples 2>/dev/null
+"$T" encode --code $C --demo 40 --at 4 --seed 9 --output d.f32 --truth d.truth 2>/dev/null
+"$T" encode --code $C --demo 40 --at 4 --seed 9 --output d.f64 --output-format f64 2>/dev/null
+"$T" encode --code $C --demo 40 --at 4 --seed 9 --output d.txt --output-format text 2>/dev/null
+"$T" encode --code $C --demo 40 --at 4 --seed 9 --output d.i16 --output-format i16 --scale 0.001 2>/dev/null
+"$T" encode --code $C --demo 40 --at 4 --seed 9 --output d.i8 --output-format i8 --scale 0.25 2>/dev/null
+"$T" encode --code $C --demo 40 --at 4 --seed 9 --output d.y --output-format f32 --meaning samples 2>/dev/null
 expect_exit 0 "$T" decode --code $C d.f32 --output out.f32
 expect_exit 0 "$T" decode --code $C d.f64 --input-format f64 --output out.f64
 expect_exit 0 "$T" decode --code $C d.txt --input-format text --output out.txt
@@ -54,7 +54,7 @@ cmp -s d.truth out.inv || fail "llr-inverted"
 
 # Fixed-point decoding of a capture: the SIMD kernel (lanes refilled frame after frame) gives the
 # scalar reference's bits, posteriors and per-frame report, byte for byte.
-"$T" encode --code $C --demo 300 --snr 2 --seed 5 --output noisy.f32 2>/dev/null
+"$T" encode --code $C --demo 300 --at 2 --seed 5 --output noisy.f32 2>/dev/null
 FP=(--code $C noisy.f32 --algorithm offset-min-sum --schedule layered --quantize 6.2 --iterations 20)
 expect_exit 0 "$T" decode "${FP[@]}" --output fp-ref.txt --posterior fp-ref.post --report fp-ref.csv
 expect_exit 0 "$T" decode "${FP[@]}" --kernel simd --output fp-simd.txt --posterior fp-simd.post --report fp-simd.csv
@@ -90,7 +90,7 @@ fi
 head -c $((40 * 648 * 4 - 5)) d.f32 > trunc.f32
 expect_exit 2 "$T" decode --code $C trunc.f32 --output trunc.out
 expect_in "ends with a partial frame: 2587 bytes at byte 101088 after frame 39" "$WORK/err"
-expect_in "the 39 complete frames before it were decoded and written" "$WORK/err"
+expect_in "decoded and written before it: 39 complete frames" "$WORK/err"
 [ "$(wc -l < trunc.out)" = 39 ] || fail "frames before the truncation were lost"
 head -39 d.truth | cmp -s - trunc.out || fail "frames before the truncation differ"
 /usr/bin/python3 -c "

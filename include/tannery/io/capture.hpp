@@ -3,7 +3,9 @@
 // Binary encodings are little-endian with no header: f32 and f64 (IEEE 754), i8 and i16 (two's
 // complement integers multiplied by a scale factor, as fixed-point receivers emit them). A file
 // of f32 frames of n values reads as numpy.fromfile(path, dtype='<f4').reshape(-1, n). The text
-// encoding is numbers separated by whitespace or commas; line breaks carry no meaning.
+// encoding is numbers separated by whitespace or commas; when the first line holds exactly one
+// frame, every line is a frame and a line with another count is an error naming it; otherwise
+// line breaks carry no meaning.
 #pragma once
 
 #include <cstdint>
@@ -24,7 +26,8 @@ std::size_t sample_bytes(SampleFormat f);  // 0 for text
 
 // Appends the values as float32 little-endian.
 void append_f32_le(std::string& out, std::span<const float> values);
-// Appends values in any encoding; integers are round(value / scale), saturated to their range.
+// Appends values in any encoding; integers are round(value / scale), saturated to the symmetric
+// range +-(2^(bits-1) - 1) (+-Inf become +-127 for i8 alike).
 void append_samples(std::string& out, std::span<const double> values, SampleFormat format,
                     double scale);
 
@@ -48,6 +51,11 @@ class CaptureReader {
   std::size_t read_text(std::size_t max_frames, std::vector<double>& out);
   bool next_token(std::string& token, std::uint64_t& at, std::uint64_t& line);
   void fail_value(std::uint64_t byte, std::uint64_t index, const std::string& what);
+  // Text: the line of the tokens read so far ends; false (error_ set) when lines are frames
+  // and it holds another number of values.
+  bool close_line();
+  // Text: skips separators; true when the line (or the input) ends before another value.
+  bool line_ends_next();
 
   std::istream& in_;
   std::string source_;
@@ -57,6 +65,9 @@ class CaptureReader {
   std::uint64_t frames_ = 0;
   std::uint64_t offset_ = 0;  // bytes consumed
   std::uint64_t line_ = 1;
+  int lines_are_frames_ = -1;     // text: unknown until the first line ends, 0 or 1
+  std::uint64_t token_line_ = 0;  // text: line of the last token (0: none yet)
+  std::size_t line_values_ = 0;   // text: values on that line
   std::vector<char> raw_;
   std::optional<std::string> error_;
   bool done_ = false;

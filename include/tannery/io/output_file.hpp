@@ -20,7 +20,7 @@ class OutputFile {
 
   bool enabled() const noexcept { return file_ != nullptr; }
   void write(std::string_view data);
-  void commit();   // publish what was written
+  void commit();   // publish what was written; if the rename fails, the temporary file stays
   void abandon();  // remove the temporary file
 
  private:

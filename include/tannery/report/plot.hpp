@@ -25,9 +25,12 @@ struct PlotRun {
   RunRecord run;
 };
 
-// Short legend label of a run: "sum-product/flooding, regular-3-6-n2016".
+// Legend label of a run: decoder, schedule, kernel or fixed-point format, channel, code, e.g.
+// "sum-product/flooding, simd kernel, awgn, regular-3-6-n2016".
 std::string run_label(const RunRecord& run);
 
+// The SVG drawing; throws Error when the runs sweep different quantities (channels, Eb/N0 and
+// Es/N0), which cannot share one axis.
 std::string plot_svg(const std::vector<PlotRun>& runs, const PlotOptions& options);
 
 }  // namespace tannery
