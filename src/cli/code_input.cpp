@@ -1,6 +1,7 @@
 #include <fmt/format.h>
 #include <filesystem>
 #include <iostream>
+#include <numeric>
 #include <sstream>
 
 #include "commands.hpp"
@@ -53,6 +54,18 @@ std::istream& open_input(const std::string& path, std::ifstream& file) {
   file.open(path, std::ios::binary);
   if (!file) throw Error(fmt::format("{}: cannot open file", path));
   return file;
+}
+
+Encoder make_encoder(const Code& code, bool systematic_first) {
+  Encoder chosen(code);
+  if (!systematic_first) return chosen;
+  std::vector<std::uint32_t> first(chosen.k());
+  std::iota(first.begin(), first.end(), 0u);
+  try {
+    return Encoder(code, first);
+  } catch (const Error& e) {
+    throw Error(fmt::format("--systematic-first: {}", e.what()));
+  }
 }
 
 std::string count_of(std::uint64_t count, std::string_view noun) {

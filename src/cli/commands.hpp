@@ -22,6 +22,7 @@ struct CheckFailed {
 #include <string>
 
 #include "tannery/code/code.hpp"
+#include "tannery/code/gf2.hpp"
 
 namespace tannery::cli {
 
@@ -104,6 +105,11 @@ void write_plot(const std::string& path, const std::string& svg);
 
 // "1 thread", "2 threads": a count with its noun in the right number.
 std::string count_of(std::uint64_t count, std::string_view noun);
+
+// The encoder of a code; systematic_first: the information bits at positions 0..k-1 (where an
+// encoder with the systematic part first puts them), an Error naming the option when the code's
+// structure does not allow it.
+Encoder make_encoder(const Code& code, bool systematic_first);
 
 // A file argument and the option that gave it ("--output", "INPUT"); empty paths are unused.
 struct PathArgument {

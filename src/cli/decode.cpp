@@ -34,6 +34,7 @@ struct DecodeOptions {
   unsigned threads = 0;
   std::string truth;
   std::optional<std::uint64_t> max_failures;
+  bool systematic_first = false;
 };
 
 // Decodes frames [0, frames) of a batch on all threads; frame order is kept by construction.
@@ -73,7 +74,7 @@ void run(const DecodeOptions& o) {
                {"--truth", o.truth}},
               {{"--output", o.output}, {"--posterior", o.posterior}, {"--report", o.report}});
   const Code code = o.input.load();
-  const Encoder encoder(code);
+  const Encoder encoder = make_encoder(code, o.systematic_first);
   const DecoderSettings settings = o.decoder.settings();
   const std::size_t n = code.n();
   const SampleFormat format = *parse_sample_format(o.input_format);
@@ -284,6 +285,10 @@ void add_decode(CLI::App& app) {
       ->capture_default_str();
   sub->add_flag("--codeword", o->codeword,
                 "write whole codewords (n bits) instead of the k information bits");
+  sub->add_flag("--systematic-first", o->systematic_first,
+                "the information bits are codeword positions 0..k-1 (an encoder with the "
+                "systematic part first); refused when those positions are no information set. "
+                "Default: the positions 'tannery inspect --json' lists as info_positions");
   sub->add_option("--posterior", o->posterior,
                   "write posterior LLRs as float32 little-endian, n per frame");
   sub->add_option("--report", o->report,

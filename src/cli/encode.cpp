@@ -27,6 +27,7 @@ struct EncodeOptions {
   std::string meaning = "llr";
   double scale = 1.0;
   std::string truth;
+  bool systematic_first = false;
 };
 
 void encode_bits(const EncodeOptions& o, const Code& code, const Encoder& encoder) {
@@ -131,11 +132,15 @@ void add_encode(CLI::App& app) {
                   "demo: value multiplier for f32/f64/text, LSB size for i8/i16")
       ->capture_default_str();
   sub->add_option("--truth", o->truth, "demo: also write the sent information bits (text)");
+  sub->add_flag("--systematic-first", o->systematic_first,
+                "put the information bits at codeword positions 0..k-1 (refused when those "
+                "positions are no information set); default: the positions 'tannery inspect "
+                "--json' lists as info_positions");
   sub->callback([o] {
     check_paths({{"--code", o->input.code}, {"INPUT", o->demo > 0 ? "" : o->bits}},
                 {{"--output", o->output}, {"--truth", o->truth}});
     const Code code = o->input.load();
-    const Encoder encoder(code);
+    const Encoder encoder = make_encoder(code, o->systematic_first);
     if (o->demo > 0)
       demo_capture(*o, code, encoder);
     else

@@ -99,10 +99,16 @@ void print_json(const InspectOptions& o, const Report& r) {
   } else {
     j["quasi_cyclic"] = nullptr;
   }
-  j["info_positions_head"] = std::vector<std::uint32_t>(
-      r.encoder.info_positions().begin(),
-      r.encoder.info_positions().begin() +
-          static_cast<std::ptrdiff_t>(std::min<std::size_t>(16, r.encoder.k())));
+  // Where encode and decode put the information bits by default, all k of them; and whether
+  // positions 0..k-1 could carry them instead (--systematic-first).
+  j["info_positions"] = r.encoder.info_positions();
+  bool first = true;
+  try {
+    (void)make_encoder(code, true);
+  } catch (const Error&) {
+    first = false;
+  }
+  j["systematic_first_possible"] = first;
   fmt::print("{}\n", j.dump(2));
 }
 

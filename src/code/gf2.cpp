@@ -1,5 +1,6 @@
 #include "tannery/code/gf2.hpp"
 
+#include <fmt/format.h>
 #include <algorithm>
 #include <bit>
 
@@ -71,7 +72,8 @@ class Buckets {
   std::vector<std::vector<std::uint32_t>> lists_;
 };
 
-Triangulation peel(const Code& code, Stall stall) {
+// given: positions declared free before peeling starts (wanted as information bits).
+Triangulation peel(const Code& code, Stall stall, std::span<const std::uint32_t> given) {
   const std::size_t n = code.n(), m = code.m();
   Triangulation t;
   std::vector<Role> role(n, Role::undecided);
@@ -116,6 +118,10 @@ Triangulation peel(const Code& code, Stall stall) {
   for (std::size_t c = 0; c < m; ++c) {
     row_degree[c] = static_cast<std::uint32_t>(code.check_degree(c));
     file_row(static_cast<std::uint32_t>(c));
+  }
+  for (std::uint32_t v : given) {
+    t.free_cols.push_back(v);
+    decide(v, Role::free);
   }
   auto live_col = [&](std::uint32_t v, std::size_t d) {
     return role[v] == Role::undecided && col_degree[v] == d;
@@ -165,17 +171,27 @@ Triangulation peel(const Code& code, Stall stall) {
 
 }  // namespace
 
-Encoder::Encoder(const Code& code) : n_(code.n()) {
+Encoder::Encoder(const Code& code, std::span<const std::uint32_t> information) : n_(code.n()) {
+  std::vector<bool> wanted(code.n(), false);
+  for (std::uint32_t v : information) {
+    if (v >= code.n() || wanted[v])
+      throw Error(fmt::format("information position {} is out of range or repeated", v));
+    wanted[v] = true;
+  }
   // The dense remainder costs O(leftover^2 * free / 64); keep the peeling that leaves less.
-  Triangulation t = peel(code, Stall::widest_column);
+  Triangulation t = peel(code, Stall::widest_column, information);
   if (!t.leftover.empty()) {
-    Triangulation other = peel(code, Stall::lowest_row);
+    Triangulation other = peel(code, Stall::lowest_row, information);
     if (other.leftover.size() < t.leftover.size()) t = std::move(other);
   }
   pivot_cols_ = std::move(t.cols);
   pivot_start_ = std::move(t.start);
   pivot_others_ = std::move(t.others);
   free_cols_ = std::move(t.free_cols);
+  // Wanted information bits last: the dense reduction takes its pivots (parity bits) from the
+  // left, so they stay information bits whenever the others can be parity bits.
+  std::stable_partition(free_cols_.begin(), free_cols_.end(),
+                        [&](std::uint32_t v) { return !wanted[v]; });
   const std::vector<std::uint32_t>& leftover = t.leftover;
   const std::size_t n = code.n();
 
@@ -220,6 +236,21 @@ Encoder::Encoder(const Code& code) : n_(code.n()) {
   for (auto [position, f] : info) {
     info_positions_.push_back(position);
     info_free_index_.push_back(f);
+  }
+  if (!information.empty()) {
+    std::size_t outside = 0;
+    for (std::uint32_t p : info_positions_) outside += !wanted[p];
+    if (info_positions_.size() != information.size() || outside > 0) {
+      throw Error(
+          info_positions_.size() != information.size()
+              ? fmt::format("{} positions requested for the information bits, but this code has "
+                            "k = {}",
+                            information.size(), info_positions_.size())
+              : fmt::format("the requested positions are no information set: {} of them are fixed "
+                            "by the others through the checks (the columns of H outside them have "
+                            "rank {} below rank(H) = {})",
+                            outside, outside, rank()));
+    }
   }
 }
 

@@ -115,6 +115,37 @@ expect_in "decoder: min-sum" "$WORK/err"
 expect_in "seed 5 (recorded: 1)" "$WORK/err"
 expect_exit 0 "$T" simulate --resume res.json --threads 1 --seed 1 --algorithm sum-product --quiet --plot ""
 
+# Information positions: inspect lists all k; --systematic-first puts them at 0..k-1 (verified
+# against H with numpy) or refuses a code whose first k positions are no information set.
+"$T" inspect regular-3-6-n2016 --json > reg.json || fail "inspect json"
+/usr/bin/python3 -c "
+import json; j = json.load(open('reg.json'))
+assert len(j['info_positions']) == j['k'] == 1008 and j['systematic_first_possible'] is False, j['k']" ||
+  fail "info positions in inspect --json"
+printf '1011\n0110\n1111\n' > u.txt
+expect_exit 0 "$T" encode --code hamming-7-4 u.txt --systematic-first -o c.txt
+"$T" convert hamming-7-4 h.dense || fail "convert"
+/usr/bin/python3 - <<'PY' || fail "systematic-first codewords"
+import numpy as np
+H = np.array([[int(x) for x in l.split()] for l in open("h.dense")])
+for u, c in zip(open("u.txt"), open("c.txt")):
+    c = np.array([int(x) for x in c.strip()])
+    assert (H @ c % 2 == 0).all(), c            # a codeword
+    assert "".join(map(str, c[:4])) == u.strip()  # carrying u in positions 0..3
+PY
+/usr/bin/python3 -c "
+import struct
+with open('c.f32', 'wb') as f:
+    for l in open('c.txt'):
+        f.write(struct.pack('<7f', *[(-3.0 if ch == '1' else 3.0) for ch in l.strip()]))"
+expect_exit 0 "$T" decode --code hamming-7-4 c.f32 --systematic-first -o back.txt
+cmp -s u.txt back.txt || fail "decode --systematic-first does not return the information bits"
+expect_exit 0 "$T" decode --code hamming-7-4 c.f32 -o default.txt
+cmp -s u.txt default.txt && fail "default positions should differ from 0..k-1 for hamming-7-4"
+printf '1100\n0011\n' > no-first.dense
+expect_exit 2 "$T" encode --code no-first.dense u.txt --systematic-first
+expect_in "--systematic-first: the requested positions are no information set" "$WORK/err"
+
 # Names: one word per meaning, -o everywhere, plural forms, suggestions for typos.
 expect_exit 0 "$T" encode --code hamming-7-4 --demo 2 --at 3 -o o.f32
 expect_exit 0 "$T" simulate --code hamming-7-4 --sweep 3 --max-frames 64 --threads 1 -o one.json --plot ""

@@ -54,7 +54,11 @@ class BitMatrix {
 class Encoder {
  public:
   // Analyses H; time roughly O(E + dense remainder), memory O(E + remainder rows x free bits).
-  explicit Encoder(const Code& code);
+  // information: the positions that must carry the information bits (e.g. the first k, where
+  // an encoder with the systematic part first puts them); empty: chosen by the analysis. Throws
+  // Error when they are no information set (not k of them, or the other columns of H do not
+  // have full rank).
+  explicit Encoder(const Code& code, std::span<const std::uint32_t> information = {});
 
   std::size_t n() const noexcept { return n_; }
   std::size_t k() const noexcept { return info_positions_.size(); }

@@ -1,7 +1,9 @@
+#include <bit>
 #include <catch2/catch.hpp>
 
 #include "tannery/code/construct.hpp"
 #include "tannery/code/gf2.hpp"
+#include "tannery/error.hpp"
 #include "test_support.hpp"
 
 using namespace tannery;
@@ -87,4 +89,43 @@ TEST_CASE("dense reduction gives row-echelon pivots", "[gf2]") {
   CHECK(a.get(0, 3));
   CHECK_FALSE(a.get(0, 65));
   CHECK(a.get(1, 65));
+}
+
+TEST_CASE("requested information positions: taken when they are an information set", "[gf2]") {
+  // Every k-subset of a small random code: the encoder must take it exactly when the other
+  // columns of H have full rank (checked by the naive elimination of the test support), and
+  // then put the information bits there.
+  const Code code = construct_regular(12, 2, 4, 3);
+  const Encoder plain(code);
+  const std::size_t n = code.n(), k = plain.k();
+  int accepted = 0, refused = 0;
+  for (std::uint32_t mask = 0; mask < (1u << n); ++mask) {
+    if (static_cast<std::size_t>(std::popcount(mask)) != k) continue;
+    std::vector<std::uint32_t> wanted;
+    std::vector<std::vector<std::uint32_t>> others(code.m());
+    for (std::uint32_t v = 0; v < n; ++v) {
+      if (mask >> v & 1u) wanted.push_back(v);
+    }
+    for (std::size_t c = 0; c < code.m(); ++c) {
+      for (std::uint32_t v : code.check_variables(c)) {
+        if (!(mask >> v & 1u)) others[c].push_back(v);
+      }
+    }
+    const bool information_set = test::naive_rank(Code::from_checks(n, others)) == plain.rank();
+    if (!information_set) {
+      CHECK_THROWS_AS(Encoder(code, wanted), Error);
+      ++refused;
+      continue;
+    }
+    const Encoder enc(code, wanted);
+    CHECK(enc.info_positions() == wanted);
+    std::vector<std::uint8_t> info(k), word(n);
+    for (std::size_t i = 0; i < k; ++i) info[i] = static_cast<std::uint8_t>((mask >> i) & 1u);
+    enc.encode(info, word);
+    CHECK(syndrome_weight(code, word) == 0);
+    for (std::size_t i = 0; i < k; ++i) CHECK(word[wanted[i]] == info[i]);
+    ++accepted;
+  }
+  CHECK(accepted > 0);
+  CHECK(refused > 0);
 }
