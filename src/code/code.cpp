@@ -2,6 +2,7 @@
 
 #include <fmt/format.h>
 #include <algorithm>
+#include <numeric>
 
 #include "tannery/error.hpp"
 
@@ -10,7 +11,44 @@ namespace tannery {
 namespace {
 // Refuse sizes whose index arrays would not fit the 32-bit edge and node ids.
 constexpr std::size_t kMaxEdges = std::size_t{1} << 31;
+
+// Base tables up to this many blocks are looked for (a lifting of a tiny Z over a long code is of
+// no use as a base table).
+constexpr std::size_t kMaxBaseBlocks = std::size_t{1} << 22;
+
+// H as a lifting with circulants of size z, if it is one: every z x z block all zero or a
+// circulant permutation (row r of the block has its one in column (r + s) mod z).
+std::optional<QuasiCyclic> lifting_of(const Code& code, std::size_t z) {
+  QuasiCyclic base{code.m() / z, code.n() / z, z, {}};
+  base.shifts.assign(base.block_rows * base.block_cols, -1);
+  std::vector<std::uint32_t> count(base.shifts.size(), 0);
+  for (std::size_t c = 0; c < code.m(); ++c) {
+    const std::size_t i = c / z, r = c % z;
+    for (std::uint32_t v : code.check_variables(c)) {
+      const std::size_t j = v / z, q = v % z, b = i * base.block_cols + j;
+      const auto s = static_cast<std::int64_t>((q + z - r) % z);
+      if (base.shifts[b] == -1) base.shifts[b] = s;
+      if (base.shifts[b] != s) return std::nullopt;  // not one circulant (or two ones in a row)
+      ++count[b];
+    }
+  }
+  for (std::size_t b = 0; b < count.size(); ++b) {
+    if (base.shifts[b] != -1 && count[b] != z) return std::nullopt;  // a row of the block is empty
+  }
+  return base;
+}
+
 }  // namespace
+
+std::optional<QuasiCyclic> find_quasi_cyclic(const Code& code) {
+  if (code.m() == 0 || code.n() == 0 || code.edges() == 0) return std::nullopt;
+  const std::size_t g = std::gcd(code.m(), code.n());
+  for (std::size_t z = g; z >= 2; --z) {
+    if (g % z != 0 || (code.m() / z) * (code.n() / z) > kMaxBaseBlocks) continue;
+    if (auto base = lifting_of(code, z)) return base;
+  }
+  return std::nullopt;
+}
 
 Code Code::from_checks(std::size_t n, const std::vector<std::vector<std::uint32_t>>& checks) {
   if (n >= kMaxEdges || checks.size() >= kMaxEdges) {
@@ -52,6 +90,7 @@ Code Code::from_checks(std::size_t n, const std::vector<std::vector<std::uint32_
   for (std::size_t e = 0; e < total; ++e) {
     code.var_edge_[fill[code.edge_var_[e]]++] = static_cast<std::uint32_t>(e);
   }
+  code.qc_ = find_quasi_cyclic(code);
   return code;
 }
 

@@ -397,8 +397,9 @@ Code read_qc(TextReader& in, std::optional<std::size_t> lifting) {
 void write_qc(const Code& code, std::ostream& out) {
   if (!code.quasi_cyclic()) {
     throw Error(
-        "this code has no quasi-cyclic structure to write as a base table (read it from a qc file "
-        "or construct it by lifting)");
+        "this code has no quasi-cyclic structure to write as a base table (H is no lifting of a "
+        "base table: not every Z x Z block, for any Z >= 2 dividing m and n, is zero or a "
+        "circulant permutation)");
   }
   const QuasiCyclic& base = *code.quasi_cyclic();
   out << fmt::format("# quasi-cyclic base table: {} x {} blocks, -1 = zero block\nZ = {}\n",

@@ -31,6 +31,12 @@ for fmt in tannery alist mtx dense qc; do
   expect_exit 0 "$T" convert "$WORK/c.$fmt" "$WORK/back.tanner"
   expect_exit 0 "$T" convert "$CODES/qc-rate-half-z54.qc" "$WORK/ref.tanner"
   cmp -s "$WORK/back.tanner" "$WORK/ref.tanner" || fail "round trip through $fmt"
+  # The quasi-cyclic structure is recognised from any format: back to the same base table.
+  expect_exit 0 "$T" convert "$WORK/c.$fmt" "$WORK/again.qc"
+  expect_exit 0 "$T" convert "$CODES/qc-rate-half-z54.qc" "$WORK/orig.qc"
+  cmp -s "$WORK/again.qc" "$WORK/orig.qc" || fail "base table not recovered from $fmt"
+  expect_exit 0 "$T" inspect "$WORK/c.$fmt" --json
+  expect_in '"lifting": 54' "$WORK/out"
 done
 expect_exit 0 "$T" convert hamming-7-4 - --to dense
 expect_in "1 0 1 0 1 0 1" "$WORK/out"

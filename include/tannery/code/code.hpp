@@ -58,7 +58,8 @@ class Code {
   std::uint32_t edge_variable(std::size_t e) const noexcept { return edge_var_[e]; }
   std::uint32_t edge_check(std::size_t e) const noexcept { return edge_check_[e]; }
 
-  // Present when the code was built from a base table.
+  // Present when the code was built from a base table, or when H, as read from any format, is
+  // a lifting of one (find_quasi_cyclic).
   const std::optional<QuasiCyclic>& quasi_cyclic() const noexcept { return qc_; }
 
   // The checks as lists of variables (the form from_checks takes).
@@ -78,6 +79,11 @@ class Code {
   std::vector<std::uint32_t> var_edge_;        // E
   std::optional<QuasiCyclic> qc_;
 };
+
+// The base table of H when H is a lifting of one: every Z x Z block zero or a circulant
+// permutation, for the largest Z >= 2 dividing m and n that fits (base tables of at most 2^22
+// blocks are looked for). O(E) per candidate Z.
+std::optional<QuasiCyclic> find_quasi_cyclic(const Code& code);
 
 // Syndrome weight of a hard-decision word (one byte per bit, its lowest bit the value): the
 // number of unsatisfied checks. O(E).

@@ -69,3 +69,25 @@ TEST_CASE("syndrome weight counts unsatisfied checks", "[code]") {
   const std::vector<std::uint8_t> word{0, 1, 0, 0};
   CHECK(syndrome_weight(code, word) == 2);
 }
+
+TEST_CASE("a matrix that is a lifting of a base table is recognised as one", "[code]") {
+  // A base table with zero blocks and every shift, expanded and rebuilt from its rows only.
+  QuasiCyclic base{2, 4, 5, {0, 3, -1, 4, 2, -1, 1, 0}};
+  const Code lifted = Code::from_quasi_cyclic(base);
+  const Code plain = Code::from_checks(lifted.n(), lifted.checks());
+  REQUIRE(plain.quasi_cyclic());
+  CHECK(plain.quasi_cyclic()->lifting == 5);
+  CHECK(plain.quasi_cyclic()->shifts == base.shifts);
+  // The largest lifting size is found: Z = 5 here, not 1.
+  // One extra one in a block breaks the circulant: no base table then.
+  auto rows = lifted.checks();
+  rows[0].push_back(rows[0].back() == 19 ? 18 : 19);
+  CHECK_FALSE(Code::from_checks(lifted.n(), rows).quasi_cyclic());
+  // A row missing from a circulant block, likewise.
+  rows = lifted.checks();
+  rows[3].erase(rows[3].begin());
+  CHECK_FALSE(Code::from_checks(lifted.n(), rows).quasi_cyclic());
+  // Codes without the structure.
+  CHECK_FALSE(test::shipped("regular-3-6-n2016.tanner").quasi_cyclic());
+  CHECK_FALSE(test::shipped("hamming-7-4.tanner").quasi_cyclic());
+}
