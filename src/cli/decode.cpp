@@ -208,9 +208,10 @@ void run(const DecodeOptions& o) {
   report_out.commit();
   const double fps = seconds > 0 ? static_cast<double>(frames) / seconds : 0;
   fmt::print(stderr,
-             "decoded {} frames: {} did not converge; {:.0f} frames/s, {:.3f} coded Mbit/s, {:.3g} "
-             "edge-updates/s ({})\n",
-             frames, failures, fps, fps * static_cast<double>(n) / 1e6,
+             "decoded {} frames ({}): {} did not converge; {:.0f} frames/s, {:.3f} coded Mbit/s, "
+             "{:.3g} edge-updates/s ({})\n",
+             frames, describe(resolve_kernel(settings, code)), failures, fps,
+             fps * static_cast<double>(n) / 1e6,
              seconds > 0
                  ? static_cast<double>(iterations) * static_cast<double>(code.edges()) / seconds
                  : 0.0,

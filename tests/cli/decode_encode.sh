@@ -69,7 +69,7 @@ expect_exit 0 "$T" decode --code $C d.f32 --output out.packed --output-format pa
 [ "$(wc -l < rep.jsonl)" = 40 ] || fail "report lines"
 head -1 rep.jsonl | grep -q '"frame": 0, "converged": true' || fail "jsonl report"
 [ "$(stat -c %s post.f32)" = $((40 * 648 * 4)) ] || fail "posterior size"
-expect_in "decoded 40 frames: 0 did not converge" "$WORK/err"
+expect_in "early stop): 0 did not converge" "$WORK/err"
 
 # The binary layout reads with numpy.fromfile(path, dtype='<f4').reshape(-1, n) (python3-numpy).
 if /usr/bin/python3 -c "import numpy" 2>/dev/null; then
