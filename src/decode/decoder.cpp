@@ -41,19 +41,29 @@ std::size_t max_check_degree(const Code& code) {
 
 constexpr std::size_t kMaxSimdCheckDegree = 127;
 
-}  // namespace
-
-std::string_view kernel_name(Kernel k) {
-  for (auto [value, name] : kKernels) {
-    if (value == k) return name;
+// One lookup in each direction for the name tables above.
+template <class E, std::size_t N>
+std::string_view name_in(const std::pair<E, std::string_view> (&table)[N], E value) {
+  for (auto [v, name] : table) {
+    if (v == value) return name;
   }
   return "?";
 }
-std::optional<Kernel> parse_kernel(std::string_view name) {
-  for (auto [value, n] : kKernels) {
-    if (n == name) return value;
+template <class E, std::size_t N>
+std::optional<E> value_in(const std::pair<E, std::string_view> (&table)[N], std::string_view name) {
+  for (auto [v, n] : table) {
+    if (n == name) return v;
   }
   return std::nullopt;
+}
+
+}  // namespace
+
+std::string_view kernel_name(Kernel k) {
+  return name_in(kKernels, k);
+}
+std::optional<Kernel> parse_kernel(std::string_view name) {
+  return value_in(kKernels, name);
 }
 
 bool simd_supports(const DecoderSettings& s, const Code& code) {
@@ -71,25 +81,16 @@ DecoderSettings resolve_kernel(DecoderSettings s, const Code& code) {
 }
 
 std::string_view algorithm_name(Algorithm a) {
-  for (auto [value, name] : kAlgorithms) {
-    if (value == a) return name;
-  }
-  return "?";
+  return name_in(kAlgorithms, a);
 }
 std::optional<Algorithm> parse_algorithm(std::string_view name) {
-  for (auto [value, n] : kAlgorithms) {
-    if (n == name) return value;
-  }
-  return std::nullopt;
+  return value_in(kAlgorithms, name);
 }
 std::string_view schedule_name(Schedule s) {
-  return s == Schedule::flooding ? "flooding" : "layered";
+  return name_in(kSchedules, s);
 }
 std::optional<Schedule> parse_schedule(std::string_view name) {
-  for (auto [value, n] : kSchedules) {
-    if (n == name) return value;
-  }
-  return std::nullopt;
+  return value_in(kSchedules, name);
 }
 
 void validate(const DecoderSettings& s, const Code& code) {

@@ -99,8 +99,10 @@ struct Decoded {
   std::vector<double> posterior;
   std::vector<FrameOutcome> outcome;
 };
-inline Decoded decode_all(const Code& code, const DecoderSettings& s,
-                          const std::vector<double>& llr) {
+// Not inlined: GCC 12 otherwise warns (-Wstringop-overflow) about the outcome vector on a size it
+// propagates from a caller, a known false positive.
+[[gnu::noinline]] inline Decoded decode_all(const Code& code, const DecoderSettings& s,
+                                            const std::vector<double>& llr) {
   const std::size_t frames = llr.size() / code.n();
   Decoded d{std::vector<std::uint8_t>(llr.size()), std::vector<double>(llr.size()),
             std::vector<FrameOutcome>(frames)};
