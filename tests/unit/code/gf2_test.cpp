@@ -119,8 +119,8 @@ TEST_CASE("requested information positions: taken when they are an information s
     }
     const Encoder enc(code, wanted);
     CHECK(enc.info_positions() == wanted);
-    std::vector<std::uint8_t> info(k), word(n);
-    for (std::size_t i = 0; i < k; ++i) info[i] = static_cast<std::uint8_t>((mask >> i) & 1u);
+    std::vector<std::uint8_t> info, word(n);
+    for (std::size_t i = 0; i < k; ++i) info.push_back(static_cast<std::uint8_t>((mask >> i) & 1u));
     enc.encode(info, word);
     CHECK(syndrome_weight(code, word) == 0);
     for (std::size_t i = 0; i < k; ++i) CHECK(word[wanted[i]] == info[i]);
