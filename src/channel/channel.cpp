@@ -39,9 +39,12 @@ double esn0_db_from_ebn0(double ebn0_db, double rate) {
 void check_channel_parameter(ChannelKind kind, double parameter) {
   if (!std::isfinite(parameter))
     throw Error(fmt::format("channel parameter {} is not finite", parameter));
-  if (kind != ChannelKind::awgn && (parameter < 0 || parameter > 1)) {
-    throw Error(fmt::format("{} parameter must be a probability in [0, 1], got {}",
-                            channel_name(kind), parameter));
+  if (kind == ChannelKind::bec && (parameter < 0 || parameter > 1)) {
+    throw Error(fmt::format("bec erasure probability must be in [0, 1], got {}", parameter));
+  }
+  // A BSC with p > 1/2 is the BSC with 1 - p and its outputs inverted: refused as a likely slip.
+  if (kind == ChannelKind::bsc && (parameter < 0 || parameter > 0.5)) {
+    throw Error(fmt::format("bsc crossover probability must be in [0, 0.5], got {}", parameter));
   }
 }
 

@@ -1,4 +1,7 @@
 #include <fmt/format.h>
+#include <spawn.h>
+#include <sys/wait.h>
+#include <cerrno>
 #include <filesystem>
 #include <iostream>
 #include <numeric>
@@ -68,11 +71,38 @@ Encoder make_encoder(const Code& code, bool systematic_first) {
   }
 }
 
+int run_program(const std::vector<std::string>& args) {
+  std::vector<char*> argv;
+  for (const auto& a : args) argv.push_back(const_cast<char*>(a.c_str()));
+  argv.push_back(nullptr);
+  pid_t pid = 0;
+  if (posix_spawnp(&pid, argv[0], nullptr, nullptr, argv.data(), environ) != 0) return -1;
+  int status = 0;
+  while (waitpid(pid, &status, 0) < 0) {
+    if (errno != EINTR) return -1;
+  }
+  return WIFEXITED(status) ? WEXITSTATUS(status) : -1;
+}
+
+const CLI::Validator kNonNegative(
+    [](std::string& value) -> std::string {
+      return value.find('-') == std::string::npos ? "" : "must be 0 or more, got " + value;
+    },
+    "", "non-negative");
+
 std::string count_of(std::uint64_t count, std::string_view noun) {
   return fmt::format("{} {}{}", count, noun, count == 1 ? "" : "s");
 }
 
 namespace {
+
+// A device, pipe or socket (written in place; several outputs may share /dev/null).
+bool special_file(const std::string& path) {
+  std::error_code ec;
+  const auto status = std::filesystem::status(path, ec);
+  return !ec && std::filesystem::exists(status) && !std::filesystem::is_regular_file(status) &&
+         !std::filesystem::is_directory(status);
+}
 
 // Whether two path arguments name the same file (both "-" counts as the same stream).
 bool same_file(const std::string& a, const std::string& b) {
@@ -88,6 +118,7 @@ bool same_file(const std::string& a, const std::string& b) {
 void check_paths(const std::vector<PathArgument>& inputs,
                  const std::vector<PathArgument>& outputs) {
   auto used = [](const PathArgument& p) { return !p.path.empty(); };
+  auto shareable = [](const PathArgument& p) { return p.path != "-" && special_file(p.path); };
   for (std::size_t i = 0; i < inputs.size(); ++i) {
     for (std::size_t j = i + 1; j < inputs.size(); ++j) {
       if (used(inputs[i]) && used(inputs[j]) && inputs[i].path == "-" && inputs[j].path == "-") {
@@ -97,7 +128,7 @@ void check_paths(const std::vector<PathArgument>& inputs,
     }
   }
   for (std::size_t i = 0; i < outputs.size(); ++i) {
-    if (!used(outputs[i])) continue;
+    if (!used(outputs[i]) || shareable(outputs[i])) continue;
     for (std::size_t j = i + 1; j < outputs.size(); ++j) {
       if (used(outputs[j]) && same_file(outputs[i].path, outputs[j].path)) {
         throw Error(fmt::format("{} and {} would both write {}", outputs[i].option,

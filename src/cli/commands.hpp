@@ -103,6 +103,14 @@ std::istream& open_input(const std::string& path, std::ifstream& file);
 void check_plot_path(const std::string& path);
 void write_plot(const std::string& path, const std::string& svg);
 
+// Runs a program with these arguments and waits for it, without a shell (nothing in an argument
+// is interpreted: file names may hold quotes or ';'). Its exit status, or -1 when it cannot be
+// started (e.g. not installed).
+int run_program(const std::vector<std::string>& args);
+
+// Refuses a negative value for an unsigned option (CLI11 would wrap it to a huge count).
+extern const CLI::Validator kNonNegative;
+
 // "1 thread", "2 threads": a count with its noun in the right number.
 std::string count_of(std::uint64_t count, std::string_view noun);
 

@@ -161,20 +161,25 @@ void add_construct(CLI::App& app) {
   sub->add_option("--to", o->to, "output format (default: from the extension)")
       ->check(CLI::IsMember({"tannery", "alist", "mtx", "qc", "dense"}));
   sub->add_option("--seed", o->seed, "seed of the construction")->capture_default_str();
-  sub->add_option("--length", o->length, "code length n (bits)");
+  // Bounded before anything is built: a negative or huge count would wrap or never finish.
+  sub->add_option("--length", o->length, "code length n (bits)")
+      ->check(CLI::Range(1.0, static_cast<double>(kMaxCodeDimension)));
   sub->add_option("--variable-degree", o->variable_degree, "variable-node degree dv (regular)")
+      ->check(CLI::Range(1.0, 1000.0))
       ->capture_default_str();
   sub->add_option("--variable-degrees", o->variable_degrees,
                   "peg: irregular variable degrees as node fractions DEGREE:FRACTION,... (e.g. "
                   "2:0.5,3:0.3,8:0.2)");
   sub->add_option("--check-degree", o->check_degree,
-                  "check-node degree dc (regular; default from --rate)");
+                  "check-node degree dc (regular; default from --rate)")
+      ->check(CLI::Range(2.0, 1000.0));
   sub->add_option("--rate", o->rate,
                   "design rate 1 - dv/dc (regular, when --check-degree is not given)")
       ->capture_default_str();
   sub->add_option("--base", o->base,
                   "base graph to lift: a table of 0/1 or edge multiplicities, a row per line");
-  sub->add_option("--lifting", o->lifting, "lifting size Z (circulant size) for lift");
+  sub->add_option("--lifting", o->lifting, "lifting size Z (circulant size) for lift")
+      ->check(CLI::Range(1.0, static_cast<double>(1 << 20)));
   sub->callback([o] {
     std::string note;
     const Code code = build(*o, note);

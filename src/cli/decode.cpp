@@ -301,7 +301,8 @@ void add_decode(CLI::App& app) {
       ->check(CLI::IsMember({"csv", "jsonl"}));
   sub->add_flag("--strict", o->strict,
                 "refuse the whole input if any part is bad (outputs appear only on success)");
-  sub->add_option("--threads", o->threads, "worker threads (default: all cores)");
+  sub->add_option("--threads", o->threads, "worker threads, 1 to 1024 (default: all cores)")
+      ->check(CLI::Range(0.0, 1024.0));
   sub->add_option("--truth", o->truth,
                   "the information bits that were sent (text, k per frame, as 'tannery encode' "
                   "writes them): count frame and bit errors against them");

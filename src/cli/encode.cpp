@@ -116,7 +116,8 @@ void add_encode(CLI::App& app) {
       "codewords: text, packed or bytes (default text); demo captures: f32, f64, i8, i16 or text "
       "(default f32)");
   sub->add_option("--demo", o->demo,
-                  "instead of reading bits: this many random frames through --channel");
+                  "instead of reading bits: this many random frames through --channel")
+      ->check(kNonNegative);
   sub->add_option("--channel", o->channel, "demo channel: awgn, bsc or bec")
       ->check(CLI::IsMember({"awgn", "bsc", "bec"}))
       ->capture_default_str();

@@ -2,7 +2,6 @@
 #include <fmt/format.h>
 #include <nlohmann/json.hpp>
 
-#include <cstdlib>
 #include "commands.hpp"
 #include "tannery/code/analysis.hpp"
 #include "tannery/code/gf2.hpp"
@@ -33,12 +32,12 @@ void write_dot(const InspectOptions& o, const Code& code) {
   if (!o.dot.ends_with(".svg")) return write_file_atomically(o.dot, text);
   const std::string source = o.dot + ".dot";
   write_file_atomically(source, text);
-  if (std::system("command -v dot > /dev/null 2>&1") != 0) {
+  const int status = run_program({"dot", "-Tsvg", source, "-o", o.dot});
+  if (status == -1) {
     throw Error(fmt::format(
         "Graphviz 'dot' is not installed (apt-get install graphviz); wrote {} instead", source));
   }
-  const std::string command = fmt::format("dot -Tsvg '{}' -o '{}'", source, o.dot);
-  if (std::system(command.c_str()) != 0) throw Error(fmt::format("Graphviz failed on {}", source));
+  if (status != 0) throw Error(fmt::format("Graphviz failed on {}", source));
   std::remove(source.c_str());
 }
 

@@ -2,7 +2,6 @@
 #include <fmt/format.h>
 #include <unistd.h>
 #include <cstdio>
-#include <cstdlib>
 #include <filesystem>
 
 #include "commands.hpp"
@@ -41,25 +40,21 @@ void write_plot(const std::string& path, const std::string& svg) {
   check_plot_path(path);
   const bool png = path.ends_with(".png"), pdf = path.ends_with(".pdf");
   if (!png && !pdf) return write_file_atomically(path, svg);
-  if (std::system("command -v rsvg-convert > /dev/null 2>&1") != 0) {
-    throw Error(fmt::format(
-        "{}: {} output needs rsvg-convert (apt-get install librsvg2-bin); write an .svg instead",
-        path, png ? "PNG" : "PDF"));
-  }
   // Rendered next to the destination, then renamed into place (never half a file there).
   const std::string source = fmt::format("{}.{}.svg", path, ::getpid());
   const std::string rendered = fmt::format("{}.{}.part", path, ::getpid());
   write_file_atomically(source, svg);
-  const std::string command =
-      fmt::format("rsvg-convert --format={} --background-color=white '{}' -o '{}'",
-                  png ? "png" : "pdf", source, rendered);
-  const int status = std::system(command.c_str());
+  const int status = run_program({"rsvg-convert", png ? "--format=png" : "--format=pdf",
+                                  "--background-color=white", source, "-o", rendered});
   std::remove(source.c_str());
   std::error_code ec;
   if (status == 0) std::filesystem::rename(rendered, path, ec);
   if (status != 0 || ec) {
     std::remove(rendered.c_str());
-    throw Error(fmt::format("{}: rsvg-convert failed", path));
+    throw Error(status == -1 ? fmt::format("{}: {} output needs rsvg-convert (apt-get install "
+                                           "librsvg2-bin); write an .svg instead",
+                                           path, png ? "PNG" : "PDF")
+                             : fmt::format("{}: rsvg-convert failed", path));
   }
 }
 

@@ -443,18 +443,21 @@ void add_simulate(CLI::App& app) {
   auto* stop = sub->add_option_group("stop", "Stop rules");
   stop->add_option("--frame-errors", o->frame_errors,
                    "a point stops after at least this many frame errors")
-      ->capture_default_str();
+      ->capture_default_str()
+      ->check(kNonNegative);
   stop->add_option("--max-frames", o->max_frames,
                    "a point stops after this many frames; the sweep stops at a point "
                    "with no error in that many")
-      ->capture_default_str();
+      ->capture_default_str()
+      ->check(kNonNegative);
   stop->add_option("--max-seconds", o->max_seconds,
                    "a point stops after this many seconds (wall clock: the one rule that makes "
                    "counts machine-dependent)");
   stop->add_option("--stop-below", o->stop_below,
                    "the sweep stops after a point whose FER is below this");
   sub->add_option("--seed", o->seed, "seed of the Philox streams")->capture_default_str();
-  sub->add_option("--threads", o->threads, "worker threads (default: all cores)");
+  sub->add_option("--threads", o->threads, "worker threads, 1 to 1024 (default: all cores)")
+      ->check(CLI::Range(0.0, 1024.0));
   sub->add_option("--chunk", o->chunk,
                   "frames per chunk, the unit of work and of stop-rule evaluation (default: 64; "
                   "with --kernel simd up to 1024, by code length, so batches refill in a chunk)")
@@ -477,7 +480,8 @@ void add_simulate(CLI::App& app) {
   sub->add_option("--replay-llr", o->replay_llr,
                   "with --replay: write that frame's channel LLRs (float32)");
   sub->add_option("--save-failures", o->save_failures,
-                  "keep the channel LLRs of the first N failing frames per point");
+                  "keep the channel LLRs of the first N failing frames per point")
+      ->check(kNonNegative);
   sub->add_option("--failures", o->failures,
                   "capture file for --save-failures (float32, n per frame)")
       ->capture_default_str();

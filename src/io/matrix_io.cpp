@@ -13,6 +13,7 @@
 #include <sstream>
 
 #include "tannery/error.hpp"
+#include "tannery/io/output_file.hpp"
 #include "text_reader.hpp"
 
 namespace tannery {
@@ -586,29 +587,9 @@ void write_code(const Code& code, MatrixFormat format, std::ostream& out) {
 }
 
 void write_file_atomically(const std::string& path, std::string_view content) {
-  if (path == "-") {
-    std::cout.write(content.data(), static_cast<std::streamsize>(content.size()));
-    std::cout.flush();
-    if (!std::cout) throw Error("cannot write to standard output");
-    return;
-  }
-  const std::string temp = fmt::format("{}.tmp.{}", path, ::getpid());
-  {
-    std::ofstream out(temp, std::ios::binary | std::ios::trunc);
-    if (!out) throw Error(fmt::format("{}: cannot create file", temp));
-    out.write(content.data(), static_cast<std::streamsize>(content.size()));
-    out.flush();
-    if (!out) {
-      std::remove(temp.c_str());
-      throw Error(fmt::format("{}: write failed", temp));
-    }
-  }
-  std::error_code ec;
-  std::filesystem::rename(temp, path, ec);
-  if (ec) {
-    std::remove(temp.c_str());
-    throw Error(fmt::format("{}: cannot rename into place: {}", path, ec.message()));
-  }
+  OutputFile out(path, false);
+  out.write(content);
+  out.commit();
 }
 
 void write_code_file(const Code& code, MatrixFormat format, const std::string& path) {

@@ -15,6 +15,17 @@ OutputFile::OutputFile(std::string path, bool hold_stdout) : path_(std::move(pat
     to_stdout_ = true;
     return;
   }
+  // A device, pipe or socket is written in place: renaming a temporary file over it would
+  // replace it by a regular file (e.g. /dev/null when run as root).
+  std::error_code ec;
+  const auto status = std::filesystem::status(path_, ec);
+  if (!ec && std::filesystem::exists(status) && !std::filesystem::is_regular_file(status) &&
+      !std::filesystem::is_directory(status)) {
+    file_ = std::fopen(path_.c_str(), "wb");
+    if (!file_) throw Error(fmt::format("{}: cannot open for writing", path_));
+    in_place_ = true;
+    return;
+  }
   temp_ = path_ == "-"
               ? fmt::format("/tmp/tannery-stdout.{}.{}", ::getpid(), static_cast<const void*>(this))
               : fmt::format("{}.tmp.{}", path_, ::getpid());
@@ -44,6 +55,7 @@ void OutputFile::commit() {
   std::fclose(file_);
   file_ = nullptr;
   if (!ok) throw Error(fmt::format("{}: write failed", path_));
+  if (in_place_) return;
   if (path_ == "-") {
     std::FILE* in = std::fopen(temp_.c_str(), "rb");
     char buffer[1 << 16];
@@ -69,7 +81,7 @@ void OutputFile::abandon() {
     std::fflush(stdout);
   } else {
     std::fclose(file_);
-    std::remove(temp_.c_str());
+    if (!in_place_) std::remove(temp_.c_str());
   }
   file_ = nullptr;
 }

@@ -7,6 +7,7 @@
 #include <chrono>
 #include <cmath>
 #include <condition_variable>
+#include <exception>
 #include <map>
 #include <mutex>
 #include <sstream>
@@ -70,12 +71,39 @@ Simulator::Simulator(const Code& code, SimulationConfig config)
   for (double p : config_.sweep) check_channel_parameter(config_.channel.kind, p);
   if (config_.chunk_frames == 0)
     config_.chunk_frames = default_chunk_frames(code_, config_.decoder);
-  if (config_.stop.max_frames == 0) throw Error("--max-frames must be at least 1");
+  const StopRules& stop = config_.stop;
+  if (stop.max_frames == 0) throw Error("stop rule: max frames must be at least 1");
+  if (stop.frame_errors == 0) throw Error("stop rule: frame errors must be at least 1");
+  if (!(stop.max_seconds >= 0 && std::isfinite(stop.max_seconds)))
+    throw Error(
+        fmt::format("stop rule: max seconds must be >= 0 (0: no limit), got {}", stop.max_seconds));
+  if (!(stop.stop_below_fer >= 0 && stop.stop_below_fer <= 1))
+    throw Error(fmt::format("stop rule: stop-below FER must be in [0, 1] (0: never), got {}",
+                            stop.stop_below_fer));
   if (!(config_.confidence > 0 && config_.confidence < 1))
     throw Error("confidence must be in (0, 1)");
   if (encoder_.k() == 0) throw Error("the code has dimension k = 0: nothing to simulate");
   if (config_.channel.kind == ChannelKind::awgn && rate() <= 0)
     throw Error("the rate for Eb/N0 must be positive");
+  if (const auto& p = config_.channel.assumed_crossover; p && !(*p >= 0 && *p <= 0.5)) {
+    throw Error(
+        fmt::format("the assumed bsc crossover probability must be in [0, 0.5], got {}", *p));
+  }
+  if (config_.channel.kind == ChannelKind::awgn) {
+    // The noise and the LLR scale 2 / sigma^2 the decoder assumes must be representable.
+    for (double p : config_.sweep) {
+      const ChannelPoint c = channel_point(p);
+      for (double sigma : {c.value, c.assumed_value}) {
+        const double scale = 2 / (sigma * sigma);
+        if (!(sigma > 0 && std::isfinite(sigma) && scale > 0 && std::isfinite(scale))) {
+          throw Error(fmt::format(
+              "sweep point {} dB (with SNR offset {} dB) gives a noise standard deviation of {:g}: "
+              "outside what a simulation can represent",
+              p, config_.channel.snr_offset_db, sigma));
+        }
+      }
+    }
+  }
 }
 
 double Simulator::rate() const noexcept {
@@ -261,7 +289,7 @@ PointResult Simulator::run_point(std::size_t index, PointResult total,
     return total;
   }
 
-  auto work = [&](Worker& w) {
+  auto work_chunks = [&](Worker& w) {
     for (;;) {
       if (stop.load()) break;
       const std::uint64_t j = next.fetch_add(1);
@@ -314,6 +342,16 @@ PointResult Simulator::run_point(std::size_t index, PointResult total,
       }
       changed.notify_all();
     }
+  };
+  std::exception_ptr failure;  // the first error of a worker, rethrown here after the join
+  auto work = [&](Worker& w) {
+    try {
+      work_chunks(w);
+    } catch (...) {
+      std::lock_guard lock(mutex);
+      if (!failure) failure = std::current_exception();
+      stop = true;
+    }
     std::lock_guard lock(mutex);
     --running;
     changed.notify_all();
@@ -350,6 +388,7 @@ PointResult Simulator::run_point(std::size_t index, PointResult total,
     }
   }
   for (auto& th : pool) th.join();
+  if (failure) std::rethrow_exception(failure);
   total.seconds += seconds_since(start);
   if (reason.empty()) finished();  // all chunks consumed: the max-frames rule
   total.stop_reason = reason;

@@ -49,13 +49,13 @@ PY
 grep -q "$(/usr/bin/python3 -c "
 got=[l.strip() for l in open('got.txt')]; sent=[l.strip() for l in open('d.truth')]
 print(f'{sum(g != s for g, s in zip(got, sent))} frame errors in 300 frames')")" "$WORK/err" || fail "summary frame errors"
-expect_exit 1 "$T" decode --code $C d.f32 -o /dev/null --max-failures 0
+expect_exit 1 "$T" decode --code $C d.f32 -o discard.txt --max-failures 0
 expect_in "more than --max-failures 0" "$WORK/err"
-expect_exit 0 "$T" decode --code $C d.f32 -o /dev/null --max-failures 300
+expect_exit 0 "$T" decode --code $C d.f32 -o discard.txt --max-failures 300
 # A capture read with the wrong format fails every frame: a script notices through the exit code.
-expect_exit 1 "$T" decode --code $C d.f32 -o /dev/null --input-format i16 --max-failures 10
+expect_exit 1 "$T" decode --code $C d.f32 -o discard.txt --input-format i16 --max-failures 10
 head -c 6 d.truth > short.truth
-expect_exit 2 "$T" decode --code $C d.f32 -o /dev/null --truth short.truth
+expect_exit 2 "$T" decode --code $C d.f32 -o discard.txt --truth short.truth
 expect_in "short.truth" "$WORK/err"
 
 # A text capture with one frame per line: a line of another length is named.

@@ -87,7 +87,7 @@ expect_in "without converging" "$WORK/out"
 expect_exit 2 "$T" simulate --sweep 1:0:2
 expect_in "never reaches its end" "$WORK/err"
 expect_exit 2 "$T" simulate --channel bsc --sweep 1.5
-expect_in "must be a probability" "$WORK/err"
+expect_in "crossover probability must be in [0, 0.5], got 1.5" "$WORK/err"
 expect_exit 2 "$T" simulate --alpha 0.5
 expect_in "--alpha applies to --algorithm normalized-min-sum only" "$WORK/err"
 expect_exit 2 "$T" simulate --algorithm ml

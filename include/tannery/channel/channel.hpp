@@ -29,7 +29,7 @@ struct ChannelPoint {
   double assumed_value = 0;  // what the LLR computation assumes (equal unless mismatched)
 };
 
-// Validates a sweep value: p and epsilon in [0, 1], Eb/N0 finite. Throws Error.
+// Validates a sweep value: p in [0, 0.5], epsilon in [0, 1], Eb/N0 finite. Throws Error.
 void check_channel_parameter(ChannelKind kind, double parameter);
 
 // The LLR factor of a channel: 2 / sigma_assumed^2 (AWGN, times the received value),

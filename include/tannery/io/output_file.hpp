@@ -1,6 +1,7 @@
 // An output written progressively but published atomically: data goes to a temporary file next
 // to the destination, renamed into place by commit(); "-" streams to standard output (or, when
-// held, is kept in a temporary file and copied there by commit()).
+// held, is kept in a temporary file and copied there by commit()); a destination that exists and
+// is no regular file (a device such as /dev/null, a pipe) is written in place, never replaced.
 #pragma once
 
 #include <cstdio>
@@ -27,6 +28,7 @@ class OutputFile {
   std::string path_, temp_;
   std::FILE* file_ = nullptr;
   bool to_stdout_ = false;
+  bool in_place_ = false;
 };
 
 }  // namespace tannery
