@@ -54,6 +54,9 @@ std::map<std::size_t, double> parse_degree_map(const std::string& text, const st
 
 std::istream& open_input(const std::string& path, std::ifstream& file) {
   if (path == "-") return std::cin;
+  std::error_code ec;
+  if (std::filesystem::is_directory(path, ec))
+    throw Error(fmt::format("{}: is a directory, not a file", path));
   file.open(path, std::ios::binary);
   if (!file) throw Error(fmt::format("{}: cannot open file", path));
   return file;
@@ -61,6 +64,8 @@ std::istream& open_input(const std::string& path, std::ifstream& file) {
 
 Encoder make_encoder(const Code& code, bool systematic_first) {
   Encoder chosen(code);
+  if (chosen.k() == 0)
+    throw Error("the code has dimension k = 0: it carries no information bits to encode or decode");
   if (!systematic_first) return chosen;
   std::vector<std::uint32_t> first(chosen.k());
   std::iota(first.begin(), first.end(), 0u);

@@ -2,6 +2,7 @@
 
 #include <fmt/format.h>
 #include <algorithm>
+#include <charconv>
 #include <cmath>
 #include <cstdio>
 
@@ -151,17 +152,25 @@ void validate(const DecoderSettings& s, const Code& code) {
 }
 
 std::optional<Quantization> parse_quantization(std::string_view spec) {
+  // Exactly "B.F" or "B.F:M:P", every field a decimal number (nothing before, between or after).
+  std::vector<int> fields;
+  std::size_t at = 0;
+  for (const char separator : {'.', ':', ':', '\0'}) {
+    int value = 0;
+    const auto [end, ec] = std::from_chars(spec.data() + at, spec.data() + spec.size(), value);
+    if (ec != std::errc() || end == spec.data() + at) return std::nullopt;
+    fields.push_back(value);
+    at = static_cast<std::size_t>(end - spec.data());
+    if (at == spec.size()) break;
+    if (separator == '\0' || spec[at] != separator) return std::nullopt;
+    ++at;
+  }
+  if (at != spec.size() || (fields.size() != 2 && fields.size() != 4)) return std::nullopt;
   Quantization q;
-  int fields[4] = {0, 0, -1, -1};
-  const std::string text(spec);
-  const int matched =
-      std::sscanf(text.c_str(), "%d.%d:%d:%d", &fields[0], &fields[1], &fields[2], &fields[3]);
-  if (matched != 2 && matched != 4) return std::nullopt;
-  if (text.find_first_not_of("0123456789.:") != std::string::npos) return std::nullopt;
   q.channel_bits = fields[0];
   q.fraction_bits = fields[1];
-  q.message_bits = matched == 4 ? fields[2] : fields[0];
-  q.posterior_bits = matched == 4 ? fields[3] : fields[0] + 2;
+  q.message_bits = fields.size() == 4 ? fields[2] : fields[0];
+  q.posterior_bits = fields.size() == 4 ? fields[3] : fields[0] + 2;
   return q;
 }
 

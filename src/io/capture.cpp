@@ -12,6 +12,7 @@
 #include <sstream>
 
 #include "tannery/error.hpp"
+#include "tannery/io/matrix_io.hpp"
 
 namespace tannery {
 
@@ -422,8 +423,7 @@ void PunctureMap::expand(std::span<const double> received, std::span<double> llr
 }
 
 PunctureMap read_puncture_map(const std::string& path, std::size_t n) {
-  std::ifstream in(path);
-  if (!in) throw Error(fmt::format("{}: cannot open file", path));
+  std::istringstream in(read_text_file(path));  // refuses directories and oversized files
   PunctureMap map{std::vector<PunctureMap::State>(n, PunctureMap::sent)};
   std::string line;
   for (std::size_t number = 1; std::getline(in, line); ++number) {

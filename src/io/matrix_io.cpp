@@ -205,14 +205,14 @@ void write_alist(const Code& code, std::ostream& out) {
       line += fmt::format("{} ", code.edge_check(e) + 1);
     for (std::size_t i = code.variable_degree(v); i < max_col; ++i) line += "0 ";
     if (!line.empty()) line.pop_back();
-    out << line << '\n';
+    out << (line.empty() ? "0" : line) << '\n';  // an empty list as one pad: no blank line
   }
   for (std::size_t c = 0; c < code.m(); ++c) {
     line.clear();
     for (std::uint32_t v : code.check_variables(c)) line += fmt::format("{} ", v + 1);
     for (std::size_t i = code.check_degree(c); i < max_row; ++i) line += "0 ";
     if (!line.empty()) line.pop_back();
-    out << line << '\n';
+    out << (line.empty() ? "0" : line) << '\n';
   }
 }
 

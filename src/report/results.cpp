@@ -261,10 +261,16 @@ RunRecord parse_results(const json& j, const std::string& source) {
   const json& run = j["run"];
   c.seed = get<std::uint64_t>(run, "seed", source, "run");
   c.chunk_frames = get<std::uint32_t>(run, "chunk_frames", source, "run");
+  if (c.chunk_frames == 0 || c.chunk_frames > kMaxChunkFrames) {
+    throw Error(fmt::format("{}: run: chunk_frames {} is outside 1..{}", source, c.chunk_frames,
+                            kMaxChunkFrames));
+  }
   c.all_zero = get<bool>(run, "all_zero", source, "run");
   c.confidence = get<double>(run, "confidence", source, "run");
   c.sweep = get<std::vector<double>>(run, "sweep", source, "run");
   r.threads_used = get<unsigned>(run, "threads", source, "run");
+  if (r.threads_used == 0 || r.threads_used > 1024)
+    throw Error(fmt::format("{}: run: threads {} is outside 1..1024", source, r.threads_used));
   r.interrupted = get<bool>(run, "interrupted", source, "run");
   const json& stop = get<json>(run, "stop", source, "run");
   c.stop.frame_errors = get<std::uint64_t>(stop, "frame_errors", source, "stop rules");
@@ -292,12 +298,37 @@ RunRecord parse_results(const json& j, const std::string& source) {
     p.complete = get<bool>(pj, "complete", source, where);
     p.stop_reason = get<std::string>(pj, "stop_reason", source, where);
     p.seconds = get<double>(pj, "seconds", source, where);
+    // A file edited (or damaged) into inconsistency is refused, never compared or resumed.
+    auto bad = [&](const std::string& what) {
+      throw Error(fmt::format("{}: {}: {}", source, where, what));
+    };
+    if (!std::isfinite(p.parameter)) bad("the parameter is not a finite number");
+    if (!(p.seconds >= 0 && std::isfinite(p.seconds))) bad("seconds must be >= 0");
+    if (p.frame_errors > p.frames || p.bit_errors > p.bits || p.coded_bit_errors > p.coded_bits ||
+        p.undetected_errors > p.frame_errors)
+      bad("more errors than trials");
+    if (!(p.bit_error_squares >= 0 && std::isfinite(p.bit_error_squares)))
+      bad("bit_error_squares must be a finite number >= 0");
+    std::uint64_t histogram_frames = 0;
     for (std::size_t it = 0; it < p.iteration_histogram.size(); ++it) {
-      p.iterations += it * p.iteration_histogram[it];
+      const std::uint64_t count = p.iteration_histogram[it];
+      if (count > p.frames - std::min(p.frames, histogram_frames))
+        bad("the iteration histogram counts more frames than the point has");
+      histogram_frames += count;
+      p.iterations += it * count;
     }
-    if (p.frame_errors > p.frames || p.bit_errors > p.bits) {
-      throw Error(fmt::format("{}: {} has more errors than trials", source, where));
+    if (!p.iteration_histogram.empty() && histogram_frames != p.frames)
+      bad(fmt::format("the iteration histogram counts {} frames, the point has {}",
+                      histogram_frames, p.frames));
+    for (std::size_t f = 0; f < p.failed_frames.size(); ++f) {
+      if (p.failed_frames[f] >= p.frames)
+        bad(fmt::format("failed frame {} is beyond the point's {} frames", p.failed_frames[f],
+                        p.frames));
+      if (f > 0 && p.failed_frames[f] <= p.failed_frames[f - 1])
+        bad("failed frames are not listed in increasing order without repeats");
     }
+    if (p.failed_frames.size() > p.frame_errors)
+      bad("more failed frames listed than frame errors counted");
     r.points.push_back(std::move(p));
   }
   return r;

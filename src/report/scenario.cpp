@@ -115,6 +115,15 @@ Scenario read_scenario(const std::string& path) {
     r.get(d, "alpha", c.decoder.alpha);
     r.get(d, "beta", c.decoder.beta);
     r.get(d, "flip_threshold", c.decoder.flip_threshold);
+    // A parameter of another algorithm is a slip, not something to ignore.
+    for (auto [key, owner] : {std::pair{"alpha", Algorithm::normalized_min_sum},
+                              std::pair{"beta", Algorithm::offset_min_sum},
+                              std::pair{"flip_threshold", Algorithm::bit_flip}}) {
+      if (d->get(key) && c.decoder.algorithm != owner) {
+        r.fail(r.node(d, key), fmt::format("{} applies to algorithm = \"{}\" only, not \"{}\"", key,
+                                           algorithm_name(owner), algorithm));
+      }
+    }
     std::string kernel = "auto", quantize;
     r.get(d, "kernel", kernel);
     const auto parsed = parse_kernel(kernel);

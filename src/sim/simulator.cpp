@@ -71,6 +71,12 @@ Simulator::Simulator(const Code& code, SimulationConfig config)
   for (double p : config_.sweep) check_channel_parameter(config_.channel.kind, p);
   if (config_.chunk_frames == 0)
     config_.chunk_frames = default_chunk_frames(code_, config_.decoder);
+  if (config_.chunk_frames > kMaxChunkFrames) {
+    throw Error(
+        fmt::format("a chunk of {} frames is more than the {} allowed (each thread holds "
+                    "a chunk's frames in memory)",
+                    config_.chunk_frames, kMaxChunkFrames));
+  }
   const StopRules& stop = config_.stop;
   if (stop.max_frames == 0) throw Error("stop rule: max frames must be at least 1");
   if (stop.frame_errors == 0) throw Error("stop rule: frame errors must be at least 1");

@@ -55,8 +55,12 @@ void Ensemble::validate() const {
   for (const auto* m : {&lambda, &rho}) {
     double sum = 0;
     for (auto [d, c] : *m) {
-      if (d < 1 || c < 0)
-        throw Error(fmt::format("degree {} with coefficient {} is not allowed", d, c));
+      if (d < 1 || d > kMaxEnsembleDegree || !(c >= 0 && std::isfinite(c))) {
+        throw Error(
+            fmt::format("degree {} with coefficient {} is not allowed (degrees 1 to {}, "
+                        "coefficients >= 0)",
+                        d, c, kMaxEnsembleDegree));
+      }
       sum += c;
     }
     if (std::abs(sum - 1) > 1e-6) {
@@ -65,6 +69,12 @@ void Ensemble::validate() const {
     }
   }
   if (rho.begin()->first < 2) throw Error("check degrees must be at least 2");
+  const double rate = design_rate();
+  if (!(rate > 0 && rate < 1)) {
+    throw Error(fmt::format(
+        "the ensemble's design rate 1 - (sum rho_d/d) / (sum lambda_d/d) is {:g}, not in (0, 1)",
+        rate));
+  }
 }
 
 // ---- BEC --------------------------------------------------------------------------------------

@@ -151,6 +151,9 @@ void generate_frame(const FrameId& id, const ChannelPoint& channel, const Encode
                     bool all_zero, std::span<std::uint8_t> info, std::span<std::uint8_t> codeword,
                     std::span<double> noise, std::span<double> llr);
 
+// The largest chunk a simulation takes (each thread holds a chunk's frames in memory).
+inline constexpr std::uint32_t kMaxChunkFrames = 1u << 20;
+
 // The automatic chunk size: 64 frames (a multiple of every SIMD batch width: 64 int8 lanes of
 // AVX-512), and for the SIMD kernels a power of two up to 1024 so the lanes of a batch can be
 // refilled many times in a chunk, as long as its float32 channel values stay within 16 MB (the

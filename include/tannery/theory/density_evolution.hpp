@@ -11,6 +11,8 @@
 
 namespace tannery {
 
+inline constexpr std::size_t kMaxEnsembleDegree = 1024;
+
 // Edge-perspective degree distributions: lambda[d] (variables), rho[d] (checks), each summing to 1.
 struct Ensemble {
   std::map<std::size_t, double> lambda, rho;
@@ -21,7 +23,9 @@ struct Ensemble {
   static Ensemble from_node_fractions(const std::map<std::size_t, double>& variables,
                                       const std::map<std::size_t, double>& checks);
   static Ensemble from_code(const DegreeProfile& profile);
-  void validate() const;  // throws Error unless both sum to 1 and every degree is >= 1
+  // Throws Error unless both sum to 1, degrees are 1..kMaxEnsembleDegree (checks >= 2) and the
+  // design rate is in (0, 1).
+  void validate() const;
 };
 
 enum class ThresholdMethod { exact, discretized, gaussian };

@@ -151,6 +151,9 @@ TEST_CASE("the quantize SPEC syntax", "[simd]") {
   CHECK_FALSE(parse_quantization("6"));
   CHECK_FALSE(parse_quantization("6.2:5"));
   CHECK_FALSE(parse_quantization("a.b"));
+  for (const char* bad : {"6.2:", "6.2::", "6.2:6:8:", "6.2:6:8:9", " 6.2", "6.2 ", "6..2", "6.2x"})
+    CHECK_FALSE(parse_quantization(bad));
+  CHECK(parse_quantization("6.2:6:12")->posterior_bits == 12);
   DecoderSettings s;
   s.algorithm = Algorithm::sum_product;
   s.schedule = Schedule::layered;

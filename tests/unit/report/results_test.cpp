@@ -21,6 +21,7 @@ RunRecord sample() {
   r.config.channel.snr_offset_db = 0.5;
   r.rate_for_snr = 0.5;
   r.threads_used = 2;
+  r.config.chunk_frames = 64;
   PointResult p;
   p.parameter = 1.0;
   p.frames = 640;
@@ -71,6 +72,45 @@ TEST_CASE("bad results files are refused naming the problem", "[report]") {
   std::string text = results_json(sample());
   text.replace(text.find("\"frames\": 640"), 13, "\"frames\": 1");
   CHECK_THROWS_WITH(parse_results_json(text, "r.json"), Catch::Contains("more errors than trials"));
+  // Files edited into inconsistency: each refused with the point and the problem.
+  auto edited = [](auto change) {
+    RunRecord r = sample();
+    change(r.points[0]);
+    return results_json(r);
+  };
+  const std::pair<std::string, std::string> cases[] = {
+      {edited([](PointResult& p) {
+         p.failed_frames = {3, 3};
+       }),
+       "failed frames are not listed in increasing order without repeats"},
+      {edited([](PointResult& p) {
+         p.failed_frames = {3, 640};
+       }),
+       "failed frame 640 is beyond the point's 640 frames"},
+      {edited([](PointResult& p) { p.seconds = -1; }), "seconds must be >= 0"},
+      {edited([](PointResult& p) {
+         p.iteration_histogram = {0, 600, 28, 13};
+       }),
+       "the iteration histogram counts more frames than the point has"},
+      {edited([](PointResult& p) {
+         p.iteration_histogram = {0, 1, ~std::uint64_t{0}};
+       }),
+       "the iteration histogram counts more frames than the point has"},
+      {edited([](PointResult& p) { p.undetected_errors = 13; }), "more errors than trials"},
+      {edited([](PointResult& p) {
+         p.iteration_histogram = {0, 600};
+       }),
+       "the iteration histogram counts 600 frames, the point has 640"},
+  };
+  for (const auto& [json, message] : cases) {
+    INFO(message);
+    CHECK_THROWS_WITH(parse_results_json(json, "r.json"),
+                      Catch::Contains("r.json: point 0: " + message));
+  }
+  RunRecord zero = sample();
+  zero.config.chunk_frames = 0;
+  CHECK_THROWS_WITH(parse_results_json(results_json(zero), "r.json"),
+                    Catch::Contains("chunk_frames 0 is outside"));
 }
 
 TEST_CASE("the plot is an SVG document with the curves and references", "[report]") {
