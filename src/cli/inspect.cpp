@@ -167,10 +167,21 @@ void print_text(const InspectOptions& o, const Report& r) {
     s += fmt::format("quasi-cyclic   {} x {} base blocks, lifting size Z = {}\n", qc->block_rows,
                      qc->block_cols, qc->lifting);
   }
-  if (!r.redundancy.empty.empty())
-    s += fmt::format("empty rows     {}\n", fmt::join(r.redundancy.empty, " "));
-  for (auto [a, b] : r.redundancy.repeated)
-    s += fmt::format("repeated row   {} repeats row {}\n", b, a);
+  // The text report names at most kListed rows of each kind (--json lists them all).
+  constexpr std::size_t kListed = 20;
+  const auto& empty = r.redundancy.empty;
+  if (!empty.empty()) {
+    const std::vector<std::size_t> head(
+        empty.begin(),
+        empty.begin() + static_cast<std::ptrdiff_t>(std::min(empty.size(), kListed)));
+    s += fmt::format("empty rows     {}{}\n", fmt::join(head, " "),
+                     empty.size() > kListed ? fmt::format(" ... ({} in all)", empty.size()) : "");
+  }
+  const auto& repeated = r.redundancy.repeated;
+  for (std::size_t i = 0; i < repeated.size() && i < kListed; ++i)
+    s += fmt::format("repeated row   {} repeats row {}\n", repeated[i].second, repeated[i].first);
+  if (repeated.size() > kListed)
+    s += fmt::format("repeated rows  {} in all (--json lists them)\n", repeated.size());
   if (r.enumerator) {
     s += r.distance ? fmt::format("min distance   {}\n", *r.distance)
                     : "min distance   none (k = 0)\n";

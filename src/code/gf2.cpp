@@ -192,7 +192,12 @@ Encoder::Encoder(const Code& code, std::span<const std::uint32_t> information) :
   // left, so they stay information bits whenever the others can be parity bits.
   std::stable_partition(free_cols_.begin(), free_cols_.end(),
                         [&](std::uint32_t v) { return !wanted[v]; });
-  const std::vector<std::uint32_t>& leftover = t.leftover;
+  // Checks without any variable constrain nothing: leaving them out keeps the dense system (rows
+  // x free bits) from growing with n x m for a huge, nearly empty H.
+  std::vector<std::uint32_t> leftover;
+  for (std::uint32_t c : t.leftover) {
+    if (code.check_degree(c) > 0) leftover.push_back(c);
+  }
   const std::size_t n = code.n();
 
   // Express each leftover check over the free bits by substituting the triangular part in

@@ -62,6 +62,12 @@ if command -v dot > /dev/null; then
   expect_exit 0 "$T" inspect hamming-7-4 --dot "b';touch INJECTED;'.svg"
   [ -e INJECTED ] && fail "the dot name ran a shell command"
 fi
+# A tiny file declaring a huge, nearly empty matrix: analysed in time and memory that follow the
+# entries, not n x m (it took 25 s and 317 MB; the timeout only guards against a hang).
+printf '%%%%MatrixMarket matrix coordinate pattern general\n50000 50000 2\n1 1\n2 2\n' > huge.mtx
+expect_exit 0 timeout 60 "$T" inspect huge.mtx
+expect_in "dimension k    49998" "$WORK/out"
+expect_in "... (49998 in all)" "$WORK/out"
 # A pipe (like a device) is written in place, never replaced by a regular file.
 mkfifo pipe
 cat pipe > from-pipe.json &
