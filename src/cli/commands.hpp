@@ -78,7 +78,8 @@ void add_encode(CLI::App& app);
 void add_compare(CLI::App& app);
 void add_threshold(CLI::App& app);
 
-// Set by SIGINT/SIGTERM once install_interrupt_handler() ran; a second signal kills at once.
+// Set by SIGINT/SIGTERM once install_interrupt_handler() ran (every signal only asks to stop, so
+// the results so far are always saved; SIGKILL stops at once).
 extern std::atomic<bool> g_interrupted;
 void install_interrupt_handler();
 

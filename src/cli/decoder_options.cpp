@@ -85,10 +85,10 @@ DecoderSettings DecoderOptions::settings() const {
 std::atomic<bool> g_interrupted{false};
 
 namespace {
+// Every SIGINT/SIGTERM only asks to stop: a second one while the results are being saved must
+// not discard them (SIGKILL remains for a hard stop).
 extern "C" void on_signal(int) {
   g_interrupted = true;
-  std::signal(SIGINT, SIG_DFL);
-  std::signal(SIGTERM, SIG_DFL);
 }
 }  // namespace
 

@@ -1,5 +1,6 @@
 #include <fmt/format.h>
 #include <algorithm>
+#include <csignal>
 #include <cstdio>
 #include <exception>
 #include <optional>
@@ -81,6 +82,9 @@ std::string parse_error_message(const CLI::App& app, int argc, char** argv, std:
 }  // namespace
 
 int main(int argc, char** argv) {
+  // Beyond a file-size limit (ulimit -f) a write must fail with a message and remove its
+  // temporary file, not kill the process silently (SIGXFSZ, exit 153).
+  std::signal(SIGXFSZ, SIG_IGN);
   CLI::App app{
       "tannery: design, inspect, decode and simulate error-correcting codes on Tanner graphs"};
   app.set_version_flag("--version", "tannery " + std::string(tannery::version()));

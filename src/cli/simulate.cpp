@@ -344,7 +344,6 @@ void run(SimulateOptions o, const CLI::App& sub) {
     std::fflush(stdout);
   }
   ProgressLine line(live, sim.config(), parameter_heading(config.channel));
-  install_interrupt_handler();
   const auto start = std::chrono::steady_clock::now();
   std::vector<PointResult> points;
   auto on_progress = [&](const Progress& p) {
@@ -488,7 +487,11 @@ void add_simulate(CLI::App& app) {
   sub->add_option("--scenario", o->scenario,
                   "run the simulation a scenario file (TOML) describes; options given here "
                   "override its fields");
-  sub->callback([o, sub] { run(*o, *sub); });
+  sub->callback([o, sub] {
+    // At once, so a signal that arrives while the code loads still ends with results saved.
+    install_interrupt_handler();
+    run(*o, *sub);
+  });
 }
 
 }  // namespace tannery::cli

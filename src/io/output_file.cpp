@@ -2,6 +2,8 @@
 
 #include <fmt/format.h>
 #include <unistd.h>
+#include <cerrno>
+#include <cstring>
 #include <filesystem>
 
 #include "tannery/error.hpp"
@@ -40,7 +42,7 @@ OutputFile::~OutputFile() {
 void OutputFile::write(std::string_view data) {
   if (!file_ || data.empty()) return;
   if (std::fwrite(data.data(), 1, data.size(), file_) != data.size()) {
-    throw Error(fmt::format("{}: write failed", path_));
+    throw Error(fmt::format("{}: write failed: {}", path_, std::strerror(errno)));
   }
 }
 
@@ -54,7 +56,7 @@ void OutputFile::commit() {
   const bool ok = std::fflush(file_) == 0;
   std::fclose(file_);
   file_ = nullptr;
-  if (!ok) throw Error(fmt::format("{}: write failed", path_));
+  if (!ok) throw Error(fmt::format("{}: write failed: {}", path_, std::strerror(errno)));
   if (in_place_) return;
   if (path_ == "-") {
     std::FILE* in = std::fopen(temp_.c_str(), "rb");

@@ -93,7 +93,8 @@ Scenario read_scenario(const std::string& path) {
   r.get(&root, "code", s.code);
   // A relative path is relative to the scenario file; a shipped name stays a name.
   const auto beside = std::filesystem::path(path).parent_path() / s.code;
-  if (std::filesystem::exists(beside)) s.code = beside.string();
+  std::error_code ec;  // an over-long or odd name is simply no file beside the scenario
+  if (std::filesystem::exists(beside, ec)) s.code = beside.string();
 
   SimulationConfig& c = s.config;
   if (const toml::table* d = r.section("decoder")) {

@@ -62,6 +62,31 @@ grep -q '"interrupted": true' cut.json || fail "interrupted flag not recorded"
 "$T" simulate --resume cut.json --quiet || fail "resume"
 [ "$(counts cut.json)" = "$(counts full.json)" ] || fail "resumed counts differ from an uninterrupted run"
 
+# A signal in the first milliseconds, and two signals in a row: still exit 130 with the results
+# so far saved (a second signal used to kill the process and lose them), and a resume ends with
+# the uninterrupted counts.
+for signals in 1 2; do
+  rm -f early.json
+  "$T" simulate "${RESUME[@]}" --output early.json --quiet &
+  pid=$!
+  sleep 0.05
+  for _ in $(seq $signals); do kill -TERM $pid; done
+  wait $pid
+  code=$?
+  [ "$code" = 130 ] || fail "$signals early signal(s): exit $code (wanted 130)"
+  grep -q '"interrupted": true' early.json || fail "$signals early signal(s): no results saved"
+  "$T" simulate --resume early.json --quiet || fail "resume after $signals signal(s)"
+  [ "$(counts early.json)" = "$(counts full.json)" ] || fail "resume after $signals signal(s) differs"
+done
+
+# Beyond a file-size limit: a clear error, exit 2, no temporary file left (was SIGXFSZ, exit 153).
+mkdir limited
+(ulimit -f 8; "$T" construct regular --length 20000 --variable-degree 3 --check-degree 6 -o limited/big.tanner) 2> limited.err
+code=$?
+[ "$code" = 2 ] || fail "file-size limit: exit $code (wanted 2)"
+grep -q "write failed: File too large" limited.err || fail "file-size limit message: $(cat limited.err)"
+[ -z "$(ls limited)" ] || fail "file-size limit left files behind: $(ls limited)"
+
 # Plot from results files: well-formed XML with the curves.
 expect_exit 0 "$T" plot one.json two.json -o both.svg --label one --label two
 /usr/bin/python3 - both.svg <<'PY' || fail "plot is not well-formed SVG"
