@@ -1,6 +1,7 @@
 // tannery decode --code CODE INPUT: decode captured soft bits offline.
 #include <fmt/format.h>
 #include <chrono>
+#include <cmath>
 #include <fstream>
 #include <iostream>
 #include <thread>
@@ -85,8 +86,10 @@ void run(const DecodeOptions& o) {
   }
   if (o.meaning != "samples" && o.noise_variance)
     throw Error("--noise-variance applies to --meaning samples only");
-  if (o.noise_variance && !(*o.noise_variance > 0))
+  if (o.noise_variance && !(*o.noise_variance > 0 && std::isfinite(*o.noise_variance)))
     throw Error("--noise-variance must be positive");
+  if (!(std::isfinite(o.scale) && o.scale != 0))
+    throw Error(fmt::format("--scale must be a finite number other than 0, got {}", o.scale));
   const PunctureMap map = o.puncture.empty()
                               ? PunctureMap{std::vector<PunctureMap::State>(n, PunctureMap::sent)}
                               : read_puncture_map(o.puncture, n);
@@ -197,11 +200,12 @@ void run(const DecodeOptions& o) {
   }
   const double seconds =
       std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
-  if (reader.error() && o.strict) {
+  // Nothing good at all: an existing output keeps its content rather than becoming empty.
+  if (reader.error() && (o.strict || frames == 0)) {
     bits_out.abandon();
     posterior_out.abandon();
     report_out.abandon();
-    throw Error(*reader.error() + " (--strict: nothing written)");
+    throw Error(*reader.error() + (o.strict ? " (--strict: nothing written)" : ""));
   }
   bits_out.commit();
   posterior_out.commit();

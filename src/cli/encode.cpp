@@ -48,12 +48,12 @@ void encode_bits(const EncodeOptions& o, const Code& code, const Encoder& encode
     }
     out.write(text);
   }
+  // Nothing good at all: an existing output keeps its content rather than becoming empty.
+  if (reader.error() && reader.frames_read() == 0) throw Error(*reader.error());
   out.commit();
   if (reader.error()) {
-    throw Error(reader.frames_read() == 0
-                    ? *reader.error()
-                    : fmt::format("{}; encoded and written before it: {}", *reader.error(),
-                                  count_of(reader.frames_read(), "complete frame")));
+    throw Error(fmt::format("{}; encoded and written before it: {}", *reader.error(),
+                            count_of(reader.frames_read(), "complete frame")));
   }
 }
 

@@ -1,0 +1,135 @@
+# A corpus of bad inputs across every subcommand: each must end with exit 2 and one line that
+# names the file (with its line, byte or frame) or the option, within a time bound, and must
+# leave an existing output file untouched.
+. "$(dirname "$0")/lib.sh"
+cd "$WORK"
+
+# Fixtures: good files to break, and broken files of every kind the tool reads.
+"$T" encode --code hamming-7-4 --demo 4 --at 3 -o good.f32 2>/dev/null || fail "fixture capture"
+"$T" simulate --code hamming-7-4 --sweep 3 --max-frames 200 --quiet -o good.json --plot "" || fail "fixture results"
+printf 'tannery-h 1 n=4 m=2\n0 1\n2 3 9\n' > index.tanner
+printf 'tannery-h 1 n=4 m=2\n0 1\n' > short.tanner
+printf 'tannery-h 1 n=-4 m=2\n0 1\n2 3\n' > negative.tanner
+printf '4 2\n1 2\n1 1 1 1\n2 2\n1\n1\n2\n2\n1 2\n3 4 9\n' > bad.alist
+printf '%%%%MatrixMarket matrix coordinate pattern general\n2 2 1\n1 1 1\n' > fields.mtx
+printf '%%%%MatrixMarket matrix coordinate real general\n2 2 1\n1 1 nan\n' > nan.mtx
+printf '%%%%MatrixMarket matrix coordinate pattern general\n20000000 2 1\n1 1\n' > huge.mtx
+printf 'Z = 4\n0 1\n2 x\n' > word.qc
+printf 'Z = 0\n0 1\n' > zero.qc
+printf '1 0 2\n0 1 1\n' > two.dense
+printf '\xff\xfe\x00\x01binary' > binary.tanner
+printf 'tannery-h 1 n=4 m=2\r\n0 1\r\n2 3\r\n' > crlf_ok.tanner  # CRLF is fine (a control case)
+head -c 30 good.f32 > partial.f32
+/usr/bin/python3 -c "
+import struct
+open('nan.f32', 'wb').write(struct.pack('<7f', 1, 2, float('nan'), 4, 5, 6, 7))
+open('latin1.txt', 'wb').write(b'1.0 2.0 \xe9 4 5 6 7\n')"
+printf '1 2 3 4 5 6 7\n1 2 3\n' > ragged.txt
+printf 'punctured 0-3\nshortened 2\n' > twice.map
+printf 'punctured 0-6\n' > all.map
+printf 'erased 1\n' > word.map
+printf '10x1\n' > bits.txt
+printf 'code = "hamming-7-4"\n[channel]\nsweep = "1:0:2"\n' > zero-step.toml
+printf 'code = "hamming-7-4"\n[channel]\nsweep = "2"\n[decoder]\niterations = -1\n' > iterations.toml
+printf 'code = "hamming-7-4"\n[channel]\nsweep = "2"\n[decoder]\nalgorithm = "guess"\n' > algorithm.toml
+printf 'code = "hamming-7-4"\n[channel]\nsweep = "2"\nextra = 1\n' > key.toml
+printf 'code = "hamming-7-4"\n[channel\nsweep = "2"\n' > syntax.toml
+printf 'code = "hamming-7-4"\n[channel]\nkind = "bsc"\nsweep = "0.7"\n' > bsc.toml
+/usr/bin/python3 - <<'PY'
+import json
+good = json.load(open("good.json"))
+def variant(name, change):
+    j = json.loads(json.dumps(good))
+    change(j)
+    json.dump(j, open(name, "w"))
+variant("errors.json", lambda j: j["points"][0].update(frame_errors=10**6))
+variant("order.json", lambda j: j["points"][0].update(failed_frames=[5, 2]))
+variant("seconds.json", lambda j: j["points"][0].update(seconds=-3))
+variant("version.json", lambda j: j.update(version=99))
+variant("kind.json", lambda j: j["channel"].update(kind="wifi"))
+variant("chunk.json", lambda j: j["run"].update(chunk_frames=0))
+variant("missing.json", lambda j: j.pop("points"))
+open("truncated.json", "w").write(json.dumps(good)[:200])
+PY
+mkdir adir
+echo "keep me" > sentinel.out
+cp sentinel.out sentinel.orig
+
+# command | words the one-line error must hold (file and place, or option)
+while IFS='|' read -r args words; do
+  [ -z "$args" ] && continue
+  cp sentinel.orig sentinel.out
+  # shellcheck disable=SC2086
+  expect_exit 2 timeout 30 "$T" $args
+  expect_in "$words" "$WORK/err"
+  [ "$(wc -l < "$WORK/err")" -le 2 ] || fail "more than a line or two of error for: $args"
+  cmp -s sentinel.out sentinel.orig || fail "an existing output was changed by: $args"
+done <<'CASES'
+inspect index.tanner|index.tanner:3
+inspect short.tanner|short.tanner
+inspect negative.tanner|negative.tanner:1
+inspect bad.alist|bad.alist
+inspect fields.mtx|fields.mtx:3
+inspect nan.mtx|nan.mtx:3
+inspect huge.mtx|huge.mtx:2
+inspect word.qc|word.qc:3
+inspect zero.qc|zero.qc
+inspect two.dense|two.dense:1
+inspect binary.tanner|binary.tanner
+inspect adir|adir: is a directory
+inspect missing-file.alist|missing-file.alist
+convert hamming-7-4 sentinel.out --to nonsense|--to
+convert index.tanner sentinel.out|index.tanner:3
+decode --code hamming-7-4 partial.f32 -o sentinel.out --strict|partial.f32
+decode --code hamming-7-4 nan.f32 -o sentinel.out --strict|nan.f32: byte 8 (frame 0, value 2)
+decode --code hamming-7-4 latin1.txt --input-format text -o sentinel.out --strict|latin1.txt
+decode --code hamming-7-4 ragged.txt --input-format text -o sentinel.out --strict|ragged.txt:2
+decode --code hamming-7-4 good.f32 --puncture twice.map -o sentinel.out|twice.map:2: position 2 is listed twice
+decode --code hamming-7-4 good.f32 --puncture all.map -o sentinel.out|all.map: every position
+decode --code hamming-7-4 good.f32 --puncture word.map -o sentinel.out|word.map:1
+decode --code hamming-7-4 good.f32 --puncture adir -o sentinel.out|adir: is a directory
+decode --code hamming-7-4 good.f32 --input-format f16 -o sentinel.out|--input-format
+decode --code hamming-7-4 good.f32 --meaning samples -o sentinel.out|--noise-variance
+decode --code hamming-7-4 good.f32 --meaning samples --noise-variance -1 -o sentinel.out|--noise-variance must be positive
+decode --code hamming-7-4 good.f32 --scale nan -o sentinel.out|--scale
+decode --code hamming-7-4 good.f32 --iterations 0 -o sentinel.out|--iterations
+decode --code hamming-7-4 good.f32 --algorithm normalized-min-sum --alpha 1.5 -o sentinel.out|alpha must be in (0, 1]
+decode --code hamming-7-4 good.f32 --beta 0.3 -o sentinel.out|--beta applies to --algorithm offset-min-sum only
+decode --code hamming-7-4 good.f32 --quantize 6.2: -o sentinel.out|--quantize '6.2:'
+decode --code hamming-7-4 good.f32 --algorithm min-sum --quantize 20.2 --schedule layered -o sentinel.out|impossible quantization
+decode --code hamming-7-4 good.f32 --algorithm ml --schedule layered -o sentinel.out|ml has no layered schedule
+decode --code hamming-7-4 good.f32 --truth adir -o sentinel.out|adir: is a directory
+encode --code hamming-7-4 bits.txt -o sentinel.out|bits.txt: byte 2
+encode --code hamming-7-4 adir -o sentinel.out|adir: is a directory
+encode --code hamming-7-4 --demo 3 --channel bec --at 1.5 -o sentinel.out|erasure probability must be in [0, 1], got 1.5
+encode --code hamming-7-4 --demo 3 --at nan -o sentinel.out|not finite
+simulate --scenario zero-step.toml -o sentinel.out --plot ''|never reaches its end
+simulate --scenario iterations.toml -o sentinel.out --plot ''|iterations.toml
+simulate --scenario algorithm.toml -o sentinel.out --plot ''|algorithm.toml:5
+simulate --scenario key.toml -o sentinel.out --plot ''|key.toml:4
+simulate --scenario syntax.toml -o sentinel.out --plot ''|syntax.toml:2
+simulate --scenario bsc.toml -o sentinel.out --plot ''|got 0.7
+simulate --scenario missing.toml -o sentinel.out --plot ''|missing.toml
+simulate --code hamming-7-4 --sweep 1,x -o sentinel.out --plot ''|sweep: 'x' is not a number
+simulate --code hamming-7-4 --sweep 0:1e-9:100 -o sentinel.out --plot ''|more than 10000 points
+simulate --code hamming-7-4 --confidence 1.5 -o sentinel.out --plot ''|confidence must be in (0, 1)
+simulate --code hamming-7-4 --channel bec --snr-offset 1 -o sentinel.out --plot ''|apply to --channel awgn only
+simulate --code hamming-7-4 --replay 9:0 -o sentinel.out --plot ''|replay: point 9 does not exist
+simulate --resume errors.json -o sentinel.out --plot ''|errors.json: point 0: more errors than trials
+simulate --resume order.json -o sentinel.out --plot ''|order.json: point 0: failed frames
+simulate --resume seconds.json -o sentinel.out --plot ''|seconds.json: point 0: seconds must be >= 0
+simulate --resume chunk.json -o sentinel.out --plot ''|chunk.json: run: chunk_frames 0
+compare version.json good.json|version.json: results version 99
+compare kind.json good.json|kind.json: unknown channel
+compare missing.json good.json|missing.json: missing section 'points'
+compare truncated.json good.json|truncated.json: not valid JSON
+compare good.json good.json --confidence 2|--confidence
+plot truncated.json -o plot.svg|truncated.json: not valid JSON
+threshold --regular 3,2|design rate
+threshold --lambda 2:x --rho 6:1|--lambda: '2:x' is not DEGREE:VALUE
+threshold --regular 3,6 --channel bsc --algorithm bit-flip|density evolution covers sum-product and the min-sum family
+construct regular --length 100 --variable-degree 3 --check-degree 7 -o sentinel.out|n * dv = 300 is not divisible by dc = 7
+construct lift --base adir --lifting 4 -o sentinel.out|adir: is a directory
+construct peg --length 0 -o sentinel.out|--length
+CASES
+finish
