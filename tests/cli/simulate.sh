@@ -49,35 +49,28 @@ done
 # The reference kernel: slow enough that the run is still going when the signal arrives.
 RESUME=(--code qc-rate-half-z54 --algorithm sum-product --kernel reference --sweep 1.25,1.75 --frame-errors 400 --max-frames 20000 --plot "")
 "$T" simulate "${RESUME[@]}" --output full.json --quiet || fail "full run"
-# A background job of a non-interactive shell starts with SIGINT ignored; tannery installs its
-# own handler, so the signal still reaches it.
-"$T" simulate "${RESUME[@]}" --output cut.json --quiet &
-pid=$!
-sleep 1.5
-kill -INT $pid
-wait $pid
-code=$?
-[ "$code" = 130 ] || fail "interrupted run exit $code (wanted 130)"
-grep -q '"interrupted": true' cut.json || fail "interrupted flag not recorded"
-"$T" simulate --resume cut.json --quiet || fail "resume"
-[ "$(counts cut.json)" = "$(counts full.json)" ] || fail "resumed counts differ from an uninterrupted run"
-
-# A signal in the first milliseconds, and two signals in a row: still exit 130 with the results
-# so far saved (a second signal used to kill the process and lose them), and a resume ends with
-# the uninterrupted counts.
-for signals in 1 2; do
-  rm -f early.json
-  "$T" simulate "${RESUME[@]}" --output early.json --quiet &
-  pid=$!
-  sleep 0.05
-  for _ in $(seq $signals); do kill -TERM $pid; done
+# interrupted NAME DELAY SIGNAL COUNT: run, send COUNT signals after DELAY seconds; the run must
+# end with 130 and its results so far saved, and a resume must end with the uninterrupted counts.
+# (A background job of a non-interactive shell starts with SIGINT ignored; tannery installs its
+# own handler, so the signal still reaches it.)
+interrupted() {
+  rm -f "$1"
+  "$T" simulate "${RESUME[@]}" --output "$1" --quiet &
+  local pid=$! code
+  sleep "$2"
+  for _ in $(seq "$4"); do kill "-$3" $pid; done
   wait $pid
   code=$?
-  [ "$code" = 130 ] || fail "$signals early signal(s): exit $code (wanted 130)"
-  grep -q '"interrupted": true' early.json || fail "$signals early signal(s): no results saved"
-  "$T" simulate --resume early.json --quiet || fail "resume after $signals signal(s)"
-  [ "$(counts early.json)" = "$(counts full.json)" ] || fail "resume after $signals signal(s) differs"
-done
+  [ "$code" = 130 ] || fail "$1: exit $code after $4 SIG$3 (wanted 130)"
+  grep -q '"interrupted": true' "$1" || fail "$1: interrupted flag not recorded"
+  "$T" simulate --resume "$1" --quiet || fail "$1: resume"
+  [ "$(counts "$1")" = "$(counts full.json)" ] || fail "$1: resumed counts differ from an uninterrupted run"
+}
+interrupted cut.json 1.5 INT 1
+# In the first milliseconds, and twice in a row (a second signal used to kill the process and
+# lose the results; a first one before the handler was installed, too).
+interrupted early.json 0.05 TERM 1
+interrupted twice.json 0.05 TERM 2
 
 # Beyond a file-size limit: a clear error, exit 2, no temporary file left (was SIGXFSZ, exit 153).
 mkdir limited
