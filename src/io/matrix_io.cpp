@@ -456,6 +456,12 @@ Code read_dense(TextReader& in) {
 }
 
 void write_dense(const Code& code, std::ostream& out) {
+  if (code.n() == 0 && code.m() > 0) {
+    throw Error(
+        fmt::format("the dense format cannot hold {} rows without columns (they would be "
+                    "blank lines, which no reader can count); use tannery, alist or mtx",
+                    code.m()));
+  }
   std::string line;
   for (std::size_t c = 0; c < code.m(); ++c) {
     line.assign(code.n() == 0 ? 0 : 2 * code.n() - 1, ' ');

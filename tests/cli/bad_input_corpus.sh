@@ -18,7 +18,7 @@ printf 'Z = 4\n0 1\n2 x\n' > word.qc
 printf 'Z = 0\n0 1\n' > zero.qc
 printf '1 0 2\n0 1 1\n' > two.dense
 printf '\xff\xfe\x00\x01binary' > binary.tanner
-printf 'tannery-h 1 n=4 m=2\r\n0 1\r\n2 3\r\n' > crlf_ok.tanner  # CRLF is fine (a control case)
+printf 'tannery-h 1 n=0 m=2\n-\n-\n' > no-columns.tanner
 head -c 30 good.f32 > partial.f32
 /usr/bin/python3 -c "
 import struct
@@ -80,6 +80,7 @@ inspect adir|adir: is a directory
 inspect missing-file.alist|missing-file.alist
 convert hamming-7-4 sentinel.out --to nonsense|--to
 convert index.tanner sentinel.out|index.tanner:3
+convert no-columns.tanner sentinel.out --to dense|the dense format cannot hold 2 rows without columns
 decode --code hamming-7-4 partial.f32 -o sentinel.out --strict|partial.f32
 decode --code hamming-7-4 nan.f32 -o sentinel.out --strict|nan.f32: byte 8 (frame 0, value 2)
 decode --code hamming-7-4 latin1.txt --input-format text -o sentinel.out --strict|latin1.txt

@@ -43,4 +43,19 @@ expect_in "1 0 1 0 1 0 1" "$WORK/out"
 # stdin in, extension picks the format out
 "$T" convert - "$WORK/h.alist" < "$CODES/hamming-7-4.tanner" || fail "convert from stdin"
 head -1 "$WORK/h.alist" | grep -qx "7 3" || fail "alist header"
+# Files with CRLF line ends (written on Windows) read as the same matrix, in every text format.
+for fmt in tanner alist mtx qc dense; do
+  "$T" convert qc-rate-half-z54 "$WORK/lf.$fmt" || fail "convert to $fmt"
+  sed 's/$/\r/' "$WORK/lf.$fmt" > "$WORK/crlf.$fmt"
+  expect_exit 0 "$T" convert "$WORK/crlf.$fmt" "$WORK/crlf-back.tanner"
+  "$T" convert "$WORK/lf.$fmt" "$WORK/lf-back.tanner" || fail "convert back from $fmt"
+  cmp -s "$WORK/crlf-back.tanner" "$WORK/lf-back.tanner" || fail "CRLF $fmt reads differently"
+done
+# An all-zero H (no edges) survives every format that can hold it.
+printf '0 0 0\n0 0 0\n' > "$WORK/zero.dense"
+for fmt in tanner alist mtx; do
+  expect_exit 0 "$T" convert "$WORK/zero.dense" "$WORK/zero.$fmt"
+  expect_exit 0 "$T" inspect "$WORK/zero.$fmt"
+  expect_in "rank           0" "$WORK/out"
+done
 finish
