@@ -36,22 +36,6 @@ void CodeInput::add_to(CLI::App& sub, bool positional, const std::string& defaul
       ->check(CLI::Range(1, 1 << 20));
 }
 
-std::map<std::size_t, double> parse_degree_map(const std::string& text, const std::string& option) {
-  std::map<std::size_t, double> out;
-  std::stringstream items(text);
-  for (std::string item; std::getline(items, item, ',');) {
-    const auto colon = item.find(':');
-    try {
-      if (colon == std::string::npos) throw std::invalid_argument("");
-      out[std::stoul(item.substr(0, colon))] += std::stod(item.substr(colon + 1));
-    } catch (const std::exception&) {
-      throw Error(fmt::format("{}: '{}' is not DEGREE:VALUE (e.g. 2:0.3,3:0.7)", option, item));
-    }
-  }
-  if (out.empty()) throw Error(fmt::format("{} lists no degree", option));
-  return out;
-}
-
 std::istream& open_input(const std::string& path, std::ifstream& file) {
   if (path == "-") return std::cin;
   std::error_code ec;

@@ -93,7 +93,6 @@ void install_interrupt_handler();
 namespace tannery::cli {
 
 // "2:0.5,3:0.3" -> {2: 0.5, 3: 0.3} (repeated degrees add up); option names the flag in errors.
-std::map<std::size_t, double> parse_degree_map(const std::string& text, const std::string& option);
 
 // Standard input for "-", else the file opened in binary mode (kept in `file`); Error if
 // unreadable.

@@ -8,6 +8,7 @@
 #include "tannery/code/construct.hpp"
 #include "tannery/error.hpp"
 #include "tannery/io/matrix_io.hpp"
+#include "tannery/theory/density_evolution.hpp"
 
 namespace tannery::cli {
 
@@ -26,55 +27,6 @@ struct ConstructOptions {
   std::size_t lifting = 0;
   std::string variable_degrees;
 };
-
-// Node fractions "2:0.5,3:0.3,8:0.2" -> one degree per variable, lowest degrees first, counts
-// rounded so that they add up to n.
-std::vector<std::size_t> degree_sequence(const std::string& text, std::size_t n) {
-  const auto fractions = parse_degree_map(text, "--variable-degrees");
-  double total = 0;
-  for (auto [d, f] : fractions) total += f;
-  if (std::abs(total - 1) > 1e-6) throw Error("--variable-degrees fractions must sum to 1");
-  std::vector<std::size_t> degrees;
-  double cumulative = 0;
-  for (auto [d, f] : fractions) {
-    cumulative += f;
-    const auto until = static_cast<std::size_t>(std::llround(cumulative * static_cast<double>(n)));
-    while (degrees.size() < until) degrees.push_back(d);
-  }
-  return degrees;
-}
-
-// A base graph as a table of edge multiplicities (0/1, or small integers for parallel edges):
-// one line per row, entries separated by spaces, '#' comments.
-std::vector<std::uint8_t> read_multiplicity_table(const std::string& path, std::size_t& rows,
-                                                  std::size_t& cols) {
-  std::stringstream text(read_text_file(path, 1 << 24));
-  std::vector<std::uint8_t> cells;
-  rows = cols = 0;
-  std::size_t number = 0;
-  for (std::string line; std::getline(text, line);) {
-    ++number;
-    std::istringstream words(line.substr(0, line.find('#')));
-    std::vector<std::uint8_t> row;
-    for (std::string w; words >> w;) {
-      if (w.empty() || w.size() > 3 || w.find_first_not_of("0123456789") != std::string::npos ||
-          std::stoi(w) > 255) {
-        throw Error(
-            fmt::format("{}:{}: base entry '{}' is not a multiplicity 0..255", path, number, w));
-      }
-      row.push_back(static_cast<std::uint8_t>(std::stoi(w)));
-    }
-    if (row.empty()) continue;
-    if (rows == 0) cols = row.size();
-    if (row.size() != cols)
-      throw Error(fmt::format("{}:{}: row has {} entries, the first has {}", path, number,
-                              row.size(), cols));
-    cells.insert(cells.end(), row.begin(), row.end());
-    ++rows;
-  }
-  if (rows == 0) throw Error(fmt::format("{}: empty base graph", path));
-  return cells;
-}
 
 Code build(const ConstructOptions& o, std::string& note) {
   auto need_length = [&] {
@@ -98,9 +50,10 @@ Code build(const ConstructOptions& o, std::string& note) {
     const std::size_t n = need_length();
     if (!(o.rate > 0 && o.rate < 1)) throw Error("--rate must be in (0, 1)");
     const auto m = static_cast<std::size_t>(std::llround(static_cast<double>(n) * (1 - o.rate)));
-    const std::vector<std::size_t> degrees = o.variable_degrees.empty()
-                                                 ? std::vector<std::size_t>(n, o.variable_degree)
-                                                 : degree_sequence(o.variable_degrees, n);
+    const std::vector<std::size_t> degrees =
+        o.variable_degrees.empty()
+            ? std::vector<std::size_t>(n, o.variable_degree)
+            : degree_sequence(parse_degree_map(o.variable_degrees, "--variable-degrees"), n);
     return construct_peg(degrees, m, o.seed);
   }
   if (o.kind == "hamming") {
@@ -116,8 +69,9 @@ Code build(const ConstructOptions& o, std::string& note) {
   // lift
   if (o.base.empty() || o.lifting == 0)
     throw Error("construct lift needs --base FILE and --lifting Z");
-  std::size_t rows = 0, cols = 0;
-  const std::vector<std::uint8_t> table = read_multiplicity_table(o.base, rows, cols);
+  const MultiplicityTable base = parse_multiplicity_table(read_text_file(o.base, 1 << 24), o.base);
+  const std::size_t rows = base.rows, cols = base.cols;
+  const std::vector<std::uint8_t>& table = base.cells;
   const std::size_t t = *std::max_element(table.begin(), table.end());
   if (t == 0) throw Error(fmt::format("{}: the base graph has no edge", o.base));
   if (o.lifting % t != 0) {

@@ -11,6 +11,7 @@
 #include "tannery/io/capture.hpp"
 #include "tannery/io/code_lookup.hpp"
 #include "tannery/io/matrix_io.hpp"
+#include "tannery/parse.hpp"
 #include "tannery/report/plot.hpp"
 #include "tannery/report/results.hpp"
 #include "tannery/report/scenario.hpp"
@@ -179,21 +180,17 @@ void print_throughput(const RunRecord& record, double wall) {
 
 void replay(const SimulateOptions& o, const Code& code, const Simulator& sim) {
   const auto colon = o.replay.find(':');
-  std::size_t point = 0;
-  std::uint64_t frame = 0;
-  try {
-    if (colon == std::string::npos) throw std::invalid_argument("");
-    point = std::stoul(o.replay.substr(0, colon));
-    frame = std::stoull(o.replay.substr(colon + 1));
-  } catch (const std::exception&) {
+  const auto point = parse_count(std::string_view(o.replay).substr(0, colon));
+  const auto frame =
+      colon == std::string::npos ? std::nullopt : parse_count(o.replay.substr(colon + 1));
+  if (!point || !frame)
     throw Error(fmt::format("--replay expects POINT:FRAME (indices from 0), got '{}'", o.replay));
-  }
-  const FrameData d = sim.replay(point, frame);
+  const FrameData d = sim.replay(*point, *frame);
   std::size_t info_errors = 0, coded_errors = 0;
   for (std::size_t i = 0; i < code.n(); ++i) coded_errors += d.hard[i] != d.codeword[i];
   for (std::uint32_t p : sim.encoder().info_positions()) info_errors += d.hard[p] != d.codeword[p];
-  fmt::print("replay of point {} ({} = {}), frame {}, seed {}:\n", point,
-             parameter_heading(sim.config().channel), sim.config().sweep[point], frame,
+  fmt::print("replay of point {} ({} = {}), frame {}, seed {}:\n", *point,
+             parameter_heading(sim.config().channel), sim.config().sweep[*point], *frame,
              sim.config().seed);
   fmt::print(
       "  decoded {} after {} iterations, syndrome weight {}; {} coded and {} information bit "

@@ -29,13 +29,8 @@ Ensemble ensemble_of(const ThresholdOptions& o) {
   const int given = !o.regular.empty() + !o.lambda.empty() + (o.input.code.empty() ? 0 : 1);
   if (given != 1) throw Error("give exactly one of --code, --regular DV,DC or --lambda/--rho");
   if (!o.regular.empty()) {
-    const auto comma = o.regular.find(',');
-    try {
-      return Ensemble::regular(std::stoul(o.regular.substr(0, comma)),
-                               std::stoul(o.regular.substr(comma + 1)));
-    } catch (const std::invalid_argument&) {
-      throw Error(fmt::format("--regular expects DV,DC, got '{}'", o.regular));
-    }
+    const auto [dv, dc] = parse_degree_pair(o.regular, "--regular");
+    return Ensemble::regular(dv, dc);
   }
   if (!o.lambda.empty()) {
     if (o.rho.empty()) throw Error("--lambda needs --rho");

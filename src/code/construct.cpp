@@ -2,7 +2,9 @@
 
 #include <fmt/format.h>
 #include <algorithm>
+#include <cmath>
 
+#include "../io/text_reader.hpp"
 #include "tannery/error.hpp"
 
 namespace tannery {
@@ -187,6 +189,46 @@ std::vector<std::uint8_t> split_multiplicities(std::size_t rows, std::size_t col
     }
   }
   return pattern;
+}
+
+MultiplicityTable parse_multiplicity_table(std::string_view text, const std::string& source) {
+  detail::reject_binary(text, source);
+  detail::TextReader reader(text, source, '#');
+  MultiplicityTable table;
+  detail::Line line;
+  while (reader.next(line)) {
+    if (table.rows > 0 && line.tokens.size() != table.cols) {
+      reader.fail(line.number, fmt::format("row has {} entries, the first has {}",
+                                           line.tokens.size(), table.cols));
+    }
+    table.cols = line.tokens.size();
+    for (std::string_view token : line.tokens) {
+      table.cells.push_back(
+          static_cast<std::uint8_t>(reader.integer_in(line, token, 0, 255, "base multiplicity")));
+    }
+    ++table.rows;
+  }
+  if (table.rows == 0) throw Error(fmt::format("{}: empty base graph", source));
+  return table;
+}
+
+std::vector<std::size_t> degree_sequence(const std::map<std::size_t, double>& fractions,
+                                         std::size_t n) {
+  double total = 0;
+  for (auto [d, f] : fractions) total += f;
+  if (fractions.empty() || std::abs(total - 1) > 1e-6)
+    throw Error(fmt::format("variable degree fractions must sum to 1 (they sum to {})", total));
+  std::vector<std::size_t> degrees;
+  degrees.reserve(n);
+  double cumulative = 0;
+  for (auto [d, f] : fractions) {
+    cumulative += f;
+    const double until =
+        std::min(std::round(cumulative * static_cast<double>(n)), static_cast<double>(n));
+    while (static_cast<double>(degrees.size()) < until) degrees.push_back(d);
+  }
+  degrees.resize(n, fractions.rbegin()->first);
+  return degrees;
 }
 
 Code construct_peg(const std::vector<std::size_t>& degrees, std::size_t m, std::uint64_t seed) {

@@ -13,6 +13,7 @@
 
 #include "tannery/error.hpp"
 #include "tannery/io/matrix_io.hpp"
+#include "tannery/parse.hpp"
 
 namespace tannery {
 
@@ -423,7 +424,11 @@ void PunctureMap::expand(std::span<const double> received, std::span<double> llr
 }
 
 PunctureMap read_puncture_map(const std::string& path, std::size_t n) {
-  std::istringstream in(read_text_file(path));  // refuses directories and oversized files
+  return parse_puncture_map(read_text_file(path), path, n);  // refuses directories, huge files
+}
+
+PunctureMap parse_puncture_map(std::string_view text, const std::string& path, std::size_t n) {
+  std::istringstream in{std::string(text)};
   PunctureMap map{std::vector<PunctureMap::State>(n, PunctureMap::sent)};
   std::string line;
   for (std::size_t number = 1; std::getline(in, line); ++number) {
@@ -438,21 +443,17 @@ PunctureMap read_puncture_map(const std::string& path, std::size_t n) {
     }
     while (words >> item) {
       const auto dash = item.find('-', 1);
-      std::size_t a = 0, b = 0;
-      try {
-        std::size_t used = 0;
-        a = std::stoull(item.substr(0, dash), &used);
-        b = dash == std::string::npos ? a : std::stoull(item.substr(dash + 1));
-      } catch (const std::exception&) {
+      const auto a = parse_count(std::string_view(item).substr(0, dash));
+      const auto b = dash == std::string::npos ? a : parse_count(item.substr(dash + 1));
+      if (!a || !b)
         throw Error(fmt::format("{}:{}: '{}' is not an index or a range A-B", path, number, item));
-      }
-      if (a > b) {
+      if (*a > *b) {
         throw Error(fmt::format("{}:{}: range '{}' runs backwards (write it as {}-{})", path,
-                                number, item, b, a));
+                                number, item, *b, *a));
       }
-      if (b >= n)
+      if (*b >= n)
         throw Error(fmt::format("{}:{}: '{}' is outside 0..{}", path, number, item, n - 1));
-      for (std::size_t i = a; i <= b; ++i) {
+      for (std::uint64_t i = *a; i <= *b; ++i) {
         if (map.state[i] != PunctureMap::sent)
           throw Error(fmt::format("{}:{}: position {} is listed twice", path, number, i));
         map.state[i] = kind == "punctured" ? PunctureMap::punctured : PunctureMap::shortened;

@@ -74,7 +74,10 @@ class Reader {
 }  // namespace
 
 Scenario read_scenario(const std::string& path) {
-  const std::string text = read_text_file(path, 1 << 20);
+  return parse_scenario(read_text_file(path, 1 << 20), path);
+}
+
+Scenario parse_scenario(std::string_view text, const std::string& path) {
   toml::table root;
   try {
     root = toml::parse(text, path);

@@ -14,6 +14,7 @@
 #include <thread>
 
 #include "tannery/error.hpp"
+#include "tannery/parse.hpp"
 #include "tannery/sim/random.hpp"
 
 namespace tannery {
@@ -460,18 +461,12 @@ std::uint32_t default_chunk_frames(const Code& code, const DecoderSettings& deco
 std::vector<double> parse_sweep(const std::string& text) {
   std::vector<double> values;
   auto number = [&](const std::string& token) {
-    std::size_t used = 0;
-    double v = 0;
-    try {
-      v = std::stod(token, &used);
-    } catch (...) {
-      used = 0;
-    }
-    if (used != token.size() || token.empty() || !std::isfinite(v)) {
+    const auto v = parse_real(token);
+    if (!v) {
       throw Error(fmt::format(
           "sweep: '{}' is not a number (use a list 1,1.5,2 or a range START:STEP:STOP)", token));
     }
-    return v;
+    return *v;
   };
   std::stringstream items(text);
   std::string item;
@@ -495,7 +490,13 @@ std::vector<double> parse_sweep(const std::string& text) {
     const double count = std::floor((b - a) / step + 1e-9);
     if (count > 10000)
       throw Error(fmt::format("sweep: range '{}' has more than 10000 points", item));
-    for (double i = 0; i <= count; ++i) values.push_back(std::round((a + i * step) * 1e9) / 1e9);
+    for (double i = 0; i <= count; ++i) {
+      // Round away the last-digit noise of a + i * step (at 1e-9), where that stays finite.
+      const double v = a + i * step;
+      values.push_back(std::abs(v) < 1e9 ? std::round(v * 1e9) / 1e9 : v);
+    }
+    if (!std::isfinite(values.back()))
+      throw Error(fmt::format("sweep: range '{}' runs beyond the largest number", item));
   }
   if (values.empty()) throw Error("sweep: no values given");
   if (values.size() > 10000) throw Error("sweep: more than 10000 points");

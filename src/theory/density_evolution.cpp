@@ -9,6 +9,7 @@
 
 #include "tannery/channel/channel.hpp"
 #include "tannery/error.hpp"
+#include "tannery/parse.hpp"
 #include "tannery/sim/stats.hpp"
 #include "tannery/theory/capacity.hpp"
 
@@ -21,6 +22,39 @@ double Ensemble::design_rate() const {
   for (auto [d, c] : lambda) l += c / static_cast<double>(d);
   for (auto [d, c] : rho) r += c / static_cast<double>(d);
   return 1 - r / l;
+}
+
+std::map<std::size_t, double> parse_degree_map(std::string_view text, std::string_view setting) {
+  std::map<std::size_t, double> out;
+  std::size_t start = 0;
+  while (start <= text.size()) {
+    const std::size_t comma = std::min(text.find(',', start), text.size());
+    const std::string_view item = text.substr(start, comma - start);
+    const std::size_t colon = item.find(':');
+    const auto degree = parse_count(item.substr(0, colon));
+    const auto value =
+        colon == std::string_view::npos ? std::nullopt : parse_real(item.substr(colon + 1));
+    if (!degree || !value || *degree == 0 || *value < 0) {
+      throw Error(fmt::format(
+          "{}: '{}' is not DEGREE:VALUE with a degree >= 1 and a value >= 0 (e.g. 2:0.3,3:0.7)",
+          setting, item));
+    }
+    out[*degree] += *value;
+    start = comma + 1;
+  }
+  return out;
+}
+
+std::pair<std::size_t, std::size_t> parse_degree_pair(std::string_view text,
+                                                      std::string_view setting) {
+  const std::size_t comma = text.find(',');
+  const auto dv = parse_count(text.substr(0, comma));
+  const auto dc =
+      comma == std::string_view::npos ? std::nullopt : parse_count(text.substr(comma + 1));
+  if (!dv || !dc || *dv == 0 || *dc == 0)
+    throw Error(
+        fmt::format("{}: expected DV,DC (two degrees >= 1, e.g. 3,6), got '{}'", setting, text));
+  return {*dv, *dc};
 }
 
 Ensemble Ensemble::regular(std::size_t dv, std::size_t dc) {

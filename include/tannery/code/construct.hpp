@@ -3,6 +3,9 @@
 
 #include <cstddef>
 #include <cstdint>
+#include <map>
+#include <string>
+#include <string_view>
 #include <vector>
 
 #include "tannery/code/code.hpp"
@@ -41,6 +44,18 @@ std::vector<std::uint8_t> split_multiplicities(std::size_t rows, std::size_t col
                                                const std::vector<std::uint8_t>& multiplicity,
                                                std::size_t t);
 
+// A protograph as a table of edge multiplicities from text: one line per base row, entries
+// 0..255 separated by blanks or commas, '#' comments, every row as long as the first. source
+// names the text in errors ("file:line: ...").
+struct MultiplicityTable {
+  std::size_t rows = 0, cols = 0;
+  std::vector<std::uint8_t> cells;  // row-major
+};
+MultiplicityTable parse_multiplicity_table(std::string_view text, const std::string& source);
+// Node fractions (degree -> fraction of the n variables, summing to 1) -> one degree per
+// variable, lowest degrees first, counts rounded so that they add up to n.
+std::vector<std::size_t> degree_sequence(const std::map<std::size_t, double>& fractions,
+                                         std::size_t n);
 // Progressive edge growth (Hu, Eleftheriou, Arnold, IEEE Trans. IT 2005): variables in order of
 // increasing degree; each new edge goes to a check as far as possible from the variable in the
 // graph built so far (outside its breadth-first neighbourhood when one is left), the check of

@@ -84,6 +84,8 @@ struct PunctureMap {
   void expand(std::span<const double> received, std::span<double> llr) const;
 };
 PunctureMap read_puncture_map(const std::string& path, std::size_t n);
+// The same from the file's text; source names it in errors.
+PunctureMap parse_puncture_map(std::string_view text, const std::string& source, std::size_t n);
 
 // Hard bits, one frame of a fixed length after another: text (characters 0/1, one frame per
 // line when written, whitespace ignored when read), packed (each frame padded to whole bytes,

@@ -13,6 +13,7 @@
 #pragma once
 
 #include <string>
+#include <string_view>
 
 #include "tannery/sim/simulator.hpp"
 
@@ -27,5 +28,7 @@ struct Scenario {
 
 // Throws Error naming the file, line and column of a problem.
 Scenario read_scenario(const std::string& path);
+// The same from the file's text; path names it in errors and anchors a relative code path.
+Scenario parse_scenario(std::string_view text, const std::string& path);
 
 }  // namespace tannery

@@ -28,6 +28,14 @@ struct Ensemble {
   void validate() const;
 };
 
+// Degree fractions as written in settings: "2:0.3,3:0.7" (DEGREE:VALUE items; values of a
+// repeated degree add up). Degrees are whole numbers >= 1, values finite and >= 0; setting names
+// the value in errors ("--lambda", "variable_degrees").
+std::map<std::size_t, double> parse_degree_map(std::string_view text, std::string_view setting);
+// "DV,DC": the degrees of a regular ensemble, each a whole number >= 1.
+std::pair<std::size_t, std::size_t> parse_degree_pair(std::string_view text,
+                                                      std::string_view setting);
+
 enum class ThresholdMethod { exact, discretized, gaussian };
 
 // The threshold is the worst channel at which density evolution drives the error probability of
