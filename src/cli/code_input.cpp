@@ -2,8 +2,10 @@
 #include <spawn.h>
 #include <sys/wait.h>
 #include <cerrno>
+#include <cstring>
 #include <filesystem>
 #include <iostream>
+#include <memory>
 #include <numeric>
 #include <sstream>
 
@@ -60,17 +62,43 @@ Encoder make_encoder(const Code& code, bool systematic_first) {
   }
 }
 
-int run_program(const std::vector<std::string>& args) {
+namespace {
+
+// in, out: descriptors for the program's standard input and output, -1 to inherit them.
+int spawn_and_wait(const std::vector<std::string>& args, int in, int out) {
   std::vector<char*> argv;
   for (const auto& a : args) argv.push_back(const_cast<char*>(a.c_str()));
   argv.push_back(nullptr);
+  posix_spawn_file_actions_t actions;
+  posix_spawn_file_actions_init(&actions);
+  if (in >= 0) posix_spawn_file_actions_adddup2(&actions, in, STDIN_FILENO);
+  if (out >= 0) posix_spawn_file_actions_adddup2(&actions, out, STDOUT_FILENO);
   pid_t pid = 0;
-  if (posix_spawnp(&pid, argv[0], nullptr, nullptr, argv.data(), environ) != 0) return -1;
+  const int spawned = posix_spawnp(&pid, argv[0], &actions, nullptr, argv.data(), environ);
+  posix_spawn_file_actions_destroy(&actions);
+  if (spawned != 0) return -1;
   int status = 0;
   while (waitpid(pid, &status, 0) < 0) {
     if (errno != EINTR) return -1;
   }
   return WIFEXITED(status) ? WEXITSTATUS(status) : -1;
+}
+
+}  // namespace
+
+int run_program(const std::vector<std::string>& args) {
+  return spawn_and_wait(args, -1, -1);
+}
+
+int run_converter(const std::vector<std::string>& args, std::string_view input, OutputFile& out) {
+  const std::unique_ptr<std::FILE, int (*)(std::FILE*)> source(std::tmpfile(), &std::fclose);
+  if (!source || std::fwrite(input.data(), 1, input.size(), source.get()) != input.size() ||
+      std::fflush(source.get()) != 0) {
+    throw Error(
+        fmt::format("cannot write a temporary file for {}: {}", args[0], std::strerror(errno)));
+  }
+  std::rewind(source.get());
+  return spawn_and_wait(args, ::fileno(source.get()), out.descriptor());
 }
 
 const CLI::Validator kNonNegative(
@@ -118,6 +146,7 @@ void check_paths(const std::vector<PathArgument>& inputs,
   }
   for (std::size_t i = 0; i < outputs.size(); ++i) {
     if (!used(outputs[i]) || shareable(outputs[i])) continue;
+    OutputFile::check_creatable(outputs[i].path);
     for (std::size_t j = i + 1; j < outputs.size(); ++j) {
       if (used(outputs[j]) && same_file(outputs[i].path, outputs[j].path)) {
         throw Error(fmt::format("{} and {} would both write {}", outputs[i].option,

@@ -20,6 +20,7 @@ struct CheckFailed {
 #include <memory>
 #include <optional>
 #include <string>
+#include <string_view>
 
 #include "tannery/code/code.hpp"
 #include "tannery/code/gf2.hpp"
@@ -40,6 +41,7 @@ struct CodeInput {
 }  // namespace tannery::cli
 
 #include "tannery/io/matrix_io.hpp"
+#include "tannery/io/output_file.hpp"
 
 namespace tannery::cli {
 // Output matrix format from --to, else from the file extension, else (stdout) tannery's own.
@@ -101,12 +103,17 @@ std::istream& open_input(const std::string& path, std::ifstream& file);
 // Plots: the format from the name's extension, .svg (also '-' and no extension), .png or .pdf
 // (rendered by rsvg-convert); check_plot_path refuses any other before work starts.
 void check_plot_path(const std::string& path);
+// fill_plot writes the plot into out (opened on path), for outputs published as a set.
+void fill_plot(const std::string& path, const std::string& svg, OutputFile& out);
 void write_plot(const std::string& path, const std::string& svg);
 
 // Runs a program with these arguments and waits for it, without a shell (nothing in an argument
 // is interpreted: file names may hold quotes or ';'). Its exit status, or -1 when it cannot be
-// started (e.g. not installed).
+// started (e.g. not installed) or is killed.
 int run_program(const std::vector<std::string>& args);
+// Runs a converter that reads input on its standard input and writes its result to its standard
+// output, here into out (nothing under the final name until out is committed). As run_program.
+int run_converter(const std::vector<std::string>& args, std::string_view input, OutputFile& out);
 
 // Refuses a negative value for an unsigned option (CLI11 would wrap it to a huge count).
 extern const CLI::Validator kNonNegative;

@@ -30,15 +30,16 @@ void write_dot(const InspectOptions& o, const Code& code) {
   const std::string text =
       tanner_dot(code, o.no_cycle ? std::vector<CycleNode>{} : shortest_cycle(code));
   if (!o.dot.ends_with(".svg")) return write_file_atomically(o.dot, text);
-  const std::string source = o.dot + ".dot";
-  write_file_atomically(source, text);
-  const int status = run_program({"dot", "-Tsvg", source, "-o", o.dot});
+  OutputFile out(o.dot, false);
+  const int status = run_converter({"dot", "-Tsvg"}, text, out);
   if (status == -1) {
+    const std::string source = o.dot + ".dot";
+    write_file_atomically(source, text);
     throw Error(fmt::format(
         "Graphviz 'dot' is not installed (apt-get install graphviz); wrote {} instead", source));
   }
-  if (status != 0) throw Error(fmt::format("Graphviz failed on {}", source));
-  std::remove(source.c_str());
+  if (status != 0) throw Error(fmt::format("{}: Graphviz failed", o.dot));
+  out.commit();
 }
 
 struct Report {

@@ -36,26 +36,25 @@ void check_plot_path(const std::string& path) {
       extension));
 }
 
-void write_plot(const std::string& path, const std::string& svg) {
+void fill_plot(const std::string& path, const std::string& svg, OutputFile& out) {
   check_plot_path(path);
   const bool png = path.ends_with(".png"), pdf = path.ends_with(".pdf");
-  if (!png && !pdf) return write_file_atomically(path, svg);
-  // Rendered next to the destination, then renamed into place (never half a file there).
-  const std::string source = fmt::format("{}.{}.svg", path, ::getpid());
-  const std::string rendered = fmt::format("{}.{}.part", path, ::getpid());
-  write_file_atomically(source, svg);
-  const int status = run_program({"rsvg-convert", png ? "--format=png" : "--format=pdf",
-                                  "--background-color=white", source, "-o", rendered});
-  std::remove(source.c_str());
-  std::error_code ec;
-  if (status == 0) std::filesystem::rename(rendered, path, ec);
-  if (status != 0 || ec) {
-    std::remove(rendered.c_str());
+  if (!png && !pdf) return out.write(svg);
+  const int status = run_converter(
+      {"rsvg-convert", png ? "--format=png" : "--format=pdf", "--background-color=white"}, svg,
+      out);
+  if (status != 0) {
     throw Error(status == -1 ? fmt::format("{}: {} output needs rsvg-convert (apt-get install "
                                            "librsvg2-bin); write an .svg instead",
                                            path, png ? "PNG" : "PDF")
                              : fmt::format("{}: rsvg-convert failed", path));
   }
+}
+
+void write_plot(const std::string& path, const std::string& svg) {
+  OutputFile out(path, false);
+  fill_plot(path, svg, out);
+  out.commit();
 }
 
 void add_plot(CLI::App& app) {

@@ -154,12 +154,27 @@ class ProgressLine {
   bool open_ = false;
 };
 
+// The results JSON, CSV and plot of one run are published as a set: all three are written in
+// full before the first is renamed into place, so a kill leaves the old set or the new one (but
+// for the instant between renames). A plot that cannot be rendered does not hold back the rest.
 void write_outputs(const SimulateOptions& o, const RunRecord& record) {
-  if (!o.output.empty()) write_file_atomically(o.output, results_json(record));
-  if (!o.csv.empty()) write_file_atomically(o.csv, results_csv(record));
-  if (!o.plot.empty() && !record.points.empty()) {
-    write_plot(o.plot, plot_svg({PlotRun{run_label(record), record}}, PlotOptions{}));
+  OutputFile json(o.output, false), csv(o.csv, false),
+      plot(record.points.empty() ? std::string() : o.plot, false);
+  json.write(results_json(record));
+  csv.write(results_csv(record));
+  std::exception_ptr plot_failed;
+  if (plot.enabled()) {
+    try {
+      fill_plot(o.plot, plot_svg({PlotRun{run_label(record), record}}, PlotOptions{}), plot);
+    } catch (const Error&) {
+      plot.abandon();
+      plot_failed = std::current_exception();
+    }
   }
+  json.commit();
+  csv.commit();
+  plot.commit();
+  if (plot_failed) std::rethrow_exception(plot_failed);
 }
 
 void print_throughput(const RunRecord& record, double wall) {
@@ -182,7 +197,8 @@ void replay(const SimulateOptions& o, const Code& code, const Simulator& sim) {
   const auto colon = o.replay.find(':');
   const auto point = parse_count(std::string_view(o.replay).substr(0, colon));
   const auto frame =
-      colon == std::string::npos ? std::nullopt : parse_count(o.replay.substr(colon + 1));
+      parse_count(colon == std::string::npos ? std::string_view()
+                                             : std::string_view(o.replay).substr(colon + 1));
   if (!point || !frame)
     throw Error(fmt::format("--replay expects POINT:FRAME (indices from 0), got '{}'", o.replay));
   const FrameData d = sim.replay(*point, *frame);

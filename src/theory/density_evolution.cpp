@@ -33,7 +33,7 @@ std::map<std::size_t, double> parse_degree_map(std::string_view text, std::strin
     const std::size_t colon = item.find(':');
     const auto degree = parse_count(item.substr(0, colon));
     const auto value =
-        colon == std::string_view::npos ? std::nullopt : parse_real(item.substr(colon + 1));
+        parse_real(colon == std::string_view::npos ? std::string_view() : item.substr(colon + 1));
     if (!degree || !value || *degree == 0 || *value < 0) {
       throw Error(fmt::format(
           "{}: '{}' is not DEGREE:VALUE with a degree >= 1 and a value >= 0 (e.g. 2:0.3,3:0.7)",
@@ -50,7 +50,7 @@ std::pair<std::size_t, std::size_t> parse_degree_pair(std::string_view text,
   const std::size_t comma = text.find(',');
   const auto dv = parse_count(text.substr(0, comma));
   const auto dc =
-      comma == std::string_view::npos ? std::nullopt : parse_count(text.substr(comma + 1));
+      parse_count(comma == std::string_view::npos ? std::string_view() : text.substr(comma + 1));
   if (!dv || !dc || *dv == 0 || *dc == 0)
     throw Error(
         fmt::format("{}: expected DV,DC (two degrees >= 1, e.g. 3,6), got '{}'", setting, text));

@@ -1,5 +1,6 @@
-// An output written progressively but published atomically: data goes to a temporary file next
-// to the destination, renamed into place by commit(); "-" streams to standard output (or, when
+// An output written progressively but published atomically: data goes to an unnamed temporary
+// file in the destination's directory (nothing is left behind if the process dies), named and
+// renamed into place by commit(); "-" streams to standard output (or, when
 // held, is kept in a temporary file and copied there by commit()); a destination that exists and
 // is no regular file (a device such as /dev/null, a pipe) is written in place, never replaced.
 #pragma once
@@ -19,16 +20,24 @@ class OutputFile {
   OutputFile& operator=(const OutputFile&) = delete;
   ~OutputFile();
 
+  // Throws Error unless a file can be created where path would be written (its directory
+  // exists and is writable): checked before long work, so that no result is lost at the end.
+  static void check_creatable(const std::string& path);
+
   bool enabled() const noexcept { return file_ != nullptr; }
   void write(std::string_view data);
   void commit();   // publish what was written; if the rename fails, the temporary file stays
   void abandon();  // remove the temporary file
+  // The open file's descriptor, everything written so far flushed: for a child process that
+  // writes the output itself (a renderer's standard output). -1 when disabled.
+  int descriptor();
 
  private:
   std::string path_, temp_;
   std::FILE* file_ = nullptr;
   bool to_stdout_ = false;
   bool in_place_ = false;
+  bool unnamed_ = false;  // an O_TMPFILE file, named only at commit
 };
 
 }  // namespace tannery
