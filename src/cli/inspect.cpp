@@ -148,8 +148,8 @@ void print_text(const InspectOptions& o, const Report& r) {
                    code.m() - r.encoder.rank());
   s += fmt::format("dimension k    {}\n", r.encoder.k());
   s += fmt::format("rate k/n       {:.6f}   design rate 1 - m/n = {:.6f}\n",
-                   n ? static_cast<double>(r.encoder.k()) / n : 0.0,
-                   n ? 1.0 - static_cast<double>(code.m()) / n : 0.0);
+                   n > 0 ? static_cast<double>(r.encoder.k()) / n : 0.0,
+                   n > 0 ? 1.0 - static_cast<double>(code.m()) / n : 0.0);
   s += fmt::format("edges          {}   density {:.6g}\n", code.edges(),
                    code.n() && code.m()
                        ? static_cast<double>(code.edges()) / (n * static_cast<double>(code.m()))

@@ -1,7 +1,7 @@
 // tannery threshold: decoding threshold of an ensemble by density evolution.
 #include <fmt/format.h>
+#include <map>
 #include <nlohmann/json.hpp>
-#include <ranges>
 #include <sstream>
 
 #include "commands.hpp"
@@ -113,15 +113,14 @@ void run(const ThresholdOptions& o) {
     fmt::print("{}\n", j.dump(2));
     return;
   }
-  fmt::print("ensemble: design rate {:.6f}; lambda {}; rho {}\n", r.rate,
-             fmt::join(e.lambda | std::views::transform([](auto p) {
-                         return fmt::format("{}:{:.6g}", p.first, p.second);
-                       }),
-                       ","),
-             fmt::join(e.rho | std::views::transform([](auto p) {
-                         return fmt::format("{}:{:.6g}", p.first, p.second);
-                       }),
-                       ","));
+  const auto degrees = [](const std::map<std::size_t, double>& fractions) {
+    std::string out;
+    for (auto [degree, fraction] : fractions)
+      out += fmt::format("{}{}:{:.6g}", out.empty() ? "" : ",", degree, fraction);
+    return out;
+  };
+  fmt::print("ensemble: design rate {:.6f}; lambda {}; rho {}\n", r.rate, degrees(e.lambda),
+             degrees(e.rho));
   const std::string decoder = describe(d);
   fmt::print("decoder {} on {}; {}\n", decoder.substr(0, decoder.find(" (")), o.channel, r.method);
   if (r.stalled) {

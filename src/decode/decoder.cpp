@@ -230,7 +230,7 @@ void Decoder::decode_batch(std::span<const double> llr, std::span<std::uint8_t> 
 }
 
 void Decoder::decode_groups(std::size_t, const GroupFill&, const FramesDone&) {
-  TANNERY_ASSERT(!"decode_groups called on a decoder without lane layout");
+  TANNERY_ASSERT(false && "decode_groups called on a decoder without lane layout");
 }
 
 std::unique_ptr<Decoder> make_decoder(const Code& code, const DecoderSettings& requested) {
