@@ -28,6 +28,9 @@ printf '1 2 3 4 5 6 7\n1 2 3\n' > ragged.txt
 printf 'punctured 0-3\nshortened 2\n' > twice.map
 printf 'punctured 0-6\n' > all.map
 printf 'erased 1\n' > word.map
+printf 'punctured 3x\n' > tail.map
+printf '1 2 1\n1 1\n' > ragged.base
+printf '1 256\n' > big.base
 printf '10x1\n' > bits.txt
 printf 'code = "hamming-7-4"\n[channel]\nsweep = "1:0:2"\n' > zero-step.toml
 printf 'code = "hamming-7-4"\n[channel]\nsweep = "2"\n[decoder]\niterations = -1\n' > iterations.toml
@@ -132,5 +135,13 @@ threshold --regular 3,6 --channel bsc --algorithm bit-flip|density evolution cov
 construct regular --length 100 --variable-degree 3 --check-degree 7 -o sentinel.out|n * dv = 300 is not divisible by dc = 7
 construct lift --base adir --lifting 4 -o sentinel.out|adir: is a directory
 construct peg --length 0 -o sentinel.out|--length
+threshold --regular 3,6x|--regular: expected DV,DC
+threshold --regular 3|--regular: expected DV,DC
+threshold --lambda 2:inf --rho 6:1|--lambda: '2:inf' is not DEGREE:VALUE
+construct peg --length 100 --rate 0.5 --variable-degrees 2:-5,3:6 -o sentinel.out|--variable-degrees: '2:-5'
+construct lift --base ragged.base --lifting 4 -o sentinel.out|ragged.base:2: row has 2 entries, the first has 3
+construct lift --base big.base --lifting 4 -o sentinel.out|big.base:1: base multiplicity 256 is out of range
+simulate --code hamming-7-4 --sweep 1 --replay 0:1x -o sentinel.out --plot ''|--replay expects POINT:FRAME
+decode --code hamming-7-4 --puncture tail.map good.f32 -o sentinel.out|tail.map:1: '3x' is not an index
 CASES
 finish

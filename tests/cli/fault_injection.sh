@@ -69,6 +69,16 @@ for delay in 0.05 0.2 0.5; do
   [ -z "$(ls ./*.tmp.* 2>/dev/null)" ] || fail "SIGKILL at $delay s left $(ls ./*.tmp.*)"
 done
 
+# Long operations that write only at the end stop at SIGTERM with nothing under the output name
+# and no temporary file (here a construction; SIGINT is ignored by background jobs of a script).
+"$T" construct peg --length 400000 --rate 0.5 --variable-degree 3 -o peg.tanner > /dev/null 2>&1 &
+pid=$!
+sleep 0.3
+kill -TERM $pid
+wait $pid
+[ $? != 0 ] || fail "construct finished before SIGTERM: make it longer"
+[ -z "$(ls peg.tanner ./*.tmp.* 2>/dev/null)" ] || fail "SIGTERM during construct left $(ls peg.tanner ./*.tmp.*)"
+
 # A full disk (/dev/full) and a read-only directory: exit 2 and a clear message, inputs intact.
 expect_exit 2 "$T" simulate --code hamming-7-4 --sweep 3 --max-frames 100 --quiet -o /dev/full --plot ""
 expect_in "/dev/full: write failed: No space left on device" "$WORK/err"
