@@ -2,6 +2,7 @@
 
 #include <fmt/format.h>
 #include <toml++/toml.h>
+#include <cmath>
 #include <filesystem>
 #include <limits>
 
@@ -51,8 +52,7 @@ class Reader {
       if (!n->is_string()) fail(n, fmt::format("'{}' must be a string", key));
       out = n->as_string()->get();
     } else if constexpr (std::is_floating_point_v<T>) {
-      if (!n->is_number()) fail(n, fmt::format("'{}' must be a number", key));
-      out = static_cast<T>(n->value<double>().value());
+      out = static_cast<T>(number(n, fmt::format("'{}'", key)));
     } else {
       if (!n->is_integer() || n->as_integer()->get() < 0 ||
           static_cast<std::uint64_t>(n->as_integer()->get()) > std::numeric_limits<T>::max()) {
@@ -61,6 +61,20 @@ class Reader {
       }
       out = static_cast<T>(n->as_integer()->get());
     }
+  }
+  // A finite number, integer or float (toml++'s value<double>() is empty for an integer that
+  // a double cannot hold exactly, e.g. 222222222222222221).
+  double number(const toml::node* n, const std::string& what) const {
+    double v = 0;
+    if (n->is_integer()) {
+      v = static_cast<double>(n->as_integer()->get());
+    } else if (n->is_floating_point()) {
+      v = n->as_floating_point()->get();
+    } else {
+      fail(n, fmt::format("{} must be a number", what));
+    }
+    if (!std::isfinite(v)) fail(n, fmt::format("{} must be a finite number", what));
+    return v;
   }
   const toml::node* node(const toml::table* t, std::string_view key) const {
     return t ? t->get(key) : nullptr;
@@ -164,10 +178,7 @@ Scenario parse_scenario(std::string_view text, const std::string& path) {
     if (sweep->is_string()) {
       c.sweep = parse_sweep(sweep->as_string()->get());
     } else if (sweep->is_array()) {
-      for (const auto& v : *sweep->as_array()) {
-        if (!v.is_number()) r.fail(&v, "sweep values must be numbers");
-        c.sweep.push_back(v.value<double>().value());
-      }
+      for (const auto& v : *sweep->as_array()) c.sweep.push_back(r.number(&v, "sweep values"));
     } else {
       r.fail(sweep, "sweep must be a string \"START:STEP:STOP\" or a list of numbers");
     }

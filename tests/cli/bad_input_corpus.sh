@@ -38,6 +38,10 @@ printf 'code = "hamming-7-4"\n[channel]\nsweep = "2"\n[decoder]\nalgorithm = "gu
 printf 'code = "hamming-7-4"\n[channel]\nsweep = "2"\nextra = 1\n' > key.toml
 printf 'code = "hamming-7-4"\n[channel\nsweep = "2"\n' > syntax.toml
 printf 'code = "hamming-7-4"\n[channel]\nkind = "bsc"\nsweep = "0.7"\n' > bsc.toml
+# Found by fuzz_scenario: integers a double cannot hold exactly aborted the reader.
+printf 'code = "hamming-7-4"\n[channel]\nsweep = [222222222222222221]\n' > wide.toml
+printf 'code = "hamming-7-4"\n[channel]\nsweep = "2"\n[decoder]\nalgorithm = "normalized-min-sum"\nalpha = 222222222222222221\n' > wide-alpha.toml
+printf 'code = "hamming-7-4"\n[channel]\nsweep = [nan]\n' > nan-sweep.toml
 /usr/bin/python3 - <<'PY'
 import json
 good = json.load(open("good.json"))
@@ -114,6 +118,9 @@ simulate --scenario key.toml -o sentinel.out --plot ''|key.toml:4
 simulate --scenario syntax.toml -o sentinel.out --plot ''|syntax.toml:2
 simulate --scenario bsc.toml -o sentinel.out --plot ''|got 0.7
 simulate --scenario missing.toml -o sentinel.out --plot ''|missing.toml
+simulate --scenario wide.toml -o sentinel.out --plot ''|sweep point 2.222222222222222e+17 dB
+simulate --scenario wide-alpha.toml -o sentinel.out --plot ''|alpha
+simulate --scenario nan-sweep.toml -o sentinel.out --plot ''|nan-sweep.toml:3:10: sweep values must be a finite number
 simulate --code hamming-7-4 --sweep 1,x -o sentinel.out --plot ''|sweep: 'x' is not a number
 simulate --code hamming-7-4 --sweep 0:1e-9:100 -o sentinel.out --plot ''|more than 10000 points
 simulate --code hamming-7-4 --confidence 1.5 -o sentinel.out --plot ''|confidence must be in (0, 1)
