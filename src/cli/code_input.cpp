@@ -113,14 +113,6 @@ std::string count_of(std::uint64_t count, std::string_view noun) {
 
 namespace {
 
-// A device, pipe or socket (written in place; several outputs may share /dev/null).
-bool special_file(const std::string& path) {
-  std::error_code ec;
-  const auto status = std::filesystem::status(path, ec);
-  return !ec && std::filesystem::exists(status) && !std::filesystem::is_regular_file(status) &&
-         !std::filesystem::is_directory(status);
-}
-
 // Whether two path arguments name the same file (both "-" counts as the same stream).
 bool same_file(const std::string& a, const std::string& b) {
   if (a == "-" || b == "-") return a == b;
@@ -135,7 +127,9 @@ bool same_file(const std::string& a, const std::string& b) {
 void check_paths(const std::vector<PathArgument>& inputs,
                  const std::vector<PathArgument>& outputs) {
   auto used = [](const PathArgument& p) { return !p.path.empty(); };
-  auto shareable = [](const PathArgument& p) { return p.path != "-" && special_file(p.path); };
+  auto shareable = [](const PathArgument& p) {
+    return p.path != "-" && OutputFile::written_in_place(p.path);
+  };
   for (std::size_t i = 0; i < inputs.size(); ++i) {
     for (std::size_t j = i + 1; j < inputs.size(); ++j) {
       if (used(inputs[i]) && used(inputs[j]) && inputs[i].path == "-" && inputs[j].path == "-") {

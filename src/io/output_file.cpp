@@ -35,10 +35,7 @@ OutputFile::OutputFile(std::string path, bool hold_stdout) : path_(std::move(pat
   }
   // A device, pipe or socket is written in place: renaming a temporary file over it would
   // replace it by a regular file (e.g. /dev/null when run as root).
-  std::error_code ec;
-  const auto status = std::filesystem::status(path_, ec);
-  if (!ec && std::filesystem::exists(status) && !std::filesystem::is_regular_file(status) &&
-      !std::filesystem::is_directory(status)) {
+  if (written_in_place(path_)) {
     file_ = std::fopen(path_.c_str(), "wb");
     if (!file_) throw Error(fmt::format("{}: cannot open for writing", path_));
     in_place_ = true;
@@ -65,10 +62,17 @@ OutputFile::OutputFile(std::string path, bool hold_stdout) : path_(std::move(pat
   if (!file_) throw Error(fmt::format("{}: cannot create file: {}", path_, std::strerror(errno)));
 }
 
+bool OutputFile::written_in_place(const std::string& path) {
+  std::error_code ec;
+  const auto status = std::filesystem::status(path, ec);
+  return !ec && std::filesystem::exists(status) && !std::filesystem::is_regular_file(status) &&
+         !std::filesystem::is_directory(status);
+}
+
 void OutputFile::check_creatable(const std::string& path) {
   std::error_code ec;
-  if (path.empty() || path == "-" ||
-      (std::filesystem::exists(path, ec) && !std::filesystem::is_regular_file(path, ec))) {
+  if (path.empty() || path == "-" || written_in_place(path) ||
+      std::filesystem::is_directory(path, ec)) {
     return;  // standard output, or a device or directory that opening will judge
   }
   const std::filesystem::path parent = std::filesystem::path(path).parent_path();

@@ -23,6 +23,9 @@ class OutputFile {
   // Throws Error unless a file can be created where path would be written (its directory
   // exists and is writable): checked before long work, so that no result is lost at the end.
   static void check_creatable(const std::string& path);
+  // Whether path is a device, pipe or socket, which is written in place (never replaced); several
+  // outputs may share one (/dev/null).
+  static bool written_in_place(const std::string& path);
 
   bool enabled() const noexcept { return file_ != nullptr; }
   void write(std::string_view data);
