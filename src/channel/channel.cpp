@@ -8,25 +8,6 @@
 
 namespace tannery {
 
-std::string_view channel_name(ChannelKind kind) {
-  switch (kind) {
-    case ChannelKind::awgn:
-      return "awgn";
-    case ChannelKind::bsc:
-      return "bsc";
-    case ChannelKind::bec:
-      return "bec";
-  }
-  return "?";
-}
-
-std::optional<ChannelKind> parse_channel(std::string_view name) {
-  if (name == "awgn") return ChannelKind::awgn;
-  if (name == "bsc") return ChannelKind::bsc;
-  if (name == "bec") return ChannelKind::bec;
-  return std::nullopt;
-}
-
 double awgn_sigma(double snr_db, SnrMeasure measure, double rate) {
   const double linear = std::pow(10.0, snr_db / 10.0);
   return std::sqrt(1.0 / (2.0 * (measure == SnrMeasure::ebn0 ? rate : 1.0) * linear));

@@ -159,7 +159,7 @@ void check_paths(const std::vector<PathArgument>& inputs,
 
 Code CodeInput::load() const {
   ReadOptions options;
-  if (!format.empty()) options.format = parse_format_name(format);
+  if (!format.empty()) options.format = from_name<MatrixFormat>(format);
   options.lifting = lifting;
   return load_code(code, options);
 }

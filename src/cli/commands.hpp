@@ -48,29 +48,20 @@ namespace tannery::cli {
 MatrixFormat output_format(const std::string& to, const std::string& path);
 }  // namespace tannery::cli
 
+#include "settings_options.hpp"
 #include "tannery/decode/decoder.hpp"
 
 namespace tannery::cli {
 
 // The decoder option group shared by every subcommand that decodes.
 struct DecoderOptions {
-  std::string algorithm = "sum-product";
-  std::string schedule = "flooding";
-  int iterations = 50;
-  bool no_early_stop = false;
-  double alpha = 0.75;
-  double beta = 0.5;
-  int flip_threshold = 0;
-  std::string kernel = "auto";
-  std::string quantize;
+  SettingsOptions<DecoderSettings> fields;
   std::string simd_target;
-  CLI::Option* alpha_option = nullptr;
-  CLI::Option* beta_option = nullptr;
-  CLI::Option* threshold_option = nullptr;
 
   void add_to(CLI::App& sub);
-  // Settings from the options; refuses parameters that the chosen algorithm does not use.
-  DecoderSettings settings() const;
+  // The settings: base with the options given here; refuses parameters that the chosen
+  // algorithm does not use.
+  DecoderSettings settings(DecoderSettings base = {}) const;
 };
 
 void add_simulate(CLI::App& app);
@@ -114,9 +105,6 @@ int run_program(const std::vector<std::string>& args);
 // Runs a converter that reads input on its standard input and writes its result to its standard
 // output, here into out (nothing under the final name until out is committed). As run_program.
 int run_converter(const std::vector<std::string>& args, std::string_view input, OutputFile& out);
-
-// Refuses a negative value for an unsigned option (CLI11 would wrap it to a huge count).
-extern const CLI::Validator kNonNegative;
 
 // "1 thread", "2 threads": a count with its noun in the right number.
 std::string count_of(std::uint64_t count, std::string_view noun);

@@ -143,7 +143,7 @@ void add_construct(CLI::App& app) {
     if (o->output != "-") {
       const CycleCensus cycles = cycle_census(code);
       fmt::print(stderr, "wrote {} ({} format): n = {}, m = {}, edges = {}, girth = {}{}\n",
-                 o->output, format_name(format), code.n(), code.m(), code.edges(),
+                 o->output, name_of(format), code.n(), code.m(), code.edges(),
                  cycles.girth ? fmt::format("{}", *cycles.girth) : std::string("none"), note);
     }
   });

@@ -19,7 +19,7 @@ struct ConvertOptions {
 
 // Output format from --to, else from the file extension, else tannery's own format.
 MatrixFormat output_format(const std::string& to, const std::string& path) {
-  if (!to.empty()) return *parse_format_name(to);
+  if (!to.empty()) return *from_name<MatrixFormat>(to);
   if (auto f = format_from_extension(path)) return *f;
   if (path == "-") return MatrixFormat::tannery;
   throw Error(

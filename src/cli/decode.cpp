@@ -78,8 +78,8 @@ void run(const DecodeOptions& o) {
   const Encoder encoder = make_encoder(code, o.systematic_first);
   const DecoderSettings settings = o.decoder.settings();
   const std::size_t n = code.n();
-  const SampleFormat format = *parse_sample_format(o.input_format);
-  const BitFormat out_format = *parse_bit_format(o.output_format);
+  const SampleFormat format = *from_name<SampleFormat>(o.input_format);
+  const BitFormat out_format = *from_name<BitFormat>(o.output_format);
   if (o.meaning == "samples" && !o.noise_variance) {
     throw Error(
         "--meaning samples needs --noise-variance (the noise variance sigma^2 per real sample)");

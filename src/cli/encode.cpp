@@ -31,9 +31,9 @@ struct EncodeOptions {
 };
 
 void encode_bits(const EncodeOptions& o, const Code& code, const Encoder& encoder) {
-  const BitFormat in_format = *parse_bit_format(o.input_format);
+  const BitFormat in_format = *from_name<BitFormat>(o.input_format);
   const BitFormat out_format =
-      *parse_bit_format(o.output_format.empty() ? "text" : o.output_format);
+      *from_name<BitFormat>(o.output_format.empty() ? "text" : o.output_format);
   std::ifstream file;
   std::istream* in = &open_input(o.bits, file);
   BitFrameReader reader(*in, o.bits == "-" ? "<stdin>" : o.bits, in_format, encoder.k());
@@ -60,8 +60,8 @@ void encode_bits(const EncodeOptions& o, const Code& code, const Encoder& encode
 // Random frames through a channel, written as a capture that tannery decode reads.
 void demo_capture(const EncodeOptions& o, const Code& code, const Encoder& encoder) {
   const SampleFormat format =
-      *parse_sample_format(o.output_format.empty() ? "f32" : o.output_format);
-  const ChannelKind kind = *parse_channel(o.channel);
+      *from_name<SampleFormat>(o.output_format.empty() ? "f32" : o.output_format);
+  const ChannelKind kind = *from_name<ChannelKind>(o.channel);
   check_channel_parameter(kind, o.at);
   const double rate = static_cast<double>(encoder.k()) / static_cast<double>(code.n());
   ChannelPoint channel{kind, o.at, o.at};
@@ -88,7 +88,7 @@ void demo_capture(const EncodeOptions& o, const Code& code, const Encoder& encod
   out.commit();
   truth.commit();
   fmt::print(stderr, "wrote {} frames of n = {} ({}; {} at {} {}, seed {})\n", o.demo, code.n(),
-             sample_format_name(format), channel_name(kind), o.at,
+             name_of(format), name_of(kind), o.at,
              kind == ChannelKind::awgn ? "dB Eb/N0" : "", o.seed);
 }
 

@@ -25,25 +25,15 @@ namespace {
 struct SimulateOptions {
   CodeInput input;
   DecoderOptions decoder;
-  std::string channel = "awgn";
+  SettingsOptions<ChannelSpec> channel;
+  SettingsOptions<StopRules> stop;
+  SettingsOptions<SimulationConfig> run;
   std::string sweep;
-  std::string snr = "ebn0";
-  bool design_rate = false;
-  double snr_offset = 0;
-  std::optional<double> assumed_p;
-  std::uint64_t frame_errors = 100;
-  std::uint64_t max_frames = 100'000;
-  double max_seconds = 0;
-  double stop_below = 0;
-  std::uint64_t seed = 1;
   unsigned threads = 0;
-  std::uint32_t chunk = 0;  // automatic
-  double confidence = 0.95;
   std::string output = "tannery-run.json";
   std::string csv;
   std::string plot = "tannery-run.svg";
   std::string resume;
-  bool all_zero = false;
   bool quiet = false;
   std::string replay;
   std::string replay_llr;
@@ -52,67 +42,20 @@ struct SimulateOptions {
   std::string scenario;
 };
 
-// Fills every option the command line did not give from the scenario file.
-void apply_scenario(const Scenario& sc, SimulateOptions& o, const CLI::App& sub) {
-  auto given = [&](const char* name) { return sub.get_option(name)->count() > 0; };
-  const SimulationConfig& c = sc.config;
-  if (!given("--code")) o.input.code = sc.code;
-  if (!given("--algorithm")) o.decoder.algorithm = algorithm_name(c.decoder.algorithm);
-  if (!given("--schedule")) o.decoder.schedule = schedule_name(c.decoder.schedule);
-  if (!given("--iterations")) o.decoder.iterations = c.decoder.iterations;
-  if (!given("--no-early-stop")) o.decoder.no_early_stop = !c.decoder.early_stop;
-  if (!given("--alpha")) o.decoder.alpha = c.decoder.alpha;
-  if (!given("--beta")) o.decoder.beta = c.decoder.beta;
-  if (!given("--flip-threshold")) o.decoder.flip_threshold = c.decoder.flip_threshold;
-  if (!given("--kernel")) o.decoder.kernel = kernel_name(c.decoder.kernel);
-  if (!given("--quantize") && c.decoder.quantization)
-    o.decoder.quantize = quantization_spec(*c.decoder.quantization);
-  if (!given("--channel")) o.channel = channel_name(c.channel.kind);
-  if (!given("--sweep")) {
-    o.sweep.clear();
-    for (double v : c.sweep) o.sweep += fmt::format("{}{}", o.sweep.empty() ? "" : ",", v);
+// The run: base (the library's defaults, a scenario's or a recorded run's settings) with the
+// options the command line gave.
+SimulationConfig config_of(const SimulateOptions& o, SimulationConfig c) {
+  c.decoder = o.decoder.settings(c.decoder);
+  o.channel.overlay(c.channel);
+  o.stop.overlay(c.stop);
+  o.run.overlay(c);
+  validate(c.channel);
+  if (!o.sweep.empty()) {
+    c.sweep = parse_sweep(o.sweep);
+  } else if (c.sweep.empty()) {
+    c.sweep = default_sweep(c.channel.kind);
   }
-  if (!given("--snr")) o.snr = c.channel.measure == SnrMeasure::esn0 ? "esn0" : "ebn0";
-  if (!given("--design-rate")) o.design_rate = c.channel.design_rate;
-  if (!given("--snr-offset")) o.snr_offset = c.channel.snr_offset_db;
-  if (!given("--assumed-p")) o.assumed_p = c.channel.assumed_crossover;
-  if (!given("--frame-errors")) o.frame_errors = c.stop.frame_errors;
-  if (!given("--max-frames")) o.max_frames = c.stop.max_frames;
-  if (!given("--max-seconds")) o.max_seconds = c.stop.max_seconds;
-  if (!given("--stop-below")) o.stop_below = c.stop.stop_below_fer;
-  if (!given("--seed")) o.seed = c.seed;
-  if (!given("--chunk")) o.chunk = c.chunk_frames;
-  if (!given("--all-zero")) o.all_zero = c.all_zero;
-  if (!given("--confidence")) o.confidence = c.confidence;
-}
-
-// Default sweeps: the waterfall of the shipped rate-1/2 codes, and ranges around the
-// capacity limits of rate 1/2 for the BSC and BEC.
-std::string default_sweep(ChannelKind kind) {
-  switch (kind) {
-    case ChannelKind::awgn:
-      return "1:0.25:1.75";
-    case ChannelKind::bsc:
-      return "0.08:-0.01:0.04";
-    case ChannelKind::bec:
-      return "0.46:-0.02:0.36";
-  }
-  return "";
-}
-
-CodeRecord code_record(const std::string& source, const Code& code, const Encoder& encoder) {
-  CodeRecord r;
-  r.source = source;
-  r.path = resolve_code_path(source);
-  r.sha256 = r.path == "-" ? std::string() : sha256_hex(read_text_file(r.path));
-  std::ostringstream canonical;
-  write_code(code, MatrixFormat::tannery, canonical);
-  r.matrix_sha256 = sha256_hex(canonical.str());
-  r.n = code.n();
-  r.m = code.m();
-  r.k = encoder.k();
-  r.edges = code.edges();
-  return r;
+  return c;
 }
 
 class ProgressLine {
@@ -223,85 +166,29 @@ void replay(const SimulateOptions& o, const Code& code, const Simulator& sim) {
   }
 }
 
-// The run the options describe (all but threads and the kept failures).
-SimulationConfig config_of(const SimulateOptions& o) {
-  SimulationConfig config;
-  config.decoder = o.decoder.settings();
-  config.channel.kind = *parse_channel(o.channel);
-  config.channel.measure = o.snr == "esn0" ? SnrMeasure::esn0 : SnrMeasure::ebn0;
-  config.channel.design_rate = o.design_rate;
-  config.channel.snr_offset_db = o.snr_offset;
-  config.channel.assumed_crossover = o.assumed_p;
-  if (config.channel.kind != ChannelKind::awgn &&
-      (o.snr_offset != 0 || o.design_rate || o.snr != "ebn0")) {
-    throw Error("--snr, --design-rate and --snr-offset apply to --channel awgn only");
-  }
-  if (config.channel.kind != ChannelKind::bsc && o.assumed_p)
-    throw Error("--assumed-p applies to --channel bsc only");
-  config.sweep = parse_sweep(o.sweep.empty() ? default_sweep(config.channel.kind) : o.sweep);
-  config.stop = StopRules{o.frame_errors, o.max_frames, o.max_seconds, o.stop_below};
-  config.seed = o.seed;
-  config.chunk_frames = o.chunk;
-  config.all_zero = o.all_zero;
-  config.confidence = o.confidence;
-  return config;
-}
-
-// What a resumed run's command line would change in the recorded run, one item per setting.
-std::vector<std::string> resume_conflicts(const SimulationConfig& recorded,
-                                          const SimulationConfig& asked, const Code& recorded_code,
-                                          const Code& asked_code) {
-  std::vector<std::string> d;
-  auto differ = [&](bool same, std::string what) {
-    if (!same) d.push_back(std::move(what));
-  };
-  differ(recorded_code == asked_code, "the code");
-  differ(recorded.decoder == asked.decoder,
-         fmt::format("decoder: {} (recorded: {})", describe(asked.decoder),
-                     describe(recorded.decoder)));
-  differ(recorded.channel == asked.channel, "channel settings");
-  differ(recorded.sweep == asked.sweep, "the sweep");
-  differ(recorded.stop == asked.stop, "stop rules");
-  differ(recorded.seed == asked.seed,
-         fmt::format("seed {} (recorded: {})", asked.seed, recorded.seed));
-  differ(
-      recorded.chunk_frames == asked.chunk_frames,
-      fmt::format("chunk of {} frames (recorded: {})", asked.chunk_frames, recorded.chunk_frames));
-  differ(recorded.all_zero == asked.all_zero, "--all-zero");
-  differ(recorded.confidence == asked.confidence,
-         fmt::format("confidence {} (recorded: {})", asked.confidence, recorded.confidence));
-  return d;
-}
-
 void run(SimulateOptions o, const CLI::App& sub) {
   RunRecord previous;
   SimulationConfig config;
   if (!o.scenario.empty() && !o.resume.empty())
     throw Error("--scenario and --resume exclude each other");
-  if (!o.scenario.empty()) apply_scenario(read_scenario(o.scenario), o, sub);
-  std::optional<Code> asked_code;
-  if (!o.resume.empty()) {
+  const bool code_given = sub.get_option("--code")->count() > 0;
+  if (!o.scenario.empty()) {
+    const Scenario scenario = read_scenario(o.scenario);
+    if (!code_given) o.input.code = scenario.code;
+    config = config_of(o, scenario.config);
+  } else if (!o.resume.empty()) {
     // The recorded run continues exactly; options on the command line may repeat its settings
     // but not change them (threads, outputs and --save-failures apply freely).
     previous = parse_results_json(read_text_file(o.resume), o.resume);
     config = previous.config;
-    const std::string given_code = o.input.code;
-    o.input.code = previous.code.path;
-    Scenario recorded;
-    recorded.code = previous.code.path;
-    recorded.config = previous.config;
-    apply_scenario(recorded, o, sub);
-    SimulationConfig asked = config_of(o);
-    if (asked.chunk_frames == 0) asked.chunk_frames = config.chunk_frames;
-    if (sub.get_option("--code")->count() > 0) {
-      CodeInput other = o.input;
-      other.code = given_code;
-      asked_code = other.load();
-    }
-    const Code recorded_code = o.input.load();
+    CodeInput recorded_input = o.input;
+    recorded_input.code = previous.code.path;
+    const Code recorded_code = recorded_input.load();
+    SimulationConfig asked = config_of(o, config);
     asked.decoder = resolve_kernel(asked.decoder, recorded_code);
-    const auto conflicts =
-        resume_conflicts(config, asked, recorded_code, asked_code ? *asked_code : recorded_code);
+    std::vector<std::string> conflicts = config_differences(config, asked);
+    if (code_given && !(o.input.load() == recorded_code))
+      conflicts.insert(conflicts.begin(), "the code");
     if (!conflicts.empty()) {
       std::string list;
       for (const auto& c : conflicts) list += (list.empty() ? "" : "; ") + c;
@@ -310,9 +197,10 @@ void run(SimulateOptions o, const CLI::App& sub) {
           "exactly as recorded: drop those options, or start a new run with --output",
           o.resume, list));
     }
+    o.input = recorded_input;
     if (o.output == "tannery-run.json") o.output = o.resume;
   } else {
-    config = config_of(o);
+    config = config_of(o, SimulationConfig{});
   }
   check_plot_path(o.plot);
   check_paths({{"--code", o.input.code}, {"--scenario", o.scenario}},
@@ -331,7 +219,7 @@ void run(SimulateOptions o, const CLI::App& sub) {
   RunRecord record;
   record.tool_version = std::string(version());
   record.created = utc_now();
-  record.code = code_record(o.input.code, code, sim.encoder());
+  record.code = code_record(o.input.code, code, sim.encoder().k());
   if (!o.resume.empty()) record.code.source = previous.code.source;
   if (!o.resume.empty() && record.code.matrix_sha256 != previous.code.matrix_sha256) {
     throw Error(fmt::format("resume: {} no longer holds the matrix the run used (SHA-256 differs)",
@@ -351,7 +239,7 @@ void run(SimulateOptions o, const CLI::App& sub) {
                                  config.channel.design_rate ? "design" : "true")
                    : std::string());
     fmt::print("decoder {}; channel {}; seed {}, chunks of {} frames, {}{}\n",
-               describe(sim.config().decoder), channel_name(config.channel.kind), config.seed,
+               describe(sim.config().decoder), name_of(config.channel.kind), config.seed,
                sim.config().chunk_frames, count_of(config.threads, "thread"),
                config.all_zero ? "; all-zero codeword" : "");
     std::fflush(stdout);
@@ -430,52 +318,15 @@ void add_simulate(CLI::App& app) {
   o->input.add_to(*sub, false, kDefaultCode);
   o->decoder.add_to(*sub);
   auto* ch = sub->add_option_group("channel", "Channel options");
-  ch->add_option("--channel", o->channel,
-                 "awgn (BPSK over AWGN), bsc (crossover p) or bec (erasure probability)")
-      ->check(CLI::IsMember({"awgn", "bsc", "bec"}))
-      ->capture_default_str();
+  o->channel.add_to(*ch);
   ch->add_option("--sweep", o->sweep,
                  "sweep values: list 1,1.5,2 or range START:STEP:STOP; Eb/N0 in dB (awgn), p "
                  "(bsc), epsilon (bec); "
                  "default awgn 1:0.25:1.75, bsc 0.08:-0.01:0.04, bec 0.46:-0.02:0.36");
-  ch->add_option("--snr", o->snr, "awgn sweep measure: ebn0 (Eb/N0 in dB) or esn0 (Es/N0 in dB)")
-      ->check(CLI::IsMember({"ebn0", "esn0"}))
-      ->capture_default_str();
-  ch->add_flag("--design-rate", o->design_rate,
-               "Eb/N0 with the design rate 1 - m/n instead of the true rate k/n");
-  ch->add_option("--snr-offset", o->snr_offset,
-                 "decoder's noise estimate is off: LLRs computed for an SNR this many dB higher "
-                 "(awgn mismatch)");
-  ch->add_option("--assumed-p", o->assumed_p,
-                 "bsc: LLR magnitude log((1-p)/p) from this p instead of the true one");
-  ch->add_flag("--all-zero", o->all_zero,
-               "send the all-zero codeword instead of random data: valid only for symmetric "
-               "channels and decoders "
-               "(all here are), and it skips encoding");
-  auto* stop = sub->add_option_group("stop", "Stop rules");
-  stop->add_option("--frame-errors", o->frame_errors,
-                   "a point stops after at least this many frame errors")
-      ->capture_default_str()
-      ->check(kNonNegative);
-  stop->add_option("--max-frames", o->max_frames,
-                   "a point stops after this many frames; the sweep stops at a point "
-                   "with no error in that many")
-      ->capture_default_str()
-      ->check(kNonNegative);
-  stop->add_option("--max-seconds", o->max_seconds,
-                   "a point stops after this many seconds (wall clock: the one rule that makes "
-                   "counts machine-dependent)");
-  stop->add_option("--stop-below", o->stop_below,
-                   "the sweep stops after a point whose FER is below this");
-  sub->add_option("--seed", o->seed, "seed of the Philox streams")->capture_default_str();
+  o->stop.add_to(*sub->add_option_group("stop", "Stop rules"));
+  o->run.add_to(*sub);
   sub->add_option("--threads", o->threads, "worker threads, 1 to 1024 (default: all cores)")
       ->check(CLI::Range(0.0, 1024.0));
-  sub->add_option("--chunk", o->chunk,
-                  "frames per chunk, the unit of work and of stop-rule evaluation (default: 64; "
-                  "with --kernel simd up to 1024, by code length, so batches refill in a chunk)")
-      ->check(CLI::Range(1, 1 << 20));
-  sub->add_option("--confidence", o->confidence, "level of the FER and BER intervals")
-      ->capture_default_str();
   sub->add_option("-o,--output", o->output, "results file (JSON; '' for none)")
       ->capture_default_str();
   sub->add_option("--csv", o->csv, "also write the points as CSV");

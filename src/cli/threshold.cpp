@@ -60,7 +60,7 @@ void run(const ThresholdOptions& o) {
   e.validate();
   const DecoderSettings d = o.decoder.settings();
   ThresholdResult r;
-  const ChannelKind kind = *parse_channel(o.channel);
+  const ChannelKind kind = *from_name<ChannelKind>(o.channel);
   if (kind == ChannelKind::bec) {
     if (d.algorithm != Algorithm::sum_product)
       throw Error(
@@ -90,7 +90,7 @@ void run(const ThresholdOptions& o) {
     error_at = density_evolution_error(e, d, kind, value);
   }
   if (o.json) {
-    nlohmann::json j = {{"channel", o.channel},     {"algorithm", algorithm_name(d.algorithm)},
+    nlohmann::json j = {{"channel", o.channel},     {"algorithm", name_of(d.algorithm)},
                         {"threshold", r.threshold}, {"parameter", unit},
                         {"rate", r.rate},           {"limit", r.limit},
                         {"method", r.method},       {"accuracy", r.accuracy}};

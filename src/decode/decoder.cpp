@@ -14,25 +14,6 @@ namespace tannery {
 
 namespace {
 
-constexpr std::pair<Algorithm, std::string_view> kAlgorithms[] = {
-    {Algorithm::sum_product, "sum-product"},
-    {Algorithm::min_sum, "min-sum"},
-    {Algorithm::normalized_min_sum, "normalized-min-sum"},
-    {Algorithm::offset_min_sum, "offset-min-sum"},
-    {Algorithm::bit_flip, "bit-flip"},
-    {Algorithm::ml, "ml"},
-};
-constexpr std::pair<Schedule, std::string_view> kSchedules[] = {
-    {Schedule::flooding, "flooding"},
-    {Schedule::layered, "layered"},
-};
-
-constexpr std::pair<Kernel, std::string_view> kKernels[] = {
-    {Kernel::automatic, "auto"},
-    {Kernel::reference, "reference"},
-    {Kernel::simd, "simd"},
-};
-
 std::size_t max_check_degree(const Code& code) {
   std::size_t max_degree = 0;
   for (std::size_t c = 0; c < code.m(); ++c)
@@ -42,30 +23,7 @@ std::size_t max_check_degree(const Code& code) {
 
 constexpr std::size_t kMaxSimdCheckDegree = 127;
 
-// One lookup in each direction for the name tables above.
-template <class E, std::size_t N>
-std::string_view name_in(const std::pair<E, std::string_view> (&table)[N], E value) {
-  for (auto [v, name] : table) {
-    if (v == value) return name;
-  }
-  return "?";
-}
-template <class E, std::size_t N>
-std::optional<E> value_in(const std::pair<E, std::string_view> (&table)[N], std::string_view name) {
-  for (auto [v, n] : table) {
-    if (n == name) return v;
-  }
-  return std::nullopt;
-}
-
 }  // namespace
-
-std::string_view kernel_name(Kernel k) {
-  return name_in(kKernels, k);
-}
-std::optional<Kernel> parse_kernel(std::string_view name) {
-  return value_in(kKernels, name);
-}
 
 bool simd_supports(const DecoderSettings& s, const Code& code) {
   const bool algorithm_ok =
@@ -81,27 +39,14 @@ DecoderSettings resolve_kernel(DecoderSettings s, const Code& code) {
   return s;
 }
 
-std::string_view algorithm_name(Algorithm a) {
-  return name_in(kAlgorithms, a);
-}
-std::optional<Algorithm> parse_algorithm(std::string_view name) {
-  return value_in(kAlgorithms, name);
-}
-std::string_view schedule_name(Schedule s) {
-  return name_in(kSchedules, s);
-}
-std::optional<Schedule> parse_schedule(std::string_view name) {
-  return value_in(kSchedules, name);
-}
-
-void validate(const DecoderSettings& s, const Code& code) {
+void validate(const DecoderSettings& s) {
   if (s.algorithm != Algorithm::ml && (s.iterations < 1 || s.iterations > 1'000'000)) {
     throw Error(fmt::format("iterations must be between 1 and 1000000, got {}", s.iterations));
   }
   if (s.schedule == Schedule::layered &&
       (s.algorithm == Algorithm::bit_flip || s.algorithm == Algorithm::ml)) {
-    throw Error(fmt::format("{} has no layered schedule; use --schedule flooding",
-                            algorithm_name(s.algorithm)));
+    throw Error(fmt::format("{} has no layered schedule; use the flooding schedule",
+                            name_of(s.algorithm)));
   }
   if (!(s.alpha > 0 && s.alpha <= 1))
     throw Error(fmt::format("alpha must be in (0, 1], got {}", s.alpha));
@@ -115,7 +60,7 @@ void validate(const DecoderSettings& s, const Code& code) {
     const Quantization& q = *s.quantization;
     if (!min_sum_family)
       throw Error(
-          "fixed-point decoding (--quantize) covers min-sum, normalized-min-sum and "
+          "fixed-point decoding (quantize) covers min-sum, normalized-min-sum and "
           "offset-min-sum");
     if (!(q.channel_bits >= 2 && q.fraction_bits >= 0 && q.fraction_bits < q.channel_bits &&
           q.message_bits >= 2 && q.channel_bits <= q.posterior_bits &&
@@ -129,13 +74,19 @@ void validate(const DecoderSettings& s, const Code& code) {
   if (s.kernel == Kernel::simd || s.quantization) {
     if (s.schedule != Schedule::layered && s.quantization) {
       throw Error(
-          "fixed-point decoding is defined for the layered schedule; add --schedule layered");
+          "fixed-point decoding is defined for the layered schedule, not flooding");
     }
     if (!min_sum_family && s.algorithm != Algorithm::sum_product) {
-      throw Error(fmt::format("no SIMD kernel for {}", algorithm_name(s.algorithm)));
+      throw Error(fmt::format("no SIMD kernel for {}", name_of(s.algorithm)));
     }
+  }
+}
+
+void validate(const DecoderSettings& s, const Code& code) {
+  validate(s);
+  if (s.kernel == Kernel::simd) {
     const std::size_t max_degree = max_check_degree(code);
-    if (s.kernel == Kernel::simd && max_degree > kMaxSimdCheckDegree)
+    if (max_degree > kMaxSimdCheckDegree)
       throw Error(
           fmt::format("the batched decoders handle check degrees up to {}, this code has {}",
                       kMaxSimdCheckDegree, max_degree));
@@ -180,7 +131,7 @@ std::string quantization_spec(const Quantization& q) {
 }
 
 std::string describe(const DecoderSettings& s) {
-  std::string text(algorithm_name(s.algorithm));
+  std::string text(name_of(s.algorithm));
   if (s.algorithm == Algorithm::ml) return text + " (exhaustive block maximum likelihood)";
   if (s.algorithm == Algorithm::normalized_min_sum) text += fmt::format(" alpha={}", s.alpha);
   if (s.algorithm == Algorithm::offset_min_sum) text += fmt::format(" beta={}", s.beta);
@@ -189,8 +140,8 @@ std::string describe(const DecoderSettings& s) {
                              : std::string(" threshold=majority");
   }
   if (s.quantization) text += fmt::format(" fixed-point {}", quantization_spec(*s.quantization));
-  text += fmt::format(" ({} kernel)", kernel_name(s.kernel));
-  return text + fmt::format(", {}, {} iterations{}", schedule_name(s.schedule), s.iterations,
+  text += fmt::format(" ({} kernel)", name_of(s.kernel));
+  return text + fmt::format(", {}, {} iterations{}", name_of(s.schedule), s.iterations,
                             s.early_stop ? ", early stop" : ", no early stop");
 }
 

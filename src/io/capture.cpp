@@ -19,11 +19,6 @@ namespace tannery {
 
 namespace {
 
-constexpr std::pair<SampleFormat, std::string_view> kFormats[] = {
-    {SampleFormat::f32, "f32"}, {SampleFormat::f64, "f64"},   {SampleFormat::i8, "i8"},
-    {SampleFormat::i16, "i16"}, {SampleFormat::text, "text"},
-};
-
 template <class T>
 void put_le(std::string& out, T value) {
   using U = std::make_unsigned_t<
@@ -60,20 +55,6 @@ std::string detail_char(int c) {
 }
 
 }  // namespace
-
-std::string_view sample_format_name(SampleFormat f) {
-  for (auto [value, name] : kFormats) {
-    if (value == f) return name;
-  }
-  return "?";
-}
-
-std::optional<SampleFormat> parse_sample_format(std::string_view name) {
-  for (auto [value, n] : kFormats) {
-    if (n == name) return value;
-  }
-  return std::nullopt;
-}
 
 std::size_t sample_bytes(SampleFormat f) {
   switch (f) {
@@ -302,13 +283,6 @@ std::size_t CaptureReader::read_text(std::size_t max_frames, std::vector<double>
   }
   out.resize(frames * frame_values_);
   return frames;
-}
-
-std::optional<BitFormat> parse_bit_format(std::string_view name) {
-  if (name == "text") return BitFormat::text;
-  if (name == "packed") return BitFormat::packed;
-  if (name == "bytes") return BitFormat::bytes;
-  return std::nullopt;
 }
 
 void append_bits(std::string& out, std::span<const std::uint8_t> bits, BitFormat format) {

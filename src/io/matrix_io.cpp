@@ -27,17 +27,10 @@ namespace {
 constexpr std::int64_t kMaxDim = static_cast<std::int64_t>(kMaxCodeDimension);
 constexpr std::int64_t kMaxLifting = 1 << 20;
 
-struct FormatInfo {
-  MatrixFormat format;
-  std::string_view name;
-  std::string_view extension;
-};
-constexpr FormatInfo kFormats[] = {
-    {MatrixFormat::tannery, "tannery", ".tanner"},
-    {MatrixFormat::alist, "alist", ".alist"},
-    {MatrixFormat::mtx, "mtx", ".mtx"},
-    {MatrixFormat::qc, "qc", ".qc"},
-    {MatrixFormat::dense, "dense", ".dense"},
+// File extensions of the formats.
+constexpr std::pair<MatrixFormat, std::string_view> kExtensions[] = {
+    {MatrixFormat::tannery, ".tanner"}, {MatrixFormat::alist, ".alist"}, {MatrixFormat::mtx, ".mtx"},
+    {MatrixFormat::qc, ".qc"},          {MatrixFormat::dense, ".dense"},
 };
 
 // Sorts a check's variables and refuses a repeated one, naming the line.
@@ -473,23 +466,9 @@ void write_dense(const Code& code, std::ostream& out) {
 
 }  // namespace
 
-std::string_view format_name(MatrixFormat format) {
-  for (const auto& f : kFormats) {
-    if (f.format == format) return f.name;
-  }
-  return "?";
-}
-
-std::optional<MatrixFormat> parse_format_name(std::string_view name) {
-  for (const auto& f : kFormats) {
-    if (f.name == name) return f.format;
-  }
-  return std::nullopt;
-}
-
 std::optional<MatrixFormat> format_from_extension(std::string_view path) {
-  for (const auto& f : kFormats) {
-    if (path.size() > f.extension.size() && path.ends_with(f.extension)) return f.format;
+  for (const auto& [format, extension] : kExtensions) {
+    if (path.size() > extension.size() && path.ends_with(extension)) return format;
   }
   return std::nullopt;
 }
@@ -531,7 +510,7 @@ Code parse_code(std::string_view text, const std::string& source, const ReadOpti
   if (format != MatrixFormat::qc && options.lifting) {
     throw Error(
         fmt::format("{}: a lifting size only applies to quasi-cyclic base tables, not to {} files",
-                    source, format_name(format)));
+                    source, name_of(format)));
   }
   TextReader in(text, source, format == MatrixFormat::mtx ? '%' : '#');
   switch (format) {

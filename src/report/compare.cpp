@@ -9,20 +9,6 @@
 
 namespace tannery {
 
-std::string_view compare_mode_name(CompareMode mode) {
-  switch (mode) {
-    case CompareMode::automatic:
-      return "automatic";
-    case CompareMode::exact:
-      return "exact";
-    case CompareMode::paired:
-      return "paired";
-    case CompareMode::unpaired:
-      return "unpaired";
-  }
-  return "?";
-}
-
 namespace {
 
 bool same(double a, double b) {
@@ -294,7 +280,7 @@ std::string comparison_text(const Comparison& c, const ChannelSpec& channel,
   out += fmt::format(
       "test: {} ({}), one-sided, level {:.3g} per test ({:g}% confidence, Bonferroni over {} "
       "tests)\n",
-      compare_mode_name(c.mode),
+      name_of(c.mode),
       c.mode == CompareMode::exact
           ? "counts must match"
           : (c.mode == CompareMode::paired ? "McNemar on discordant frames"
@@ -331,7 +317,7 @@ std::string comparison_text(const Comparison& c, const ChannelSpec& channel,
 
 std::string comparison_json(const Comparison& c, const CompareOptions& o) {
   nlohmann::json j;
-  j["mode"] = compare_mode_name(c.mode);
+  j["mode"] = name_of(c.mode);
   j["confidence"] = o.confidence;
   j["level_per_test"] = c.level;
   j["regression"] = c.regression;

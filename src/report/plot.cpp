@@ -72,14 +72,14 @@ std::pair<double, std::string> capacity_limit(const RunRecord& run) {
 
 std::string run_label(const RunRecord& run) {
   const DecoderSettings& d = run.config.decoder;
-  std::string decoder(algorithm_name(d.algorithm));
+  std::string decoder(name_of(d.algorithm));
   if (d.algorithm == Algorithm::normalized_min_sum) decoder += fmt::format(" {}", d.alpha);
   if (d.algorithm == Algorithm::offset_min_sum) decoder += fmt::format(" {}", d.beta);
   const std::string kernel = d.quantization
                                  ? fmt::format("fixed point {}", quantization_spec(*d.quantization))
-                                 : fmt::format("{} kernel", kernel_name(d.kernel));
-  return fmt::format("{}/{}, {}, {}, {}", decoder, schedule_name(d.schedule), kernel,
-                     channel_name(run.config.channel.kind), run.code.source);
+                                 : fmt::format("{} kernel", name_of(d.kernel));
+  return fmt::format("{}/{}, {}, {}, {}", decoder, name_of(d.schedule), kernel,
+                     name_of(run.config.channel.kind), run.code.source);
 }
 
 std::string plot_svg(const std::vector<PlotRun>& runs, const PlotOptions& options) {
@@ -105,8 +105,8 @@ std::string plot_svg(const std::vector<PlotRun>& runs, const PlotOptions& option
       throw Error(fmt::format(
           "plot: '{}' sweeps {} on {} and '{}' sweeps {} on {}: they cannot share one axis; plot "
           "them separately",
-          runs.front().label, parameter_heading(a), channel_name(a.kind), r.label,
-          parameter_heading(b), channel_name(b.kind)));
+          runs.front().label, parameter_heading(a), name_of(a.kind), r.label,
+          parameter_heading(b), name_of(b.kind)));
     }
   }
   const bool awgn_ebn0 = first.config.channel.kind == ChannelKind::awgn &&

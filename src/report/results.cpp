@@ -4,10 +4,15 @@
 #include <algorithm>
 #include <chrono>
 #include <ctime>
+#include <sstream>
 #include <nlohmann/json.hpp>
 #include <type_traits>
 
 #include "tannery/error.hpp"
+#include "tannery/io/code_lookup.hpp"
+#include "tannery/io/matrix_io.hpp"
+#include "tannery/report/sha256.hpp"
+#include "tannery/report/settings_json.hpp"
 
 namespace tannery {
 
@@ -118,6 +123,40 @@ T get(const json& j, const char* key, const std::string& source, const std::stri
 
 }  // namespace
 
+CodeRecord code_record(const std::string& source, const Code& code, std::size_t k) {
+  CodeRecord r;
+  r.source = source;
+  r.path = resolve_code_path(source);
+  r.sha256 = r.path == "-" ? std::string() : sha256_hex(read_text_file(r.path));
+  std::ostringstream canonical;
+  write_code(code, MatrixFormat::tannery, canonical);
+  r.matrix_sha256 = sha256_hex(canonical.str());
+  r.n = code.n();
+  r.m = code.m();
+  r.k = k;
+  r.edges = code.edges();
+  return r;
+}
+
+std::vector<std::string> config_differences(const SimulationConfig& recorded,
+                                            const SimulationConfig& asked) {
+  std::vector<std::string> d;
+  auto compare = [&](const json& was, const json& is) {
+    for (const auto& [key, value] : is.items()) {
+      if (was.value(key, json()) != value) {
+        d.push_back(fmt::format("{} {} (recorded: {})", key, value.is_string() ? value.get<std::string>() : value.dump(),
+                                was[key].is_string() ? was[key].get<std::string>() : was[key].dump()));
+      }
+    }
+  };
+  compare(recorded.decoder, asked.decoder);
+  compare(recorded.channel, asked.channel);
+  compare(recorded.stop, asked.stop);
+  compare(fields_json(recorded), fields_json(asked));
+  if (recorded.sweep != asked.sweep) d.push_back("the sweep");
+  return d;
+}
+
 std::string results_json(const RunRecord& run) {
   const SimulationConfig& c = run.config;
   json j;
@@ -136,38 +175,16 @@ std::string results_json(const RunRecord& run) {
       {"edges", run.code.edges},
       {"rate",
        run.code.n ? static_cast<double>(run.code.k) / static_cast<double>(run.code.n) : 0.0}};
-  j["decoder"] = {
-      {"algorithm", algorithm_name(c.decoder.algorithm)},
-      {"schedule", schedule_name(c.decoder.schedule)},
-      {"iterations", c.decoder.iterations},
-      {"early_stop", c.decoder.early_stop},
-      {"alpha", c.decoder.alpha},
-      {"beta", c.decoder.beta},
-      {"flip_threshold", c.decoder.flip_threshold},
-      {"kernel", kernel_name(c.decoder.kernel)},
-      {"quantize",
-       c.decoder.quantization ? json(quantization_spec(*c.decoder.quantization)) : json(nullptr)},
-      {"description", describe(c.decoder)}};
-  j["channel"] = {
-      {"kind", channel_name(c.channel.kind)},
-      {"parameter", parameter_key(c.channel)},
-      {"design_rate", c.channel.design_rate},
-      {"rate_for_snr", run.rate_for_snr},
-      {"snr_offset_db", c.channel.snr_offset_db},
-      {"assumed_crossover",
-       c.channel.assumed_crossover ? json(*c.channel.assumed_crossover) : json(nullptr)}};
-  j["run"] = {{"seed", c.seed},
-              {"chunk_frames", c.chunk_frames},
-              {"all_zero", c.all_zero},
-              {"confidence", c.confidence},
-              {"sweep", c.sweep},
-              {"threads", run.threads_used},
-              {"interrupted", run.interrupted},
-              {"stop",
-               {{"frame_errors", c.stop.frame_errors},
-                {"max_frames", c.stop.max_frames},
-                {"max_seconds", c.stop.max_seconds},
-                {"stop_below_fer", c.stop.stop_below_fer}}}};
+  j["decoder"] = c.decoder;
+  j["decoder"]["description"] = describe(c.decoder);
+  j["channel"] = c.channel;
+  j["channel"]["parameter"] = parameter_key(c.channel);
+  j["channel"]["rate_for_snr"] = run.rate_for_snr;
+  j["run"] = fields_json(c);
+  j["run"]["sweep"] = c.sweep;
+  j["run"]["threads"] = run.threads_used;
+  j["run"]["interrupted"] = run.interrupted;
+  j["run"]["stop"] = c.stop;
   j["points"] = json::array();
   for (const auto& p : run.points) j["points"].push_back(point_json(p, run, run.code.edges));
   return j.dump(1) + "\n";
@@ -223,60 +240,32 @@ RunRecord parse_results(const json& j, const std::string& source) {
   r.code.edges = get<std::size_t>(code, "edges", source, "code");
   SimulationConfig& c = r.config;
   const json& dec = j["decoder"];
-  const auto algorithm = parse_algorithm(get<std::string>(dec, "algorithm", source, "decoder"));
-  const auto schedule = parse_schedule(get<std::string>(dec, "schedule", source, "decoder"));
-  if (!algorithm || !schedule)
-    throw Error(fmt::format("{}: unknown decoder algorithm or schedule", source));
-  c.decoder.algorithm = *algorithm;
-  c.decoder.schedule = *schedule;
-  c.decoder.iterations = get<int>(dec, "iterations", source, "decoder");
-  c.decoder.early_stop = get<bool>(dec, "early_stop", source, "decoder");
-  c.decoder.alpha = get<double>(dec, "alpha", source, "decoder");
-  c.decoder.beta = get<double>(dec, "beta", source, "decoder");
-  c.decoder.flip_threshold = get<int>(dec, "flip_threshold", source, "decoder");
-  // Files written before the batched kernels existed have no "kernel": the reference decoders.
-  const std::string kernel =
-      dec.contains("kernel") ? get<std::string>(dec, "kernel", source, "decoder") : "reference";
-  const auto parsed = parse_kernel(kernel);
-  if (!parsed) throw Error(fmt::format("{}: unknown decoder kernel '{}'", source, kernel));
-  c.decoder.kernel = *parsed;
-  if (dec.contains("quantize") && !dec["quantize"].is_null()) {
-    c.decoder.quantization =
-        parse_quantization(get<std::string>(dec, "quantize", source, "decoder"));
-    if (!c.decoder.quantization) throw Error(fmt::format("{}: bad decoder quantization", source));
-  }
   const json& ch = j["channel"];
-  const auto kind = parse_channel(get<std::string>(ch, "kind", source, "channel"));
-  if (!kind) throw Error(fmt::format("{}: unknown channel", source));
-  c.channel.kind = *kind;
-  c.channel.measure = get<std::string>(ch, "parameter", source, "channel") == "esn0_db"
-                          ? SnrMeasure::esn0
-                          : SnrMeasure::ebn0;
-  c.channel.design_rate = get<bool>(ch, "design_rate", source, "channel");
-  c.channel.snr_offset_db = get<double>(ch, "snr_offset_db", source, "channel");
-  if (ch.contains("assumed_crossover") && !ch["assumed_crossover"].is_null()) {
-    c.channel.assumed_crossover = get<double>(ch, "assumed_crossover", source, "channel");
+  const json& run = j["run"];
+  const json& stop = get<json>(run, "stop", source, "run");
+  try {
+    // Files written before the batched kernels existed have no "kernel": the reference
+    // decoders; before "snr" was recorded, the parameter's name told the measure.
+    if (dec.is_object() && !dec.contains("kernel")) c.decoder.kernel = Kernel::reference;
+    if (ch.is_object() && !ch.contains("snr") && ch.value("parameter", "") == "esn0_db")
+      c.channel.measure = SnrMeasure::esn0;
+    read_fields(dec, c.decoder, "decoder");
+    read_fields(ch, c.channel, "channel");
+    read_fields(run, c, "run");
+    read_fields(stop, c.stop, "stop rules");
+  } catch (const Error& e) {
+    throw Error(fmt::format("{}: {}", source, e.what()));
   }
   r.rate_for_snr = get<double>(ch, "rate_for_snr", source, "channel");
-  const json& run = j["run"];
-  c.seed = get<std::uint64_t>(run, "seed", source, "run");
-  c.chunk_frames = get<std::uint32_t>(run, "chunk_frames", source, "run");
   if (c.chunk_frames == 0 || c.chunk_frames > kMaxChunkFrames) {
     throw Error(fmt::format("{}: run: chunk_frames {} is outside 1..{}", source, c.chunk_frames,
                             kMaxChunkFrames));
   }
-  c.all_zero = get<bool>(run, "all_zero", source, "run");
-  c.confidence = get<double>(run, "confidence", source, "run");
   c.sweep = get<std::vector<double>>(run, "sweep", source, "run");
   r.threads_used = get<unsigned>(run, "threads", source, "run");
   if (r.threads_used == 0 || r.threads_used > 1024)
     throw Error(fmt::format("{}: run: threads {} is outside 1..1024", source, r.threads_used));
   r.interrupted = get<bool>(run, "interrupted", source, "run");
-  const json& stop = get<json>(run, "stop", source, "run");
-  c.stop.frame_errors = get<std::uint64_t>(stop, "frame_errors", source, "stop rules");
-  c.stop.max_frames = get<std::uint64_t>(stop, "max_frames", source, "stop rules");
-  c.stop.max_seconds = get<double>(stop, "max_seconds", source, "stop rules");
-  c.stop.stop_below_fer = get<double>(stop, "stop_below_fer", source, "stop rules");
   if (!j["points"].is_array()) throw Error(fmt::format("{}: 'points' is not an array", source));
   for (std::size_t i = 0; i < j["points"].size(); ++i) {
     const json& pj = j["points"][i];

@@ -8,10 +8,20 @@
 
 #include "tannery/error.hpp"
 #include "tannery/io/matrix_io.hpp"
+#include "tannery/report/settings_json.hpp"
 
 namespace tannery {
 
 namespace {
+
+// A TOML scalar as JSON, for read_value (tables and arrays become null, refused there).
+nlohmann::json as_json(const toml::node& n) {
+  if (const auto* b = n.as_boolean()) return b->get();
+  if (const auto* i = n.as_integer()) return i->get();
+  if (const auto* f = n.as_floating_point()) return f->get();
+  if (const auto* str = n.as_string()) return str->get();
+  return nullptr;
+}
 
 class Reader {
  public:
@@ -40,27 +50,12 @@ class Reader {
     if (!n->is_table()) fail(n, fmt::format("'{}' must be a table [{}]", name, name));
     return n->as_table();
   }
-  template <class T>
-  void get(const toml::table* t, std::string_view key, T& out) const {
-    if (!t) return;
-    const toml::node* n = t->get(key);
+  // A string value, when present.
+  void get(const toml::table& t, std::string_view key, std::string& out) const {
+    const toml::node* n = t.get(key);
     if (!n) return;
-    if constexpr (std::is_same_v<T, bool>) {
-      if (!n->is_boolean()) fail(n, fmt::format("'{}' must be true or false", key));
-      out = n->as_boolean()->get();
-    } else if constexpr (std::is_same_v<T, std::string>) {
-      if (!n->is_string()) fail(n, fmt::format("'{}' must be a string", key));
-      out = n->as_string()->get();
-    } else if constexpr (std::is_floating_point_v<T>) {
-      out = static_cast<T>(number(n, fmt::format("'{}'", key)));
-    } else {
-      if (!n->is_integer() || n->as_integer()->get() < 0 ||
-          static_cast<std::uint64_t>(n->as_integer()->get()) > std::numeric_limits<T>::max()) {
-        fail(n, fmt::format("'{}' must be an integer from 0 to {}", key,
-                            std::numeric_limits<T>::max()));
-      }
-      out = static_cast<T>(n->as_integer()->get());
-    }
+    if (!n->is_string()) fail(n, fmt::format("'{}' must be a string", key));
+    out = n->as_string()->get();
   }
   // A finite number, integer or float (toml++'s value<double>() is empty for an integer that
   // a double cannot hold exactly, e.g. 222222222222222221).
@@ -76,8 +71,28 @@ class Reader {
     if (!std::isfinite(v)) fail(n, fmt::format("{} must be a finite number", what));
     return v;
   }
-  const toml::node* node(const toml::table* t, std::string_view key) const {
-    return t ? t->get(key) : nullptr;
+  // The fields of S present in table t (through the settings' field table, as results files
+  // and Python keywords are read), each error at its value's line; keys neither a field nor
+  // one of extra are refused.
+  template <class S>
+  void read_section(const toml::table& t, S& s, const std::string& section,
+                    std::initializer_list<std::string_view> extra = {}) const {
+    std::vector<std::string_view> keys(extra);
+    for_each_field<S>([&](const auto& field) { keys.push_back(field.key); });
+    for (const auto& [key, node] : t) {
+      if (std::find(keys.begin(), keys.end(), key.str()) == keys.end())
+        fail(&node, fmt::format("unknown key '{}' in [{}]", key.str(), section));
+    }
+    for_each_field<S>([&](const auto& field) {
+      using T = typename std::decay_t<decltype(field)>::Value;
+      const toml::node* n = t.get(field.key);
+      if (!n) return;
+      try {
+        s.*field.member = read_value<T>(as_json(*n), field.key);
+      } catch (const Error& e) {
+        fail(n, e.what());
+      }
+    });
   }
 
  private:
@@ -103,11 +118,11 @@ Scenario parse_scenario(std::string_view text, const std::string& path) {
   r.only(root, {"name", "description", "code", "decoder", "channel", "stop", "run"}, "");
   Scenario s;
   s.name = std::filesystem::path(path).stem().string();
-  r.get(&root, "name", s.name);
-  r.get(&root, "description", s.description);
+  r.get(root, "name", s.name);
+  r.get(root, "description", s.description);
   if (!root.get("code"))
     throw Error(fmt::format("{}: the scenario names no code (code = \"...\")", path));
-  r.get(&root, "code", s.code);
+  r.get(root, "code", s.code);
   // A relative path is relative to the scenario file; a shipped name stays a name.
   const auto beside = std::filesystem::path(path).parent_path() / s.code;
   std::error_code ec;  // an over-long or odd name is simply no file beside the scenario
@@ -115,64 +130,25 @@ Scenario parse_scenario(std::string_view text, const std::string& path) {
 
   SimulationConfig& c = s.config;
   if (const toml::table* d = r.section("decoder")) {
-    r.only(*d,
-           {"algorithm", "schedule", "iterations", "early_stop", "alpha", "beta", "flip_threshold",
-            "kernel", "quantize"},
-           "decoder");
-    std::string algorithm = "sum-product", schedule = "flooding";
-    r.get(d, "algorithm", algorithm);
-    r.get(d, "schedule", schedule);
-    const auto a = parse_algorithm(algorithm);
-    const auto sch = parse_schedule(schedule);
-    if (!a) r.fail(r.node(d, "algorithm"), fmt::format("unknown algorithm '{}'", algorithm));
-    if (!sch) r.fail(r.node(d, "schedule"), fmt::format("unknown schedule '{}'", schedule));
-    c.decoder.algorithm = *a;
-    c.decoder.schedule = *sch;
-    r.get(d, "iterations", c.decoder.iterations);
-    r.get(d, "early_stop", c.decoder.early_stop);
-    r.get(d, "alpha", c.decoder.alpha);
-    r.get(d, "beta", c.decoder.beta);
-    r.get(d, "flip_threshold", c.decoder.flip_threshold);
+    r.read_section(*d, c.decoder, "decoder");
     // A parameter of another algorithm is a slip, not something to ignore.
-    for (auto [key, owner] : {std::pair{"alpha", Algorithm::normalized_min_sum},
-                              std::pair{"beta", Algorithm::offset_min_sum},
-                              std::pair{"flip_threshold", Algorithm::bit_flip}}) {
-      if (d->get(key) && c.decoder.algorithm != owner) {
-        r.fail(r.node(d, key), fmt::format("{} applies to algorithm = \"{}\" only, not \"{}\"", key,
-                                           algorithm_name(owner), algorithm));
+    for (const auto& [key, node] : *d) {
+      const auto owner = parameter_owner(key.str());
+      if (owner && c.decoder.algorithm != *owner) {
+        r.fail(&node, fmt::format("{} applies to algorithm = \"{}\" only, not \"{}\"", key.str(),
+                                  name_of(*owner), name_of(c.decoder.algorithm)));
       }
     }
-    std::string kernel = "auto", quantize;
-    r.get(d, "kernel", kernel);
-    const auto parsed = parse_kernel(kernel);
-    if (!parsed) r.fail(r.node(d, "kernel"), "kernel must be \"auto\", \"reference\" or \"simd\"");
-    c.decoder.kernel = parsed.value_or(Kernel::automatic);
-    r.get(d, "quantize", quantize);
-    if (!quantize.empty()) {
-      c.decoder.quantization = parse_quantization(quantize);
-      if (!c.decoder.quantization) r.fail(r.node(d, "quantize"), "quantize must be B.F or B.F:M:P");
+    try {
+      validate(c.decoder);
+    } catch (const Error& e) {
+      r.fail(d, e.what());
     }
   }
   const toml::table* ch = r.section("channel");
   if (!ch || !ch->get("sweep"))
     throw Error(fmt::format("{}: the scenario has no [channel] sweep", path));
-  r.only(*ch, {"kind", "sweep", "snr", "design_rate", "snr_offset_db", "assumed_crossover"},
-         "channel");
-  std::string kind = "awgn", snr = "ebn0";
-  r.get(ch, "kind", kind);
-  const auto k = parse_channel(kind);
-  if (!k) r.fail(r.node(ch, "kind"), fmt::format("unknown channel '{}'", kind));
-  c.channel.kind = *k;
-  r.get(ch, "snr", snr);
-  if (snr != "ebn0" && snr != "esn0") r.fail(r.node(ch, "snr"), "snr must be \"ebn0\" or \"esn0\"");
-  c.channel.measure = snr == "esn0" ? SnrMeasure::esn0 : SnrMeasure::ebn0;
-  r.get(ch, "design_rate", c.channel.design_rate);
-  r.get(ch, "snr_offset_db", c.channel.snr_offset_db);
-  if (ch->get("assumed_crossover")) {
-    double p = 0;
-    r.get(ch, "assumed_crossover", p);
-    c.channel.assumed_crossover = p;
-  }
+  r.read_section(*ch, c.channel, "channel", {"sweep"});
   const toml::node* sweep = ch->get("sweep");
   try {
     if (sweep->is_string()) {
@@ -186,20 +162,8 @@ Scenario parse_scenario(std::string_view text, const std::string& path) {
     if (std::string(e.what()).starts_with(path)) throw;
     r.fail(sweep, e.what());
   }
-  if (const toml::table* st = r.section("stop")) {
-    r.only(*st, {"frame_errors", "max_frames", "max_seconds", "stop_below_fer"}, "stop");
-    r.get(st, "frame_errors", c.stop.frame_errors);
-    r.get(st, "max_frames", c.stop.max_frames);
-    r.get(st, "max_seconds", c.stop.max_seconds);
-    r.get(st, "stop_below_fer", c.stop.stop_below_fer);
-  }
-  if (const toml::table* run = r.section("run")) {
-    r.only(*run, {"seed", "chunk_frames", "all_zero", "confidence"}, "run");
-    r.get(run, "seed", c.seed);
-    r.get(run, "chunk_frames", c.chunk_frames);
-    r.get(run, "all_zero", c.all_zero);
-    r.get(run, "confidence", c.confidence);
-  }
+  if (const toml::table* st = r.section("stop")) r.read_section(*st, c.stop, "stop");
+  if (const toml::table* run = r.section("run")) r.read_section(*run, c, "run");
   return s;
 }
 

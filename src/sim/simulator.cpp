@@ -72,6 +72,7 @@ Simulator::Simulator(const Code& code, SimulationConfig config)
   for (double p : config_.sweep) check_channel_parameter(config_.channel.kind, p);
   if (config_.chunk_frames == 0)
     config_.chunk_frames = default_chunk_frames(code_, config_.decoder);
+  validate(config_.channel);
   if (config_.chunk_frames > kMaxChunkFrames) {
     throw Error(
         fmt::format("a chunk of {} frames is more than the {} allowed (each thread holds "
@@ -79,13 +80,13 @@ Simulator::Simulator(const Code& code, SimulationConfig config)
                     config_.chunk_frames, kMaxChunkFrames));
   }
   const StopRules& stop = config_.stop;
-  if (stop.max_frames == 0) throw Error("stop rule: max frames must be at least 1");
-  if (stop.frame_errors == 0) throw Error("stop rule: frame errors must be at least 1");
+  if (stop.max_frames == 0) throw Error("stop rule: max_frames must be at least 1");
+  if (stop.frame_errors == 0) throw Error("stop rule: frame_errors must be at least 1");
   if (!(stop.max_seconds >= 0 && std::isfinite(stop.max_seconds)))
     throw Error(
-        fmt::format("stop rule: max seconds must be >= 0 (0: no limit), got {}", stop.max_seconds));
+        fmt::format("stop rule: max_seconds must be >= 0 (0: no limit), got {}", stop.max_seconds));
   if (!(stop.stop_below_fer >= 0 && stop.stop_below_fer <= 1))
-    throw Error(fmt::format("stop rule: stop-below FER must be in [0, 1] (0: never), got {}",
+    throw Error(fmt::format("stop rule: stop_below_fer must be in [0, 1] (0: never), got {}",
                             stop.stop_below_fer));
   if (!(config_.confidence > 0 && config_.confidence < 1))
     throw Error("confidence must be in (0, 1)");
@@ -447,6 +448,27 @@ FrameData Simulator::replay(std::size_t point, std::uint64_t frame) const {
   auto decoder = make_decoder(code_, config_.decoder);
   decoder->decode(d.llr, d.hard, d.posterior, std::span(&d.outcome, 1), frame);
   return d;
+}
+
+void validate(const ChannelSpec& c) {
+  if (c.kind != ChannelKind::awgn &&
+      (c.snr_offset_db != 0 || c.design_rate || c.measure != SnrMeasure::ebn0)) {
+    throw Error("snr, design_rate and snr_offset_db apply to the awgn channel only");
+  }
+  if (c.kind != ChannelKind::bsc && c.assumed_crossover)
+    throw Error("assumed_crossover applies to the bsc channel only");
+}
+
+std::vector<double> default_sweep(ChannelKind kind) {
+  switch (kind) {
+    case ChannelKind::awgn:
+      return parse_sweep("1:0.25:1.75");
+    case ChannelKind::bsc:
+      return parse_sweep("0.08:-0.01:0.04");
+    case ChannelKind::bec:
+      return parse_sweep("0.46:-0.02:0.36");
+  }
+  return {};
 }
 
 std::uint32_t default_chunk_frames(const Code& code, const DecoderSettings& decoder) {

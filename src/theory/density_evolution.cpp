@@ -478,7 +478,7 @@ ThresholdResult finish_awgn(double sigma, double rate, std::string method, doubl
 void check_algorithm(const DecoderSettings& d) {
   if (d.algorithm == Algorithm::bit_flip || d.algorithm == Algorithm::ml) {
     throw Error(fmt::format("density evolution covers sum-product and the min-sum family, not {}",
-                            algorithm_name(d.algorithm)));
+                            name_of(d.algorithm)));
   }
 }
 

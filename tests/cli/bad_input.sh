@@ -40,10 +40,10 @@ simulate --code hamming-7-4 --snr-offset 1e6 --plot ''|gives a noise standard de
 simulate --code hamming-7-4 --channel bsc --sweep 0.1 --assumed-p nan --plot ''|assumed bsc crossover probability must be in [0, 0.5], got nan
 simulate --code hamming-7-4 --channel bsc --sweep 0.1 --assumed-p 0.9 --plot ''|got 0.9
 simulate --code hamming-7-4 --channel bsc --sweep 0.6 --plot ''|bsc crossover probability must be in [0, 0.5], got 0.6
-simulate --code hamming-7-4 --max-seconds -1 --plot ''|max seconds must be >= 0
-simulate --code hamming-7-4 --stop-below -1 --plot ''|stop-below FER must be in [0, 1]
-simulate --code hamming-7-4 --stop-below nan --plot ''|stop-below FER must be in [0, 1]
-simulate --code hamming-7-4 --frame-errors 0 --plot ''|frame errors must be at least 1
+simulate --code hamming-7-4 --max-seconds -1 --plot ''|max_seconds must be >= 0
+simulate --code hamming-7-4 --stop-below -1 --plot ''|stop_below_fer must be in [0, 1]
+simulate --code hamming-7-4 --stop-below nan --plot ''|stop_below_fer must be in [0, 1]
+simulate --code hamming-7-4 --frame-errors 0 --plot ''|frame_errors must be at least 1
 simulate --code hamming-7-4 --max-frames -1 --plot ''|--max-frames: must be 0 or more, got -1
 simulate --code hamming-7-4 --threads 100000 --plot ''|--threads: Value 100000 not in range
 construct repetition --length -3 -o rep.tanner|--length: Value -3 not in range

@@ -100,10 +100,10 @@ decode --code hamming-7-4 good.f32 --input-format f16 -o sentinel.out|--input-fo
 decode --code hamming-7-4 good.f32 --meaning samples -o sentinel.out|--noise-variance
 decode --code hamming-7-4 good.f32 --meaning samples --noise-variance -1 -o sentinel.out|--noise-variance must be positive
 decode --code hamming-7-4 good.f32 --scale nan -o sentinel.out|--scale
-decode --code hamming-7-4 good.f32 --iterations 0 -o sentinel.out|--iterations
+decode --code hamming-7-4 good.f32 --iterations 0 -o sentinel.out|iterations must be between 1 and 1000000, got 0
 decode --code hamming-7-4 good.f32 --algorithm normalized-min-sum --alpha 1.5 -o sentinel.out|alpha must be in (0, 1]
 decode --code hamming-7-4 good.f32 --beta 0.3 -o sentinel.out|--beta applies to --algorithm offset-min-sum only
-decode --code hamming-7-4 good.f32 --quantize 6.2: -o sentinel.out|--quantize '6.2:'
+decode --code hamming-7-4 good.f32 --quantize 6.2: -o sentinel.out|--quantize: '6.2:': expected B.F or B.F:M:P
 decode --code hamming-7-4 good.f32 --algorithm min-sum --quantize 20.2 --schedule layered -o sentinel.out|impossible quantization
 decode --code hamming-7-4 good.f32 --algorithm ml --schedule layered -o sentinel.out|ml has no layered schedule
 decode --code hamming-7-4 good.f32 --truth adir -o sentinel.out|adir: is a directory
@@ -124,14 +124,14 @@ simulate --scenario nan-sweep.toml -o sentinel.out --plot ''|nan-sweep.toml:3:10
 simulate --code hamming-7-4 --sweep 1,x -o sentinel.out --plot ''|sweep: 'x' is not a number
 simulate --code hamming-7-4 --sweep 0:1e-9:100 -o sentinel.out --plot ''|more than 10000 points
 simulate --code hamming-7-4 --confidence 1.5 -o sentinel.out --plot ''|confidence must be in (0, 1)
-simulate --code hamming-7-4 --channel bec --snr-offset 1 -o sentinel.out --plot ''|apply to --channel awgn only
+simulate --code hamming-7-4 --channel bec --snr-offset 1 -o sentinel.out --plot ''|apply to the awgn channel only
 simulate --code hamming-7-4 --replay 9:0 -o sentinel.out --plot ''|replay: point 9 does not exist
 simulate --resume errors.json -o sentinel.out --plot ''|errors.json: point 0: more errors than trials
 simulate --resume order.json -o sentinel.out --plot ''|order.json: point 0: failed frames
 simulate --resume seconds.json -o sentinel.out --plot ''|seconds.json: point 0: seconds must be >= 0
 simulate --resume chunk.json -o sentinel.out --plot ''|chunk.json: run: chunk_frames 0
 compare version.json good.json|version.json: results version 99
-compare kind.json good.json|kind.json: unknown channel
+compare kind.json good.json|kind.json: channel: 'kind': channel 'wifi' is not one of: awgn, bsc, bec
 compare missing.json good.json|missing.json: missing section 'points'
 compare truncated.json good.json|truncated.json: not valid JSON
 compare good.json good.json --confidence 2|--confidence

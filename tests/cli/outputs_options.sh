@@ -111,7 +111,7 @@ grep -q "sum-product/flooding, simd kernel, awgn" a.svg || fail "legend lacks de
 "$T" simulate --code hamming-7-4 --sweep 2,3 --max-frames 2000 --quiet -o res.json --plot "" || fail "run"
 expect_exit 2 "$T" simulate --resume res.json --algorithm min-sum --seed 5 --quiet
 expect_in "the command line changes the recorded run" "$WORK/err"
-expect_in "decoder: min-sum" "$WORK/err"
+expect_in "algorithm min-sum (recorded: sum-product)" "$WORK/err"
 expect_in "seed 5 (recorded: 1)" "$WORK/err"
 expect_exit 0 "$T" simulate --resume res.json --threads 1 --seed 1 --algorithm sum-product --quiet --plot ""
 

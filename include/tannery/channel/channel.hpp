@@ -7,14 +7,26 @@
 #include <span>
 #include <string_view>
 
+#include "tannery/names.hpp"
+
 namespace tannery {
 
 enum class ChannelKind { awgn, bsc, bec };
 // How the AWGN sweep parameter is given: Eb/N0 or Es/N0, in dB.
 enum class SnrMeasure { ebn0, esn0 };
 
-std::string_view channel_name(ChannelKind kind);
-std::optional<ChannelKind> parse_channel(std::string_view name);
+template <>
+struct Names<ChannelKind> {
+  static constexpr std::string_view setting = "channel";
+  static constexpr std::pair<ChannelKind, std::string_view> table[] = {
+      {ChannelKind::awgn, "awgn"}, {ChannelKind::bsc, "bsc"}, {ChannelKind::bec, "bec"}};
+};
+template <>
+struct Names<SnrMeasure> {
+  static constexpr std::string_view setting = "snr";
+  static constexpr std::pair<SnrMeasure, std::string_view> table[] = {{SnrMeasure::ebn0, "ebn0"},
+                                                                      {SnrMeasure::esn0, "esn0"}};
+};
 
 // Noise standard deviation per real dimension for unit-energy BPSK:
 // sigma^2 = 1 / (2 R 10^(Eb/N0 / 10)) for Eb/N0, and 1 / (2 10^(Es/N0 / 10)) for Es/N0.

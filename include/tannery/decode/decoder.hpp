@@ -19,16 +19,31 @@
 #include <vector>
 
 #include "tannery/code/code.hpp"
+#include "tannery/names.hpp"
 
 namespace tannery {
 
 enum class Algorithm { sum_product, min_sum, normalized_min_sum, offset_min_sum, bit_flip, ml };
 enum class Schedule { flooding, layered };
 
-std::string_view algorithm_name(Algorithm a);
-std::optional<Algorithm> parse_algorithm(std::string_view name);
-std::string_view schedule_name(Schedule s);
-std::optional<Schedule> parse_schedule(std::string_view name);
+template <>
+struct Names<Algorithm> {
+  static constexpr std::string_view setting = "algorithm";
+  static constexpr std::pair<Algorithm, std::string_view> table[] = {
+      {Algorithm::sum_product, "sum-product"},
+      {Algorithm::min_sum, "min-sum"},
+      {Algorithm::normalized_min_sum, "normalized-min-sum"},
+      {Algorithm::offset_min_sum, "offset-min-sum"},
+      {Algorithm::bit_flip, "bit-flip"},
+      {Algorithm::ml, "ml"},
+  };
+};
+template <>
+struct Names<Schedule> {
+  static constexpr std::string_view setting = "schedule";
+  static constexpr std::pair<Schedule, std::string_view> table[] = {
+      {Schedule::flooding, "flooding"}, {Schedule::layered, "layered"}};
+};
 
 // Fixed-point decoding as hardware does it (see the README for the arithmetic): channel LLRs
 // become round(L * 2^fraction) saturated to channel_bits (two's complement, symmetric range);
@@ -49,8 +64,12 @@ std::string quantization_spec(const Quantization& q);
 // batched SIMD kernels (float32, or integer lanes when quantized) or automatic: the SIMD kernels
 // where they implement the algorithm and schedule, the reference otherwise (resolve_kernel).
 enum class Kernel { automatic, reference, simd };
-std::string_view kernel_name(Kernel k);  // "auto", "reference", "simd"
-std::optional<Kernel> parse_kernel(std::string_view name);
+template <>
+struct Names<Kernel> {
+  static constexpr std::string_view setting = "kernel";
+  static constexpr std::pair<Kernel, std::string_view> table[] = {
+      {Kernel::automatic, "auto"}, {Kernel::reference, "reference"}, {Kernel::simd, "simd"}};
+};
 
 struct DecoderSettings {
   Algorithm algorithm = Algorithm::sum_product;
@@ -73,8 +92,10 @@ bool simd_supports(const DecoderSettings& settings, const Code& code);
 // simd_supports, else reference); other kernels unchanged.
 DecoderSettings resolve_kernel(DecoderSettings settings, const Code& code);
 
-// Throws Error for impossible settings (ml above k = 24, a layered bit-flip, alpha outside (0,
-// 1]...).
+// Throws Error for impossible settings (a layered bit-flip, alpha outside (0, 1]...); the
+// second form also for settings this code rules out (ml above k = 24, check degrees above the
+// batched kernels' limit). Messages name settings as scenario files do.
+void validate(const DecoderSettings& settings);
 void validate(const DecoderSettings& settings, const Code& code);
 // One line such as "sum-product, flooding, 50 iterations, early stop".
 std::string describe(const DecoderSettings& settings);

@@ -16,12 +16,20 @@
 #include <string_view>
 #include <vector>
 
+#include "tannery/names.hpp"
+
 namespace tannery {
 
 enum class SampleFormat { f32, f64, i8, i16, text };
 
-std::string_view sample_format_name(SampleFormat f);
-std::optional<SampleFormat> parse_sample_format(std::string_view name);
+template <>
+struct Names<SampleFormat> {
+  static constexpr std::string_view setting = "input format";
+  static constexpr std::pair<SampleFormat, std::string_view> table[] = {
+      {SampleFormat::f32, "f32"}, {SampleFormat::f64, "f64"},   {SampleFormat::i8, "i8"},
+      {SampleFormat::i16, "i16"}, {SampleFormat::text, "text"},
+  };
+};
 std::size_t sample_bytes(SampleFormat f);  // 0 for text
 
 // Appends the values as float32 little-endian.
@@ -91,7 +99,12 @@ PunctureMap parse_puncture_map(std::string_view text, const std::string& source,
 // line when written, whitespace ignored when read), packed (each frame padded to whole bytes,
 // first bit in the most significant bit) or bytes (one byte 0 or 1 per bit).
 enum class BitFormat { text, packed, bytes };
-std::optional<BitFormat> parse_bit_format(std::string_view name);
+template <>
+struct Names<BitFormat> {
+  static constexpr std::string_view setting = "output format";
+  static constexpr std::pair<BitFormat, std::string_view> table[] = {
+      {BitFormat::text, "text"}, {BitFormat::packed, "packed"}, {BitFormat::bytes, "bytes"}};
+};
 void append_bits(std::string& out, std::span<const std::uint8_t> bits, BitFormat format);
 
 // Reads frames of frame_bits bits, like CaptureReader: a bad character or a partial frame ends

@@ -15,16 +15,25 @@
 #include <string_view>
 
 #include "tannery/code/code.hpp"
+#include "tannery/names.hpp"
 
 namespace tannery {
 
 enum class MatrixFormat { tannery, alist, mtx, qc, dense };
+template <>
+struct Names<MatrixFormat> {
+  static constexpr std::string_view setting = "format";
+  static constexpr std::pair<MatrixFormat, std::string_view> table[] = {
+      {MatrixFormat::tannery, "tannery"},
+      {MatrixFormat::alist, "alist"},
+      {MatrixFormat::mtx, "mtx"},
+      {MatrixFormat::qc, "qc"},
+      {MatrixFormat::dense, "dense"}};
+};
 
 inline constexpr std::size_t kMaxCodeDimension = 10'000'000;  // n and m
 inline constexpr std::size_t kMaxFileBytes = std::size_t{1} << 30;
 
-std::string_view format_name(MatrixFormat format);
-std::optional<MatrixFormat> parse_format_name(std::string_view name);
 // By file extension (.tanner, .alist, .mtx, .qc, .dense); empty when unknown.
 std::optional<MatrixFormat> format_from_extension(std::string_view path);
 

@@ -17,11 +17,21 @@
 #include <string>
 #include <vector>
 
+#include "tannery/names.hpp"
 #include "tannery/report/results.hpp"
 
 namespace tannery {
 
 enum class CompareMode { automatic, exact, paired, unpaired };
+template <>
+struct Names<CompareMode> {
+  static constexpr std::string_view setting = "mode";
+  static constexpr std::pair<CompareMode, std::string_view> table[] = {
+      {CompareMode::automatic, "automatic"},
+      {CompareMode::exact, "exact"},
+      {CompareMode::paired, "paired"},
+      {CompareMode::unpaired, "unpaired"}};
+};
 
 struct CompareOptions {
   double confidence = 0.95;
@@ -55,7 +65,6 @@ struct Comparison {
   std::vector<std::string> reasons;
 };
 
-std::string_view compare_mode_name(CompareMode mode);
 // Throws Error when the runs cannot be compared (different channels or codes, no common point,
 // or a tolerance check on a reference curve that does not cross the target FER).
 Comparison compare_runs(const RunRecord& current, const RunRecord& reference,

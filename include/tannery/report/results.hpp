@@ -21,6 +21,15 @@ struct CodeRecord {
   std::size_t n = 0, m = 0, k = 0, edges = 0;
 };
 
+// The provenance of a code: where it came from (source as given, resolved path, the file's
+// SHA-256), the SHA-256 of its matrix in tannery's own format (the same for any file format)
+// and its dimensions; k from the encoder.
+CodeRecord code_record(const std::string& source, const Code& code, std::size_t k);
+
+// What asked changes in recorded, one item per setting: "seed 5 (recorded: 1)".
+std::vector<std::string> config_differences(const SimulationConfig& recorded,
+                                            const SimulationConfig& asked);
+
 struct RunRecord {
   std::string tool_version;
   std::string created;  // UTC, ISO 8601

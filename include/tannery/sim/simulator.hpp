@@ -28,7 +28,7 @@ namespace tannery {
 
 struct StopRules {
   std::uint64_t frame_errors = 100;  // a point stops once it has at least this many frame errors
-  std::uint64_t max_frames = 1'000'000;  // ... or this many frames
+  std::uint64_t max_frames = 100'000;  // ... or this many frames
   double max_seconds = 0;                // ... or this much wall-clock time (0 = no limit)
   double stop_below_fer = 0;             // the sweep stops after a point whose FER is below this
   bool operator==(const StopRules&) const = default;
@@ -43,6 +43,14 @@ struct ChannelSpec {
       assumed_crossover;  // BSC: LLR magnitude from this p instead of the true one
   bool operator==(const ChannelSpec&) const = default;
 };
+
+// Throws Error for settings that do not fit the channel kind (an SNR offset on the BSC...).
+void validate(const ChannelSpec& channel);
+
+// The sweep simulated when none is given: the waterfall of the shipped rate-1/2 codes (AWGN
+// Eb/N0 1 to 1.75 dB), and ranges around the capacity limits of rate 1/2 for the BSC (p 0.08
+// down to 0.04) and the BEC (epsilon 0.46 down to 0.36).
+std::vector<double> default_sweep(ChannelKind kind);
 
 struct SimulationConfig {
   DecoderSettings decoder;

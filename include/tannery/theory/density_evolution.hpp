@@ -37,6 +37,14 @@ std::pair<std::size_t, std::size_t> parse_degree_pair(std::string_view text,
                                                       std::string_view setting);
 
 enum class ThresholdMethod { exact, discretized, gaussian };
+template <>
+struct Names<ThresholdMethod> {
+  static constexpr std::string_view setting = "method";
+  static constexpr std::pair<ThresholdMethod, std::string_view> table[] = {
+      {ThresholdMethod::exact, "exact"},
+      {ThresholdMethod::discretized, "discretized"},
+      {ThresholdMethod::gaussian, "gaussian"}};
+};
 
 // The threshold is the worst channel at which density evolution drives the error probability of
 // the messages below `target`. The min-sum family can instead stall at a floor after its

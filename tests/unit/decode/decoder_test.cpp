@@ -86,7 +86,7 @@ TEST_CASE("on a tree, sum-product posteriors are the exact MAP marginals", "[dec
           run(tree,
               settings(Algorithm::sum_product, schedule, 2 * static_cast<int>(tree.m()) + 2, false),
               llr);
-      INFO("seed " << seed << " schedule " << schedule_name(schedule));
+      INFO("seed " << seed << " schedule " << name_of(schedule));
       for (std::size_t i = 0; i < tree.n(); ++i)
         CHECK(r.posterior[i] == Approx(exact[i]).margin(1e-9));
     }
@@ -312,8 +312,8 @@ TEST_CASE("impossible settings are refused with a clear message", "[decode]") {
   s = DecoderSettings{};
   s.iterations = 0;
   CHECK_THROWS_WITH(make_decoder(big, s), Catch::Contains("iterations must be between"));
-  CHECK(parse_algorithm("normalized-min-sum") == Algorithm::normalized_min_sum);
-  CHECK_FALSE(parse_algorithm("belief").has_value());
+  CHECK(from_name<Algorithm>("normalized-min-sum") == Algorithm::normalized_min_sum);
+  CHECK_FALSE(from_name<Algorithm>("belief").has_value());
 }
 
 TEST_CASE("a zero posterior is undecided, and a frame with one has not converged", "[decode]") {
@@ -389,6 +389,6 @@ TEST_CASE("the automatic kernel is the SIMD kernel wherever one implements the s
   r.kernel = Kernel::reference;
   CHECK(resolve_kernel(r, code).kernel == Kernel::reference);
   for (Kernel k : {Kernel::automatic, Kernel::reference, Kernel::simd})
-    CHECK(parse_kernel(kernel_name(k)) == k);
-  CHECK_FALSE(parse_kernel("fast"));
+    CHECK(from_name<Kernel>(name_of(k)) == k);
+  CHECK_FALSE(from_name<Kernel>("fast"));
 }

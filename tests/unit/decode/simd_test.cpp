@@ -66,7 +66,7 @@ TEST_CASE(
             for (std::size_t above : {kCompressAboveBytes, std::size_t{0}}) {
               compress_simd_checks_above(above);
               const Out simd = decode(code, s, llr);
-              INFO("target " << target << " spec " << spec << " algorithm " << algorithm_name(a)
+              INFO("target " << target << " spec " << spec << " algorithm " << name_of(a)
                              << " early " << early << " compressed " << (above == 0));
               REQUIRE(simd.hard == reference.hard);
               REQUIRE(simd.posterior == reference.posterior);
@@ -117,8 +117,8 @@ TEST_CASE("float SIMD kernels agree with the double reference within tolerance o
         for (std::size_t f = 0; f < simd.outcome.size(); ++f) {
           if (!simd.outcome[f].converged || !reference.outcome[f].converged) continue;
           ++both;
-          INFO("target " << target << " algorithm " << algorithm_name(a) << " "
-                         << schedule_name(schedule) << " frame " << f);
+          INFO("target " << target << " algorithm " << name_of(a) << " "
+                         << name_of(schedule) << " frame " << f);
           for (std::size_t v = 0; v < code.n(); ++v) {
             REQUIRE(simd.hard[f * code.n() + v] == reference.hard[f * code.n() + v]);
           }
@@ -129,7 +129,7 @@ TEST_CASE("float SIMD kernels agree with the double reference within tolerance o
           compress_simd_checks_above(0);
           const Out compressed = decode(code, s, llr);
           compress_simd_checks_above();
-          INFO("target " << target << " algorithm " << algorithm_name(a) << " compressed");
+          INFO("target " << target << " algorithm " << name_of(a) << " compressed");
           REQUIRE(compressed.hard == simd.hard);
           REQUIRE(compressed.posterior == simd.posterior);
           for (std::size_t f = 0; f < simd.outcome.size(); ++f)

@@ -20,7 +20,7 @@ TEST_CASE("capture round trip in every encoding", "[capture]") {
     std::istringstream in(bytes);
     CaptureReader reader(in, "c", f, scale, 3);
     std::vector<double> out;
-    INFO(sample_format_name(f));
+    INFO(name_of(f));
     REQUIRE(reader.read(10, out) == 2);
     // i8 saturates 100 / 0.125 = 800 at 127.
     const double big = f == SampleFormat::i8 ? 127 * 0.125 : 100.0;

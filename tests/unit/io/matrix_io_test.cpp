@@ -20,7 +20,7 @@ void check_round_trip(const Code& code, const std::string& label) {
                                     MatrixFormat::dense};
   if (code.quasi_cyclic()) formats.push_back(MatrixFormat::qc);
   for (auto f : formats) {
-    INFO(label << " as " << format_name(f));
+    INFO(label << " as " << name_of(f));
     const std::string text = written(code, f);
     CHECK(detect_format(text, "t") == f);
     const Code back = parse_code(text, "t");
@@ -253,7 +253,7 @@ TEST_CASE("format names and extensions", "[io]") {
   CHECK(format_from_extension("a/b.alist") == MatrixFormat::alist);
   CHECK(format_from_extension("x.qc") == MatrixFormat::qc);
   CHECK_FALSE(format_from_extension("x.txt").has_value());
-  CHECK(parse_format_name("mtx") == MatrixFormat::mtx);
+  CHECK(from_name<MatrixFormat>("mtx") == MatrixFormat::mtx);
   CHECK_THROWS_WITH(written(Code::from_checks(2, {{0, 1}}), MatrixFormat::qc),
                     Catch::Contains("no quasi-cyclic structure"));
 }

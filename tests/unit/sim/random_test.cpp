@@ -123,7 +123,7 @@ TEST_CASE("group channel LLRs equal each frame's transmit() of its noise, on eve
         for (std::size_t v = 0; v < n; ++v) bits[v] = (codeword[v] >> l) & 1u;
         transmit(channel, bits, noise, frame_llr);
         for (std::size_t v = 0; v < n; ++v) {
-          INFO("channel " << channel_name(channel.kind) << " target " << target << " lane " << l
+          INFO("channel " << name_of(channel.kind) << " target " << target << " lane " << l
                           << " position " << v);
           REQUIRE(llr[v * lanes + l] == frame_llr[v]);  // exact (Inf included)
           erased_or_flipped += noise[v] < channel.value;

@@ -212,7 +212,7 @@ TEST_CASE("the lane pipeline of the batched decoders counts exactly as frame by 
       force_simd_target(target);
       Simulator lanes(code, c);
       const auto got = lanes.run({}, {}, nullptr);
-      INFO(channel_name(k.kind) << " chunk " << chunk << " target " << target);
+      INFO(name_of(k.kind) << " chunk " << chunk << " target " << target);
       REQUIRE(got.size() == expected.size());
       CHECK(expected.back().frame_errors > 0);  // not vacuous
       for (std::size_t i = 0; i < got.size(); ++i) {

@@ -1,0 +1,75 @@
+// One name table per enumeration: the names a setting's values have on the command line, in
+// scenario files, in results files, in Python keywords and in error messages. An enumeration
+// joins by specialising Names<E> next to its declaration:
+//
+//   template <> struct Names<Schedule> {
+//     static constexpr std::string_view setting = "schedule";
+//     static constexpr std::pair<Schedule, std::string_view> table[] = {
+//         {Schedule::flooding, "flooding"}, {Schedule::layered, "layered"}};
+//   };
+#pragma once
+
+#include <map>
+#include <optional>
+#include <string>
+#include <string_view>
+#include <utility>
+
+#include "tannery/error.hpp"
+
+namespace tannery {
+
+template <class E>
+struct Names;
+
+template <class E>
+concept Named = requires {
+  Names<E>::setting;
+  Names<E>::table;
+};
+
+template <Named E>
+constexpr std::string_view name_of(E value) {
+  for (const auto& [v, name] : Names<E>::table) {
+    if (v == value) return name;
+  }
+  return "?";
+}
+
+// Empty when name is none of E's names.
+template <Named E>
+constexpr std::optional<E> from_name(std::string_view name) {
+  for (const auto& [v, n] : Names<E>::table) {
+    if (n == name) return v;
+  }
+  return std::nullopt;
+}
+
+// "flooding, layered".
+template <Named E>
+std::string names_list() {
+  std::string list;
+  for (const auto& entry : Names<E>::table) {
+    if (!list.empty()) list += ", ";
+    list += entry.second;
+  }
+  return list;
+}
+
+// The value of a name; Error "schedule 'x' is not one of: flooding, layered" otherwise.
+template <Named E>
+E parse_name(std::string_view name) {
+  if (const auto v = from_name<E>(name)) return *v;
+  throw Error(std::string(Names<E>::setting) + " '" + std::string(name) +
+              "' is not one of: " + names_list<E>());
+}
+
+// Names to values, as option parsers take them.
+template <Named E>
+std::map<std::string, E> name_map() {
+  std::map<std::string, E> map;
+  for (const auto& [v, name] : Names<E>::table) map.emplace(name, v);
+  return map;
+}
+
+}  // namespace tannery

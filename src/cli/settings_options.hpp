@@ -1,0 +1,93 @@
+// Command-line options bound to the typed fields of a settings struct, from its field table
+// (tannery/sim/settings.hpp): flag, help and default come from the table, enumerations take
+// the names of their name table, and each option writes its member of `given` directly.
+// overlay() then copies the fields the command line gave onto a base — the library's defaults,
+// a scenario's settings or a recorded run's — so every setting has one default, in the library.
+#pragma once
+
+#include <CLI/CLI.hpp>
+#include <algorithm>
+#include <functional>
+#include <string>
+#include <type_traits>
+#include <utility>
+#include <vector>
+
+#include "tannery/names.hpp"
+#include "tannery/sim/settings.hpp"
+
+namespace tannery::cli {
+
+// Refuses a negative value for an unsigned option (CLI11 would wrap it to a huge count).
+extern const CLI::Validator kNonNegative;
+
+template <class S>
+class SettingsOptions {
+ public:
+  S given;
+
+  // Registers one option per field that has a flag; skip lists keys left out.
+  void add_to(CLI::App& group, std::initializer_list<std::string_view> skip = {}) {
+    for_each_field<S>([&](const auto& field) {
+      if (std::find(skip.begin(), skip.end(), field.key) != skip.end()) return;
+      bound_.push_back({field.key, add(group, field), [member = field.member](S& base, const S& from) {
+                          base.*member = from.*member;
+                        }});
+    });
+  }
+  // The fields given on the command line, copied onto base.
+  void overlay(S& base) const {
+    for (const Bound& b : bound_) {
+      if (b.option->count() > 0) b.copy(base, given);
+    }
+  }
+  // The option of a field, when the command line gave it.
+  const CLI::Option* given_option(std::string_view key) const {
+    for (const Bound& b : bound_) {
+      if (b.key == key && b.option->count() > 0) return b.option;
+    }
+    return nullptr;
+  }
+
+ private:
+  struct Bound {
+    std::string_view key;
+    CLI::Option* option;
+    std::function<void(S&, const S&)> copy;
+  };
+
+  template <class Field>
+  CLI::Option* add(CLI::App& group, const Field& field) {
+    using T = typename Field::Value;
+    auto& target = given.*field.member;
+    const std::string flag(field.flag), help(field.help);
+    if constexpr (std::is_same_v<T, bool>) {
+      // "--no-early-stop" sets early_stop to false.
+      return group.add_flag(flag.starts_with("--no-") ? flag + "{false}" : flag, target, help);
+    } else if constexpr (Named<T>) {
+      return group.add_option(flag, target, help)
+          ->transform(CLI::CheckedTransformer(name_map<T>()))
+          ->default_str(std::string(name_of(target)));
+    } else if constexpr (std::is_same_v<T, std::optional<Quantization>>) {
+      return group.add_option_function<std::string>(
+          flag,
+          [&target, flag](const std::string& spec) {
+            target = parse_quantization(spec);
+            if (!target) {
+              throw CLI::ValidationError(
+                  flag, "'" + spec + "': expected B.F or B.F:M:P (e.g. 6.2 or 5.1:5:7)");
+            }
+          },
+          help);
+    } else if constexpr (std::is_unsigned_v<T>) {
+      return group.add_option(flag, target, help)->capture_default_str()->check(kNonNegative);
+    } else {
+      CLI::Option* o = group.add_option(flag, target, help);
+      if constexpr (!is_optional<T>) o->capture_default_str();
+      return o;
+    }
+  }
+  std::vector<Bound> bound_;
+};
+
+}  // namespace tannery::cli
