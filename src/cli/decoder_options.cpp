@@ -1,6 +1,7 @@
 #include <fmt/format.h>
 #include <csignal>
 
+#include "../decode/simd_control.hpp"
 #include "commands.hpp"
 #include "tannery/error.hpp"
 

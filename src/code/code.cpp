@@ -90,6 +90,10 @@ Code Code::from_checks(std::size_t n, const std::vector<std::vector<std::uint32_
   for (std::size_t e = 0; e < total; ++e) {
     code.var_edge_[fill[code.edge_var_[e]]++] = static_cast<std::uint32_t>(e);
   }
+  for (std::size_t c = 0; c < code.m_; ++c)
+    code.max_check_degree_ = std::max(code.max_check_degree_, code.check_degree(c));
+  for (std::size_t v = 0; v < n; ++v)
+    code.max_variable_degree_ = std::max(code.max_variable_degree_, code.variable_degree(v));
   code.qc_ = find_quasi_cyclic(code);
   return code;
 }

@@ -79,10 +79,7 @@ Triangulation peel(const Code& code, Stall stall, std::span<const std::uint32_t>
   std::vector<Role> role(n, Role::undecided);
   std::vector<std::uint32_t> row_degree(m), col_degree(n), stack;
   std::vector<bool> active(m, true);
-  std::size_t max_col = 0, max_row = 0;
-  for (std::size_t v = 0; v < n; ++v) max_col = std::max(max_col, code.variable_degree(v));
-  for (std::size_t c = 0; c < m; ++c) max_row = std::max(max_row, code.check_degree(c));
-  Buckets cols(max_col), rows(max_row);
+  Buckets cols(code.max_variable_degree()), rows(code.max_check_degree());
 
   auto file_row = [&](std::uint32_t c) {
     const std::uint32_t d = row_degree[c];

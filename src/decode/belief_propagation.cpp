@@ -25,9 +25,7 @@ double boxplus(double a, double b) {
 class BeliefPropagation final : public Decoder {
  public:
   BeliefPropagation(const Code& code, const DecoderSettings& settings) : Decoder(code, settings) {
-    std::size_t max_degree = 0;
-    for (std::size_t c = 0; c < code.m(); ++c)
-      max_degree = std::max(max_degree, code.check_degree(c));
+    const std::size_t max_degree = code.max_check_degree();
     v2c_.resize(code.edges());
     c2v_.resize(code.edges());
     channel_.resize(code.n());

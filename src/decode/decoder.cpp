@@ -14,13 +14,6 @@ namespace tannery {
 
 namespace {
 
-std::size_t max_check_degree(const Code& code) {
-  std::size_t max_degree = 0;
-  for (std::size_t c = 0; c < code.m(); ++c)
-    max_degree = std::max(max_degree, code.check_degree(c));
-  return max_degree;
-}
-
 constexpr std::size_t kMaxSimdCheckDegree = 127;
 
 }  // namespace
@@ -30,7 +23,7 @@ bool simd_supports(const DecoderSettings& s, const Code& code) {
       s.algorithm == Algorithm::sum_product || s.algorithm == Algorithm::min_sum ||
       s.algorithm == Algorithm::normalized_min_sum || s.algorithm == Algorithm::offset_min_sum;
   return algorithm_ok && (!s.quantization || s.schedule == Schedule::layered) &&
-         max_check_degree(code) <= kMaxSimdCheckDegree;
+         code.max_check_degree() <= kMaxSimdCheckDegree;
 }
 
 DecoderSettings resolve_kernel(DecoderSettings s, const Code& code) {
@@ -85,7 +78,7 @@ void validate(const DecoderSettings& s) {
 void validate(const DecoderSettings& s, const Code& code) {
   validate(s);
   if (s.kernel == Kernel::simd) {
-    const std::size_t max_degree = max_check_degree(code);
+    const std::size_t max_degree = code.max_check_degree();
     if (max_degree > kMaxSimdCheckDegree)
       throw Error(
           fmt::format("the batched decoders handle check degrees up to {}, this code has {}",
@@ -158,8 +151,13 @@ void Decoder::decode(std::span<const double> llr, std::span<std::uint8_t> hard,
                      std::span<double> posterior, std::span<FrameOutcome> outcome,
                      std::size_t first_frame) {
   const std::size_t n = code_.n(), frames = outcome.size();
-  TANNERY_ASSERT(llr.size() == frames * n && hard.size() == frames * n);
-  TANNERY_ASSERT(posterior.empty() || posterior.size() == frames * n);
+  if (llr.size() != frames * n || hard.size() != frames * n ||
+      !(posterior.empty() || posterior.size() == frames * n)) {
+    throw Error(fmt::format(
+        "decode: {} frames of n = {} take {} values each of channel LLRs and hard decisions "
+        "(and posteriors, if wanted); given {}, {} and {}",
+        frames, n, frames * n, llr.size(), hard.size(), posterior.size()));
+  }
   bool any_nan = false;  // a branch-free pass first (it vectorises), the search only on failure
   for (double x : llr) any_nan |= x != x;
   for (std::size_t i = 0; any_nan && i < llr.size(); ++i) {
@@ -169,6 +167,23 @@ void Decoder::decode(std::span<const double> llr, std::span<std::uint8_t> hard,
     }
   }
   decode_batch(llr, hard, posterior, outcome);
+}
+
+DecodedFrame Decoder::decode(std::span<const double> llr) {
+  DecodedFrame d;
+  if (llr.size() != code_.n()) {
+    throw Error(fmt::format("decode: a frame of this code has n = {} channel LLRs, given {}",
+                            code_.n(), llr.size()));
+  }
+  d.bits.resize(code_.n());
+  d.posterior.resize(code_.n());
+  decode(llr, d.bits, d.posterior, std::span(&d.outcome, 1));
+  return d;
+}
+
+DecodedFrame Decoder::decode(std::span<const float> llr) {
+  const std::vector<double> wide(llr.begin(), llr.end());
+  return decode(std::span<const double>(wide));
 }
 
 void Decoder::decode_batch(std::span<const double> llr, std::span<std::uint8_t> hard,
@@ -184,19 +199,30 @@ void Decoder::decode_groups(std::size_t, const GroupFill&, const FramesDone&) {
   TANNERY_ASSERT(false && "decode_groups called on a decoder without lane layout");
 }
 
-std::unique_ptr<Decoder> make_decoder(const Code& code, const DecoderSettings& requested) {
+std::unique_ptr<Decoder> make_decoder(std::shared_ptr<const Code> shared,
+                                      const DecoderSettings& requested) {
+  if (!shared) throw Error("make_decoder: no code");
+  const Code& code = *shared;
   const DecoderSettings settings = resolve_kernel(requested, code);
   validate(settings, code);
-  if (settings.kernel == Kernel::simd) return detail::make_simd(code, settings);
-  if (settings.quantization) return detail::make_fixed_point(code, settings);
-  switch (settings.algorithm) {
-    case Algorithm::bit_flip:
-      return detail::make_bit_flip(code, settings);
-    case Algorithm::ml:
-      return detail::make_ml(code, settings);
-    default:
-      return detail::make_belief_propagation(code, settings);
+  std::unique_ptr<Decoder> d;
+  if (settings.kernel == Kernel::simd) {
+    d = detail::make_simd(code, settings);
+  } else if (settings.quantization) {
+    d = detail::make_fixed_point(code, settings);
+  } else if (settings.algorithm == Algorithm::bit_flip) {
+    d = detail::make_bit_flip(code, settings);
+  } else if (settings.algorithm == Algorithm::ml) {
+    d = detail::make_ml(code, settings);
+  } else {
+    d = detail::make_belief_propagation(code, settings);
   }
+  d->owner_ = std::move(shared);  // code_ refers to *owner_ from here on
+  return d;
+}
+
+std::unique_ptr<Decoder> make_decoder(Code code, const DecoderSettings& settings) {
+  return make_decoder(std::make_shared<const Code>(std::move(code)), settings);
 }
 
 }  // namespace tannery

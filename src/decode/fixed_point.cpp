@@ -29,10 +29,7 @@ class FixedPoint final : public Decoder {
         quantize_(q_),
         messages_(code.edges()),
         posterior_(code.n()) {
-    std::size_t max_degree = 0;
-    for (std::size_t c = 0; c < code.m(); ++c)
-      max_degree = std::max(max_degree, code.check_degree(c));
-    t_.resize(max_degree);
+    t_.resize(code.max_check_degree());
     alpha_eighths_ = static_cast<int>(std::lround(std::clamp(settings.alpha, 0.0, 1.0) * 8));
     beta_lsb_ = static_cast<int>(std::lround(settings.beta * std::ldexp(1.0, q_.fraction_bits)));
   }

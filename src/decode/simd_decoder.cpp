@@ -11,6 +11,7 @@
 #include <vector>
 
 #include "decoders.hpp"
+#include "simd_control.hpp"
 #include "simd_kernels.hpp"
 #include "tannery/error.hpp"
 
@@ -51,28 +52,15 @@ class Batched final : public Decoder {
   Batched(const Code& code, const DecoderSettings& settings) : Decoder(code, settings) {
     lanes_ = lane_count(T{});
     TANNERY_ASSERT(lanes_ <= 64);  // lane sets are 64-bit masks (x86 vectors hold at most 64)
-    std::size_t max_degree = 0;
-    for (std::size_t c = 0; c < code.m(); ++c)
-      max_degree = std::max(max_degree, code.check_degree(c));
-    check_start_.resize(code.m() + 1);
-    for (std::size_t c = 0; c <= code.m(); ++c)
-      check_start_[c] =
-          c < code.m() ? code.check_begin(c) : static_cast<std::uint32_t>(code.edges());
-    edge_var_.resize(code.edges());
-    for (std::size_t e = 0; e < code.edges(); ++e) edge_var_[e] = code.edge_variable(e);
-    var_start_.assign(code.n() + 1, 0);
-    for (std::size_t v = 0; v < code.n(); ++v) {
-      var_start_[v + 1] = var_start_[v] + static_cast<std::uint32_t>(code.variable_degree(v));
-      for (std::uint32_t e : code.variable_edges(v)) var_edge_.push_back(e);
-    }
     args_.flooding = settings.schedule == Schedule::flooding;
-    args_.var_start = var_start_.data();
-    args_.var_edge = var_edge_.data();
-    args_.check_start = check_start_.data();
-    args_.edge_var = edge_var_.data();
+    // The decoder owns its code (Decoder::code_), so the kernels walk the code's own arrays.
+    args_.var_start = code.variable_starts().data();
+    args_.var_edge = code.variable_edge_ids().data();
+    args_.check_start = code.check_starts().data();
+    args_.edge_var = code.edge_variables().data();
     args_.n = code.n();
     args_.m = code.m();
-    args_.max_degree = std::max<std::size_t>(max_degree, 1);
+    args_.max_degree = std::max<std::size_t>(code.max_check_degree(), 1);
     args_.lanes = lanes_;
     switch (settings.algorithm) {
       case Algorithm::normalized_min_sum:
@@ -253,7 +241,7 @@ class Batched final : public Decoder {
   // would be a vector row each).
   std::uint64_t parity(std::size_t c) const noexcept {
     std::uint64_t p = 0;
-    for (std::uint32_t e = check_start_[c]; e < check_start_[c + 1]; ++e) p ^= masks_[edge_var_[e]];
+    for (std::uint32_t v : code_.check_variables(c)) p ^= masks_[v];
     return p;
   }
   // Lanes with an unsatisfied check.
@@ -285,7 +273,6 @@ class Batched final : public Decoder {
 
   std::size_t lanes_ = 1;
   std::optional<LlrQuantizer> quantize_;
-  std::vector<std::uint32_t> check_start_, edge_var_, var_start_, var_edge_;
   hwy::AlignedFreeUniquePtr<T[]> channel_, posterior_, messages_, check_magnitudes_, scratch_, v2c_;
   hwy::AlignedFreeUniquePtr<std::uint8_t[]> edge_marks_;
   std::vector<std::int32_t> weights_, undecided_;

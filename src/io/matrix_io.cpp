@@ -180,10 +180,8 @@ Code read_alist(TextReader& in) {
 }
 
 void write_alist(const Code& code, std::ostream& out) {
-  std::size_t max_col = 0, max_row = 0;
-  for (std::size_t v = 0; v < code.n(); ++v) max_col = std::max(max_col, code.variable_degree(v));
-  for (std::size_t c = 0; c < code.m(); ++c) max_row = std::max(max_row, code.check_degree(c));
-  out << code.n() << ' ' << code.m() << '\n' << max_col << ' ' << max_row << '\n';
+  out << code.n() << ' ' << code.m() << '\n'
+      << code.max_variable_degree() << ' ' << code.max_check_degree() << '\n';
   std::string line;
   for (std::size_t v = 0; v < code.n(); ++v)
     line += fmt::format("{}{}", v ? " " : "", code.variable_degree(v));
@@ -196,14 +194,14 @@ void write_alist(const Code& code, std::ostream& out) {
     line.clear();
     for (std::uint32_t e : code.variable_edges(v))
       line += fmt::format("{} ", code.edge_check(e) + 1);
-    for (std::size_t i = code.variable_degree(v); i < max_col; ++i) line += "0 ";
+    for (std::size_t i = code.variable_degree(v); i < code.max_variable_degree(); ++i) line += "0 ";
     if (!line.empty()) line.pop_back();
     out << (line.empty() ? "0" : line) << '\n';  // an empty list as one pad: no blank line
   }
   for (std::size_t c = 0; c < code.m(); ++c) {
     line.clear();
     for (std::uint32_t v : code.check_variables(c)) line += fmt::format("{} ", v + 1);
-    for (std::size_t i = code.check_degree(c); i < max_row; ++i) line += "0 ";
+    for (std::size_t i = code.check_degree(c); i < code.max_check_degree(); ++i) line += "0 ";
     if (!line.empty()) line.pop_back();
     out << (line.empty() ? "0" : line) << '\n';
   }

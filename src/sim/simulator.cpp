@@ -63,8 +63,15 @@ struct Simulator::Worker {
   std::vector<FrameOutcome> outcomes;
 };
 
-Simulator::Simulator(const Code& code, SimulationConfig config)
-    : code_(code), config_(std::move(config)), encoder_(code), is_info_(code.n(), 0) {
+Simulator::Simulator(Code code, SimulationConfig config)
+    : Simulator(std::make_shared<const Code>(std::move(code)), std::move(config)) {}
+
+Simulator::Simulator(std::shared_ptr<const Code> code, SimulationConfig config)
+    : shared_(code ? std::move(code) : throw Error("Simulator: no code")),
+      code_(*shared_),
+      config_(std::move(config)),
+      encoder_(code_),
+      is_info_(code_.n(), 0) {
   for (std::uint32_t p : encoder_.info_positions()) is_info_[p] = 1;
   config_.decoder = resolve_kernel(config_.decoder, code_);
   validate(config_.decoder, code_);
@@ -369,7 +376,7 @@ PointResult Simulator::run_point(std::size_t index, PointResult total,
   std::vector<std::thread> pool;
   for (unsigned t = 0; t < threads; ++t) {
     workers.push_back(std::make_unique<Worker>());
-    workers.back()->decoder = make_decoder(code_, config_.decoder);
+    workers.back()->decoder = make_decoder(shared_, config_.decoder);
   }
   try {
     for (unsigned t = 0; t < threads; ++t) pool.emplace_back(work, std::ref(*workers[t]));
@@ -445,7 +452,7 @@ FrameData Simulator::replay(std::size_t point, std::uint64_t frame) const {
   generate_frame(FrameId{config_.seed, static_cast<std::uint32_t>(point), frame},
                  channel_point(config_.sweep[point]), encoder_, config_.all_zero, d.info,
                  d.codeword, noise, d.llr);
-  auto decoder = make_decoder(code_, config_.decoder);
+  auto decoder = make_decoder(shared_, config_.decoder);
   decoder->decode(d.llr, d.hard, d.posterior, std::span(&d.outcome, 1), frame);
   return d;
 }

@@ -8,6 +8,7 @@
 #include <limits>
 
 #include "tannery/code/construct.hpp"
+#include "decode/simd_control.hpp"
 #include "tannery/decode/decoder.hpp"
 #include "tannery/io/matrix_io.hpp"
 #include "test_support.hpp"

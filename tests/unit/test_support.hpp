@@ -89,6 +89,7 @@ inline std::vector<double> awgn_llrs(const std::vector<std::uint8_t>& word, doub
 
 }  // namespace tannery::test
 
+#include "decode/simd_control.hpp"
 #include "tannery/decode/decoder.hpp"
 
 namespace tannery::test {

@@ -56,6 +56,18 @@ class Code {
     return {var_edge_.data() + var_start_[v], variable_degree(v)};
   }
   std::uint32_t edge_variable(std::size_t e) const noexcept { return edge_var_[e]; }
+  std::size_t max_check_degree() const noexcept { return max_check_degree_; }
+  std::size_t max_variable_degree() const noexcept { return max_variable_degree_; }
+
+  // The graph as compressed sparse rows (CSR, check-major: check c's edges are
+  // [check_starts()[c], check_starts()[c + 1]), edge e joins variable edge_variables()[e]) and
+  // columns (CSC: variable v's edge ids are variable_edge_ids()[variable_starts()[v] ...
+  // variable_starts()[v + 1]), in increasing check order), for code that walks H directly.
+  std::span<const std::uint32_t> check_starts() const noexcept { return check_start_; }     // m + 1
+  std::span<const std::uint32_t> edge_variables() const noexcept { return edge_var_; }      // E
+  std::span<const std::uint32_t> edge_checks() const noexcept { return edge_check_; }       // E
+  std::span<const std::uint32_t> variable_starts() const noexcept { return var_start_; }    // n + 1
+  std::span<const std::uint32_t> variable_edge_ids() const noexcept { return var_edge_; }   // E
   std::uint32_t edge_check(std::size_t e) const noexcept { return edge_check_[e]; }
 
   // Present when the code was built from a base table, or when H, as read from any format, is
@@ -77,6 +89,7 @@ class Code {
   std::vector<std::uint32_t> edge_check_;      // E
   std::vector<std::uint32_t> var_start_{0};    // n + 1
   std::vector<std::uint32_t> var_edge_;        // E
+  std::size_t max_check_degree_ = 0, max_variable_degree_ = 0;
   std::optional<QuasiCyclic> qc_;
 };
 

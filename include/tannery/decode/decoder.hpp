@@ -122,9 +122,20 @@ FrameOutcome assess(const Code& code, std::span<const std::uint8_t> hard, int it
 // so no NaN or Inf can arise inside the decoders.
 inline constexpr double kLlrLimit = 1e5;
 
+// One decoded frame.
+struct DecodedFrame {
+  std::vector<std::uint8_t> bits;  // hard decisions: 0, 1 or kUndecided
+  std::vector<double> posterior;   // posterior LLRs
+  FrameOutcome outcome;
+};
+
 class Decoder {
  public:
   virtual ~Decoder() = default;
+
+  // Decodes one frame of n channel LLRs. Error for a wrong length or a NaN.
+  DecodedFrame decode(std::span<const double> llr);
+  DecodedFrame decode(std::span<const float> llr);
 
   // Decodes outcome.size() frames. llr and hard (0, 1, kUndecided) hold frames x n values;
   // posterior is frames x n
@@ -154,6 +165,7 @@ class Decoder {
   virtual void decode_groups(std::size_t frames, const GroupFill& fill, const FramesDone& done);
 
   const Code& code() const noexcept { return code_; }
+  const std::shared_ptr<const Code>& shared_code() const noexcept { return owner_; }
   const DecoderSettings& settings() const noexcept { return settings_; }
 
  protected:
@@ -165,29 +177,25 @@ class Decoder {
   virtual void decode_batch(std::span<const double> llr, std::span<std::uint8_t> hard,
                             std::span<double> posterior, std::span<FrameOutcome> outcome);
 
-  const Code& code_;
+  const Code& code_;  // *owner_
   DecoderSettings settings_;
+
+ private:
+  friend std::unique_ptr<Decoder> make_decoder(std::shared_ptr<const Code>,
+                                               const DecoderSettings&);
+  std::shared_ptr<const Code> owner_;
 };
 
-// Validates the settings and builds the decoder; code must outlive it.
-std::unique_ptr<Decoder> make_decoder(const Code& code, const DecoderSettings& settings);
+// Validates the settings and builds the decoder, which shares the code (one code for many
+// decoders, e.g. one per thread) or, given a Code, keeps its own copy; either way nothing the
+// caller holds has to outlive the decoder. Throws Error for impossible settings.
+std::unique_ptr<Decoder> make_decoder(std::shared_ptr<const Code> code,
+                                      const DecoderSettings& settings);
+std::unique_ptr<Decoder> make_decoder(Code code, const DecoderSettings& settings);
 
 // SIMD targets compiled in and supported by this CPU, best first (names as Highway gives them),
-// and a switch that restricts dispatch to one of them (for tests and for reproducing a figure);
-// an empty name restores the automatic choice. Throws Error for a name not in the list.
+// and the one the batched kernels dispatch to.
 std::vector<std::string> simd_targets();
-void force_simd_target(const std::string& name);
 std::string active_simd_target();
-
-// The SIMD kernels keep layered min-sum check state compressed (per check the two magnitudes
-// it sends, per edge two bits of each lane: smallest input, negative message; the same
-// results) when one message per edge would take more than this many bytes: less memory
-// traffic where the messages outgrow the caches, a few more operations per edge where they
-// fit. Measured on (3,6)-regular codes, one thread, 32 MiB L3 (decoder_bench): one message per
-// edge faster up to 3 MB of them, even at 6 MB, compressed 40-60% faster at 12 MB; 4 MiB leaves
-// room for a second thread sharing the L3. Applies to decoders made afterwards; the default
-// restores kCompressAboveBytes (for tests and for reproducing a figure).
-inline constexpr std::size_t kCompressAboveBytes = std::size_t{4} << 20;
-void compress_simd_checks_above(std::size_t bytes = kCompressAboveBytes);
 
 }  // namespace tannery

@@ -14,6 +14,7 @@
 #include <atomic>
 #include <cstdint>
 #include <functional>
+#include <memory>
 #include <optional>
 #include <string>
 #include <vector>
@@ -113,9 +114,12 @@ struct Progress {
 
 class Simulator {
  public:
-  // Validates the config (decoder settings, channel values) and prepares the encoder.
-  Simulator(const Code& code, SimulationConfig config);
+  // Validates the config (decoder settings, channel values) and prepares the encoder. The
+  // simulator shares the code with its decoders (one per thread), or keeps its own copy.
+  Simulator(std::shared_ptr<const Code> code, SimulationConfig config);
+  Simulator(Code code, SimulationConfig config);
 
+  const Code& code() const noexcept { return code_; }
   const SimulationConfig& config() const noexcept { return config_; }
   const Encoder& encoder() const noexcept { return encoder_; }
   double rate() const noexcept;  // the rate used for Eb/N0 (true or design)
@@ -146,7 +150,8 @@ class Simulator {
   void run_lanes(Worker& w, std::size_t index, const ChannelPoint& channel, std::uint64_t first,
                  std::size_t count, const Record& record) const;
 
-  const Code& code_;
+  std::shared_ptr<const Code> shared_;
+  const Code& code_;  // *shared_
   SimulationConfig config_;
   Encoder encoder_;
   std::vector<std::uint8_t> is_info_;  // 1 at the information positions

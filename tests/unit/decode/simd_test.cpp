@@ -1,6 +1,7 @@
 #include <catch2/catch.hpp>
 #include <cmath>
 
+#include "decode/simd_control.hpp"
 #include "tannery/decode/decoder.hpp"
 #include "test_support.hpp"
 

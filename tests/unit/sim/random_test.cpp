@@ -4,6 +4,7 @@
 #include <numbers>
 
 #include "tannery/channel/channel.hpp"
+#include "decode/simd_control.hpp"
 #include "tannery/decode/decoder.hpp"
 #include "tannery/sim/random.hpp"
 #include "test_support.hpp"
