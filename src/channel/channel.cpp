@@ -29,12 +29,72 @@ void check_channel_parameter(ChannelKind kind, double parameter) {
   }
 }
 
+ChannelPoint ChannelPoint::awgn(double sigma, std::optional<double> assumed_sigma) {
+  // The noise and the LLR scale 2 / sigma^2 the decoder assumes must be representable.
+  for (double s : {sigma, assumed_sigma.value_or(sigma)}) {
+    const double scale = 2 / (s * s);
+    if (!(s > 0 && std::isfinite(s) && scale > 0 && std::isfinite(scale))) {
+      throw Error(fmt::format(
+          "a noise standard deviation of {:g} is outside what a simulation can represent", s));
+    }
+  }
+  return {ChannelKind::awgn, sigma, assumed_sigma.value_or(sigma)};
+}
+
+ChannelPoint ChannelPoint::bsc(double p, std::optional<double> assumed_p) {
+  check_channel_parameter(ChannelKind::bsc, p);
+  if (assumed_p && !(*assumed_p >= 0 && *assumed_p <= 0.5)) {
+    throw Error(fmt::format("the assumed bsc crossover probability must be in [0, 0.5], got {}",
+                            *assumed_p));
+  }
+  return {ChannelKind::bsc, p, assumed_p.value_or(p)};
+}
+
+ChannelPoint ChannelPoint::bec(double epsilon) {
+  check_channel_parameter(ChannelKind::bec, epsilon);
+  return {ChannelKind::bec, epsilon, epsilon};
+}
+
+void validate(const ChannelSpec& c) {
+  if (c.kind != ChannelKind::awgn &&
+      (c.snr_offset_db != 0 || c.design_rate || c.measure != SnrMeasure::ebn0)) {
+    throw Error("snr, design_rate and snr_offset_db apply to the awgn channel only");
+  }
+  if (c.kind != ChannelKind::bsc && c.assumed_crossover)
+    throw Error("assumed_crossover applies to the bsc channel only");
+}
+
+ChannelPoint channel_point(const ChannelSpec& spec, double parameter, double rate) {
+  validate(spec);
+  switch (spec.kind) {
+    case ChannelKind::awgn: {
+      check_channel_parameter(ChannelKind::awgn, parameter);
+      const double sigma = awgn_sigma(parameter, spec.measure, rate);
+      const double assumed = awgn_sigma(parameter + spec.snr_offset_db, spec.measure, rate);
+      try {
+        return ChannelPoint::awgn(sigma, assumed);
+      } catch (const Error&) {
+        throw Error(fmt::format(
+            "sweep point {} dB (with SNR offset {} dB) gives a noise standard deviation of {:g}: "
+            "outside what a simulation can represent",
+            parameter, spec.snr_offset_db,
+            (sigma > 0 && std::isfinite(2 / (sigma * sigma))) ? assumed : sigma));
+      }
+    }
+    case ChannelKind::bsc:
+      return ChannelPoint::bsc(parameter, spec.assumed_crossover);
+    case ChannelKind::bec:
+      return ChannelPoint::bec(parameter);
+  }
+  throw Error("unknown channel");
+}
+
 double llr_magnitude(const ChannelPoint& channel) {
-  switch (channel.kind) {
+  switch (channel.kind()) {
     case ChannelKind::awgn:
-      return 2.0 / (channel.assumed_value * channel.assumed_value);
+      return 2.0 / (channel.assumed_value() * channel.assumed_value());
     case ChannelKind::bsc: {
-      const double p = channel.assumed_value;
+      const double p = channel.assumed_value();
       // p = 0 gives certainty; p = 1/2 gives no information; p > 1/2 flips the sign as it should.
       return p == 0 ? std::numeric_limits<double>::infinity()
                     : (p == 1 ? -std::numeric_limits<double>::infinity() : std::log((1 - p) / p));
@@ -49,22 +109,22 @@ void transmit(const ChannelPoint& channel, std::span<const std::uint8_t> codewor
               std::span<const double> noise, std::span<double> llr) {
   const std::size_t n = codeword.size();
   const double magnitude = llr_magnitude(channel);
-  switch (channel.kind) {
+  switch (channel.kind()) {
     case ChannelKind::awgn:
       for (std::size_t i = 0; i < n; ++i) {
-        const double y = (codeword[i] ? -1.0 : 1.0) + channel.value * noise[i];
+        const double y = (codeword[i] ? -1.0 : 1.0) + channel.value() * noise[i];
         llr[i] = magnitude * y;
       }
       return;
     case ChannelKind::bsc:
       for (std::size_t i = 0; i < n; ++i) {
-        const std::uint8_t received = codeword[i] ^ (noise[i] < channel.value ? 1 : 0);
+        const std::uint8_t received = codeword[i] ^ (noise[i] < channel.value() ? 1 : 0);
         llr[i] = received ? -magnitude : magnitude;
       }
       return;
     case ChannelKind::bec:
       for (std::size_t i = 0; i < n; ++i)
-        llr[i] = noise[i] < channel.value ? 0.0 : (codeword[i] ? -magnitude : magnitude);
+        llr[i] = noise[i] < channel.value() ? 0.0 : (codeword[i] ? -magnitude : magnitude);
       return;
   }
 }

@@ -62,11 +62,10 @@ void demo_capture(const EncodeOptions& o, const Code& code, const Encoder& encod
   const SampleFormat format =
       *from_name<SampleFormat>(o.output_format.empty() ? "f32" : o.output_format);
   const ChannelKind kind = *from_name<ChannelKind>(o.channel);
-  check_channel_parameter(kind, o.at);
   const double rate = static_cast<double>(encoder.k()) / static_cast<double>(code.n());
-  ChannelPoint channel{kind, o.at, o.at};
-  if (kind == ChannelKind::awgn)
-    channel.value = channel.assumed_value = awgn_sigma(o.at, SnrMeasure::ebn0, rate);
+  ChannelSpec spec;
+  spec.kind = kind;
+  const ChannelPoint channel = channel_point(spec, o.at, rate);
   if (o.meaning == "samples" && kind != ChannelKind::awgn)
     throw Error("--meaning samples needs --channel awgn");
   OutputFile out(o.output, false), truth(o.truth, false);
@@ -76,7 +75,8 @@ void demo_capture(const EncodeOptions& o, const Code& code, const Encoder& encod
   for (std::uint64_t f = 0; f < o.demo; ++f) {
     generate_frame(FrameId{o.seed, 0, f}, channel, encoder, false, info, word, noise, llr);
     if (o.meaning == "samples") {
-      for (double& x : llr) x *= channel.value * channel.value / 2;  // back from 2y/sigma^2 to y
+      for (double& x : llr)
+        x *= channel.value() * channel.value() / 2;  // back from 2y/sigma^2 to y
     }
     append_samples(bytes, llr, format, o.scale);
     append_bits(bits, info, BitFormat::text);
@@ -88,8 +88,8 @@ void demo_capture(const EncodeOptions& o, const Code& code, const Encoder& encod
   out.commit();
   truth.commit();
   fmt::print(stderr, "wrote {} frames of n = {} ({}; {} at {} {}, seed {})\n", o.demo, code.n(),
-             name_of(format), name_of(kind), o.at,
-             kind == ChannelKind::awgn ? "dB Eb/N0" : "", o.seed);
+             name_of(format), name_of(kind), o.at, kind == ChannelKind::awgn ? "dB Eb/N0" : "",
+             o.seed);
 }
 
 }  // namespace

@@ -38,8 +38,8 @@ void validate(const DecoderSettings& s) {
   }
   if (s.schedule == Schedule::layered &&
       (s.algorithm == Algorithm::bit_flip || s.algorithm == Algorithm::ml)) {
-    throw Error(fmt::format("{} has no layered schedule; use the flooding schedule",
-                            name_of(s.algorithm)));
+    throw Error(
+        fmt::format("{} has no layered schedule; use the flooding schedule", name_of(s.algorithm)));
   }
   if (!(s.alpha > 0 && s.alpha <= 1))
     throw Error(fmt::format("alpha must be in (0, 1], got {}", s.alpha));
@@ -66,8 +66,7 @@ void validate(const DecoderSettings& s) {
   }
   if (s.kernel == Kernel::simd || s.quantization) {
     if (s.schedule != Schedule::layered && s.quantization) {
-      throw Error(
-          "fixed-point decoding is defined for the layered schedule, not flooding");
+      throw Error("fixed-point decoding is defined for the layered schedule, not flooding");
     }
     if (!min_sum_family && s.algorithm != Algorithm::sum_product) {
       throw Error(fmt::format("no SIMD kernel for {}", name_of(s.algorithm)));
@@ -193,10 +192,6 @@ void Decoder::decode_batch(std::span<const double> llr, std::span<std::uint8_t> 
     outcome[f] = decode_frame(llr.subspan(f * n, n), hard.subspan(f * n, n),
                               posterior.empty() ? posterior : posterior.subspan(f * n, n));
   }
-}
-
-void Decoder::decode_groups(std::size_t, const GroupFill&, const FramesDone&) {
-  TANNERY_ASSERT(false && "decode_groups called on a decoder without lane layout");
 }
 
 std::unique_ptr<Decoder> make_decoder(std::shared_ptr<const Code> shared,

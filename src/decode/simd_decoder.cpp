@@ -47,7 +47,7 @@ namespace detail {
 namespace {
 
 template <class T>
-class Batched final : public Decoder {
+class Batched final : public Decoder, public LaneDecoder {
  public:
   Batched(const Code& code, const DecoderSettings& settings) : Decoder(code, settings) {
     lanes_ = lane_count(T{});
@@ -112,19 +112,38 @@ class Batched final : public Decoder {
     args_.scratch = scratch_.get();
   }
 
+  LaneDecoder* lane_decoder() noexcept override { return this; }
   std::size_t lanes() const noexcept override { return lanes_; }
 
-  void decode_groups(std::size_t frames, const GroupFill& fill, const FramesDone& done) override {
-    const std::size_t group = code_.n() * lanes_, groups = (frames + lanes_ - 1) / lanes_;
-    groups_.resize(groups * group);
-    group_llr_.resize(group);
+  void begin(std::size_t frames) override {
+    frames_ = frames;
+    groups_.resize((frames + lanes_ - 1) / lanes_ * code_.n() * lanes_);
+  }
+
+  void load(std::size_t g, std::span<const double> llr) override {
+    const std::size_t group = code_.n() * lanes_;
+    if (g * lanes_ >= frames_ || llr.size() != group) {
+      throw Error(
+          fmt::format("load: group {} of {} values does not fit a batch of {} frames in "
+                      "{} lanes, n = {}",
+                      g, llr.size(), frames_, lanes_, code_.n()));
+    }
     const double scale = quantize_ ? quantize_->scale() : 1.0;
     const double clip = quantize_ ? quantize_->limit() : kLlrLimit;
-    for (std::size_t g = 0; g < groups; ++g) {
-      fill(g, group_llr_);
-      channel_values(group_llr_.data(), group, scale, clip, groups_.data() + g * group);
-    }
-    stream(frames, done);
+    if (channel_values(llr.data(), group, scale, clip, groups_.data() + g * group)) return;
+    const auto nan = std::ranges::find_if(llr, [](double x) { return std::isnan(x); });
+    const auto i = static_cast<std::size_t>(nan - llr.begin());
+    throw Error(fmt::format("group {}, position {}, lane {}: channel LLR is NaN", g, i / lanes_,
+                            i % lanes_));
+  }
+
+  void decode(LaneResults& results, bool want_posterior) override {
+    const std::size_t n = code_.n(), masks = groups_.size() / lanes_;
+    results.hard.assign(masks, 0);
+    results.undecided.assign(masks, 0);
+    results.outcome.resize(frames_);
+    results.posterior.resize(want_posterior ? frames_ * n : 0);
+    stream(results);
   }
 
  protected:
@@ -139,34 +158,35 @@ class Batched final : public Decoder {
   void decode_batch(std::span<const double> llr, std::span<std::uint8_t> hard,
                     std::span<double> posterior, std::span<FrameOutcome> outcome) override {
     const std::size_t n = code_.n(), frames = outcome.size();
-    const double scale =
-        settings_.quantization ? std::ldexp(1.0, -settings_.quantization->fraction_bits) : 1.0;
-    auto fill = [&](std::size_t g, std::span<double> group) {
+    begin(frames);
+    group_llr_.resize(n * lanes_);
+    for (std::size_t g = 0; g * lanes_ < frames; ++g) {
       for (std::size_t l = 0; l < lanes_; ++l) {
         const std::size_t f = g * lanes_ + l;
         for (std::size_t v = 0; v < n; ++v)
-          group[v * lanes_ + l] = f < frames ? llr[f * n + v] : 0.0;
+          group_llr_[v * lanes_ + l] = f < frames ? llr[f * n + v] : 0.0;
       }
-    };
-    decode_groups(frames, fill, [&](const FinishedFrames& done) {
-      for (std::uint64_t a = done.lanes; a; a &= a - 1) {
-        const auto l = static_cast<std::size_t>(std::countr_zero(a));
-        const std::size_t f = done.frame[l];
-        for (std::size_t v = 0; v < n; ++v) {
-          hard[f * n + v] = (done.undecided[v] >> l) & 1u ? kUndecided : (done.hard[v] >> l) & 1u;
-          if (!posterior.empty())
-            posterior[f * n + v] = static_cast<double>(posterior_[v * lanes_ + l]) * scale;
-        }
-        outcome[f] = done.outcome[l];
-      }
-    });
+      load(g, group_llr_);
+    }
+    decode(results_, !posterior.empty());
+    for (std::size_t f = 0; f < frames; ++f) {
+      const std::uint64_t* decided = results_.hard.data() + f / lanes_ * n;
+      const std::uint64_t* zero = results_.undecided.data() + f / lanes_ * n;
+      const std::size_t l = f % lanes_;
+      for (std::size_t v = 0; v < n; ++v)
+        hard[f * n + v] = (zero[v] >> l) & 1u ? kUndecided : (decided[v] >> l) & 1u;
+      outcome[f] = results_.outcome[f];
+    }
+    std::copy(results_.posterior.begin(), results_.posterior.end(), posterior.begin());
   }
 
  private:
   // Decodes the frames held in groups_: lane l takes frames l, l + lanes, ... in turn, the next
   // as soon as the previous one is done (converged with early stop, or out of iterations); a
-  // lane with no frame left idles (frozen) until the last one is done.
-  void stream(std::size_t frames, const FramesDone& done) {
+  // lane with no frame left idles (frozen) until the last one is done. A finished frame's
+  // decisions, outcome and posteriors go to results at once (its lane is refilled next).
+  void stream(LaneResults& results) {
+    const std::size_t frames = frames_;
     if (frames == 0) return;
     const std::size_t n = code_.n(), group = n * lanes_;
     const int max_iterations = settings_.iterations;
@@ -211,7 +231,7 @@ class Batched final : public Decoder {
         o.undecided = undecided & bit(l) ? static_cast<std::uint32_t>(undecided_[l]) : 0;
         o.converged = o.syndrome_weight == 0 && o.undecided == 0;
       }
-      done(FinishedFrames{finished, frame_of, outcome, masks_, zeros_});
+      record(finished, frame_of, outcome, results);
       for (std::uint64_t a = finished; a; a &= a - 1) {
         const auto l = static_cast<std::size_t>(std::countr_zero(a));
         const std::size_t next = frame_of[l] + lanes_;
@@ -233,6 +253,38 @@ class Batched final : public Decoder {
       }
       if (!refill_rows.empty())
         refill(args_, refill_rows.data(), refill_lanes.data(), refill_rows.size());
+    }
+  }
+
+  // The decisions of the finished lanes into their groups' masks (one pass over the positions
+  // per group among them), their outcomes and, when asked for, their posteriors.
+  void record(std::uint64_t finished, const std::array<std::size_t, 64>& frame_of,
+              const std::array<FrameOutcome, 64>& outcome, LaneResults& results) const {
+    const std::size_t n = code_.n();
+    for (std::uint64_t left = finished; left;) {
+      const std::size_t g = frame_of[static_cast<std::size_t>(std::countr_zero(left))] / lanes_;
+      std::uint64_t in = 0;
+      for (std::uint64_t a = left; a; a &= a - 1) {
+        const auto l = static_cast<std::size_t>(std::countr_zero(a));
+        if (frame_of[l] / lanes_ == g) in |= bit(l);
+      }
+      left &= ~in;
+      std::uint64_t* decided = results.hard.data() + g * n;
+      std::uint64_t* zero = results.undecided.data() + g * n;
+      for (std::size_t v = 0; v < n; ++v) {
+        decided[v] |= masks_[v] & in;
+        zero[v] |= zeros_[v] & in;
+      }
+    }
+    const double scale =
+        settings_.quantization ? std::ldexp(1.0, -settings_.quantization->fraction_bits) : 1.0;
+    for (std::uint64_t a = finished; a; a &= a - 1) {
+      const auto l = static_cast<std::size_t>(std::countr_zero(a));
+      const std::size_t f = frame_of[l];
+      results.outcome[f] = outcome[l];
+      if (results.posterior.empty()) continue;
+      for (std::size_t v = 0; v < n; ++v)
+        results.posterior[f * n + v] = static_cast<double>(posterior_[v * lanes_ + l]) * scale;
     }
   }
 
@@ -278,7 +330,9 @@ class Batched final : public Decoder {
   std::vector<std::int32_t> weights_, undecided_;
   std::vector<T> groups_;  // channel values of the frames being decoded, in groups
   std::vector<std::uint64_t> masks_, zeros_;  // per variable: negative, zero posterior lanes
+  std::size_t frames_ = 0;                    // of the batch begun
   std::vector<double> group_llr_;
+  LaneResults results_;  // of decode_batch
   LayeredArgs<T> args_;
 };
 

@@ -580,14 +580,17 @@ void SignMasks(D d, const LayeredArgs<hn::TFromD<D>>& a, std::uint64_t* masks,
 
 // Channel values from LLRs in lane layout (count a multiple of the double vector length):
 // float32 clipped at +-clip, or fixed point round(llr * scale) (ties to even) saturated at
-// +-clip, the rule of LlrQuantizer.
+// +-clip, the rule of LlrQuantizer. False when an LLR is NaN (the output is then meaningless).
 template <class T>
-void Channel(const double* llr, std::size_t count, double scale, double clip, T* out) {
+bool Channel(const double* llr, std::size_t count, double scale, double clip, T* out) {
   const hn::ScalableTag<double> dd;
   const hn::Rebind<T, decltype(dd)> dt;
   const auto lo = hn::Set(dd, -clip), hi = hn::Set(dd, clip), s = hn::Set(dd, scale);
+  auto nan = hn::FirstN(dd, 0);
   for (std::size_t i = 0; i < count; i += hn::Lanes(dd)) {
-    auto x = hn::Min(hn::Max(hn::Mul(hn::LoadU(dd, llr + i), s), lo), hi);
+    const auto in = hn::LoadU(dd, llr + i);
+    nan = hn::Or(nan, hn::IsNaN(in));
+    auto x = hn::Min(hn::Max(hn::Mul(in, s), lo), hi);
     if constexpr (std::is_floating_point_v<T>) {
       hn::StoreU(hn::DemoteTo(dt, x), dt, out + i);
     } else {
@@ -600,6 +603,7 @@ void Channel(const double* llr, std::size_t count, double scale, double clip, T*
       }
     }
   }
+  return hn::AllFalse(dd, nan);
 }
 
 // Plain entry points per lane type for HWY_EXPORT, named Step##Type.
@@ -620,8 +624,8 @@ void Channel(const double* llr, std::size_t count, double scale, double clip, T*
   void SignMasks##Type(const LayeredArgs<T>& a, std::uint64_t* masks, std::uint64_t* zeros) {   \
     SignMasks(hn::ScalableTag<T>(), a, masks, zeros);                                           \
   }                                                                                             \
-  void Channel##Type(const double* llr, std::size_t count, double scale, double clip, T* out) { \
-    Channel(llr, count, scale, clip, out);                                                      \
+  bool Channel##Type(const double* llr, std::size_t count, double scale, double clip, T* out) { \
+    return Channel(llr, count, scale, clip, out);                                               \
   }
 }  // namespace tannery::detail::HWY_NAMESPACE
 HWY_AFTER_NAMESPACE();
@@ -654,7 +658,7 @@ HWY_AFTER_NAMESPACE();
   void sign_masks(const LayeredArgs<T>& a, std::uint64_t* masks, std::uint64_t* zeros) {         \
     HWY_DYNAMIC_DISPATCH(SignMasks##Type)(a, masks, zeros);                                      \
   }                                                                                              \
-  void channel_values(const double* llr, std::size_t count, double scale, double clip, T* out) { \
-    HWY_DYNAMIC_DISPATCH(Channel##Type)(llr, count, scale, clip, out);                           \
+  bool channel_values(const double* llr, std::size_t count, double scale, double clip, T* out) { \
+    return HWY_DYNAMIC_DISPATCH(Channel##Type)(llr, count, scale, clip, out);                    \
   }
 #endif

@@ -59,7 +59,7 @@ constexpr std::size_t mask_bytes(std::size_t lanes) {
 // it is zero (the hard decisions and the undecided bits, from which the caller computes syndromes).
 // channel_values: count LLRs in lane layout (count: a multiple of 8) to channel values: float32
 // clipped at +-clip (scale 1), or fixed point round(llr * scale), ties to even, saturated at +-clip
-// (the rule of LlrQuantizer).
+// (the rule of LlrQuantizer); false when an LLR is NaN.
 #define TANNERY_BATCH_KERNELS(T)                                                            \
   std::size_t lane_count(T);                                                                \
   void start(const LayeredArgs<T>& args);                                                   \
@@ -67,7 +67,7 @@ constexpr std::size_t mask_bytes(std::size_t lanes) {
   void refill(const LayeredArgs<T>& args, const T* const* rows, const std::uint64_t* lanes, \
               std::size_t count);                                                           \
   void sign_masks(const LayeredArgs<T>& args, std::uint64_t* masks, std::uint64_t* zeros);  \
-  void channel_values(const double* llr, std::size_t count, double scale, double clip, T* out);
+  bool channel_values(const double* llr, std::size_t count, double scale, double clip, T* out);
 TANNERY_BATCH_KERNELS(float)
 TANNERY_BATCH_KERNELS(std::int16_t)
 TANNERY_BATCH_KERNELS(std::int8_t)

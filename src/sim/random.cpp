@@ -54,7 +54,7 @@ void group_channel_llrs(const FrameGroup& group, const ChannelPoint& channel,
                         std::span<const std::uint64_t> codeword, std::span<double> out) {
   TANNERY_ASSERT(group.lanes > 0 && out.size() == codeword.size() * group.lanes);
   detail::channel_of_group(group.seed, group.point, group.first, group.lanes, codeword.size(),
-                           codeword.data(), channel.kind, channel.value, llr_magnitude(channel),
+                           codeword.data(), channel.kind(), channel.value(), llr_magnitude(channel),
                            out.data());
 }
 

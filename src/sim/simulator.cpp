@@ -16,6 +16,7 @@
 #include "tannery/error.hpp"
 #include "tannery/parse.hpp"
 #include "tannery/sim/random.hpp"
+#include "tannery/thread_pool.hpp"
 
 namespace tannery {
 
@@ -61,6 +62,7 @@ struct Simulator::Worker {
   std::vector<std::uint64_t> wide_codewords;  // 64 frames, bit-sliced (narrow lanes)
   std::vector<double> llr, noise;
   std::vector<FrameOutcome> outcomes;
+  LaneResults lane_results;
 };
 
 Simulator::Simulator(Code code, SimulationConfig config)
@@ -100,25 +102,7 @@ Simulator::Simulator(std::shared_ptr<const Code> code, SimulationConfig config)
   if (encoder_.k() == 0) throw Error("the code has dimension k = 0: nothing to simulate");
   if (config_.channel.kind == ChannelKind::awgn && rate() <= 0)
     throw Error("the rate for Eb/N0 must be positive");
-  if (const auto& p = config_.channel.assumed_crossover; p && !(*p >= 0 && *p <= 0.5)) {
-    throw Error(
-        fmt::format("the assumed bsc crossover probability must be in [0, 0.5], got {}", *p));
-  }
-  if (config_.channel.kind == ChannelKind::awgn) {
-    // The noise and the LLR scale 2 / sigma^2 the decoder assumes must be representable.
-    for (double p : config_.sweep) {
-      const ChannelPoint c = channel_point(p);
-      for (double sigma : {c.value, c.assumed_value}) {
-        const double scale = 2 / (sigma * sigma);
-        if (!(sigma > 0 && std::isfinite(sigma) && scale > 0 && std::isfinite(scale))) {
-          throw Error(fmt::format(
-              "sweep point {} dB (with SNR offset {} dB) gives a noise standard deviation of {:g}: "
-              "outside what a simulation can represent",
-              p, config_.channel.snr_offset_db, sigma));
-        }
-      }
-    }
-  }
+  for (double p : config_.sweep) channel_point(p);  // every point representable
 }
 
 double Simulator::rate() const noexcept {
@@ -128,15 +112,7 @@ double Simulator::rate() const noexcept {
 }
 
 ChannelPoint Simulator::channel_point(double parameter) const {
-  const ChannelSpec& c = config_.channel;
-  ChannelPoint p{c.kind, parameter, parameter};
-  if (c.kind == ChannelKind::awgn) {
-    p.value = awgn_sigma(parameter, c.measure, rate());
-    p.assumed_value = awgn_sigma(parameter + c.snr_offset_db, c.measure, rate());
-  } else if (c.kind == ChannelKind::bsc && c.assumed_crossover) {
-    p.assumed_value = *c.assumed_crossover;
-  }
-  return p;
+  return tannery::channel_point(config_.channel, parameter, rate());
 }
 
 void generate_frame(const FrameId& id, const ChannelPoint& channel, const Encoder& encoder,
@@ -149,7 +125,7 @@ void generate_frame(const FrameId& id, const ChannelPoint& channel, const Encode
     frame_bits(id, info);
     encoder.encode(info, codeword);
   }
-  if (channel.kind == ChannelKind::awgn)
+  if (channel.kind() == ChannelKind::awgn)
     frame_gaussians(id, noise);
   else
     frame_uniforms(id, noise);
@@ -189,23 +165,25 @@ void Simulator::run_frames(Worker& w, std::size_t index, const ChannelPoint& cha
 }
 
 // Lane layout (a batched decoder): the chunk's frames generated in groups of lanes()
-// side by side with SIMD, bit-sliced encoding, the decoder refilling lanes as frames finish.
-// The same numbers as run_frames.
+// side by side with SIMD, bit-sliced encoding, the decoder refilling lanes as frames finish;
+// errors counted from the decisions' masks. The same numbers as run_frames.
 template <class Record>
-void Simulator::run_lanes(Worker& w, std::size_t index, const ChannelPoint& channel,
-                          std::uint64_t first, std::size_t count, const Record& record) const {
-  const std::size_t n = code_.n(), k = encoder_.k(), lanes = w.decoder->lanes();
+void Simulator::run_lanes(Worker& w, LaneDecoder& decoder, std::size_t index,
+                          const ChannelPoint& channel, std::uint64_t first, std::size_t count,
+                          const Record& record) const {
+  const std::size_t n = code_.n(), k = encoder_.k(), lanes = decoder.lanes();
   const std::size_t groups = (count + lanes - 1) / lanes;
   w.info_masks.resize(k);
   w.codeword_masks.resize(groups * n);
   w.wide_codewords.resize(n);
+  w.llr.resize(n * lanes);
   // Information bits and codewords are bit-sliced in 64-bit masks: with fewer lanes they are
-  // made for 64 frames at once, `per` groups, each group taking its slice (the decoder asks for
-  // the groups in order).
+  // made for 64 frames at once, `per` groups, each group taking its slice. A short last group
+  // generates frames beyond the chunk too (not decoded).
   const std::size_t per = std::max<std::size_t>(64 / lanes, 1);
   const std::uint64_t keep = lanes >= 64 ? ~std::uint64_t{0} : (std::uint64_t{1} << lanes) - 1;
-  // Group g on demand: a short last group generates frames beyond the chunk too (not decoded).
-  auto fill = [&](std::size_t g, std::span<double> llr) {
+  decoder.begin(count);
+  for (std::size_t g = 0; g < groups; ++g) {
     const FrameGroup group{config_.seed, static_cast<std::uint32_t>(index), first + g * lanes,
                            lanes};
     const std::span<std::uint64_t> sent(w.codeword_masks.data() + g * n, n);
@@ -220,45 +198,31 @@ void Simulator::run_lanes(Worker& w, std::size_t index, const ChannelPoint& chan
       const auto shift = static_cast<unsigned>(g % per * lanes);
       for (std::size_t v = 0; v < n; ++v) sent[v] = (w.wide_codewords[v] >> shift) & keep;
     }
-    group_channel_llrs(group, channel, sent, llr);
-  };
+    group_channel_llrs(group, channel, sent, w.llr);
+    decoder.load(g, w.llr);
+  }
+  decoder.decode(w.lane_results);
+  // Errors per frame: lane l of group g holds frame g * lanes + l, whose sent bits are bit l of
+  // that group's masks. An undecided bit is an error whatever was sent.
   w.errors.assign(2 * count, 0);
-  w.outcomes.resize(count);
-  w.decoder->decode_groups(count, fill, [&](const Decoder::FinishedFrames& done) {
-    // Errors of the finished lanes in one pass over the positions: lane l holds a frame of
-    // group frame / lanes, whose sent bits are bit l of that group's masks.
-    std::array<const std::uint64_t*, 64> sent;
-    std::array<std::uint64_t, 64> in_group;
-    std::size_t groups_done = 0;
-    for (std::uint64_t left = done.lanes; left; ++groups_done) {
-      const std::size_t g = done.frame[static_cast<std::size_t>(std::countr_zero(left))] / lanes;
-      std::uint64_t in = 0;
-      for (std::uint64_t a = left; a; a &= a - 1) {
-        const auto l = static_cast<std::size_t>(std::countr_zero(a));
-        if (done.frame[l] / lanes == g) in |= std::uint64_t{1} << l;
-      }
-      left &= ~in;
-      sent[groups_done] = w.codeword_masks.data() + g * n;
-      in_group[groups_done] = in;
-    }
+  for (std::size_t g = 0; g < groups; ++g) {
+    const std::uint64_t* sent = w.codeword_masks.data() + g * n;
+    const std::uint64_t* decided = w.lane_results.hard.data() + g * n;
+    const std::uint64_t* zero = w.lane_results.undecided.data() + g * n;
+    const std::size_t in_chunk = std::min(lanes, count - g * lanes);
+    const std::uint64_t valid =
+        in_chunk >= 64 ? ~std::uint64_t{0} : (std::uint64_t{1} << in_chunk) - 1;
     for (std::size_t v = 0; v < n; ++v) {
-      std::uint64_t expected = 0;
-      for (std::size_t i = 0; i < groups_done; ++i) expected |= sent[i][v] & in_group[i];
-      // An undecided bit is an error whatever was sent.
-      const std::uint64_t wrong = (done.hard[v] ^ expected) | done.undecided[v];
-      for (std::uint64_t x = wrong & done.lanes; x; x &= x - 1) {
-        const std::size_t f = done.frame[static_cast<std::size_t>(std::countr_zero(x))];
+      for (std::uint64_t x = ((decided[v] ^ sent[v]) | zero[v]) & valid; x; x &= x - 1) {
+        const std::size_t f = g * lanes + static_cast<std::size_t>(std::countr_zero(x));
         ++w.errors[2 * f];
         w.errors[2 * f + 1] += is_info_[v];
       }
     }
-    for (std::uint64_t a = done.lanes; a; a &= a - 1) {
-      const auto l = static_cast<std::size_t>(std::countr_zero(a));
-      w.outcomes[done.frame[l]] = done.outcome[l];
-    }
-  });
+  }
+  const std::vector<FrameOutcome>& outcomes = w.lane_results.outcome;
   for (std::size_t f = 0; f < count; ++f) {
-    record(first + f, w.errors[2 * f], w.errors[2 * f + 1], w.outcomes[f], [&] {
+    record(first + f, w.errors[2 * f], w.errors[2 * f + 1], outcomes[f], [&] {
       // Regenerated alone: the same values as in its group.
       w.info.resize(k);
       w.codewords.resize(n);
@@ -282,15 +246,12 @@ PointResult Simulator::run_point(std::size_t index, PointResult total,
       config_.threads ? config_.threads : std::max(1u, std::thread::hardware_concurrency());
 
   std::mutex mutex;
-  std::condition_variable changed;
   std::map<std::uint64_t, ChunkResult> done;
   std::atomic<std::uint64_t> next{total.chunks};
   std::atomic<bool> stop{false};
   std::size_t kept_here = 0;
   std::string reason;
-  unsigned running = threads;
   const auto start = Clock::now();
-  double last_report = -1;
 
   // Stop rules over the in-order totals; true when the point is finished.
   auto finished = [&] {
@@ -333,8 +294,8 @@ PointResult Simulator::run_point(std::size_t index, PointResult total,
         c.failed_frames.push_back(frame);
         if (r.kept.size() < config_.keep_failures) r.kept.push_back(KeptFrame{index, frame, llr()});
       };
-      if (w.decoder->lanes()) {
-        run_lanes(w, index, channel, first, count, record);
+      if (LaneDecoder* lanes = w.decoder->lane_decoder()) {
+        run_lanes(w, *lanes, index, channel, first, count, record);
       } else {
         run_frames(w, index, channel, first, count, record);
       }
@@ -353,57 +314,47 @@ PointResult Simulator::run_point(std::size_t index, PointResult total,
           if (kept_here < config_.keep_failures) kept_.push_back(kf), ++kept_here;
         }
         done.erase(it);
-        if (finished()) stop = true;
+        if (finished()) {
+          stop = true;
+        } else if (interrupt && interrupt->load()) {
+          stop = true, reason = "interrupted";  // at a chunk boundary, with chunk 0 in
+        }
       }
-      changed.notify_all();
     }
   };
-  std::exception_ptr failure;  // the first error of a worker, rethrown here after the join
-  auto work = [&](Worker& w) {
-    try {
-      work_chunks(w);
-    } catch (...) {
-      std::lock_guard lock(mutex);
-      if (!failure) failure = std::current_exception();
-      stop = true;
-    }
-    std::lock_guard lock(mutex);
-    --running;
-    changed.notify_all();
-  };
-
   std::vector<std::unique_ptr<Worker>> workers;
-  std::vector<std::thread> pool;
   for (unsigned t = 0; t < threads; ++t) {
     workers.push_back(std::make_unique<Worker>());
     workers.back()->decoder = make_decoder(shared_, config_.decoder);
   }
-  try {
-    for (unsigned t = 0; t < threads; ++t) pool.emplace_back(work, std::ref(*workers[t]));
-  } catch (...) {
-    stop = true;
-    for (auto& th : pool) th.join();
-    throw;
-  }
-  {
-    std::unique_lock lock(mutex);
-    while (running > 0) {
-      changed.wait_for(lock, std::chrono::milliseconds(200));
-      if (!stop && interrupt && interrupt->load()) stop = true, reason = "interrupted";
-      if (!stop && config_.stop.max_seconds > 0 &&
-          total.seconds + seconds_since(start) >= config_.stop.max_seconds) {
-        stop = true, reason = "time limit";
-      }
-      // At most five reports a second (chunks can finish far more often), and a last one.
-      const double now = seconds_since(start);
-      if (progress && (now - last_report >= 0.2 || running == 0)) {
-        progress(Progress{index, total, total.seconds + now});
-        last_report = now;
-      }
-    }
-  }
-  for (auto& th : pool) th.join();
-  if (failure) std::rethrow_exception(failure);
+  // The calling thread watches for an interrupt and the time limit and reports progress at most
+  // five times a second (chunks can finish far more often), and a last time at the end.
+  auto report = [&] {
+    const double now = seconds_since(start);
+    if (progress) progress(Progress{index, total, total.seconds + now});
+  };
+  ThreadPool pool(threads);
+  pool.run(
+      threads,
+      [&](std::size_t, unsigned worker) {
+        try {
+          work_chunks(*workers[worker]);
+        } catch (...) {
+          stop = true;  // the other workers stop at their next chunk; the error is rethrown
+          throw;
+        }
+      },
+      std::chrono::milliseconds(200),
+      [&] {
+        std::lock_guard lock(mutex);
+        if (!stop && interrupt && interrupt->load()) stop = true, reason = "interrupted";
+        if (!stop && config_.stop.max_seconds > 0 &&
+            total.seconds + seconds_since(start) >= config_.stop.max_seconds) {
+          stop = true, reason = "time limit";
+        }
+        report();
+      });
+  report();
   total.seconds += seconds_since(start);
   if (reason.empty()) finished();  // all chunks consumed: the max-frames rule
   total.stop_reason = reason;
@@ -455,15 +406,6 @@ FrameData Simulator::replay(std::size_t point, std::uint64_t frame) const {
   auto decoder = make_decoder(shared_, config_.decoder);
   decoder->decode(d.llr, d.hard, d.posterior, std::span(&d.outcome, 1), frame);
   return d;
-}
-
-void validate(const ChannelSpec& c) {
-  if (c.kind != ChannelKind::awgn &&
-      (c.snr_offset_db != 0 || c.design_rate || c.measure != SnrMeasure::ebn0)) {
-    throw Error("snr, design_rate and snr_offset_db apply to the awgn channel only");
-  }
-  if (c.kind != ChannelKind::bsc && c.assumed_crossover)
-    throw Error("assumed_crossover applies to the bsc channel only");
 }
 
 std::vector<double> default_sweep(ChannelKind kind) {

@@ -7,8 +7,8 @@
 #include <cmath>
 #include <limits>
 
-#include "tannery/code/construct.hpp"
 #include "decode/simd_control.hpp"
+#include "tannery/code/construct.hpp"
 #include "tannery/decode/decoder.hpp"
 #include "tannery/io/matrix_io.hpp"
 #include "test_support.hpp"
@@ -48,9 +48,10 @@ void run(benchmark::State& state, const Case& c) {
   compress_simd_checks_above();
   // The batched kernels get four groups of lanes() frames in lane layout, as the simulator
   // feeds them (each lane refilled from the next group when its frame is done; the same LLRs in
-  // every group, so filling a group is a copy within the cache); the time includes converting
-  // the LLRs to channel values. The scalar references decode 16 frames in frame layout.
-  const std::size_t lanes = decoder->lanes(), frames = lanes ? 4 * lanes : 16;
+  // every group); the time includes loading (checking and converting) the LLRs to channel
+  // values and recording the decisions. The scalar references decode 16 frames in frame layout.
+  LaneDecoder* batched = decoder->lane_decoder();
+  const std::size_t lanes = batched ? batched->lanes() : 0, frames = lanes ? 4 * lanes : 16;
   // Consistent Gaussian LLRs near the waterfall of rate-1/2 codes (Eb/N0 about 1.5 dB).
   test::Gaussian g(1);
   std::vector<double> llr(code.n() * (lanes ? lanes : frames));
@@ -58,14 +59,13 @@ void run(benchmark::State& state, const Case& c) {
   std::vector<std::uint8_t> hard(code.n() * frames);
   std::vector<FrameOutcome> out(frames);
   std::size_t decided = 0;
+  LaneResults results;
   for (auto _ : state) {
-    if (lanes) {
-      decoder->decode_groups(
-          frames,
-          [&](std::size_t, std::span<double> group) {
-            std::copy(llr.begin(), llr.end(), group.begin());
-          },
-          [&](const Decoder::FinishedFrames& done) { decided += done.hard[0] & done.lanes; });
+    if (batched) {
+      batched->begin(frames);
+      for (std::size_t g = 0; g < 4; ++g) batched->load(g, llr);
+      batched->decode(results);
+      decided += results.hard[0];
     } else {
       decoder->decode(llr, hard, {}, out);
     }

@@ -34,12 +34,48 @@ double awgn_sigma(double snr_db, SnrMeasure measure, double rate);
 double esn0_db_from_ebn0(double ebn0_db, double rate);
 
 // A channel at one operating point: AWGN by sigma, BSC by crossover p, BEC by erasure
-// probability. The decoder may assume a different (mismatched) value for its LLRs.
-struct ChannelPoint {
-  ChannelKind kind = ChannelKind::awgn;
-  double value = 0;          // sigma (AWGN), p (BSC) or epsilon (BEC)
-  double assumed_value = 0;  // what the LLR computation assumes (equal unless mismatched)
+// probability. The decoder may assume a different (mismatched) value for its LLRs. Made only
+// through the functions below, which refuse values no simulation can represent (a sigma of 0 or
+// one whose LLR scale 2 / sigma^2 overflows), so a point always means a real channel.
+class ChannelPoint {
+ public:
+  // BPSK over AWGN with noise standard deviation sigma per real dimension (unit-energy
+  // symbols); LLRs computed for assumed_sigma (default sigma).
+  static ChannelPoint awgn(double sigma, std::optional<double> assumed_sigma = {});
+  // Crossover probability p in [0, 0.5]; LLR magnitude from assumed_p (default p).
+  static ChannelPoint bsc(double p, std::optional<double> assumed_p = {});
+  // Erasure probability epsilon in [0, 1].
+  static ChannelPoint bec(double epsilon);
+
+  ChannelKind kind() const noexcept { return kind_; }
+  double value() const noexcept { return value_; }  // sigma (AWGN), p (BSC) or epsilon (BEC)
+  double assumed_value() const noexcept { return assumed_; }  // what the LLRs assume
+
+ private:
+  ChannelPoint(ChannelKind kind, double value, double assumed)
+      : kind_(kind), value_(value), assumed_(assumed) {}
+  ChannelKind kind_;
+  double value_, assumed_;
 };
+
+// How a sweep is read and what the LLRs assume: the settings of a simulated channel.
+struct ChannelSpec {
+  ChannelKind kind = ChannelKind::awgn;
+  SnrMeasure measure = SnrMeasure::ebn0;  // AWGN: sweep values are Eb/N0 or Es/N0 in dB
+  bool design_rate = false;               // AWGN Eb/N0: use 1 - m/n instead of the true k/n
+  double snr_offset_db = 0;  // AWGN: LLRs computed for an SNR this much higher (mismatch)
+  std::optional<double>
+      assumed_crossover;  // BSC: LLR magnitude from this p instead of the true one
+  bool operator==(const ChannelSpec&) const = default;
+};
+
+// Throws Error for settings that do not fit the channel kind (an SNR offset on the BSC...).
+void validate(const ChannelSpec& channel);
+
+// The operating point of sweep value `parameter` (Eb/N0 or Es/N0 in dB, p or epsilon) under
+// these settings, for a code of this rate (used by Eb/N0). Error naming the value when it is
+// outside the channel's range or the noise it gives cannot be represented.
+ChannelPoint channel_point(const ChannelSpec& spec, double parameter, double rate);
 
 // Validates a sweep value: p in [0, 0.5], epsilon in [0, 1], Eb/N0 finite. Throws Error.
 void check_channel_parameter(ChannelKind kind, double parameter);

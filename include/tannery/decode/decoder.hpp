@@ -10,7 +10,6 @@
 
 #include <cstddef>
 #include <cstdint>
-#include <functional>
 #include <memory>
 #include <optional>
 #include <span>
@@ -122,6 +121,34 @@ FrameOutcome assess(const Code& code, std::span<const std::uint8_t> hard, int it
 // so no NaN or Inf can arise inside the decoders.
 inline constexpr double kLlrLimit = 1e5;
 
+// The batched protocol of the SIMD kernels, for pipelines that work in their lane layout (the
+// simulator): lanes() frames side by side, one per lane (at most 64), position v of lane l at
+// [v * lanes() + l]. A batch of F frames is loaded group by group (group g holds frames
+// g * lanes() + l, lane l; lanes past F are ignored), then decoded at once: lane l decodes
+// frames l, l + lanes(), l + 2 lanes(), ..., each as soon as the previous one finished, so
+// lanes do not wait for the slowest frame of a group. No allocation after the first batch of a
+// given size.
+struct LaneResults {
+  std::vector<std::uint64_t> hard;       // groups x n: bit l of [g * n + v] = frame g*lanes()+l
+                                         // decided 1 at v (negative posterior)
+  std::vector<std::uint64_t> undecided;  // groups x n: ... posterior exactly zero
+  std::vector<FrameOutcome> outcome;     // per frame
+  std::vector<double> posterior;         // frames x n (frame layout), when asked for
+};
+
+class LaneDecoder {
+ public:
+  virtual ~LaneDecoder() = default;
+  virtual std::size_t lanes() const noexcept = 0;
+  // Starts a batch of `frames` frames.
+  virtual void begin(std::size_t frames) = 0;
+  // Group g's n x lanes() channel LLRs in lane layout; Error for a NaN (naming group, position
+  // and lane) or a wrong size.
+  virtual void load(std::size_t group, std::span<const double> llr) = 0;
+  // Decodes the batch (every group loaded) into results, posteriors only when asked for.
+  virtual void decode(LaneResults& results, bool want_posterior = false) = 0;
+};
+
 // One decoded frame.
 struct DecodedFrame {
   std::vector<std::uint8_t> bits;  // hard decisions: 0, 1 or kUndecided
@@ -145,24 +172,8 @@ class Decoder {
               std::span<double> posterior, std::span<FrameOutcome> outcome,
               std::size_t first_frame = 0);
 
-  // Lane layout, offered by the batched SIMD kernels: lanes() frames side by side (at most 64),
-  // position v of frame l at [v * lanes() + l]; 0 when the decoder has no lane layout.
-  virtual std::size_t lanes() const noexcept { return 0; }
-  // Decodes `frames` frames given in groups of lanes() in lane layout: fill(g, llr) writes group
-  // g's n x lanes() NaN-free LLRs, frame g * lanes() + l in lane l (lanes past the last frame
-  // are ignored); it is called once per group, in order, before decoding starts. Lane l decodes
-  // frames l, l + lanes(), l + 2 lanes(), ..., each as soon as the previous one finished, so
-  // lanes do not wait for the slowest frame of a group. done is called whenever frames finish.
-  struct FinishedFrames {
-    std::uint64_t lanes = 0;                   // bit l: lane l finished frame[l]
-    std::span<const std::size_t> frame;        // per lane
-    std::span<const FrameOutcome> outcome;     // per lane
-    std::span<const std::uint64_t> hard;       // n masks: bit l = decision of lane l (1: negative)
-    std::span<const std::uint64_t> undecided;  // n masks: bit l = lane l's posterior is zero
-  };
-  using FramesDone = std::function<void(const FinishedFrames&)>;
-  using GroupFill = std::function<void(std::size_t, std::span<double>)>;
-  virtual void decode_groups(std::size_t frames, const GroupFill& fill, const FramesDone& done);
+  // The batched protocol, when this decoder has one (the SIMD kernels), else null.
+  virtual LaneDecoder* lane_decoder() noexcept { return nullptr; }
 
   const Code& code() const noexcept { return code_; }
   const std::shared_ptr<const Code>& shared_code() const noexcept { return owner_; }
@@ -181,8 +192,7 @@ class Decoder {
   DecoderSettings settings_;
 
  private:
-  friend std::unique_ptr<Decoder> make_decoder(std::shared_ptr<const Code>,
-                                               const DecoderSettings&);
+  friend std::unique_ptr<Decoder> make_decoder(std::shared_ptr<const Code>, const DecoderSettings&);
   std::shared_ptr<const Code> owner_;
 };
 

@@ -22,8 +22,8 @@ struct adl_serializer<E> {
   static void to_json(json& j, E value) { j = tannery::name_of(value); }
   static void from_json(const json& j, E& value) {
     if (!j.is_string()) {
-      throw tannery::Error(std::string(tannery::Names<E>::setting) + " must be a string, one of: " +
-                           tannery::names_list<E>());
+      throw tannery::Error(std::string(tannery::Names<E>::setting) +
+                           " must be a string, one of: " + tannery::names_list<E>());
     }
     value = tannery::parse_name<E>(j.get<std::string>());
   }
@@ -38,8 +38,9 @@ struct adl_serializer<tannery::Quantization> {
     const auto parsed = j.is_string() ? tannery::parse_quantization(j.get<std::string>())
                                       : std::optional<tannery::Quantization>();
     if (!parsed) {
-      throw tannery::Error("quantize must be a string B.F or B.F:M:P (e.g. \"6.2\"), got " +
-                           j.dump());
+      throw tannery::Error(
+          std::string("quantize must be a string B.F or B.F:M:P (e.g. \"6.2\"), got ")
+              .append(j.dump()));
     }
     q = *parsed;
   }
@@ -63,7 +64,7 @@ namespace tannery {
 // One setting's value from JSON, checked: Error "'key' must be ..." (callers add where).
 template <class T>
 T read_value(const nlohmann::json& v, std::string_view key) {
-  const std::string name = "'" + std::string(key) + "'";
+  const std::string name = std::string("'").append(key).append("'");
   if constexpr (std::is_same_v<T, bool>) {
     if (!v.is_boolean()) throw Error(name + " must be true or false");
     return v.get<bool>();
@@ -72,13 +73,15 @@ T read_value(const nlohmann::json& v, std::string_view key) {
         v.is_number_unsigned()
             ? v.get<std::uint64_t>() <= static_cast<std::uint64_t>(std::numeric_limits<T>::max())
             : v.is_number_integer() &&
-                  v.get<std::int64_t>() >= static_cast<std::int64_t>(std::numeric_limits<T>::min()) &&
+                  v.get<std::int64_t>() >=
+                      static_cast<std::int64_t>(std::numeric_limits<T>::min()) &&
                   (v.get<std::int64_t>() < 0 ||
                    static_cast<std::uint64_t>(v.get<std::int64_t>()) <=
                        static_cast<std::uint64_t>(std::numeric_limits<T>::max()));
     if (!fits) {
-      throw Error(name + " must be an integer from " + std::to_string(std::numeric_limits<T>::min()) +
-                  " to " + std::to_string(std::numeric_limits<T>::max()));
+      throw Error(name + " must be an integer from " +
+                  std::to_string(std::numeric_limits<T>::min()) + " to " +
+                  std::to_string(std::numeric_limits<T>::max()));
     }
     return v.get<T>();
   } else if constexpr (std::is_floating_point_v<T>) {
@@ -122,11 +125,23 @@ void read_fields(const nlohmann::json& j, S& s, std::string_view where) {
   });
 }
 
-inline void to_json(nlohmann::json& j, const DecoderSettings& s) { j = fields_json(s); }
-inline void from_json(const nlohmann::json& j, DecoderSettings& s) { read_fields(j, s, "decoder"); }
-inline void to_json(nlohmann::json& j, const ChannelSpec& s) { j = fields_json(s); }
-inline void from_json(const nlohmann::json& j, ChannelSpec& s) { read_fields(j, s, "channel"); }
-inline void to_json(nlohmann::json& j, const StopRules& s) { j = fields_json(s); }
-inline void from_json(const nlohmann::json& j, StopRules& s) { read_fields(j, s, "stop"); }
+inline void to_json(nlohmann::json& j, const DecoderSettings& s) {
+  j = fields_json(s);
+}
+inline void from_json(const nlohmann::json& j, DecoderSettings& s) {
+  read_fields(j, s, "decoder");
+}
+inline void to_json(nlohmann::json& j, const ChannelSpec& s) {
+  j = fields_json(s);
+}
+inline void from_json(const nlohmann::json& j, ChannelSpec& s) {
+  read_fields(j, s, "channel");
+}
+inline void to_json(nlohmann::json& j, const StopRules& s) {
+  j = fields_json(s);
+}
+inline void from_json(const nlohmann::json& j, StopRules& s) {
+  read_fields(j, s, "stop");
+}
 
 }  // namespace tannery

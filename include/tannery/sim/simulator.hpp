@@ -28,25 +28,12 @@
 namespace tannery {
 
 struct StopRules {
-  std::uint64_t frame_errors = 100;  // a point stops once it has at least this many frame errors
+  std::uint64_t frame_errors = 100;    // a point stops once it has at least this many frame errors
   std::uint64_t max_frames = 100'000;  // ... or this many frames
-  double max_seconds = 0;                // ... or this much wall-clock time (0 = no limit)
-  double stop_below_fer = 0;             // the sweep stops after a point whose FER is below this
+  double max_seconds = 0;              // ... or this much wall-clock time (0 = no limit)
+  double stop_below_fer = 0;           // the sweep stops after a point whose FER is below this
   bool operator==(const StopRules&) const = default;
 };
-
-struct ChannelSpec {
-  ChannelKind kind = ChannelKind::awgn;
-  SnrMeasure measure = SnrMeasure::ebn0;  // AWGN: sweep values are Eb/N0 or Es/N0 in dB
-  bool design_rate = false;               // AWGN Eb/N0: use 1 - m/n instead of the true k/n
-  double snr_offset_db = 0;  // AWGN: LLRs computed for an SNR this much higher (mismatch)
-  std::optional<double>
-      assumed_crossover;  // BSC: LLR magnitude from this p instead of the true one
-  bool operator==(const ChannelSpec&) const = default;
-};
-
-// Throws Error for settings that do not fit the channel kind (an SNR offset on the BSC...).
-void validate(const ChannelSpec& channel);
 
 // The sweep simulated when none is given: the waterfall of the shipped rate-1/2 codes (AWGN
 // Eb/N0 1 to 1.75 dB), and ranges around the capacity limits of rate 1/2 for the BSC (p 0.08
@@ -147,8 +134,8 @@ class Simulator {
   void run_frames(Worker& w, std::size_t index, const ChannelPoint& channel, std::uint64_t first,
                   std::size_t count, const Record& record) const;
   template <class Record>
-  void run_lanes(Worker& w, std::size_t index, const ChannelPoint& channel, std::uint64_t first,
-                 std::size_t count, const Record& record) const;
+  void run_lanes(Worker& w, LaneDecoder& decoder, std::size_t index, const ChannelPoint& channel,
+                 std::uint64_t first, std::size_t count, const Record& record) const;
 
   std::shared_ptr<const Code> shared_;
   const Code& code_;  // *shared_

@@ -292,10 +292,15 @@ TEST_CASE("an empty batch decodes to nothing with every kernel", "[decode]") {
     s.kernel = kernel;
     auto dec = make_decoder(code, s);
     dec->decode({}, {}, {}, {});
-    if (dec->lanes()) {
-      dec->decode_groups(
-          0, [](std::size_t, std::span<double>) { FAIL("no group to fill"); },
-          [](const Decoder::FinishedFrames&) { FAIL("no frame to finish"); });
+    if (LaneDecoder* lanes = dec->lane_decoder()) {
+      LaneResults results;
+      lanes->begin(0);
+      lanes->decode(results, true);
+      CHECK(results.outcome.empty());
+      CHECK(results.hard.empty());
+      CHECK(results.posterior.empty());
+      CHECK_THROWS_WITH(lanes->load(0, std::vector<double>(7 * lanes->lanes())),
+                        Catch::Contains("does not fit a batch of 0 frames"));
     }
   }
 }

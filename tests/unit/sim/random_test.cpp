@@ -3,8 +3,8 @@
 #include <cmath>
 #include <numbers>
 
-#include "tannery/channel/channel.hpp"
 #include "decode/simd_control.hpp"
+#include "tannery/channel/channel.hpp"
 #include "tannery/decode/decoder.hpp"
 #include "tannery/sim/random.hpp"
 #include "test_support.hpp"
@@ -106,9 +106,8 @@ TEST_CASE("group channel LLRs equal each frame's transmit() of its noise, on eve
   std::vector<std::uint64_t> codeword(n);
   for (std::size_t v = 0; v < n; ++v) codeword[v] = 0x9E3779B97F4A7C15ull * (v + 1);
   // sigma or p or epsilon, and the assumed value (mismatched for AWGN and BSC).
-  for (const ChannelPoint channel :
-       {ChannelPoint{ChannelKind::awgn, 0.8, 0.75}, ChannelPoint{ChannelKind::bsc, 0.3, 0.25},
-        ChannelPoint{ChannelKind::bsc, 0.1, 0.0}, ChannelPoint{ChannelKind::bec, 0.4, 0.4}}) {
+  for (const ChannelPoint channel : {ChannelPoint::awgn(0.8, 0.75), ChannelPoint::bsc(0.3, 0.25),
+                                     ChannelPoint::bsc(0.1, 0.0), ChannelPoint::bec(0.4)}) {
     for (const auto& target : simd_targets()) {
       force_simd_target(target);
       std::vector<double> llr(n * lanes), noise(n), frame_llr(n);
@@ -117,20 +116,20 @@ TEST_CASE("group channel LLRs equal each frame's transmit() of its noise, on eve
       std::size_t erased_or_flipped = 0;
       for (std::size_t l = 0; l < lanes; ++l) {
         const FrameId id{group.seed, group.point, group.first + l};
-        if (channel.kind == ChannelKind::awgn)
+        if (channel.kind() == ChannelKind::awgn)
           frame_gaussians(id, noise);
         else
           frame_uniforms(id, noise);
         for (std::size_t v = 0; v < n; ++v) bits[v] = (codeword[v] >> l) & 1u;
         transmit(channel, bits, noise, frame_llr);
         for (std::size_t v = 0; v < n; ++v) {
-          INFO("channel " << name_of(channel.kind) << " target " << target << " lane " << l
+          INFO("channel " << name_of(channel.kind()) << " target " << target << " lane " << l
                           << " position " << v);
           REQUIRE(llr[v * lanes + l] == frame_llr[v]);  // exact (Inf included)
-          erased_or_flipped += noise[v] < channel.value;
+          erased_or_flipped += noise[v] < channel.value();
         }
       }
-      if (channel.kind != ChannelKind::awgn) CHECK(erased_or_flipped > 100);  // not vacuous
+      if (channel.kind() != ChannelKind::awgn) CHECK(erased_or_flipped > 100);  // not vacuous
     }
   }
 }

@@ -169,14 +169,13 @@ TEST_CASE("an interrupted and resumed run ends with the counts of an uninterrupt
   c.decoder.algorithm = Algorithm::min_sum;
   Simulator sim(code, c);
   const auto full = sim.run({}, {}, nullptr);
-  std::atomic<bool> stop{false};
-  auto partial = sim.run(
-      {},
-      [&](const Progress& p) {
-        if (p.totals.frames > 0) stop = true;
-      },
-      &stop);
+  // Raised before the run: the simulator stops after the first chunk it adds in order.
+  const std::atomic<bool> stop{true};
+  auto partial = sim.run({}, {}, &stop);
+  REQUIRE(partial.size() == 1);
   REQUIRE_FALSE(partial.back().complete);
+  CHECK(partial.back().frames > 0);
+  CHECK(partial.back().frames < full.front().frames);
   CHECK(partial.back().stop_reason == "interrupted");
   const auto resumed = sim.run(partial, {}, nullptr);
   REQUIRE(resumed.size() == full.size());
