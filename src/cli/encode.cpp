@@ -4,6 +4,7 @@
 #include <iostream>
 
 #include "commands.hpp"
+#include "settings_options.hpp"
 #include "tannery/code/gf2.hpp"
 #include "tannery/error.hpp"
 #include "tannery/io/capture.hpp"
@@ -17,26 +18,25 @@ namespace {
 struct EncodeOptions {
   CodeInput input;
   std::string bits = "-";
-  std::string input_format = "text";
+  BitFormat input_format = BitFormat::text;
   std::string output = "-";
   std::string output_format;
   std::uint64_t demo = 0;
-  std::string channel = "awgn";
+  ChannelKind channel = ChannelKind::awgn;
   double at = 2.0;
   std::uint64_t seed = 1;
-  std::string meaning = "llr";
+  SampleMeaning meaning = SampleMeaning::llr;
   double scale = 1.0;
   std::string truth;
   bool systematic_first = false;
 };
 
 void encode_bits(const EncodeOptions& o, const Code& code, const Encoder& encoder) {
-  const BitFormat in_format = *from_name<BitFormat>(o.input_format);
   const BitFormat out_format =
       *from_name<BitFormat>(o.output_format.empty() ? "text" : o.output_format);
   std::ifstream file;
   std::istream* in = &open_input(o.bits, file);
-  BitFrameReader reader(*in, o.bits == "-" ? "<stdin>" : o.bits, in_format, encoder.k());
+  BitFrameReader reader(*in, o.bits == "-" ? "<stdin>" : o.bits, o.input_format, encoder.k());
   OutputFile out(o.output, false);
   std::vector<std::uint8_t> info, word(code.n());
   std::string text;
@@ -61,23 +61,24 @@ void encode_bits(const EncodeOptions& o, const Code& code, const Encoder& encode
 void demo_capture(const EncodeOptions& o, const Code& code, const Encoder& encoder) {
   const SampleFormat format =
       *from_name<SampleFormat>(o.output_format.empty() ? "f32" : o.output_format);
-  const ChannelKind kind = *from_name<ChannelKind>(o.channel);
+  const ChannelKind kind = o.channel;
   const double rate = static_cast<double>(encoder.k()) / static_cast<double>(code.n());
   ChannelSpec spec;
   spec.kind = kind;
   const ChannelPoint channel = channel_point(spec, o.at, rate);
-  if (o.meaning == "samples" && kind != ChannelKind::awgn)
-    throw Error("--meaning samples needs --channel awgn");
+  const bool samples = o.meaning == SampleMeaning::samples;
+  if (samples && kind != ChannelKind::awgn) throw Error("--meaning samples needs --channel awgn");
+  // Values as decode reads them with this meaning: LLR / factor (y = LLR sigma^2 / 2 for samples).
+  const SampleConverter meaning(
+      PunctureMap::all_sent(code.n()), o.meaning,
+      samples ? std::optional(channel.value() * channel.value()) : std::nullopt);
   OutputFile out(o.output, false), truth(o.truth, false);
   std::vector<std::uint8_t> info(encoder.k()), word(code.n());
   std::vector<double> noise(code.n()), llr(code.n());
   std::string bytes, bits;
   for (std::uint64_t f = 0; f < o.demo; ++f) {
     generate_frame(FrameId{o.seed, 0, f}, channel, encoder, false, info, word, noise, llr);
-    if (o.meaning == "samples") {
-      for (double& x : llr)
-        x *= channel.value() * channel.value() / 2;  // back from 2y/sigma^2 to y
-    }
+    for (double& x : llr) x /= meaning.factor();
     append_samples(bytes, llr, format, o.scale);
     append_bits(bits, info, BitFormat::text);
     if (bytes.size() > (1 << 20)) out.write(bytes), bytes.clear();
@@ -106,10 +107,8 @@ void add_encode(CLI::App& app) {
   o->input.add_to(*sub, false, "");
   sub->add_option("INPUT", o->bits, "information bits, k per frame ('-' = stdin)")
       ->capture_default_str();
-  sub->add_option("--input-format", o->input_format,
-                  "text (0/1, whitespace ignored), packed or bytes")
-      ->check(CLI::IsMember({"text", "packed", "bytes"}))
-      ->capture_default_str();
+  add_named_option(*sub, "--input-format", o->input_format,
+                   "text (0/1, whitespace ignored), packed or bytes");
   sub->add_option("-o,--output", o->output, "output file ('-' = stdout)")->capture_default_str();
   sub->add_option(
       "--output-format", o->output_format,
@@ -118,17 +117,14 @@ void add_encode(CLI::App& app) {
   sub->add_option("--demo", o->demo,
                   "instead of reading bits: this many random frames through --channel")
       ->check(kNonNegative);
-  sub->add_option("--channel", o->channel, "demo channel: awgn, bsc or bec")
-      ->check(CLI::IsMember({"awgn", "bsc", "bec"}))
-      ->capture_default_str();
+  add_named_option(*sub, "--channel", o->channel, "demo channel: awgn, bsc or bec");
   sub->add_option("--at", o->at,
                   "demo channel point: Eb/N0 in dB (awgn, true rate k/n), p (bsc) or epsilon (bec)")
       ->capture_default_str();
   sub->add_option("--seed", o->seed, "demo seed (frames as tannery simulate's point 0)")
       ->capture_default_str();
-  sub->add_option("--meaning", o->meaning, "demo values: llr or samples (BPSK y, awgn only)")
-      ->check(CLI::IsMember({"llr", "samples"}))
-      ->capture_default_str();
+  add_named_option(*sub, "--meaning", o->meaning,
+                   "demo values: llr, llr-inverted or samples (BPSK y, awgn only)");
   sub->add_option("--scale", o->scale,
                   "demo: value multiplier for f32/f64/text, LSB size for i8/i16")
       ->capture_default_str();

@@ -21,6 +21,15 @@ namespace tannery::cli {
 // Refuses a negative value for an unsigned option (CLI11 would wrap it to a huge count).
 extern const CLI::Validator kNonNegative;
 
+// An option taking the names of an enumeration's name table, written to target as a value.
+template <Named E>
+CLI::Option* add_named_option(CLI::App& app, const std::string& flag, E& target,
+                              const std::string& help) {
+  return app.add_option(flag, target, help)
+      ->transform(CLI::CheckedTransformer(name_map<E>()))
+      ->default_str(std::string(name_of(target)));
+}
+
 template <class S>
 class SettingsOptions {
  public:
@@ -30,9 +39,9 @@ class SettingsOptions {
   void add_to(CLI::App& group, std::initializer_list<std::string_view> skip = {}) {
     for_each_field<S>([&](const auto& field) {
       if (std::find(skip.begin(), skip.end(), field.key) != skip.end()) return;
-      bound_.push_back({field.key, add(group, field), [member = field.member](S& base, const S& from) {
-                          base.*member = from.*member;
-                        }});
+      bound_.push_back(
+          {field.key, add(group, field),
+           [member = field.member](S& base, const S& from) { base.*member = from.*member; }});
     });
   }
   // The fields given on the command line, copied onto base.
@@ -65,9 +74,7 @@ class SettingsOptions {
       // "--no-early-stop" sets early_stop to false.
       return group.add_flag(flag.starts_with("--no-") ? flag + "{false}" : flag, target, help);
     } else if constexpr (Named<T>) {
-      return group.add_option(flag, target, help)
-          ->transform(CLI::CheckedTransformer(name_map<T>()))
-          ->default_str(std::string(name_of(target)));
+      return add_named_option(group, flag, target, help);
     } else if constexpr (std::is_same_v<T, std::optional<Quantization>>) {
       return group.add_option_function<std::string>(
           flag,

@@ -256,6 +256,13 @@ Encoder::Encoder(const Code& code, std::span<const std::uint32_t> information) :
   }
 }
 
+std::size_t Encoder::info_errors(std::span<const std::uint8_t> decided,
+                                 std::span<const std::uint8_t> sent) const {
+  std::size_t errors = 0;
+  for (std::size_t i = 0; i < k(); ++i) errors += decided[info_positions_[i]] != sent[i];
+  return errors;
+}
+
 void Encoder::encode(std::span<const std::uint8_t> info, std::span<std::uint8_t> codeword) const {
   TANNERY_ASSERT(info.size() == k() && codeword.size() == n_);
   std::fill(codeword.begin(), codeword.end(), std::uint8_t{0});

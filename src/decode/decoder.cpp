@@ -137,6 +137,12 @@ std::string describe(const DecoderSettings& s) {
                             s.early_stop ? ", early stop" : ", no early stop");
 }
 
+std::size_t changed_decisions(std::span<const std::uint8_t> hard, std::span<const double> llr) {
+  std::size_t changed = 0;
+  for (std::size_t i = 0; i < hard.size(); ++i) changed += hard[i] != decide(llr[i]);
+  return changed;
+}
+
 FrameOutcome assess(const Code& code, std::span<const std::uint8_t> hard, int iterations) {
   FrameOutcome o;
   o.iterations = iterations;

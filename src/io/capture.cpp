@@ -106,7 +106,10 @@ CaptureReader::CaptureReader(std::istream& in, std::string source, SampleFormat 
       source_(std::move(source)),
       format_(format),
       scale_(scale),
-      frame_values_(frame_values) {}
+      frame_values_(frame_values) {
+  if (!(std::isfinite(scale) && scale != 0))
+    throw Error(fmt::format("scale must be a finite number other than 0, got {}", scale));
+}
 
 void CaptureReader::fail_value(std::uint64_t byte, std::uint64_t index, const std::string& what) {
   error_ = fmt::format("{}: byte {} (frame {}, value {}): {}", source_, byte, index / frame_values_,
@@ -388,12 +391,37 @@ std::size_t PunctureMap::transmitted() const {
   return static_cast<std::size_t>(std::count(state.begin(), state.end(), sent));
 }
 
-void PunctureMap::expand(std::span<const double> received, std::span<double> llr) const {
-  std::size_t j = 0;
-  for (std::size_t i = 0; i < state.size(); ++i) {
-    llr[i] = state[i] == sent
-                 ? received[j++]
-                 : (state[i] == punctured ? 0.0 : std::numeric_limits<double>::infinity());
+SampleConverter::SampleConverter(PunctureMap map, SampleMeaning meaning,
+                                 std::optional<double> noise_variance)
+    : map_(std::move(map)), received_(map_.transmitted()) {
+  if (meaning == SampleMeaning::samples && !noise_variance) {
+    throw Error(
+        "meaning samples needs noise_variance (the noise variance sigma^2 per real sample)");
+  }
+  if (meaning != SampleMeaning::samples && noise_variance)
+    throw Error("noise_variance applies to meaning samples only");
+  if (noise_variance && !(*noise_variance > 0 && std::isfinite(*noise_variance)))
+    throw Error(fmt::format("noise_variance must be positive, got {}", *noise_variance));
+  factor_ = meaning == SampleMeaning::llr
+                ? 1.0
+                : (meaning == SampleMeaning::llr_inverted ? -1.0 : 2.0 / *noise_variance);
+}
+
+void SampleConverter::convert(std::span<const double> values, std::span<double> llr) const {
+  const std::size_t frames = received_ ? values.size() / received_ : 0;
+  if (values.size() != frames * received_ || llr.size() != frames * n()) {
+    throw Error(fmt::format("convert: {} values are not whole frames of {} giving {} LLRs of {}",
+                            values.size(), received_, llr.size(), n()));
+  }
+  for (std::size_t f = 0; f < frames; ++f) {
+    const std::span<double> out = llr.subspan(f * n(), n());
+    std::size_t j = 0;
+    for (std::size_t i = 0; i < n(); ++i) {
+      const PunctureMap::State s = map_.state[i];
+      out[i] = s == PunctureMap::sent
+                   ? factor_ * values[f * received_ + j++]
+                   : (s == PunctureMap::punctured ? 0.0 : std::numeric_limits<double>::infinity());
+    }
   }
 }
 

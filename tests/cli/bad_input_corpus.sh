@@ -97,9 +97,9 @@ decode --code hamming-7-4 good.f32 --puncture all.map -o sentinel.out|all.map: e
 decode --code hamming-7-4 good.f32 --puncture word.map -o sentinel.out|word.map:1
 decode --code hamming-7-4 good.f32 --puncture adir -o sentinel.out|adir: is a directory
 decode --code hamming-7-4 good.f32 --input-format f16 -o sentinel.out|--input-format
-decode --code hamming-7-4 good.f32 --meaning samples -o sentinel.out|--noise-variance
-decode --code hamming-7-4 good.f32 --meaning samples --noise-variance -1 -o sentinel.out|--noise-variance must be positive
-decode --code hamming-7-4 good.f32 --scale nan -o sentinel.out|--scale
+decode --code hamming-7-4 good.f32 --meaning samples -o sentinel.out|needs noise_variance
+decode --code hamming-7-4 good.f32 --meaning samples --noise-variance -1 -o sentinel.out|noise_variance must be positive
+decode --code hamming-7-4 good.f32 --scale nan -o sentinel.out|scale must be a finite number
 decode --code hamming-7-4 good.f32 --iterations 0 -o sentinel.out|iterations must be between 1 and 1000000, got 0
 decode --code hamming-7-4 good.f32 --algorithm normalized-min-sum --alpha 1.5 -o sentinel.out|alpha must be in (0, 1]
 decode --code hamming-7-4 good.f32 --beta 0.3 -o sentinel.out|--beta applies to --algorithm offset-min-sum only

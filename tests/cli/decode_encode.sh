@@ -117,7 +117,7 @@ expect_in "bad.txt: byte 6 (frame 0, value 3): line 2: 'x' is not a number" "$WO
 expect_exit 2 "$T" decode --code $C /nonexistent.f32
 expect_in "/nonexistent.f32: cannot open file" "$WORK/err"
 expect_exit 2 "$T" decode --code $C d.y --meaning samples
-expect_in "needs --noise-variance" "$WORK/err"
+expect_in "needs noise_variance" "$WORK/err"
 
 # Punctured and shortened positions: drop them from the capture, restore with a map.
 printf 'punctured 0-9\nshortened 20,21\n' > map.txt

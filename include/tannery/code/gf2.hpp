@@ -65,6 +65,10 @@ class Encoder {
   std::size_t rank() const noexcept { return n_ - k(); }
   // Codeword positions that carry the information bits verbatim, increasing.
   const std::vector<std::uint32_t>& info_positions() const noexcept { return info_positions_; }
+  // Information bits of a decided word (n values 0, 1 or 2 = undecided) that differ from the k
+  // sent; an undecided bit is an error whatever was sent.
+  std::size_t info_errors(std::span<const std::uint8_t> decided,
+                          std::span<const std::uint8_t> sent) const;
 
   // info: k bytes (0/1) -> codeword: n bytes (0/1) with H c = 0 and c[info_positions[i]] = info[i].
   // O(E + gap x free / 64); allocates only a per-thread scratch row on first use.

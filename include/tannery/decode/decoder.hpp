@@ -115,6 +115,8 @@ struct FrameOutcome {
 };
 // The outcome of hard decisions after `iterations`: syndrome weight, undecided bits, converged.
 FrameOutcome assess(const Code& code, std::span<const std::uint8_t> hard, int iterations);
+// Positions whose decision differs from the channel's own, decide(llr): what decoding changed.
+std::size_t changed_decisions(std::span<const std::uint8_t> hard, std::span<const double> llr);
 
 // Magnitude at which channel LLRs and messages are clipped: ±Inf and huge inputs become
 // certainties of this size (a probability of error near e^-1e5, zero in double precision),

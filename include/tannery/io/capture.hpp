@@ -86,14 +86,49 @@ class CaptureReader {
 // LIST being indices (0-based) and ranges A-B separated by spaces or commas; '#' comments.
 struct PunctureMap {
   enum State : std::uint8_t { sent, punctured, shortened };
+  static PunctureMap all_sent(std::size_t n) { return {std::vector<State>(n, sent)}; }
   std::vector<State> state;  // per code position
   std::size_t transmitted() const;
-  // Expands one received frame (transmitted() values) to the code length.
-  void expand(std::span<const double> received, std::span<double> llr) const;
 };
 PunctureMap read_puncture_map(const std::string& path, std::size_t n);
 // The same from the file's text; source names it in errors.
 PunctureMap parse_puncture_map(std::string_view text, const std::string& source, std::size_t n);
+
+// What the values of a capture mean: LLRs log P(0)/P(1) (positive = 0), LLRs of the opposite
+// sign (positive = 1), or BPSK channel samples y = x + noise with 0 sent as x = +1 and Gaussian
+// noise of variance sigma^2 per sample, whose LLR is 2y / sigma^2.
+enum class SampleMeaning { llr, llr_inverted, samples };
+
+template <>
+struct Names<SampleMeaning> {
+  static constexpr std::string_view setting = "meaning";
+  static constexpr std::pair<SampleMeaning, std::string_view> table[] = {
+      {SampleMeaning::llr, "llr"},
+      {SampleMeaning::llr_inverted, "llr-inverted"},
+      {SampleMeaning::samples, "samples"},
+  };
+};
+
+// Captured frames to channel LLRs of the whole code: each value times the meaning's factor, then
+// expanded through the puncture map (punctured positions LLR 0, shortened +Inf: known 0 whatever
+// the sign convention of the capture).
+class SampleConverter {
+ public:
+  // noise_variance: sigma^2, needed by (and only by) samples. Error naming the setting otherwise.
+  SampleConverter(PunctureMap map, SampleMeaning meaning = SampleMeaning::llr,
+                  std::optional<double> noise_variance = std::nullopt);
+
+  std::size_t received() const noexcept { return received_; }   // values per captured frame
+  std::size_t n() const noexcept { return map_.state.size(); }  // LLRs per frame
+  double factor() const noexcept { return factor_; }            // LLR = factor() x value
+  // values: frames x received(); llr: frames x n(), the same number of frames.
+  void convert(std::span<const double> values, std::span<double> llr) const;
+
+ private:
+  PunctureMap map_;
+  std::size_t received_;
+  double factor_;
+};
 
 // Hard bits, one frame of a fixed length after another: text (characters 0/1, one frame per
 // line when written, whitespace ignored when read), packed (each frame padded to whole bytes,

@@ -2,6 +2,7 @@
 #include <cmath>
 #include <cstdlib>
 #include <fstream>
+#include <limits>
 #include <sstream>
 
 #include "tannery/decode/decoder.hpp"
@@ -69,6 +70,34 @@ TEST_CASE("text captures: separators, infinities, bad tokens", "[capture]") {
   CHECK(reader.read(5, out) == 0);
   CHECK_THAT(*reader.error(),
              Catch::Contains("t: byte 33 (frame 3, value 1): line 4: value is NaN"));
+}
+
+TEST_CASE("captured values to LLRs: meanings, punctured and shortened positions", "[capture]") {
+  // Positions 1 punctured, 3 shortened: a frame of 3 values fills positions 0, 2, 4.
+  const PunctureMap map = parse_puncture_map("punctured 1\nshortened 3\n", "map", 5);
+  const std::vector<double> values{1.5, -2.0, 0.5, -1.0, 4.0, 0.0};  // two frames
+  std::vector<double> llr(10);
+  const double inf = std::numeric_limits<double>::infinity();
+  SampleConverter(map).convert(values, llr);
+  CHECK(llr == std::vector<double>{1.5, 0, -2.0, inf, 0.5, -1.0, 0, 4.0, inf, 0.0});
+  // Inverted LLRs: the values change sign, a shortened position is still known to be 0.
+  SampleConverter(map, SampleMeaning::llr_inverted).convert(values, llr);
+  CHECK(llr[0] == -1.5);
+  CHECK(llr[3] == inf);
+  CHECK(llr[8] == inf);
+  // BPSK samples with sigma^2 = 0.5: LLR = 2y / sigma^2 = 4y (the AWGN LLR, common practice).
+  const SampleConverter samples(map, SampleMeaning::samples, 0.5);
+  CHECK(samples.factor() == 4.0);
+  samples.convert(values, llr);
+  CHECK(llr[2] == -8.0);
+  CHECK_THROWS_WITH(SampleConverter(map, SampleMeaning::samples),
+                    Catch::Contains("needs noise_variance"));
+  CHECK_THROWS_WITH(SampleConverter(map, SampleMeaning::llr, 1.0),
+                    Catch::Contains("noise_variance applies to meaning samples only"));
+  CHECK_THROWS_WITH(SampleConverter(map, SampleMeaning::samples, -1.0),
+                    Catch::Contains("noise_variance must be positive"));
+  CHECK_THROWS_WITH(samples.convert(std::span(values).first(4), llr),
+                    Catch::Contains("whole frames"));
 }
 
 TEST_CASE("bit frames: text, packed, bytes", "[capture]") {
