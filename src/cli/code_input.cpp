@@ -10,6 +10,7 @@
 #include <sstream>
 
 #include "commands.hpp"
+#include "settings_options.hpp"
 #include "tannery/error.hpp"
 #include "tannery/io/code_lookup.hpp"
 
@@ -32,7 +33,7 @@ void CodeInput::add_to(CLI::App& sub, bool positional, const std::string& defaul
   // --output-format (captures and bits); --from is convert's name, --format the older one.
   sub.add_option("--code-format,--from,--format", format,
                  "matrix format of CODE, instead of detecting it")
-      ->check(CLI::IsMember({"tannery", "alist", "mtx", "qc", "dense"}));
+      ->check(names_of<MatrixFormat>());
   sub.add_option("--lifting", lifting,
                  "lifting size Z (circulant size) for a qc base table that does not state it")
       ->check(CLI::Range(1, 1 << 20));

@@ -2,6 +2,7 @@
 #include <fmt/format.h>
 
 #include "commands.hpp"
+#include "settings_options.hpp"
 #include "tannery/io/matrix_io.hpp"
 #include "tannery/report/compare.hpp"
 
@@ -12,7 +13,6 @@ namespace {
 struct CompareCommand {
   std::string current, reference;
   CompareOptions options;
-  std::string mode = "automatic";
   std::optional<double> tolerance;
   bool json = false;
 };
@@ -34,11 +34,9 @@ void add_compare(CLI::App& app) {
                   "confidence of the one-sided tests (whole comparison)")
       ->check(CLI::Range(0.5, 0.999999))
       ->capture_default_str();
-  sub->add_option("--mode", o->mode,
-                  "automatic, exact (counts must match), paired (McNemar on the same frames) or "
-                  "unpaired (Fisher exact)")
-      ->check(CLI::IsMember({"automatic", "exact", "paired", "unpaired"}))
-      ->capture_default_str();
+  add_named_option(*sub, "--mode", o->options.mode,
+                   "automatic, exact (counts must match), paired (McNemar on the same frames) or "
+                   "unpaired (Fisher exact)");
   sub->add_option("--tolerance-db", o->tolerance,
                   "allow the current curve to reach --at-fer this far behind the reference (sweep "
                   "units: dB for "
@@ -51,10 +49,6 @@ void add_compare(CLI::App& app) {
     const RunRecord reference = parse_results_json(read_text_file(o->reference), o->reference);
     CompareOptions options = o->options;
     options.tolerance = o->tolerance;
-    options.mode = o->mode == "exact"      ? CompareMode::exact
-                   : o->mode == "paired"   ? CompareMode::paired
-                   : o->mode == "unpaired" ? CompareMode::unpaired
-                                           : CompareMode::automatic;
     const Comparison c = compare_runs(current, reference, options);
     fmt::print("{}", o->json ? comparison_json(c, options)
                              : comparison_text(c, current.config.channel, options));

@@ -4,6 +4,7 @@
 #include <sstream>
 
 #include "commands.hpp"
+#include "settings_options.hpp"
 #include "tannery/code/analysis.hpp"
 #include "tannery/code/construct.hpp"
 #include "tannery/error.hpp"
@@ -113,7 +114,7 @@ void add_construct(CLI::App& app) {
       ->check(CLI::IsMember({"peg", "regular", "lift", "hamming", "repetition", "parity"}));
   sub->add_option("-o,--output", o->output, "output file ('-' = stdout)")->required();
   sub->add_option("--to", o->to, "output format (default: from the extension)")
-      ->check(CLI::IsMember({"tannery", "alist", "mtx", "qc", "dense"}));
+      ->check(names_of<MatrixFormat>());
   sub->add_option("--seed", o->seed, "seed of the construction")->capture_default_str();
   // Bounded before anything is built: a negative or huge count would wrap or never finish.
   sub->add_option("--length", o->length, "code length n (bits)")

@@ -2,6 +2,7 @@
 #include <fmt/format.h>
 
 #include "commands.hpp"
+#include "settings_options.hpp"
 #include "tannery/error.hpp"
 #include "tannery/io/matrix_io.hpp"
 
@@ -39,8 +40,7 @@ void add_convert(CLI::App& app) {
                   "output file ('-' = stdout); format from --to or the extension "
                   "(.tanner .alist .mtx .qc .dense)")
       ->required();
-  sub->add_option("--to", o->to, "output format")
-      ->check(CLI::IsMember({"tannery", "alist", "mtx", "qc", "dense"}));
+  sub->add_option("--to", o->to, "output format")->check(names_of<MatrixFormat>());
   sub->callback([o] {
     const Code code = o->input.load();
     write_code_file(code, output_format(o->to, o->output), o->output);

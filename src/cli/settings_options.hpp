@@ -21,6 +21,15 @@ namespace tannery::cli {
 // Refuses a negative value for an unsigned option (CLI11 would wrap it to a huge count).
 extern const CLI::Validator kNonNegative;
 
+// Accepts the names of an enumeration's name table (for options kept as text, e.g. where empty
+// means "from the file extension").
+template <Named E>
+CLI::Validator names_of() {
+  std::vector<std::string> names;
+  for (const auto& entry : Names<E>::table) names.emplace_back(entry.second);
+  return CLI::IsMember(names);
+}
+
 // An option taking the names of an enumeration's name table, written to target as a value.
 template <Named E>
 CLI::Option* add_named_option(CLI::App& app, const std::string& flag, E& target,

@@ -5,6 +5,7 @@
 #include <sstream>
 
 #include "commands.hpp"
+#include "settings_options.hpp"
 #include "tannery/error.hpp"
 #include "tannery/theory/capacity.hpp"
 #include "tannery/theory/density_evolution.hpp"
@@ -18,8 +19,8 @@ struct ThresholdOptions {
   std::string regular;
   std::string lambda, rho;
   bool node_perspective = false;
-  std::string channel = "awgn";
-  std::string method = "discretized";
+  ChannelKind channel = ChannelKind::awgn;
+  ThresholdMethod method = ThresholdMethod::discretized;
   DecoderOptions decoder;
   std::optional<double> at;
   bool json = false;
@@ -60,7 +61,7 @@ void run(const ThresholdOptions& o) {
   e.validate();
   const DecoderSettings d = o.decoder.settings();
   ThresholdResult r;
-  const ChannelKind kind = *from_name<ChannelKind>(o.channel);
+  const ChannelKind kind = o.channel;
   if (kind == ChannelKind::bec) {
     if (d.algorithm != Algorithm::sum_product)
       throw Error(
@@ -75,8 +76,7 @@ void run(const ThresholdOptions& o) {
   } else if (kind == ChannelKind::bsc) {
     r = bsc_threshold(e, d);
   } else {
-    r = awgn_threshold(
-        e, d, o.method == "gaussian" ? ThresholdMethod::gaussian : ThresholdMethod::discretized);
+    r = awgn_threshold(e, d, o.method);
   }
   const char* unit =
       kind == ChannelKind::awgn ? "sigma" : (kind == ChannelKind::bsc ? "p" : "epsilon");
@@ -90,10 +90,14 @@ void run(const ThresholdOptions& o) {
     error_at = density_evolution_error(e, d, kind, value);
   }
   if (o.json) {
-    nlohmann::json j = {{"channel", o.channel},     {"algorithm", name_of(d.algorithm)},
-                        {"threshold", r.threshold}, {"parameter", unit},
-                        {"rate", r.rate},           {"limit", r.limit},
-                        {"method", r.method},       {"accuracy", r.accuracy}};
+    nlohmann::json j = {{"channel", name_of(o.channel)},
+                        {"algorithm", name_of(d.algorithm)},
+                        {"threshold", r.threshold},
+                        {"parameter", unit},
+                        {"rate", r.rate},
+                        {"limit", r.limit},
+                        {"method", r.method},
+                        {"accuracy", r.accuracy}};
     if (kind == ChannelKind::awgn) {
       j["ebn0_db"] = r.ebn0_db;
       j["gap_db"] = r.gap_db;
@@ -122,7 +126,8 @@ void run(const ThresholdOptions& o) {
   fmt::print("ensemble: design rate {:.6f}; lambda {}; rho {}\n", r.rate, degrees(e.lambda),
              degrees(e.rho));
   const std::string decoder = describe(d);
-  fmt::print("decoder {} on {}; {}\n", decoder.substr(0, decoder.find(" (")), o.channel, r.method);
+  fmt::print("decoder {} on {}; {}\n", decoder.substr(0, decoder.find(" (")), name_of(o.channel),
+             r.method);
   if (r.stalled) {
     // Never a plain threshold: the error probability stops at a floor after the waterfall.
     const std::string where =
@@ -177,15 +182,11 @@ void add_threshold(CLI::App& app) {
   sub->add_option("--rho", o->rho, "check degrees DEGREE:COEFF,...");
   sub->add_flag("--node-perspective", o->node_perspective,
                 "--lambda/--rho give fractions of nodes, not of edges");
-  sub->add_option("--channel", o->channel,
-                  "awgn (threshold as sigma and Eb/N0), bsc (p) or bec (epsilon)")
-      ->check(CLI::IsMember({"awgn", "bsc", "bec"}))
-      ->capture_default_str();
-  sub->add_option(
-         "--method", o->method,
-         "awgn: discretized (density evolution on an LLR grid) or gaussian (fast approximation)")
-      ->check(CLI::IsMember({"discretized", "gaussian"}))
-      ->capture_default_str();
+  add_named_option(*sub, "--channel", o->channel,
+                   "awgn (threshold as sigma and Eb/N0), bsc (p) or bec (epsilon)");
+  add_named_option(
+      *sub, "--method", o->method,
+      "awgn: discretized (density evolution on an LLR grid) or gaussian (fast approximation)");
   sub->add_option("--at", o->at,
                   "also report where density evolution ends at this point: Eb/N0 in dB at the "
                   "design rate (awgn) or p (bsc); the error probability of the messages");

@@ -4,15 +4,17 @@
 #include <algorithm>
 #include <chrono>
 #include <ctime>
-#include <sstream>
 #include <nlohmann/json.hpp>
+#include <sstream>
 #include <type_traits>
 
 #include "tannery/error.hpp"
+#include "tannery/io/capture.hpp"
 #include "tannery/io/code_lookup.hpp"
 #include "tannery/io/matrix_io.hpp"
-#include "tannery/report/sha256.hpp"
 #include "tannery/report/settings_json.hpp"
+#include "tannery/report/sha256.hpp"
+#include "tannery/version.hpp"
 
 namespace tannery {
 
@@ -138,14 +140,54 @@ CodeRecord code_record(const std::string& source, const Code& code, std::size_t 
   return r;
 }
 
+RunRecord new_run_record(const std::string& source, const Code& code, const Simulator& sim) {
+  RunRecord r;
+  r.tool_version = std::string(version());
+  r.created = utc_now();
+  r.code = code_record(source, code, sim.encoder().k());
+  r.config = sim.config();
+  r.rate_for_snr = sim.rate();
+  r.threads_used = sim.config().threads;
+  return r;
+}
+
+Throughput throughput(const RunRecord& run, double seconds) {
+  if (!(seconds > 0)) return {};
+  double frames = 0, iterations = 0;
+  for (const PointResult& p : run.points) {
+    frames += static_cast<double>(p.frames);
+    iterations += static_cast<double>(p.iterations);
+  }
+  Throughput t;
+  t.frames_per_second = frames / seconds;
+  t.coded_bits_per_second = t.frames_per_second * static_cast<double>(run.code.n);
+  t.info_bits_per_second = t.frames_per_second * static_cast<double>(run.code.k);
+  t.edge_updates_per_second = iterations * static_cast<double>(run.code.edges) / seconds;
+  t.edge_updates_per_thread = t.edge_updates_per_second / std::max(1u, run.threads_used);
+  return t;
+}
+
+FailureCapture failure_capture(const std::vector<KeptFrame>& kept,
+                               const std::vector<double>& sweep) {
+  FailureCapture c;
+  c.index = "# point parameter frame (one line per float32 frame in the capture)\n";
+  for (const KeptFrame& f : kept) {
+    append_f32_le(c.llr_bytes, std::vector<float>(f.llr.begin(), f.llr.end()));
+    c.index += fmt::format("{} {} {}\n", f.point, sweep.at(f.point), f.frame);
+  }
+  return c;
+}
+
 std::vector<std::string> config_differences(const SimulationConfig& recorded,
                                             const SimulationConfig& asked) {
   std::vector<std::string> d;
   auto compare = [&](const json& was, const json& is) {
     for (const auto& [key, value] : is.items()) {
       if (was.value(key, json()) != value) {
-        d.push_back(fmt::format("{} {} (recorded: {})", key, value.is_string() ? value.get<std::string>() : value.dump(),
-                                was[key].is_string() ? was[key].get<std::string>() : was[key].dump()));
+        d.push_back(
+            fmt::format("{} {} (recorded: {})", key,
+                        value.is_string() ? value.get<std::string>() : value.dump(),
+                        was[key].is_string() ? was[key].get<std::string>() : was[key].dump()));
       }
     }
   };

@@ -405,7 +405,19 @@ FrameData Simulator::replay(std::size_t point, std::uint64_t frame) const {
                  d.codeword, noise, d.llr);
   auto decoder = make_decoder(shared_, config_.decoder);
   decoder->decode(d.llr, d.hard, d.posterior, std::span(&d.outcome, 1), frame);
+  for (std::size_t i = 0; i < n; ++i) d.coded_errors += d.hard[i] != d.codeword[i];
+  d.info_errors = encoder_.info_errors(d.hard, d.info);
   return d;
+}
+
+double frames_to_go(const PointResult& t, const StopRules& stop) {
+  double remaining = static_cast<double>(stop.max_frames - std::min(t.frames, stop.max_frames));
+  if (t.frame_errors > 0) {
+    const double need =
+        static_cast<double>(stop.frame_errors - std::min(t.frame_errors, stop.frame_errors));
+    remaining = std::min(remaining, need / t.fer());
+  }
+  return remaining;
 }
 
 std::vector<double> default_sweep(ChannelKind kind) {

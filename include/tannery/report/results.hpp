@@ -46,6 +46,25 @@ struct PointStats {
 };
 PointStats point_stats(const PointResult& p, double confidence);
 
+// A new run's record before its points: this build's version, the time now, the code's
+// provenance (source as given), the simulator's settings, rate for Eb/N0 and threads.
+RunRecord new_run_record(const std::string& source, const Code& code, const Simulator& sim);
+
+// Throughput of a run's points over `seconds` of wall time (0 when seconds is not positive).
+struct Throughput {
+  double frames_per_second = 0, coded_bits_per_second = 0, info_bits_per_second = 0;
+  double edge_updates_per_second = 0, edge_updates_per_thread = 0;
+};
+Throughput throughput(const RunRecord& run, double seconds);
+
+// Kept failing frames as a capture `tannery decode` reads (float32 LLRs, n per frame) and its
+// index, one line "point parameter frame" per frame.
+struct FailureCapture {
+  std::string llr_bytes, index;
+};
+FailureCapture failure_capture(const std::vector<KeptFrame>& kept,
+                               const std::vector<double>& sweep);
+
 // "ebn0_db", "esn0_db", "p" or "epsilon".
 std::string parameter_key(const ChannelSpec& channel);
 // Column heading: "Eb/N0 dB", "Es/N0 dB", "p", "epsilon".

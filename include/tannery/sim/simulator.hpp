@@ -91,7 +91,12 @@ struct FrameData {
   std::vector<std::uint8_t> info, codeword, hard;
   std::vector<double> llr, posterior;
   FrameOutcome outcome;
+  std::size_t coded_errors = 0, info_errors = 0;  // decisions against the codeword sent
 };
+
+// Frames a point still needs by the stop rules, estimated at its frame-error rate so far: to
+// reach the frame-error target, capped by max_frames (the time limit is not counted).
+double frames_to_go(const PointResult& totals, const StopRules& stop);
 
 struct Progress {
   std::size_t point = 0;
