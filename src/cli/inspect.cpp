@@ -1,6 +1,5 @@
 // tannery inspect CODE: size, rank, rate, degree distributions, girth, structure, distance.
 #include <fmt/format.h>
-#include <nlohmann/json.hpp>
 
 #include "commands.hpp"
 #include "tannery/code/analysis.hpp"
@@ -42,76 +41,6 @@ void write_dot(const InspectOptions& o, const Code& code) {
   out.commit();
 }
 
-struct Report {
-  Code code;
-  Encoder encoder;
-  DegreeProfile degrees;
-  CycleCensus cycles;
-  RowRedundancy redundancy;
-  std::optional<std::vector<std::uint64_t>> enumerator;
-  std::optional<std::size_t> distance;
-};
-
-nlohmann::json degree_json(const std::map<std::size_t, std::size_t>& counts) {
-  nlohmann::json j = nlohmann::json::object();
-  for (auto [d, c] : counts) j[std::to_string(d)] = c;
-  return j;
-}
-nlohmann::json edge_fraction_json(const std::map<std::size_t, std::size_t>& counts,
-                                  std::size_t edges) {
-  nlohmann::json j = nlohmann::json::object();
-  for (auto [d, c] : counts) {
-    if (d > 0) j[std::to_string(d)] = static_cast<double>(d * c) / static_cast<double>(edges);
-  }
-  return j;
-}
-
-void print_json(const InspectOptions& o, const Report& r) {
-  const Code& code = r.code;
-  nlohmann::json j;
-  j["source"] = o.input.code;
-  j["n"] = code.n();
-  j["m"] = code.m();
-  j["rank"] = r.encoder.rank();
-  j["k"] = r.encoder.k();
-  j["rate"] = code.n() ? static_cast<double>(r.encoder.k()) / static_cast<double>(code.n()) : 0.0;
-  j["design_rate"] =
-      code.n() ? 1.0 - static_cast<double>(code.m()) / static_cast<double>(code.n()) : 0.0;
-  j["edges"] = code.edges();
-  j["density"] = code.n() && code.m()
-                     ? static_cast<double>(code.edges()) / static_cast<double>(code.n() * code.m())
-                     : 0.0;
-  j["variable_degrees"] = degree_json(r.degrees.variable);
-  j["check_degrees"] = degree_json(r.degrees.check);
-  j["lambda"] = edge_fraction_json(r.degrees.variable, code.edges());
-  j["rho"] = edge_fraction_json(r.degrees.check, code.edges());
-  j["girth"] = r.cycles.girth ? nlohmann::json(*r.cycles.girth) : nlohmann::json(nullptr);
-  j["shortest_cycles"] = r.cycles.girth ? nlohmann::json(r.cycles.count) : nlohmann::json(nullptr);
-  j["redundant_rows"] = code.m() - r.encoder.rank();
-  j["empty_rows"] = r.redundancy.empty;
-  j["repeated_rows"] = nlohmann::json::array();
-  for (auto [a, b] : r.redundancy.repeated) j["repeated_rows"].push_back({a, b});
-  j["min_distance"] = r.distance ? nlohmann::json(*r.distance) : nlohmann::json(nullptr);
-  j["weight_enumerator"] = r.enumerator ? nlohmann::json(*r.enumerator) : nlohmann::json(nullptr);
-  if (const auto& qc = code.quasi_cyclic()) {
-    j["quasi_cyclic"] = {
-        {"block_rows", qc->block_rows}, {"block_cols", qc->block_cols}, {"lifting", qc->lifting}};
-  } else {
-    j["quasi_cyclic"] = nullptr;
-  }
-  // Where encode and decode put the information bits by default, all k of them; and whether
-  // positions 0..k-1 could carry them instead (--systematic-first).
-  j["info_positions"] = r.encoder.info_positions();
-  bool first = true;
-  try {
-    (void)make_encoder(code, true);
-  } catch (const Error&) {
-    first = false;
-  }
-  j["systematic_first_possible"] = first;
-  fmt::print("{}\n", j.dump(2));
-}
-
 std::string degree_lines(const std::map<std::size_t, std::size_t>& counts, std::size_t nodes,
                          std::size_t edges, const char* symbol) {
   std::string out;
@@ -138,33 +67,29 @@ std::string polynomial(const std::vector<std::uint64_t>& a) {
   return out;
 }
 
-void print_text(const InspectOptions& o, const Report& r) {
-  const Code& code = r.code;
-  const double n = static_cast<double>(code.n());
+void print_text(const InspectOptions& o, const CodeReport& r) {
+  const double n = static_cast<double>(r.n);
   std::string s;
   s += fmt::format("code           {}\n", o.input.code);
-  s += fmt::format("length n       {}\nchecks m       {}\n", code.n(), code.m());
-  s += fmt::format("rank           {}   ({} redundant rows)\n", r.encoder.rank(),
-                   code.m() - r.encoder.rank());
-  s += fmt::format("dimension k    {}\n", r.encoder.k());
-  s += fmt::format("rate k/n       {:.6f}   design rate 1 - m/n = {:.6f}\n",
-                   n > 0 ? static_cast<double>(r.encoder.k()) / n : 0.0,
-                   n > 0 ? 1.0 - static_cast<double>(code.m()) / n : 0.0);
-  s += fmt::format("edges          {}   density {:.6g}\n", code.edges(),
-                   code.n() && code.m()
-                       ? static_cast<double>(code.edges()) / (n * static_cast<double>(code.m()))
-                       : 0.0);
+  s += fmt::format("length n       {}\nchecks m       {}\n", r.n, r.m);
+  s += fmt::format("rank           {}   ({} redundant rows)\n", r.rank, r.m - r.rank);
+  s += fmt::format("dimension k    {}\n", r.k);
+  s += fmt::format("rate k/n       {:.6f}   design rate 1 - m/n = {:.6f}\n", r.rate(),
+                   r.design_rate());
+  s +=
+      fmt::format("edges          {}   density {:.6g}\n", r.edges,
+                  r.n && r.m ? static_cast<double>(r.edges) / (n * static_cast<double>(r.m)) : 0.0);
   s += "variable degrees (node perspective; edge perspective lambda_d)\n";
-  s += degree_lines(r.degrees.variable, code.n(), code.edges(), "lambda");
+  s += degree_lines(r.degrees.variable, r.n, r.edges, "lambda");
   s += "check degrees (node perspective; edge perspective rho_d)\n";
-  s += degree_lines(r.degrees.check, code.m(), code.edges(), "rho");
+  s += degree_lines(r.degrees.check, r.m, r.edges, "rho");
   if (r.cycles.girth) {
     s += fmt::format("girth          {}   ({} cycles of length {})\n", *r.cycles.girth,
                      r.cycles.count, *r.cycles.girth);
   } else {
     s += "girth          none (the Tanner graph is a forest)\n";
   }
-  if (const auto& qc = code.quasi_cyclic()) {
+  if (const auto& qc = r.quasi_cyclic) {
     s += fmt::format("quasi-cyclic   {} x {} base blocks, lifting size Z = {}\n", qc->block_rows,
                      qc->block_cols, qc->lifting);
   }
@@ -188,24 +113,18 @@ void print_text(const InspectOptions& o, const Report& r) {
                     : "min distance   none (k = 0)\n";
     s += fmt::format("weight enumerator  A(z) = {}\n", polynomial(*r.enumerator));
   } else {
-    s += fmt::format("min distance   not computed (k = {} > {}; enumeration is exhaustive)\n",
-                     r.encoder.k(), o.max_dimension);
+    s += fmt::format("min distance   not computed (k = {} > {}; enumeration is exhaustive)\n", r.k,
+                     o.max_dimension);
   }
   fmt::print("{}", s);
 }
 
 void run(const InspectOptions& o) {
-  Code code = o.input.load();
-  Encoder encoder(code);
-  Report r{std::move(code), std::move(encoder), {}, {}, {}, {}, {}};
-  r.degrees = degree_profile(r.code);
-  r.cycles = cycle_census(r.code);
-  r.redundancy = row_redundancy(r.code);
-  r.enumerator = weight_enumerator(r.code, r.encoder, o.max_dimension);
-  if (r.enumerator) r.distance = minimum_distance(*r.enumerator);
-  if (!o.dot.empty()) write_dot(o, r.code);
+  const Code code = o.input.load();
+  const CodeReport r = inspect_code(code, o.max_dimension);
+  if (!o.dot.empty()) write_dot(o, code);
   if (o.json) {
-    print_json(o, r);
+    fmt::print("{}\n", code_report_json(r, o.input.code));
   } else {
     print_text(o, r);
   }

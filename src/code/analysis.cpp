@@ -4,6 +4,8 @@
 #include <algorithm>
 #include <bit>
 #include <limits>
+#include <nlohmann/json.hpp>
+#include <numeric>
 #include <set>
 
 #include "tannery/error.hpp"
@@ -270,6 +272,85 @@ std::optional<std::size_t> minimum_distance(const std::vector<std::uint64_t>& en
     if (enumerator[w] != 0) return w;
   }
   return std::nullopt;
+}
+
+CodeReport inspect_code(const Code& code, std::size_t max_dimension) {
+  const Encoder encoder(code);
+  CodeReport r;
+  r.n = code.n();
+  r.m = code.m();
+  r.rank = encoder.rank();
+  r.k = encoder.k();
+  r.edges = code.edges();
+  r.degrees = degree_profile(code);
+  r.cycles = cycle_census(code);
+  r.redundancy = row_redundancy(code);
+  r.enumerator = weight_enumerator(code, encoder, max_dimension);
+  if (r.enumerator) r.distance = minimum_distance(*r.enumerator);
+  r.info_positions = encoder.info_positions();
+  std::vector<std::uint32_t> first(r.k);
+  std::iota(first.begin(), first.end(), 0u);
+  try {
+    (void)Encoder(code, first);
+    r.systematic_first_possible = r.k > 0;
+  } catch (const Error&) {
+    r.systematic_first_possible = false;
+  }
+  r.quasi_cyclic = code.quasi_cyclic();
+  return r;
+}
+
+namespace {
+
+nlohmann::json degree_json(const std::map<std::size_t, std::size_t>& counts) {
+  nlohmann::json j = nlohmann::json::object();
+  for (auto [d, c] : counts) j[std::to_string(d)] = c;
+  return j;
+}
+nlohmann::json edge_fraction_json(const std::map<std::size_t, std::size_t>& counts,
+                                  std::size_t edges) {
+  nlohmann::json j = nlohmann::json::object();
+  for (auto [d, c] : counts) {
+    if (d > 0) j[std::to_string(d)] = static_cast<double>(d * c) / static_cast<double>(edges);
+  }
+  return j;
+}
+
+}  // namespace
+
+std::string code_report_json(const CodeReport& r, const std::string& source) {
+  using nlohmann::json;
+  json j;
+  j["source"] = source;
+  j["n"] = r.n;
+  j["m"] = r.m;
+  j["rank"] = r.rank;
+  j["k"] = r.k;
+  j["rate"] = r.rate();
+  j["design_rate"] = r.design_rate();
+  j["edges"] = r.edges;
+  j["density"] = r.n && r.m ? static_cast<double>(r.edges) / static_cast<double>(r.n * r.m) : 0.0;
+  j["variable_degrees"] = degree_json(r.degrees.variable);
+  j["check_degrees"] = degree_json(r.degrees.check);
+  j["lambda"] = edge_fraction_json(r.degrees.variable, r.edges);
+  j["rho"] = edge_fraction_json(r.degrees.check, r.edges);
+  j["girth"] = r.cycles.girth ? json(*r.cycles.girth) : json(nullptr);
+  j["shortest_cycles"] = r.cycles.girth ? json(r.cycles.count) : json(nullptr);
+  j["redundant_rows"] = r.m - r.rank;
+  j["empty_rows"] = r.redundancy.empty;
+  j["repeated_rows"] = json::array();
+  for (auto [a, b] : r.redundancy.repeated) j["repeated_rows"].push_back({a, b});
+  j["min_distance"] = r.distance ? json(*r.distance) : json(nullptr);
+  j["weight_enumerator"] = r.enumerator ? json(*r.enumerator) : json(nullptr);
+  j["quasi_cyclic"] = r.quasi_cyclic ? json{{"block_rows", r.quasi_cyclic->block_rows},
+                                            {"block_cols", r.quasi_cyclic->block_cols},
+                                            {"lifting", r.quasi_cyclic->lifting}}
+                                     : json(nullptr);
+  // Where encode and decode put the information bits by default, all k of them; and whether
+  // positions 0..k-1 could carry them instead (--systematic-first).
+  j["info_positions"] = r.info_positions;
+  j["systematic_first_possible"] = r.systematic_first_possible;
+  return j.dump(2);
 }
 
 }  // namespace tannery

@@ -57,4 +57,24 @@ std::optional<std::vector<std::uint64_t>> weight_enumerator(const Code& code,
 // Smallest nonzero weight with a codeword; empty when k = 0.
 std::optional<std::size_t> minimum_distance(const std::vector<std::uint64_t>& enumerator);
 
+// Everything `tannery inspect` reports about a code, computed once.
+struct CodeReport {
+  std::size_t n = 0, m = 0, rank = 0, k = 0, edges = 0;
+  DegreeProfile degrees;
+  CycleCensus cycles;
+  RowRedundancy redundancy;
+  std::optional<std::vector<std::uint64_t>> enumerator;  // when k <= max_dimension
+  std::optional<std::size_t> distance;
+  std::vector<std::uint32_t> info_positions;  // where the default encoder puts information bits
+  bool systematic_first_possible = false;     // positions 0..k-1 form an information set
+  std::optional<QuasiCyclic> quasi_cyclic;
+  double rate() const { return n ? static_cast<double>(k) / static_cast<double>(n) : 0.0; }
+  double design_rate() const {
+    return n ? 1.0 - static_cast<double>(m) / static_cast<double>(n) : 0.0;
+  }
+};
+CodeReport inspect_code(const Code& code, std::size_t max_dimension = 24);
+// The report as one JSON document (the schema of `tannery inspect --json`); source names the code.
+std::string code_report_json(const CodeReport& report, const std::string& source);
+
 }  // namespace tannery
