@@ -3,12 +3,14 @@
 #include <csignal>
 #include <cstdio>
 #include <exception>
+#include <filesystem>
 #include <optional>
 #include <string>
 #include <vector>
 
 #include "commands.hpp"
 #include "tannery/error.hpp"
+#include "tannery/io/code_lookup.hpp"
 #include "tannery/version.hpp"
 
 namespace {
@@ -85,6 +87,11 @@ int main(int argc, char** argv) {
   // Beyond a file-size limit (ulimit -f) a write must fail with a message and remove its
   // temporary file, not kill the process silently (SIGXFSZ, exit 153).
   std::signal(SIGXFSZ, SIG_IGN);
+  // Shipped codes beside the executable: PREFIX/bin/tannery finds PREFIX/share/tannery/codes
+  // wherever the installation was moved, build/tannery the build tree's copy.
+  std::error_code ec;
+  const auto exe = std::filesystem::read_symlink("/proc/self/exe", ec);
+  if (!ec) tannery::add_code_directories_near(exe.parent_path().string(), 1);
   CLI::App app{
       "tannery: design, inspect, decode and simulate error-correcting codes on Tanner graphs"};
   app.set_version_flag("--version", "tannery " + std::string(tannery::version()));

@@ -4,6 +4,7 @@
 #include <algorithm>
 #include <cstdlib>
 #include <filesystem>
+#include <mutex>
 
 #include "tannery/error.hpp"
 
@@ -13,12 +14,21 @@ namespace fs = std::filesystem;
 
 namespace {
 
-// Where shipped codes live: $TANNERY_CODES, the installed data folder, the source tree.
+std::mutex added_mutex;
+std::vector<fs::path>& added_dirs() {
+  static std::vector<fs::path> dirs;
+  return dirs;
+}
+
+// Where shipped codes live: $TANNERY_CODES, the added directories, the installation prefix.
 std::vector<fs::path> code_dirs() {
   std::vector<fs::path> dirs;
   if (const char* env = std::getenv("TANNERY_CODES")) dirs.emplace_back(env);
+  {
+    std::lock_guard lock(added_mutex);
+    dirs.insert(dirs.end(), added_dirs().begin(), added_dirs().end());
+  }
   dirs.emplace_back(TANNERY_INSTALL_CODES_DIR);
-  dirs.emplace_back(TANNERY_SOURCE_CODES_DIR);
   return dirs;
 }
 
@@ -27,6 +37,23 @@ bool is_matrix_file(const fs::path& p) {
 }
 
 }  // namespace
+
+void add_code_directory(const std::string& directory) {
+  std::error_code ec;
+  if (!fs::is_directory(directory, ec)) return;
+  std::lock_guard lock(added_mutex);
+  auto& dirs = added_dirs();
+  if (std::find(dirs.begin(), dirs.end(), fs::path(directory)) == dirs.end())
+    dirs.emplace_back(directory);
+}
+
+void add_code_directories_near(const std::string& dir, int levels) {
+  fs::path at(dir);
+  for (int up = 0; up <= levels && !at.empty(); ++up, at = at.parent_path()) {
+    add_code_directory((at / "share" / "tannery" / "codes").string());
+    if (at == at.parent_path()) break;
+  }
+}
 
 std::vector<std::string> shipped_code_names() {
   std::vector<std::string> names;

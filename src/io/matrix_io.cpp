@@ -29,8 +29,9 @@ constexpr std::int64_t kMaxLifting = 1 << 20;
 
 // File extensions of the formats.
 constexpr std::pair<MatrixFormat, std::string_view> kExtensions[] = {
-    {MatrixFormat::tannery, ".tanner"}, {MatrixFormat::alist, ".alist"}, {MatrixFormat::mtx, ".mtx"},
-    {MatrixFormat::qc, ".qc"},          {MatrixFormat::dense, ".dense"},
+    {MatrixFormat::tannery, ".tanner"}, {MatrixFormat::alist, ".alist"},
+    {MatrixFormat::mtx, ".mtx"},        {MatrixFormat::qc, ".qc"},
+    {MatrixFormat::dense, ".dense"},
 };
 
 // Sorts a check's variables and refuses a repeated one, naming the line.
@@ -567,12 +568,6 @@ void write_code(const Code& code, MatrixFormat format, std::ostream& out) {
     case MatrixFormat::dense:
       return write_dense(code, out);
   }
-}
-
-void write_file_atomically(const std::string& path, std::string_view content) {
-  OutputFile out(path, false);
-  out.write(content);
-  out.commit();
 }
 
 void write_code_file(const Code& code, MatrixFormat format, const std::string& path) {

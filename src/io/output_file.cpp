@@ -162,4 +162,10 @@ void OutputFile::abandon() {
   file_ = nullptr;
 }
 
+void write_file_atomically(const std::string& path, std::string_view content) {
+  OutputFile out(path, false);
+  out.write(content);
+  out.commit();
+}
+
 }  // namespace tannery

@@ -54,7 +54,5 @@ void write_code_file(const Code& code, MatrixFormat format, const std::string& p
 
 // Reads a whole file, refusing more than max_bytes; "-" = standard input.
 std::string read_text_file(const std::string& path, std::size_t max_bytes = kMaxFileBytes);
-// Writes text to path atomically via a temporary file in the same directory; "-" = stdout.
-void write_file_atomically(const std::string& path, std::string_view content);
 
 }  // namespace tannery

@@ -43,4 +43,7 @@ class OutputFile {
   bool unnamed_ = false;  // an O_TMPFILE file, named only at commit
 };
 
+// The whole content at once, published as an OutputFile is ("-" = standard output).
+void write_file_atomically(const std::string& path, std::string_view content);
+
 }  // namespace tannery
