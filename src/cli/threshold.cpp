@@ -60,24 +60,8 @@ void run(const ThresholdOptions& o) {
   const Ensemble e = ensemble_of(o);
   e.validate();
   const DecoderSettings d = o.decoder.settings();
-  ThresholdResult r;
   const ChannelKind kind = o.channel;
-  if (kind == ChannelKind::bec) {
-    if (d.algorithm != Algorithm::sum_product)
-      throw Error(
-          "on the BEC every message-passing decoder is the peeling decoder; use --algorithm "
-          "sum-product");
-    r.threshold = bec_threshold(e);
-    r.rate = e.design_rate();
-    r.limit = 1 - r.rate;
-    r.method = "exact density evolution (BEC)";
-    r.accuracy = 1e-6;
-    r.target = 1e-12;  // the recursion's own stopping point
-  } else if (kind == ChannelKind::bsc) {
-    r = bsc_threshold(e, d);
-  } else {
-    r = awgn_threshold(e, d, o.method);
-  }
+  const ThresholdResult r = threshold(e, d, kind, o.method);
   const char* unit =
       kind == ChannelKind::awgn ? "sigma" : (kind == ChannelKind::bsc ? "p" : "epsilon");
   // --at: where density evolution ends at one channel point (Eb/N0 in dB for AWGN at the design

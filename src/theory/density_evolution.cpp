@@ -545,43 +545,23 @@ ThresholdResult bsc_threshold(const Ensemble& e, const DecoderSettings& decoder)
   return r;
 }
 
-std::pair<double, double> capacity_dispersion(ChannelKind kind, double value) {
-  switch (kind) {
-    case ChannelKind::bec:
-      return {1 - value, value * (1 - value)};
-    case ChannelKind::bsc: {
-      const double l = value > 0 && value < 1 ? std::log2((1 - value) / value) : 0;
-      return {bsc_capacity(value), value * (1 - value) * l * l};
-    }
-    case ChannelKind::awgn: {
-      // i(x; y) = 1 - log2(1 + exp(-2Y/sigma^2)) for X = +1, Y ~ N(1, sigma^2) (symmetric channel).
-      const double s2 = value * value;
-      const int steps = 4000;
-      const double lo = 1 - 14 * value, hi = 1 + 14 * value, h = (hi - lo) / steps;
-      double m1 = 0, m2 = 0;
-      for (int i = 0; i <= steps; ++i) {
-        const double y = lo + i * h;
-        const double w = (i == 0 || i == steps ? 1 : (i % 2 ? 4 : 2)) *
-                         std::exp(-(y - 1) * (y - 1) / (2 * s2)) / (value * std::sqrt(2 * M_PI));
-        const double t = -2 * y / s2;
-        const double info =
-            1 - (t > 0 ? t + std::log1p(std::exp(-t)) : std::log1p(std::exp(t))) / std::log(2.0);
-        m1 += w * info;
-        m2 += w * info * info;
-      }
-      m1 *= h / 3;
-      m2 *= h / 3;
-      return {m1, std::max(0.0, m2 - m1 * m1)};
-    }
+ThresholdResult threshold(const Ensemble& e, const DecoderSettings& decoder, ChannelKind kind,
+                          ThresholdMethod method) {
+  if (kind == ChannelKind::awgn) return awgn_threshold(e, decoder, method);
+  if (kind == ChannelKind::bsc) return bsc_threshold(e, decoder);
+  if (decoder.algorithm != Algorithm::sum_product) {
+    throw Error(
+        "on the BEC every message-passing decoder is the peeling decoder; use algorithm "
+        "sum-product");
   }
-  return {0, 0};
-}
-
-double normal_approximation_fer(ChannelKind kind, double value, std::size_t n, std::size_t k) {
-  const auto [c, v] = capacity_dispersion(kind, value);
-  const double nd = static_cast<double>(n);
-  if (v <= 0) return static_cast<double>(k) < nd * c ? 0.0 : 1.0;
-  return normal_tail((nd * c - static_cast<double>(k) + 0.5 * std::log2(nd)) / std::sqrt(nd * v));
+  ThresholdResult r;
+  r.threshold = bec_threshold(e);
+  r.rate = e.design_rate();
+  r.limit = 1 - r.rate;
+  r.method = "exact density evolution (BEC)";
+  r.accuracy = 1e-6;
+  r.target = 1e-12;  // the recursion's own stopping point
+  return r;
 }
 
 }  // namespace tannery

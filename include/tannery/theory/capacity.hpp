@@ -1,5 +1,11 @@
-// Channel capacities and the limits they put on a code of a given rate.
+// Channel capacities, the limits they put on a code of a given rate, and the finite-length
+// limit of a code of a given length and dimension (normal approximation).
 #pragma once
+
+#include <cstddef>
+#include <utility>
+
+#include "tannery/channel/channel.hpp"
 
 namespace tannery {
 
@@ -15,5 +21,14 @@ double bec_capacity(double epsilon);      // 1 - epsilon
 double bsc_limit_crossover(double rate);  // largest p with 1 - h2(p) >= R (p <= 1/2)
 // Bit error rate of uncoded BPSK over AWGN: Q(sqrt(2 Eb/N0)).
 double uncoded_bpsk_ber(double ebn0_db);
+
+// Finite-length limits.
+// Normal approximation of the finite-length limit (Polyanskiy, Poor, Verdu 2010):
+// log2 M* ~ n C - sqrt(n V) Qinv(eps) + log2(n) / 2. Returns the smallest FER achievable by a
+// code of length n with k information bits at the channel parameter.
+double normal_approximation_fer(ChannelKind kind, double parameter_value, std::size_t n,
+                                std::size_t k);
+// Capacity and dispersion (bits, bits^2) of BPSK-AWGN at sigma, the BSC at p, the BEC at epsilon.
+std::pair<double, double> capacity_dispersion(ChannelKind kind, double value);
 
 }  // namespace tannery

@@ -76,18 +76,14 @@ double bec_threshold(const Ensemble& e);
 ThresholdResult awgn_threshold(const Ensemble& e, const DecoderSettings& decoder,
                                ThresholdMethod method);
 ThresholdResult bsc_threshold(const Ensemble& e, const DecoderSettings& decoder);
+// The threshold on any channel: the BEC's exact one (sum-product only: on the BEC every
+// message-passing decoder is the peeling decoder), else bsc_threshold or awgn_threshold.
+ThresholdResult threshold(const Ensemble& e, const DecoderSettings& decoder, ChannelKind kind,
+                          ThresholdMethod method = ThresholdMethod::discretized);
 // Where discretized density evolution ends at one channel value (AWGN sigma or BSC p): the error
 // probability of the messages, below 1e-7 when it converges, else the fixed point it stalls at
 // (a failure or, past the waterfall, a floor).
 double density_evolution_error(const Ensemble& e, const DecoderSettings& decoder, ChannelKind kind,
                                double value);
-
-// Normal approximation of the finite-length limit (Polyanskiy, Poor, Verdu 2010):
-// log2 M* ~ n C - sqrt(n V) Qinv(eps) + log2(n) / 2. Returns the smallest FER achievable by a
-// code of length n with k information bits at the channel parameter.
-double normal_approximation_fer(ChannelKind kind, double parameter_value, std::size_t n,
-                                std::size_t k);
-// Capacity and dispersion (bits, bits^2) of BPSK-AWGN at sigma, the BSC at p, the BEC at epsilon.
-std::pair<double, double> capacity_dispersion(ChannelKind kind, double value);
 
 }  // namespace tannery

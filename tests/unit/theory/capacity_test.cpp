@@ -18,3 +18,17 @@ TEST_CASE("BSC and BEC capacities", "[theory]") {
   CHECK(bec_capacity(0.25) == 0.75);
   CHECK(biawgn_capacity(1e-3) == Approx(1.0).margin(1e-12));
 }
+
+TEST_CASE("normal approximation of the finite-length limit", "[theory]") {
+  // Polyanskiy, Poor, Verdu 2010: BEC capacity 1 - eps, dispersion eps (1 - eps); at the
+  // erasure probability where n C + log2(n)/2 = k the approximation gives FER 1/2.
+  const std::size_t n = 1000, k = 500;
+  const double eps = 1 - (static_cast<double>(k) - 0.5 * std::log2(1000.0)) / 1000.0;
+  CHECK(normal_approximation_fer(ChannelKind::bec, eps, n, k) == Approx(0.5).margin(1e-12));
+  // AWGN: capacity from the dispersion routine equals the capacity routine.
+  CHECK(capacity_dispersion(ChannelKind::awgn, 0.8).first ==
+        Approx(biawgn_capacity(0.8)).epsilon(1e-9));
+  // Better channel, lower FER.
+  CHECK(normal_approximation_fer(ChannelKind::awgn, 0.7, 648, 324) <
+        normal_approximation_fer(ChannelKind::awgn, 0.8, 648, 324));
+}

@@ -111,17 +111,3 @@ TEST_CASE("ensembles from node fractions and rates", "[theory]") {
   CHECK(e.design_rate() == Approx(0.5));
   CHECK_THROWS(Ensemble{{{3, 0.5}}, {{6, 1.0}}}.validate());
 }
-
-TEST_CASE("normal approximation of the finite-length limit", "[theory]") {
-  // Polyanskiy, Poor, Verdu 2010: BEC capacity 1 - eps, dispersion eps (1 - eps); at the
-  // erasure probability where n C + log2(n)/2 = k the approximation gives FER 1/2.
-  const std::size_t n = 1000, k = 500;
-  const double eps = 1 - (static_cast<double>(k) - 0.5 * std::log2(1000.0)) / 1000.0;
-  CHECK(normal_approximation_fer(ChannelKind::bec, eps, n, k) == Approx(0.5).margin(1e-12));
-  // AWGN: capacity from the dispersion routine equals the capacity routine.
-  CHECK(capacity_dispersion(ChannelKind::awgn, 0.8).first ==
-        Approx(biawgn_capacity(0.8)).epsilon(1e-9));
-  // Better channel, lower FER.
-  CHECK(normal_approximation_fer(ChannelKind::awgn, 0.7, 648, 324) <
-        normal_approximation_fer(ChannelKind::awgn, 0.8, 648, 324));
-}
