@@ -1,0 +1,221 @@
+"""The Python module against the command-line tool (the same library behind both must give the
+same bits and counts) and against scipy and numpy as independent references."""
+import json
+import os
+import subprocess
+
+import numpy as np
+import pytest
+import scipy.sparse
+
+import tannery
+
+CLI = os.environ["TANNERY_CLI"]
+
+
+def run_cli(*args, cwd):
+    return subprocess.run([CLI, *map(str, args)], cwd=cwd, capture_output=True, text=True)
+
+
+def cli_error(*args, cwd):
+    r = run_cli(*args, cwd=cwd)
+    assert r.returncode == 2, r.stderr
+    line = r.stderr.strip()
+    assert line.startswith("tannery: error: ")
+    return line[len("tannery: error: "):]
+
+
+# ---- codes -----------------------------------------------------------------------------------
+
+def test_shipped_codes_load_by_name():
+    assert "qc-rate-half-z54" in tannery.Code.shipped()
+    code = tannery.Code.load("qc-rate-half-z54")
+    assert (code.n, code.m, code.k) == (648, 324, 324)
+    assert code.source == "qc-rate-half-z54"
+
+
+def test_scipy_round_trip():
+    code = tannery.Code.load("regular-3-6-n2016")
+    H = code.to_scipy()
+    assert isinstance(H, scipy.sparse.csr_matrix) and H.shape == (code.m, code.n)
+    assert H.nnz == code.edges
+    # Column weights 3 and row weights 6: the regular (3,6) code, counted by scipy.
+    assert set(np.asarray(H.sum(axis=0)).ravel()) == {3}
+    assert set(np.asarray(H.sum(axis=1)).ravel()) == {6}
+    again = tannery.Code.from_scipy(H.tocoo())
+    assert (again.to_scipy() != H).nnz == 0
+    # A dense 0/1 array works too; Hamming (7,4) as in every textbook: columns 1..7 in binary.
+    dense = np.array([[(j >> i) & 1 for j in range(1, 8)] for i in range(3)], dtype=np.int64)
+    hamming = tannery.Code.from_scipy(dense)
+    assert hamming.k == 4 and hamming.inspect()["min_distance"] == 3
+
+
+def test_from_scipy_refuses_values_other_than_0_and_1():
+    with pytest.raises(tannery.Error, match="row 1, column 2 holds 2"):
+        tannery.Code.from_scipy(scipy.sparse.csr_matrix(np.array([[1, 1, 0], [0, 1, 2]])))
+
+
+def test_encode_gives_codewords_checked_by_scipy():
+    code = tannery.Code.load("qc-rate-half-z54")
+    rng = np.random.default_rng(7)
+    info = rng.integers(0, 2, size=(50, code.k), dtype=np.uint8)
+    words = code.encode(info)
+    assert words.shape == (50, code.n) and words.dtype == np.uint8
+    syndromes = code.to_scipy().astype(np.int64) @ words.T.astype(np.int64) % 2
+    assert not syndromes.any()
+    assert np.array_equal(words[:, code.info_positions], info)
+    with pytest.raises(tannery.Error, match="frame 0, bit 0 is 3"):
+        code.encode(np.full((1, code.k), 3, dtype=np.uint8))
+
+
+def test_inspect_matches_the_cli(tmp_path):
+    cli = json.loads(run_cli("inspect", "hamming-15-11", "--json", cwd=tmp_path).stdout)
+    assert tannery.Code.load("hamming-15-11").inspect() == cli
+
+
+# ---- decoding --------------------------------------------------------------------------------
+
+CASES = [
+    # (decoder settings as CLI options, the same as keywords, capture format)
+    ([], {}, "f32"),
+    (["--algorithm", "normalized-min-sum", "--alpha", "0.75", "--schedule", "layered"],
+     {"algorithm": "normalized-min-sum", "alpha": 0.75, "schedule": "layered"}, "f32"),
+    (["--algorithm", "offset-min-sum", "--quantize", "6.1", "--schedule", "layered"],
+     {"algorithm": "offset-min-sum", "quantize": "6.1", "schedule": "layered"}, "i8"),
+    (["--kernel", "reference", "--iterations", "12"], {"kernel": "reference", "iterations": 12},
+     "f64"),
+]
+
+
+@pytest.mark.parametrize("options,keywords,fmt", CASES)
+def test_decode_equals_the_cli_bit_for_bit(tmp_path, options, keywords, fmt):
+    code = tannery.Code.load("qc-rate-half-z54")
+    scale = 0.5 if fmt == "i8" else 1.0  # i8 values in units of 2^-1, the quantizer's LSB
+    r = run_cli("encode", "--code", "qc-rate-half-z54", "--demo", 300, "--at", 1.75, "--seed", 4,
+                "--output-format", fmt, "--scale", scale, "-o", "capture", cwd=tmp_path)
+    assert r.returncode == 0, r.stderr
+    r = run_cli("decode", "--code", "qc-rate-half-z54", "capture", "--input-format", fmt,
+                "--scale", scale, "--codeword", "--output-format", "bytes", "-o", "bits",
+                "--posterior", "post.f32", "--report", "report.jsonl", *options, cwd=tmp_path)
+    assert r.returncode == 0, r.stderr
+    dtype = {"f32": "<f4", "f64": "<f8", "i8": "i1"}[fmt]
+    capture = np.fromfile(tmp_path / "capture", dtype=dtype).reshape(-1, code.n)
+    out = tannery.decode(code, capture, posteriors=True, **keywords)
+    cli_bits = np.fromfile(tmp_path / "bits", dtype=np.uint8).reshape(-1, code.n)
+    # The CLI writes an undecided bit (2) as 0.
+    assert np.array_equal(np.where(out["bits"] == 2, 0, out["bits"]), cli_bits)
+    assert np.array_equal(out["posterior"].astype(np.float32),
+                          np.fromfile(tmp_path / "post.f32", dtype="<f4").reshape(-1, code.n))
+    report = [json.loads(line) for line in open(tmp_path / "report.jsonl")]
+    assert [f["converged"] for f in report] == out["converged"].tolist()
+    assert [f["iterations"] for f in report] == out["iterations"].tolist()
+    assert [f["syndrome_weight"] for f in report] == out["syndrome_weight"].tolist()
+    assert 0 < out["converged"].sum() < len(report)  # the point decodes some frames, not all
+
+
+def test_decode_shapes_threads_and_input_kinds():
+    code = tannery.Code.load("hamming-7-4")
+    word = code.encode(np.array([1, 0, 1, 1], dtype=np.uint8))
+    llr = (1.0 - 2.0 * word) * 3.0
+    llr[0] = -llr[0]  # one wrong bit, corrected
+    one = tannery.decode(code, llr)
+    assert one["bits"].shape == (7,) and one["converged"].shape == ()
+    assert np.array_equal(one["bits"], word) and bool(one["converged"])
+    many = np.tile(llr, (1000, 1))
+    for threads in (1, 2):
+        out = tannery.decode(code, many, threads=threads)
+        assert (out["bits"] == word).all() and out["converged"].all()
+    # A non-contiguous view and float32 decode the same.
+    strided = np.repeat(many[:10], 2, axis=1)[:, ::2]
+    assert not strided.flags.c_contiguous
+    assert np.array_equal(tannery.decode(code, strided.astype(np.float32))["bits"],
+                          np.tile(word, (10, 1)))
+
+
+def test_bad_input_raises_the_cli_message(tmp_path):
+    code = tannery.Code.load("hamming-7-4")
+    llr = np.ones((2, 7))
+    with pytest.raises(tannery.Error) as e:
+        tannery.decode(code, llr, quantize="6.2")
+    (tmp_path / "x.f32").write_bytes(np.ones(7, dtype="<f4").tobytes())
+    assert str(e.value) == cli_error("decode", "--code", "hamming-7-4", "x.f32", "--quantize",
+                                     "6.2", cwd=tmp_path)
+    with pytest.raises(tannery.Error) as e:
+        tannery.Code.load("no-such-code")
+    assert str(e.value) == cli_error("inspect", "no-such-code", cwd=tmp_path)
+    llr[1, 3] = np.nan
+    with pytest.raises(tannery.Error, match="frame 1.*NaN"):
+        tannery.decode(code, llr)
+    with pytest.raises(tannery.Error, match="n = 7 values"):
+        tannery.decode(code, np.ones((2, 6)))
+    with pytest.raises(tannery.Error, match="unknown setting 'iteration'"):
+        tannery.decode(code, llr, iteration=5)
+    with pytest.raises(tannery.Error, match="alpha applies to algorithm normalized-min-sum"):
+        tannery.decode(code, np.ones(7), alpha=0.5)
+
+
+# ---- simulation ------------------------------------------------------------------------------
+
+COUNTS = ["parameter", "frames", "frame_errors", "bit_errors", "coded_bit_errors", "chunks",
+          "iteration_histogram", "failed_frames", "undetected_errors", "complete"]
+
+
+def test_simulate_equals_the_cli_counts(tmp_path):
+    r = run_cli("simulate", "--code", "qc-rate-half-z54", "--algorithm", "min-sum", "--schedule",
+                "layered", "--sweep", "1.5,2", "--frame-errors", 40, "--max-frames", 4000,
+                "--seed", 11, "--threads", 2, "-o", "cli.json", "--plot", "", cwd=tmp_path)
+    assert r.returncode == 0, r.stderr
+    cli = json.loads((tmp_path / "cli.json").read_text())
+    code = tannery.Code.load("qc-rate-half-z54")
+    seen = []
+    py = tannery.simulate(code, sweep=[1.5, 2], algorithm="min-sum", schedule="layered",
+                          frame_errors=40, max_frames=4000, seed=11, threads=1,
+                          progress=seen.append)
+    assert len(py["points"]) == len(cli["points"]) == 2
+    for a, b in zip(py["points"], cli["points"]):
+        assert all(a[key] == b[key] for key in COUNTS), (a, b)
+        assert a["frame_errors"] >= 40
+    assert seen and seen[-1]["point"] == 1 and seen[-1]["frames"] == py["points"][1]["frames"]
+    assert py["decoder"] == cli["decoder"] and py["channel"] == cli["channel"]
+    for key in ("stop", "seed", "chunk_frames", "sweep"):
+        assert py["run"][key] == cli["run"][key], key
+    assert py["code"]["matrix_sha256"] == cli["code"]["matrix_sha256"]
+
+
+def test_simulate_progress_can_interrupt_and_errors_propagate():
+    code = tannery.Code.load("qc-rate-half-z54")
+
+    def ctrl_c(progress):
+        raise KeyboardInterrupt
+
+    out = tannery.simulate(code, sweep=[1.0, 1.5], frame_errors=10**9, max_frames=10**7,
+                           progress=ctrl_c)
+    assert out["run"]["interrupted"] is True and len(out["points"]) == 1
+    assert not out["points"][0]["complete"]
+
+    def broken(progress):
+        raise RuntimeError("callback failed")
+
+    with pytest.raises(RuntimeError, match="callback failed"):
+        tannery.simulate(code, sweep=[1.0], frame_errors=10**9, max_frames=10**7, progress=broken)
+    with pytest.raises(tannery.Error, match="unknown setting 'frames'"):
+        tannery.simulate(code, frames=10)
+
+
+# ---- theory ----------------------------------------------------------------------------------
+
+def test_thresholds_and_capacities():
+    # Richardson & Urbanke, Modern Coding Theory (2008): the (3,6) ensemble's BEC threshold is
+    # 0.4294 and its BPSK-AWGN sum-product threshold sigma* = 0.8809.
+    assert tannery.threshold(regular=(3, 6), channel="bec")["threshold"] == pytest.approx(
+        0.4294, abs=1e-4)
+    awgn = tannery.threshold(regular=(3, 6), method="gaussian")
+    assert awgn["threshold"] == pytest.approx(0.8809, abs=0.01)
+    # Common practice: the rate-1/2 BPSK-AWGN Shannon limit is 0.187 dB.
+    assert tannery.shannon_limit_ebn0_db(0.5) == pytest.approx(0.187, abs=0.0015)
+    assert tannery.bec_capacity(0.25) == 0.75
+    # 1 - h2(0.11) = 0.5000 (h2 from its definition, computed here with numpy).
+    p = 0.11
+    assert tannery.bsc_capacity(p) == pytest.approx(1 + p * np.log2(p) + (1 - p) * np.log2(1 - p))
+    assert tannery.normal_approximation_fer("awgn", 0.7, 648, 324) < \
+        tannery.normal_approximation_fer("awgn", 0.8, 648, 324)
