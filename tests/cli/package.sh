@@ -13,6 +13,12 @@ cmake --build "$WORK/consumer" > "$WORK/build.log" 2>&1 || fail "consumer build:
 TANNERY_CODES="$WORK/prefix/share/tannery/codes" "$WORK/consumer/consumer" > "$WORK/out" || fail "consumer run: $(cat "$WORK/out")"
 expect_in "converged 1" "$WORK/out"
 expect_in "codeword recovered" "$WORK/out"
+# The README shows the example as it is.
+awk '/^```cpp$/ {inside = 1; text = ""; next}
+     /^```$/ {if (inside && text ~ /tannery\/code\/gf2.hpp/) printf "%s", text; inside = 0; next}
+     inside {text = text $0 "\n"}' "$SOURCE/../../README.md" > "$WORK/readme.cpp"
+sed -n '/^#include <tannery\/code\/gf2.hpp>/,$p' "$SOURCE/main.cpp" | cmp -s - "$WORK/readme.cpp" ||
+  fail "README's embedding example differs from tests/package/main.cpp"
 [ -x "$WORK/prefix/bin/tannery" ] || fail "tannery binary not installed"
 ls "$WORK/prefix/share/tannery/codes/hamming-7-4.tanner" > /dev/null || fail "codes not installed"
 # The installed tool finds the codes beside itself, from a directory far from the build.

@@ -13,7 +13,7 @@ int main() {
   settings.alpha = 0.75;
   const auto decoder = tannery::make_decoder(code, settings);  // shares the code
 
-  // A codeword of ones and zeros sent as BPSK (0 -> LLR +4, 1 -> -4), 30 positions flipped.
+  // A codeword of ones and zeros sent as BPSK (0 -> LLR +4, 1 -> -4), 31 positions flipped.
   std::vector<std::uint8_t> info(tannery::Encoder(*code).k(), 1), word(code->n());
   tannery::Encoder(*code).encode(info, word);
   std::vector<float> llr(code->n());
