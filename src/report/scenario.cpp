@@ -149,6 +149,11 @@ Scenario parse_scenario(std::string_view text, const std::string& path) {
   if (!ch || !ch->get("sweep"))
     throw Error(fmt::format("{}: the scenario has no [channel] sweep", path));
   r.read_section(*ch, c.channel, "channel", {"sweep"});
+  try {
+    validate(c.channel);
+  } catch (const Error& e) {
+    r.fail(ch, e.what());
+  }
   const toml::node* sweep = ch->get("sweep");
   try {
     if (sweep->is_string()) {

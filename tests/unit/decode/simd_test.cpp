@@ -118,8 +118,8 @@ TEST_CASE("float SIMD kernels agree with the double reference within tolerance o
         for (std::size_t f = 0; f < simd.outcome.size(); ++f) {
           if (!simd.outcome[f].converged || !reference.outcome[f].converged) continue;
           ++both;
-          INFO("target " << target << " algorithm " << name_of(a) << " "
-                         << name_of(schedule) << " frame " << f);
+          INFO("target " << target << " algorithm " << name_of(a) << " " << name_of(schedule)
+                         << " frame " << f);
           for (std::size_t v = 0; v < code.n(); ++v) {
             REQUIRE(simd.hard[f * code.n() + v] == reference.hard[f * code.n() + v]);
           }

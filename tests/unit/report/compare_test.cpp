@@ -180,6 +180,7 @@ TEST_CASE("a small loss at every point is caught by the test over all points", "
   CHECK(c.mode == CompareMode::paired);
   CHECK(c.tests == 11);
   CHECK(c.points[0].p_fer == Approx(9402.0 / 131072).epsilon(1e-12));
+  REQUIRE(c.points.size() == 5);
   for (const auto& pc : c.points) CHECK_FALSE(pc.regression);
   REQUIRE(c.p_combined);
   CHECK(*c.p_combined < 1e-4);
@@ -190,6 +191,7 @@ TEST_CASE("a small loss at every point is caught by the test over all points", "
   ref.config.seed = 2;
   const Comparison u = compare_runs(cur, ref, CompareOptions{});
   CHECK(u.mode == CompareMode::unpaired);
+  REQUIRE(u.points.size() == 5);
   for (const auto& pc : u.points) CHECK_FALSE(pc.regression);
   CHECK(*u.p_combined < u.level);
   CHECK(u.regression);
@@ -207,6 +209,7 @@ TEST_CASE("a tolerance check on a curve that never reaches the target FER", "[co
   CHECK(c.regression);
   CHECK_THAT(c.reasons[0], Catch::Contains("never reaches FER 0.01"));
   CHECK_THAT(c.reasons[0], Catch::Contains("dB"));
+  REQUIRE(c.points.size() == 3);
   for (const auto& pc : c.points) CHECK_FALSE(pc.regression);  // rows agree with the verdict
   // Below it everywhere: ahead of the reference.
   const RunRecord ahead = run_of({point(1, 10000, 50), point(2, 10000, 5), point(3, 10000, 1)}, 2);

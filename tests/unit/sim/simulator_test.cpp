@@ -1,4 +1,5 @@
 #include <Random123/philox.h>
+#include <algorithm>
 #include <catch2/catch.hpp>
 #include <cmath>
 
@@ -103,6 +104,7 @@ TEST_CASE("repetition code with sum-product over AWGN has BER Q(sqrt(2 Eb/N0))",
   // Eb.
   const auto points =
       run(test::shipped("repetition-5.tanner"), config(ChannelKind::awgn, {0, 2, 4}, 40000));
+  REQUIRE(points.size() == 3);
   for (const auto& p : points)
     check_ber_inside(p, normal_tail(std::sqrt(2 * std::pow(10.0, p.parameter / 10))));
 }
@@ -112,6 +114,7 @@ TEST_CASE("Hamming (7,4) with ML over the BSC has block error 1 - (1-p)^7 - 7p(1
   SimulationConfig c = config(ChannelKind::bsc, {0.02, 0.05, 0.1}, 20000);
   c.decoder.algorithm = Algorithm::ml;
   const auto points = run(test::shipped("hamming-7-4.tanner"), c);
+  REQUIRE(points.size() == 3);
   for (const auto& p : points) {
     const double q = p.parameter;
     const double truth = 1 - std::pow(1 - q, 7) - 7 * q * std::pow(1 - q, 6);
@@ -229,12 +232,34 @@ TEST_CASE("replay regenerates a frame exactly", "[sim]") {
   const Code code = test::shipped("qc-rate-half-z54.qc");
   SimulationConfig c = config(ChannelKind::awgn, {1.0}, 64, 1);
   c.threads = 1;
+  c.keep_failures = 1;
   Simulator sim(code, c);
   const auto points = sim.run({}, {}, nullptr);
+  REQUIRE(points.size() == 1);
   REQUIRE(!points[0].failed_frames.empty());
-  const FrameData d = sim.replay(0, points[0].failed_frames[0]);
-  CHECK(d.hard != d.codeword);
-  CHECK(sim.replay(0, 5).llr == sim.replay(0, 5).llr);
+  REQUIRE(sim.kept_frames().size() == 1);
+  // The replayed frame is the one the run decoded and kept: its channel LLRs, and it fails again.
+  const std::uint64_t failed = points[0].failed_frames[0];
+  const FrameData d = sim.replay(0, failed);
+  CHECK(sim.kept_frames()[0].frame == failed);
+  CHECK(std::vector<float>(d.llr.begin(), d.llr.end()) == sim.kept_frames()[0].llr);
+  CHECK_FALSE(d.outcome.converged);
+  CHECK(d.coded_errors > 0);
+  std::size_t coded = 0;
+  for (std::size_t i = 0; i < code.n(); ++i) coded += d.hard[i] != d.codeword[i];
+  CHECK(d.coded_errors == coded);
+  CHECK(d.info_errors <= d.coded_errors);
+  // A frame the run decoded correctly replays as decoded: no errors.
+  std::uint64_t good = 0;
+  while (std::find(points[0].failed_frames.begin(), points[0].failed_frames.end(), good) !=
+         points[0].failed_frames.end())
+    ++good;
+  REQUIRE(good < points[0].frames);
+  const FrameData ok = sim.replay(0, good);
+  CHECK(ok.coded_errors == 0);
+  CHECK(ok.hard == ok.codeword);
+  // Another frame index gives other noise.
+  CHECK(sim.replay(0, good + 1).llr != ok.llr);
 }
 
 TEST_CASE("sweep syntax: lists and inclusive ranges", "[sim]") {

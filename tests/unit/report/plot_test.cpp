@@ -1,0 +1,48 @@
+#include <catch2/catch.hpp>
+#include <string>
+
+#include "sample_run.hpp"
+#include "tannery/error.hpp"
+#include "tannery/report/plot.hpp"
+
+using namespace tannery;
+
+namespace {
+
+std::size_t count(const std::string& text, const std::string& what) {
+  std::size_t n = 0;
+  for (auto at = text.find(what); at != std::string::npos; at = text.find(what, at + 1)) ++n;
+  return n;
+}
+
+}  // namespace
+
+TEST_CASE("the plot is an SVG document with the curves and references", "[report]") {
+  const std::string svg = plot_svg({PlotRun{"oms", test::sample_run()}}, PlotOptions{});
+  CHECK(svg.rfind("<?xml", 0) == 0);
+  CHECK(svg.find("<svg xmlns=\"http://www.w3.org/2000/svg\"") != std::string::npos);
+  CHECK(svg.find("uncoded BPSK BER") != std::string::npos);
+  CHECK(svg.find("Shannon limit") != std::string::npos);
+  CHECK(svg.find("FER oms") != std::string::npos);
+  CHECK(svg.substr(svg.size() - 7) == "</svg>\n");
+}
+
+TEST_CASE("plots overlay runs of one channel and refuse others", "[plot]") {
+  RunRecord a = test::sample_run(), b = test::sample_run();
+  b.points[0].parameter = 2.0;
+  b.points[0].frame_errors = 3;
+  PlotOptions fer;
+  fer.ber = false;
+  fer.normal_approximation = true;
+  const std::string svg = plot_svg({PlotRun{"first", a}, PlotRun{"second", b}}, fer);
+  CHECK(count(svg, "FER first") == 1);
+  CHECK(count(svg, "FER second") == 1);
+  CHECK(count(svg, "BER first") == 0);
+  // The finite-length limit of the code (n = 8, k = 4) is drawn beside the capacity limit.
+  CHECK(count(svg, "normal approximation FER, n = 8, k = 4") == 1);
+  CHECK(run_label(a).find("offset-min-sum") != std::string::npos);
+  b.config.channel.kind = ChannelKind::bsc;
+  b.config.channel.snr_offset_db = 0;
+  CHECK_THROWS_AS(plot_svg({PlotRun{"a", a}, PlotRun{"b", b}}, fer), Error);
+  CHECK_THROWS_WITH(plot_svg({}, fer), Catch::Contains("no results"));
+}
