@@ -4,7 +4,12 @@
 // Edges are numbered check-major: the edges of check c are the contiguous ids
 // [check_begin(c), check_end(c)), in increasing variable order. That numbering is stable and is
 // the index of every per-edge message array in the decoders. A variable-major index lists, for
-// each variable, the ids of its edges in increasing check order.
+// each variable, the ids of its edges in increasing check order; check_starts(),
+// edge_variables(), variable_starts() and variable_edge_ids() give the CSR and CSC arrays.
+//
+// A code comes from a file or a shipped name (load_code, io/code_lookup.hpp), from the rows of H
+// (Code::from_checks), a quasi-cyclic base table (Code::from_quasi_cyclic) or a construction
+// (code/construct.hpp); Encoder (code/gf2.hpp) gives its dimension k and encodes.
 #pragma once
 
 #include <cstddef>

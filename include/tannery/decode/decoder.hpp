@@ -1,11 +1,20 @@
-// One batch API over every decoder. A decoder is built once from (code, settings) and then
-// decodes batches of frames of channel LLRs, L = log P(bit = 0) / P(bit = 1) (positive means 0),
-// into hard decisions, optional posterior LLRs and a per-frame outcome. Decoders keep their
-// scratch memory between batches (no allocation after the first batch of a given size) and are
-// not shared between threads: use one per thread.
+// Decoding: one API over every decoder. make_decoder(code, settings) builds one — the code is
+// shared (std::shared_ptr<const Code>) or owned (a Code moved in), never borrowed — and it then
+// decodes channel LLRs, L = log P(bit = 0) / P(bit = 1) (positive means 0):
 //
-// These are the scalar reference decoders: plain code in double precision whose job is to be
-// obviously right; faster kernels are tested against them.
+//   auto decoder = make_decoder(load_code("qc-rate-half-z54"), DecoderSettings{});
+//   DecodedFrame f = decoder->decode(llr);  // a span of n floats or doubles
+//   // f.bits: 0, 1 or kUndecided; f.posterior; f.outcome.converged, .iterations
+//
+// Batches in frame layout (frames x n) go through decode(llr, hard, posterior, outcome);
+// ParallelDecoder (decode/parallel.hpp) spreads them over all cores. Decoders keep their scratch
+// memory between batches (no allocation after the first batch of a given size) and are not
+// shared between threads: use one per thread.
+//
+// Kernel::reference is the scalar decoders: plain code in double precision whose job is to be
+// obviously right; the batched SIMD kernels (Kernel::simd, float32 or fixed-point integer lanes)
+// are tested against them, bit-exact in fixed point. Settings have one name table each
+// (tannery/names.hpp) and one field table (tannery/sim/settings.hpp).
 #pragma once
 
 #include <cstddef>

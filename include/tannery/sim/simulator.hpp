@@ -9,6 +9,12 @@
 // stopping chunk is discarded and the counts are identical for any number of threads. A run
 // interrupted at a chunk boundary resumes to exactly the counts of an uninterrupted run. Only the
 // wall-clock limit breaks this (it depends on the machine).
+//
+//   SimulationConfig config;            // decoder, channel, stop rules: the library's defaults
+//   config.sweep = {1.5, 2.0, 2.5};     // Eb/N0 in dB
+//   Simulator sim(load_code("qc-rate-half-z54"), config);
+//   std::vector<PointResult> points = sim.run({}, on_progress, &interrupt_flag);
+//   // points[i].fer(), .ber(); results_json(new_run_record(...)) writes a results file
 #pragma once
 
 #include <atomic>
