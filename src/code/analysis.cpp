@@ -347,7 +347,7 @@ std::string code_report_json(const CodeReport& r, const std::string& source) {
                                             {"lifting", r.quasi_cyclic->lifting}}
                                      : json(nullptr);
   // Where encode and decode put the information bits by default, all k of them; and whether
-  // positions 0..k-1 could carry them instead (--systematic-first).
+  // positions 0..k-1 could carry them instead (an encoder with the systematic part first).
   j["info_positions"] = r.info_positions;
   j["systematic_first_possible"] = r.systematic_first_possible;
   return j.dump(2);

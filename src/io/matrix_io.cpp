@@ -366,7 +366,7 @@ Code read_qc(TextReader& in, std::optional<std::size_t> lifting) {
   }
   if (!declared && !lifting) {
     in.fail(in.line_number(),
-            "base table needs a lifting size: add a line 'Z = <size>' or pass --lifting");
+            "base table needs a lifting size: add a line 'Z = <size>' or give the lifting setting");
   }
   base.lifting = declared ? *declared : *lifting;
   if (base.block_cols * base.lifting > kMaxCodeDimension ||

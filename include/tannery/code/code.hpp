@@ -68,11 +68,11 @@ class Code {
   // [check_starts()[c], check_starts()[c + 1]), edge e joins variable edge_variables()[e]) and
   // columns (CSC: variable v's edge ids are variable_edge_ids()[variable_starts()[v] ...
   // variable_starts()[v + 1]), in increasing check order), for code that walks H directly.
-  std::span<const std::uint32_t> check_starts() const noexcept { return check_start_; }     // m + 1
-  std::span<const std::uint32_t> edge_variables() const noexcept { return edge_var_; }      // E
-  std::span<const std::uint32_t> edge_checks() const noexcept { return edge_check_; }       // E
-  std::span<const std::uint32_t> variable_starts() const noexcept { return var_start_; }    // n + 1
-  std::span<const std::uint32_t> variable_edge_ids() const noexcept { return var_edge_; }   // E
+  std::span<const std::uint32_t> check_starts() const noexcept { return check_start_; }    // m + 1
+  std::span<const std::uint32_t> edge_variables() const noexcept { return edge_var_; }     // E
+  std::span<const std::uint32_t> edge_checks() const noexcept { return edge_check_; }      // E
+  std::span<const std::uint32_t> variable_starts() const noexcept { return var_start_; }   // n + 1
+  std::span<const std::uint32_t> variable_edge_ids() const noexcept { return var_edge_; }  // E
   std::uint32_t edge_check(std::size_t e) const noexcept { return edge_check_[e]; }
 
   // Present when the code was built from a base table, or when H, as read from any format, is

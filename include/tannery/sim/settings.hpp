@@ -57,8 +57,8 @@ struct Fields<DecoderSettings> {
                      "always run every iteration (as fixed-iteration hardware does) instead of "
                      "stopping at a zero syndrome",
                      &S::early_stop},
-      Field<S, double>{"alpha", "--alpha",
-                       "normalization factor of normalized-min-sum, in (0, 1]", &S::alpha},
+      Field<S, double>{"alpha", "--alpha", "normalization factor of normalized-min-sum, in (0, 1]",
+                       &S::alpha},
       Field<S, double>{"beta", "--beta", "offset of offset-min-sum (LLR units, >= 0)", &S::beta},
       Field<S, int>{"flip_threshold", "--flip-threshold",
                     "bit-flip: other checks that must disagree to flip a message (0: strict "
