@@ -13,7 +13,7 @@
 #include "tannery/io/code_lookup.hpp"
 #include "tannery/io/matrix_io.hpp"
 #include "tannery/report/settings_json.hpp"
-#include "tannery/report/sha256.hpp"
+#include "tannery/math/sha256.hpp"
 #include "tannery/version.hpp"
 
 namespace tannery {

@@ -5,7 +5,7 @@
 #include <utility>
 
 #include "tannery/channel/channel.hpp"
-#include "tannery/sim/stats.hpp"
+#include "tannery/math/stats.hpp"
 
 namespace tannery {
 

@@ -10,7 +10,7 @@
 #include "tannery/channel/channel.hpp"
 #include "tannery/error.hpp"
 #include "tannery/parse.hpp"
-#include "tannery/sim/stats.hpp"
+#include "tannery/math/stats.hpp"
 #include "tannery/theory/capacity.hpp"
 
 namespace tannery {

@@ -7,7 +7,7 @@
 #include <vector>
 
 #include "tannery/sim/simulator.hpp"
-#include "tannery/sim/stats.hpp"
+#include "tannery/math/stats.hpp"
 
 namespace tannery {
 

@@ -3,7 +3,7 @@
 
 #include "tannery/code/construct.hpp"
 #include "tannery/report/compare.hpp"
-#include "tannery/sim/stats.hpp"
+#include "tannery/math/stats.hpp"
 
 using namespace tannery;
 

@@ -6,7 +6,7 @@
 #include "tannery/code/construct.hpp"
 #include "tannery/sim/random.hpp"
 #include "tannery/sim/simulator.hpp"
-#include "tannery/sim/stats.hpp"
+#include "tannery/math/stats.hpp"
 #include "test_support.hpp"
 
 using namespace tannery;

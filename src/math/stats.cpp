@@ -1,4 +1,4 @@
-#include "tannery/sim/stats.hpp"
+#include "tannery/math/stats.hpp"
 
 #include <algorithm>
 #include <cmath>

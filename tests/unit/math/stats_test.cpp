@@ -1,7 +1,7 @@
 #include <catch2/catch.hpp>
 #include <cmath>
 
-#include "tannery/sim/stats.hpp"
+#include "tannery/math/stats.hpp"
 
 using namespace tannery;
 
