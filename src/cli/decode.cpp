@@ -68,9 +68,8 @@ void run(const DecodeOptions& o) {
   ParallelDecoder decoder(code, o.decoder.settings(), o.threads);
 
   std::ifstream file;
-  std::istream* in = &open_input(o.capture, file);
-  CaptureReader reader(*in, o.capture == "-" ? "<stdin>" : o.capture, o.input_format, o.scale,
-                       converter.received());
+  CaptureReader reader(open_input(o.capture, file), o.capture == "-" ? "<stdin>" : o.capture,
+                       o.input_format, o.scale, converter.received());
   // --truth: the information bits that were sent, as encode writes them (text, k per frame).
   std::ifstream truth_file;
   std::optional<BitFrameReader> truth;
