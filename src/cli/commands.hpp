@@ -40,8 +40,8 @@ struct CodeInput {
 
 }  // namespace tannery::cli
 
+#include "tannery/base/output_file.hpp"
 #include "tannery/io/matrix_io.hpp"
-#include "tannery/io/output_file.hpp"
 
 namespace tannery::cli {
 // Output matrix format from --to, else from the file extension, else (stdout) tannery's own.

@@ -6,11 +6,11 @@
 
 #include "commands.hpp"
 #include "settings_options.hpp"
+#include "tannery/base/output_file.hpp"
 #include "tannery/code/gf2.hpp"
 #include "tannery/decode/parallel.hpp"
 #include "tannery/error.hpp"
 #include "tannery/io/capture.hpp"
-#include "tannery/io/output_file.hpp"
 
 namespace tannery::cli {
 

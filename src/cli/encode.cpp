@@ -5,10 +5,10 @@
 
 #include "commands.hpp"
 #include "settings_options.hpp"
+#include "tannery/base/output_file.hpp"
 #include "tannery/code/gf2.hpp"
 #include "tannery/error.hpp"
 #include "tannery/io/capture.hpp"
-#include "tannery/io/output_file.hpp"
 #include "tannery/sim/simulator.hpp"
 
 namespace tannery::cli {

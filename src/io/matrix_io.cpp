@@ -12,8 +12,8 @@
 #include <map>
 #include <sstream>
 
+#include "tannery/base/output_file.hpp"
 #include "tannery/error.hpp"
-#include "tannery/io/output_file.hpp"
 #include "text_reader.hpp"
 
 namespace tannery {

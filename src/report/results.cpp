@@ -8,12 +8,12 @@
 #include <sstream>
 #include <type_traits>
 
+#include "tannery/base/sha256.hpp"
 #include "tannery/error.hpp"
 #include "tannery/io/capture.hpp"
 #include "tannery/io/code_lookup.hpp"
 #include "tannery/io/matrix_io.hpp"
 #include "tannery/report/settings_json.hpp"
-#include "tannery/math/sha256.hpp"
 #include "tannery/version.hpp"
 
 namespace tannery {

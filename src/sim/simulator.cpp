@@ -13,10 +13,10 @@
 #include <sstream>
 #include <thread>
 
+#include "tannery/base/thread_pool.hpp"
 #include "tannery/error.hpp"
 #include "tannery/parse.hpp"
 #include "tannery/sim/random.hpp"
-#include "tannery/thread_pool.hpp"
 
 namespace tannery {
 

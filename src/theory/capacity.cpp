@@ -4,8 +4,8 @@
 #include <cstddef>
 #include <utility>
 
+#include "tannery/base/stats.hpp"
 #include "tannery/channel/channel.hpp"
-#include "tannery/math/stats.hpp"
 
 namespace tannery {
 

@@ -7,10 +7,10 @@
 #include <unsupported/Eigen/FFT>
 #include <vector>
 
+#include "tannery/base/stats.hpp"
 #include "tannery/channel/channel.hpp"
 #include "tannery/error.hpp"
 #include "tannery/parse.hpp"
-#include "tannery/math/stats.hpp"
 #include "tannery/theory/capacity.hpp"
 
 namespace tannery {

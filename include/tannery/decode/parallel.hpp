@@ -7,8 +7,8 @@
 #include <span>
 #include <vector>
 
+#include "tannery/base/thread_pool.hpp"
 #include "tannery/decode/decoder.hpp"
-#include "tannery/thread_pool.hpp"
 
 namespace tannery {
 

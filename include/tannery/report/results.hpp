@@ -6,8 +6,8 @@
 #include <string_view>
 #include <vector>
 
+#include "tannery/base/stats.hpp"
 #include "tannery/sim/simulator.hpp"
-#include "tannery/math/stats.hpp"
 
 namespace tannery {
 

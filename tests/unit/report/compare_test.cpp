@@ -1,9 +1,9 @@
 #include <catch2/catch.hpp>
 #include <cmath>
 
+#include "tannery/base/stats.hpp"
 #include "tannery/code/construct.hpp"
 #include "tannery/report/compare.hpp"
-#include "tannery/math/stats.hpp"
 
 using namespace tannery;
 

@@ -3,10 +3,10 @@
 #include <catch2/catch.hpp>
 #include <cmath>
 
+#include "tannery/base/stats.hpp"
 #include "tannery/code/construct.hpp"
 #include "tannery/sim/random.hpp"
 #include "tannery/sim/simulator.hpp"
-#include "tannery/math/stats.hpp"
 #include "test_support.hpp"
 
 using namespace tannery;

@@ -1,4 +1,4 @@
-#include "tannery/math/sha256.hpp"
+#include "tannery/base/sha256.hpp"
 
 #include <fmt/format.h>
 #include <array>

@@ -1,6 +1,6 @@
 #include <catch2/catch.hpp>
 
-#include "tannery/math/sha256.hpp"
+#include "tannery/base/sha256.hpp"
 
 using namespace tannery;
 

@@ -4,8 +4,8 @@
 #include <sstream>
 #include <string>
 
+#include "tannery/base/output_file.hpp"
 #include "tannery/error.hpp"
-#include "tannery/io/output_file.hpp"
 
 using namespace tannery;
 namespace fs = std::filesystem;

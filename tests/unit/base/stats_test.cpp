@@ -1,7 +1,7 @@
 #include <catch2/catch.hpp>
 #include <cmath>
 
-#include "tannery/math/stats.hpp"
+#include "tannery/base/stats.hpp"
 
 using namespace tannery;
 

@@ -1,4 +1,4 @@
-#include "tannery/math/stats.hpp"
+#include "tannery/base/stats.hpp"
 
 #include <algorithm>
 #include <cmath>

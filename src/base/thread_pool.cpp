@@ -1,4 +1,4 @@
-#include "tannery/thread_pool.hpp"
+#include "tannery/base/thread_pool.hpp"
 
 #include <algorithm>
 #include <utility>

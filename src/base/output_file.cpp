@@ -1,4 +1,4 @@
-#include "tannery/io/output_file.hpp"
+#include "tannery/base/output_file.hpp"
 
 #include <fcntl.h>
 #include <fmt/format.h>
