@@ -2,7 +2,6 @@
 #include <fmt/format.h>
 #include <unistd.h>
 #include <chrono>
-#include <thread>
 
 #include "commands.hpp"
 #include "simulate_output.hpp"
@@ -96,7 +95,7 @@ void run(SimulateOptions o, const CLI::App& sub) {
                {"--plot", o.plot},
                {"--failures", o.save_failures ? o.failures : ""},
                {"--replay-llr", o.replay_llr}});
-  config.threads = o.threads ? o.threads : std::max(1u, std::thread::hardware_concurrency());
+  config.threads = o.threads;  // 0: the simulator takes every core
   config.keep_failures = o.save_failures;
 
   const Code code = o.input.load();

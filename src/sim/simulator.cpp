@@ -75,6 +75,7 @@ Simulator::Simulator(std::shared_ptr<const Code> code, SimulationConfig config)
       encoder_(code_),
       is_info_(code_.n(), 0) {
   for (std::uint32_t p : encoder_.info_positions()) is_info_[p] = 1;
+  if (config_.threads == 0) config_.threads = std::max(1u, std::thread::hardware_concurrency());
   config_.decoder = resolve_kernel(config_.decoder, code_);
   validate(config_.decoder, code_);
   if (config_.sweep.empty()) throw Error("the sweep has no points");
@@ -242,8 +243,7 @@ PointResult Simulator::run_point(std::size_t index, PointResult total,
   const std::uint64_t chunk = config_.chunk_frames;
   const std::uint64_t max_chunks = (config_.stop.max_frames + chunk - 1) / chunk;
   const std::size_t n = code_.n(), k = encoder_.k();
-  unsigned threads =
-      config_.threads ? config_.threads : std::max(1u, std::thread::hardware_concurrency());
+  const unsigned threads = config_.threads;
 
   std::mutex mutex;
   std::map<std::uint64_t, ChunkResult> done;

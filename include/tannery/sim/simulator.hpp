@@ -54,7 +54,7 @@ struct SimulationConfig {
   std::uint64_t seed = 1;
   // Frames per chunk; 0: automatic (default_chunk_frames).
   std::uint32_t chunk_frames = 0;
-  unsigned threads = 0;           // 0 = all cores
+  unsigned threads = 0;           // 0 = all cores (config() then says how many)
   bool all_zero = false;          // send the all-zero codeword (symmetric channel and decoder only)
   double confidence = 0.95;       // level of the reported intervals
   std::size_t keep_failures = 0;  // keep the channel LLRs of the first N failing frames per point
