@@ -14,6 +14,7 @@
 #include <cstdint>
 #include <filesystem>
 #include <memory>
+#include <mutex>
 #include <nlohmann/json.hpp>
 #include <optional>
 #include <string>
@@ -38,11 +39,21 @@ namespace tannery::python {
 
 namespace {
 
+// The last decoder a code was decoded with, kept for the next call with the same settings and
+// threads (building one starts its threads and allocates its scratch: a loop of small calls
+// would pay that every time). A call made while it is busy in another Python thread gets its own.
+struct DecoderCache {
+  std::mutex mutex;
+  std::string key;
+  std::unique_ptr<ParallelDecoder> decoder;
+};
+
 // A code and where it came from (empty for one built in Python); the encoder is made on first use.
 struct PyCode {
   std::shared_ptr<const Code> code;
   std::string source;
   std::shared_ptr<const Encoder> encoder;
+  std::shared_ptr<DecoderCache> decoders = std::make_shared<DecoderCache>();
 
   const Encoder& encoding() {
     if (!encoder) encoder = std::make_shared<const Encoder>(*code);
@@ -247,7 +258,16 @@ py::dict py_decode(PyCode& c, const py::array& llr, unsigned threads, bool poste
   py::array_t<std::int32_t> iterations(shape);
   py::array_t<std::uint32_t> syndrome(shape), undecided(shape);
 
-  ParallelDecoder decoder(c.code, s, threads);
+  DecoderCache& cache = *c.decoders;
+  std::unique_lock lock(cache.mutex, std::try_to_lock);
+  std::unique_ptr<ParallelDecoder> own;
+  const std::string key = json(s).dump() + "/" + std::to_string(threads);
+  if (lock && (!cache.decoder || cache.key != key)) {
+    cache.decoder = std::make_unique<ParallelDecoder>(c.code, s, threads);
+    cache.key = key;
+  }
+  if (!lock) own = std::make_unique<ParallelDecoder>(c.code, s, threads);
+  ParallelDecoder& decoder = lock ? *cache.decoder : *own;
   const void* in = values.data();
   std::uint8_t* hard = bits.mutable_data();
   double* post = posteriors ? posterior.mutable_data() : nullptr;
