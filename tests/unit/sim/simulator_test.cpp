@@ -168,21 +168,36 @@ TEST_CASE("counts are identical for 1 and 2 threads", "[sim]") {
 
 TEST_CASE("an interrupted and resumed run ends with the counts of an uninterrupted one", "[sim]") {
   const Code code = test::shipped("qc-rate-half-z54.qc");
-  SimulationConfig c = config(ChannelKind::awgn, {1.25, 1.75}, 6000, 60);
+  SimulationConfig c = config(ChannelKind::awgn, {1.5, 2.0}, 4000, 100);
   c.decoder.algorithm = Algorithm::min_sum;
+  c.chunk_frames = 100;
   Simulator sim(code, c);
   const auto full = sim.run({}, {}, nullptr);
-  // Raised before the run: the simulator stops after the first chunk it adds in order.
+  REQUIRE(full.size() == 2);
+  REQUIRE(full.front().chunks >= 3);
+  // Interrupted (the flag raised before the run): the point stops at a chunk boundary — after
+  // the chunks already added in order, how many depends on timing — and is marked incomplete.
   const std::atomic<bool> stop{true};
-  auto partial = sim.run({}, {}, &stop);
-  REQUIRE(partial.size() == 1);
-  REQUIRE_FALSE(partial.back().complete);
-  CHECK(partial.back().frames > 0);
-  CHECK(partial.back().frames < full.front().frames);
-  CHECK(partial.back().stop_reason == "interrupted");
-  const auto resumed = sim.run(partial, {}, nullptr);
-  REQUIRE(resumed.size() == full.size());
-  for (std::size_t i = 0; i < full.size(); ++i) CHECK(same_counts(full[i], resumed[i]));
+  const auto interrupted = sim.run({}, {}, &stop);
+  REQUIRE(interrupted.size() == 1);
+  REQUIRE_FALSE(interrupted.back().complete);
+  CHECK(interrupted.back().stop_reason == "interrupted");
+  CHECK(interrupted.back().frames == interrupted.back().chunks * 100);
+  CHECK(interrupted.back().frames < full.front().frames);
+  // Resuming from there, and from a point cut after exactly two chunks, ends where the
+  // uninterrupted run did.
+  SimulationConfig cut = c;
+  cut.stop.max_frames = 200;
+  cut.sweep = {1.5};
+  auto two_chunks = Simulator(code, cut).run({}, {}, nullptr);
+  REQUIRE(two_chunks.size() == 1);
+  REQUIRE(two_chunks.front().chunks == 2);
+  two_chunks.front().complete = false;
+  for (const auto& partial : {interrupted, two_chunks}) {
+    const auto resumed = sim.run(partial, {}, nullptr);
+    REQUIRE(resumed.size() == full.size());
+    for (std::size_t i = 0; i < full.size(); ++i) CHECK(same_counts(full[i], resumed[i]));
+  }
 }
 
 TEST_CASE("the lane pipeline of the batched decoders counts exactly as frame by frame", "[sim]") {
