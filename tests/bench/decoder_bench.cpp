@@ -63,7 +63,7 @@ void run(benchmark::State& state, const Case& c) {
   for (auto _ : state) {
     if (batched) {
       batched->begin(frames);
-      for (std::size_t g = 0; g < 4; ++g) batched->load(g, llr);
+      for (std::size_t group = 0; group < 4; ++group) batched->load(group, llr);
       batched->decode(results);
       decided += results.hard[0];
     } else {
