@@ -9,6 +9,7 @@
 //   };
 #pragma once
 
+#include <concepts>
 #include <map>
 #include <optional>
 #include <string>
@@ -70,6 +71,39 @@ std::map<std::string, E> name_map() {
   std::map<std::string, E> map;
   for (const auto& [v, name] : Names<E>::table) map.emplace(name, v);
   return map;
+}
+
+}  // namespace tannery
+
+namespace tannery {
+
+// Settings written as one short text with a syntax of their own ("6.2", "block:8x81",
+// "random:7"): a type joins by specialising SettingText<T> beside its declaration, and every
+// reader and writer of settings (CLI, scenarios, results JSON, Python) takes and gives that text.
+//
+//   template <> struct SettingText<Quantization> {
+//     static constexpr std::string_view setting = "quantize";
+//     static constexpr std::string_view syntax = "B.F or B.F:M:P (e.g. 6.2 or 5.1:5:7)";
+//     static std::optional<Quantization> parse(std::string_view text);  // empty on bad syntax
+//     static std::string format(const Quantization& q);
+//   };
+template <class T>
+struct SettingText;
+
+template <class T>
+concept Textual = requires(std::string_view text, const T& value) {
+  SettingText<T>::setting;
+  SettingText<T>::syntax;
+  { SettingText<T>::parse(text) } -> std::same_as<std::optional<T>>;
+  { SettingText<T>::format(value) } -> std::same_as<std::string>;
+};
+
+// The value of a text; Error "quantize '7' must be B.F or B.F:M:P (...)" otherwise.
+template <Textual T>
+T parse_text(std::string_view text) {
+  if (auto v = SettingText<T>::parse(text)) return *v;
+  throw Error(std::string(SettingText<T>::setting) + " '" + std::string(text) + "' must be " +
+              std::string(SettingText<T>::syntax));
 }
 
 }  // namespace tannery

@@ -84,17 +84,21 @@ class SettingsOptions {
       return group.add_flag(flag.starts_with("--no-") ? flag + "{false}" : flag, target, help);
     } else if constexpr (Named<T>) {
       return add_named_option(group, flag, target, help);
-    } else if constexpr (std::is_same_v<T, std::optional<Quantization>>) {
-      return group.add_option_function<std::string>(
+    } else if constexpr (Textual<T> || (is_optional<T> && Textual<optional_value_t<T>>)) {
+      using V = std::conditional_t<Textual<T>, T, optional_value_t<T>>;
+      CLI::Option* o = group.add_option_function<std::string>(
           flag,
-          [&target, flag](const std::string& spec) {
-            target = parse_quantization(spec);
-            if (!target) {
+          [&target, flag](const std::string& text) {
+            auto value = SettingText<V>::parse(text);
+            if (!value) {
               throw CLI::ValidationError(
-                  flag, "'" + spec + "': expected B.F or B.F:M:P (e.g. 6.2 or 5.1:5:7)");
+                  flag, "'" + text + "': expected " + std::string(SettingText<V>::syntax));
             }
+            target = std::move(*value);
           },
           help);
+      if constexpr (Textual<T>) o->default_str(SettingText<T>::format(target));
+      return o;
     } else if constexpr (std::is_unsigned_v<T>) {
       return group.add_option(flag, target, help)->capture_default_str()->check(kNonNegative);
     } else {

@@ -12,6 +12,7 @@
 #include <cmath>
 #include <cstring>
 
+#include "src/base/fixed_order_math-inl.h"
 #include "src/sim/noise_kernels.hpp"
 
 HWY_BEFORE_NAMESPACE();
@@ -67,58 +68,9 @@ HWY_INLINE void Philox(VU (&c)[4][K], std::uint64_t seed) {
   }
 }
 
-// a * b + c rounded once, on every target: the fused multiply-add instruction where the target
-// has one, else the C library's fma lane by lane (correctly rounded as well, only slower).
-HWY_INLINE VD Fma(VD a, VD b, VD c) {
-#if HWY_NATIVE_FMA
-  return hn::MulAdd(a, b, c);
-#else
-  const DD dd;
-  constexpr std::size_t N = hn::MaxLanes(DD());
-  alignas(64) double x[N], y[N], z[N];
-  hn::Store(a, dd, x);
-  hn::Store(b, dd, y);
-  hn::Store(c, dd, z);
-  for (std::size_t i = 0; i < N; ++i) x[i] = std::fma(x[i], y[i], z[i]);
-  return hn::Load(dd, x);
-#endif
-}
-
 // A double in [1, 2) whose 52 fraction bits are the top 52 bits of x.
 HWY_INLINE VD OneToTwo(VU x) {
   return hn::BitCast(DD(), hn::Or(hn::ShiftRight<12>(x), hn::Set(DU(), 0x3FF0000000000000ull)));
-}
-
-// Natural logarithm of x in (0, 1] (normal numbers), in place: x = 2^k m with m in
-// [sqrt(1/2), sqrt(2)), log m = 2 atanh(s), s = (m - 1)/(m + 1), |s| < 0.172, by its series to
-// s^21 (truncation below 1e-18 relative); k log 2 with log 2 split in two (the fdlibm constants).
-HWY_INLINE void Ln(VD (&x)[K]) {
-  const DU du;
-  const DD dd;
-  VD s[K], k[K], p[K];
-  for (std::size_t j = 0; j < K; ++j) {
-    const VU bits = hn::BitCast(du, x[j]);
-    VD m = hn::BitCast(dd, hn::Or(hn::And(bits, hn::Set(du, 0x000FFFFFFFFFFFFFull)),
-                                  hn::Set(du, 0x3FF0000000000000ull)));
-    // The biased exponent as a double, exactly: 2^52 + e read back, minus 2^52 + 1023.
-    k[j] = hn::Sub(
-        hn::BitCast(dd, hn::Or(hn::ShiftRight<52>(bits), hn::Set(du, 0x4330000000000000ull))),
-        hn::Set(dd, 4503599627371519.0));
-    const auto big = hn::Gt(m, hn::Set(dd, 1.4142135623730951));
-    m = hn::IfThenElse(big, hn::Mul(m, hn::Set(dd, 0.5)), m);
-    k[j] = hn::Add(k[j], hn::IfThenElseZero(big, hn::Set(dd, 1.0)));
-    s[j] = hn::Div(hn::Sub(m, hn::Set(dd, 1.0)), hn::Add(m, hn::Set(dd, 1.0)));
-    x[j] = hn::Mul(s[j], s[j]);  // z = s^2
-    p[j] = hn::Set(dd, 1.0 / 21);
-  }
-  for (int i = 9; i >= 0; --i) {
-    for (std::size_t j = 0; j < K; ++j) p[j] = Fma(p[j], x[j], hn::Set(dd, 1.0 / (2 * i + 1)));
-  }
-  for (std::size_t j = 0; j < K; ++j) {
-    const VD log_m = hn::Mul(hn::Add(s[j], s[j]), p[j]);
-    x[j] = Fma(k[j], hn::Set(dd, 6.93147180369123816490e-01),
-               Fma(k[j], hn::Set(dd, 1.90821492927058770002e-10), log_m));
-  }
 }
 
 // Taylor coefficient of a^i in sin (odd i) or cos (even i): (-1)^(i/2) / i!.

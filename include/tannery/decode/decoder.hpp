@@ -67,6 +67,15 @@ struct Quantization {
 };
 std::optional<Quantization> parse_quantization(std::string_view spec);  // empty on bad syntax
 std::string quantization_spec(const Quantization& q);
+template <>
+struct SettingText<Quantization> {
+  static constexpr std::string_view setting = "quantize";
+  static constexpr std::string_view syntax = "B.F or B.F:M:P (e.g. 6.2 or 5.1:5:7)";
+  static std::optional<Quantization> parse(std::string_view text) {
+    return parse_quantization(text);
+  }
+  static std::string format(const Quantization& q) { return quantization_spec(q); }
+};
 
 // Which implementation decodes: the scalar reference (double precision, the definition), the
 // batched SIMD kernels (float32, or integer lanes when quantized) or automatic: the SIMD kernels

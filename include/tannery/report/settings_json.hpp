@@ -1,5 +1,5 @@
 // Settings to and from JSON through nlohmann-json's serializer hooks: enumerations by their
-// names (tannery/names.hpp), quantizations by their spec ("6.2"), absent optionals as null,
+// names and text settings by their text (tannery/names.hpp), absent optionals as null,
 // and the settings structs by their field tables (tannery/sim/settings.hpp). The scenario
 // reader (TOML) and the Python module read values through the same read_value, so one setting
 // is checked the same way wherever it comes from.
@@ -29,20 +29,15 @@ struct adl_serializer<E> {
   }
 };
 
-template <>
-struct adl_serializer<tannery::Quantization> {
-  static void to_json(json& j, const tannery::Quantization& q) {
-    j = tannery::quantization_spec(q);
-  }
-  static void from_json(const json& j, tannery::Quantization& q) {
-    const auto parsed = j.is_string() ? tannery::parse_quantization(j.get<std::string>())
-                                      : std::optional<tannery::Quantization>();
-    if (!parsed) {
-      throw tannery::Error(
-          std::string("quantize must be a string B.F or B.F:M:P (e.g. \"6.2\"), got ")
-              .append(j.dump()));
+template <tannery::Textual T>
+struct adl_serializer<T> {
+  static void to_json(json& j, const T& value) { j = tannery::SettingText<T>::format(value); }
+  static void from_json(const json& j, T& value) {
+    if (!j.is_string()) {
+      throw tannery::Error(std::string(tannery::SettingText<T>::setting) + " must be a string " +
+                           std::string(tannery::SettingText<T>::syntax) + ", got " + j.dump());
     }
-    q = *parsed;
+    value = tannery::parse_text<T>(j.get<std::string>());
   }
 };
 
@@ -68,6 +63,9 @@ T read_value(const nlohmann::json& v, std::string_view key) {
   if constexpr (std::is_same_v<T, bool>) {
     if (!v.is_boolean()) throw Error(name + " must be true or false");
     return v.get<bool>();
+  } else if constexpr (std::is_same_v<T, std::string>) {
+    if (!v.is_string()) throw Error(name + " must be a string");
+    return v.get<std::string>();
   } else if constexpr (std::is_integral_v<T>) {
     const bool fits =
         v.is_number_unsigned()

@@ -33,6 +33,16 @@ template <class T>
 inline constexpr bool is_optional = false;
 template <class T>
 inline constexpr bool is_optional<std::optional<T>> = true;
+template <class T>
+struct optional_value {
+  using type = T;
+};
+template <class T>
+struct optional_value<std::optional<T>> {
+  using type = T;
+};
+template <class T>
+using optional_value_t = typename optional_value<T>::type;
 
 template <class S, class F>
 constexpr void for_each_field(F&& f) {
