@@ -5,6 +5,7 @@
 #include <limits>
 
 #include "tannery/error.hpp"
+#include "tannery/parse.hpp"
 
 namespace tannery {
 
@@ -15,6 +16,24 @@ double awgn_sigma(double snr_db, SnrMeasure measure, double rate) {
 
 double esn0_db_from_ebn0(double ebn0_db, double rate) {
   return ebn0_db + 10.0 * std::log10(rate);
+}
+
+std::optional<std::pair<ChannelKind, std::uint32_t>> parse_channel_model(std::string_view text) {
+  if (text == "rayleigh:fast") return std::pair{ChannelKind::rayleigh, 1u};
+  if (text.starts_with("rayleigh:block:")) {
+    const auto block = parse_count(text.substr(15));
+    if (!block || *block == 0 || *block > UINT32_MAX) return std::nullopt;
+    return std::pair{ChannelKind::rayleigh, static_cast<std::uint32_t>(*block)};
+  }
+  const auto kind = from_name<ChannelKind>(text);
+  if (!kind) return std::nullopt;
+  return std::pair{*kind, 1u};
+}
+
+std::string channel_model(const ChannelSpec& spec) {
+  if (spec.kind != ChannelKind::rayleigh) return std::string(name_of(spec.kind));
+  return spec.fading_block == 1 ? "rayleigh:fast"
+                                : fmt::format("rayleigh:block:{}", spec.fading_block);
 }
 
 void check_channel_parameter(ChannelKind kind, double parameter) {
@@ -41,6 +60,11 @@ ChannelPoint ChannelPoint::awgn(double sigma, std::optional<double> assumed_sigm
   return {ChannelKind::awgn, sigma, assumed_sigma.value_or(sigma)};
 }
 
+ChannelPoint ChannelPoint::rayleigh(double sigma, std::optional<double> assumed_sigma) {
+  const ChannelPoint p = awgn(sigma, assumed_sigma);
+  return {ChannelKind::rayleigh, p.value_, p.assumed_};
+}
+
 ChannelPoint ChannelPoint::bsc(double p, std::optional<double> assumed_p) {
   check_channel_parameter(ChannelKind::bsc, p);
   if (assumed_p && !(*assumed_p >= 0 && *assumed_p <= 0.5)) {
@@ -56,23 +80,37 @@ ChannelPoint ChannelPoint::bec(double epsilon) {
 }
 
 void validate(const ChannelSpec& c) {
-  if (c.kind != ChannelKind::awgn &&
-      (c.snr_offset_db != 0 || c.design_rate || c.measure != SnrMeasure::ebn0)) {
-    throw Error("snr, design_rate and snr_offset_db apply to the awgn channel only");
-  }
+  const bool snr = snr_swept(c.kind);
+  if (!snr && (c.snr_offset_db != 0 || c.design_rate || c.measure != SnrMeasure::ebn0))
+    throw Error("snr, design_rate and snr_offset_db apply to the awgn and rayleigh channels only");
   if (c.kind != ChannelKind::bsc && c.assumed_crossover)
     throw Error("assumed_crossover applies to the bsc channel only");
+  if (!snr && !(c.modulation == Modulation{})) {
+    throw Error(
+        fmt::format("modulation {} needs the awgn or rayleigh channel (bsc and bec are "
+                    "binary)",
+                    SettingText<Modulation>::format(c.modulation)));
+  }
+  if (!snr && !(c.interleaver == Interleaver{}))
+    throw Error("interleaver applies to the awgn and rayleigh channels only");
+  if (c.kind != ChannelKind::rayleigh && (c.fading_block != 1 || c.ignore_fading))
+    throw Error("fading_block and ignore_fading apply to the rayleigh channel only");
+  if (c.fading_block == 0) throw Error("fading_block must be at least 1 symbol");
+  if (!std::isfinite(c.snr_offset_db))
+    throw Error(fmt::format("snr_offset_db must be a finite number, got {}", c.snr_offset_db));
 }
 
 ChannelPoint channel_point(const ChannelSpec& spec, double parameter, double rate) {
   validate(spec);
   switch (spec.kind) {
-    case ChannelKind::awgn: {
-      check_channel_parameter(ChannelKind::awgn, parameter);
+    case ChannelKind::awgn:
+    case ChannelKind::rayleigh: {
+      check_channel_parameter(spec.kind, parameter);
       const double sigma = awgn_sigma(parameter, spec.measure, rate);
       const double assumed = awgn_sigma(parameter + spec.snr_offset_db, spec.measure, rate);
       try {
-        return ChannelPoint::awgn(sigma, assumed);
+        return spec.kind == ChannelKind::awgn ? ChannelPoint::awgn(sigma, assumed)
+                                              : ChannelPoint::rayleigh(sigma, assumed);
       } catch (const Error&) {
         throw Error(fmt::format(
             "sweep point {} dB (with SNR offset {} dB) gives a noise standard deviation of {:g}: "
@@ -92,6 +130,7 @@ ChannelPoint channel_point(const ChannelSpec& spec, double parameter, double rat
 double llr_magnitude(const ChannelPoint& channel) {
   switch (channel.kind()) {
     case ChannelKind::awgn:
+    case ChannelKind::rayleigh:
       return 2.0 / (channel.assumed_value() * channel.assumed_value());
     case ChannelKind::bsc: {
       const double p = channel.assumed_value();
@@ -126,7 +165,10 @@ void transmit(const ChannelPoint& channel, std::span<const std::uint8_t> codewor
       for (std::size_t i = 0; i < n; ++i)
         llr[i] = noise[i] < channel.value() ? 0.0 : (codeword[i] ? -magnitude : magnitude);
       return;
+    case ChannelKind::rayleigh:
+      break;
   }
+  throw Error("transmit: a faded channel is transmitted by a Link");
 }
 
 }  // namespace tannery

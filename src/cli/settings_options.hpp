@@ -8,6 +8,7 @@
 #include <CLI/CLI.hpp>
 #include <algorithm>
 #include <functional>
+#include <optional>
 #include <string>
 #include <type_traits>
 #include <utility>
@@ -39,6 +40,43 @@ CLI::Option* add_named_option(CLI::App& app, const std::string& flag, E& target,
       ->default_str(std::string(name_of(target)));
 }
 
+// An option taking a setting's text (SettingText), written to target (a T or an optional<T>).
+template <class T>
+CLI::Option* add_setting_option(CLI::App& app, const std::string& flag, T& target,
+                                const std::string& help) {
+  using V = std::conditional_t<Textual<T>, T, optional_value_t<T>>;
+  CLI::Option* o = app.add_option_function<std::string>(
+      flag,
+      [&target, flag](const std::string& text) {
+        auto value = SettingText<V>::parse(text);
+        if (!value) {
+          throw CLI::ValidationError(
+              flag, "'" + text + "': expected " + std::string(SettingText<V>::syntax));
+        }
+        target = std::move(*value);
+      },
+      help);
+  if constexpr (Textual<T>) o->default_str(SettingText<T>::format(target));
+  return o;
+}
+
+// --channel awgn|rayleigh:fast|rayleigh:block:B|bsc|bec: a channel kind with its fading block.
+using ChannelModel = std::pair<ChannelKind, std::uint32_t>;
+inline CLI::Option* add_channel_option(CLI::App& app, std::optional<ChannelModel>& target,
+                                       const std::string& help) {
+  return app.add_option_function<std::string>(
+      "--channel",
+      [&target](const std::string& text) {
+        target = parse_channel_model(text);
+        if (!target) {
+          throw CLI::ValidationError(
+              "--channel",
+              "'" + text + "': expected awgn, rayleigh:fast, rayleigh:block:B, bsc or bec");
+        }
+      },
+      help);
+}
+
 template <class S>
 class SettingsOptions {
  public:
@@ -47,7 +85,8 @@ class SettingsOptions {
   // Registers one option per field that has a flag; skip lists keys left out.
   void add_to(CLI::App& group, std::initializer_list<std::string_view> skip = {}) {
     for_each_field<S>([&](const auto& field) {
-      if (std::find(skip.begin(), skip.end(), field.key) != skip.end()) return;
+      if (field.flag.empty() || std::find(skip.begin(), skip.end(), field.key) != skip.end())
+        return;
       bound_.push_back(
           {field.key, add(group, field),
            [member = field.member](S& base, const S& from) { base.*member = from.*member; }});
@@ -85,20 +124,7 @@ class SettingsOptions {
     } else if constexpr (Named<T>) {
       return add_named_option(group, flag, target, help);
     } else if constexpr (Textual<T> || (is_optional<T> && Textual<optional_value_t<T>>)) {
-      using V = std::conditional_t<Textual<T>, T, optional_value_t<T>>;
-      CLI::Option* o = group.add_option_function<std::string>(
-          flag,
-          [&target, flag](const std::string& text) {
-            auto value = SettingText<V>::parse(text);
-            if (!value) {
-              throw CLI::ValidationError(
-                  flag, "'" + text + "': expected " + std::string(SettingText<V>::syntax));
-            }
-            target = std::move(*value);
-          },
-          help);
-      if constexpr (Textual<T>) o->default_str(SettingText<T>::format(target));
-      return o;
+      return add_setting_option(group, flag, target, help);
     } else if constexpr (std::is_unsigned_v<T>) {
       return group.add_option(flag, target, help)->capture_default_str()->check(kNonNegative);
     } else {

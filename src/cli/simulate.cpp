@@ -20,6 +20,7 @@ struct SimulateOptions {
   CodeInput input;
   DecoderOptions decoder;
   SettingsOptions<ChannelSpec> channel;
+  std::optional<ChannelModel> channel_model;
   SettingsOptions<StopRules> stop;
   SettingsOptions<SimulationConfig> run;
   std::string sweep;
@@ -41,6 +42,7 @@ struct SimulateOptions {
 SimulationConfig config_of(const SimulateOptions& o, SimulationConfig c) {
   c.decoder = o.decoder.settings(c.decoder);
   o.channel.overlay(c.channel);
+  if (o.channel_model) std::tie(c.channel.kind, c.channel.fading_block) = *o.channel_model;
   o.stop.overlay(c.stop);
   o.run.overlay(c);
   validate(c.channel);
@@ -167,12 +169,16 @@ void add_simulate(CLI::App& app) {
       "Counts are identical for any --threads: frames are pure functions of (seed, point, frame).");
   o->input.add_to(*sub, false, kDefaultCode);
   o->decoder.add_to(*sub);
-  auto* ch = sub->add_option_group("channel", "Channel options");
+  auto* ch = sub->add_option_group("channel", "Link options");
+  add_channel_option(*ch, o->channel_model,
+                     "awgn, rayleigh:fast (a fading amplitude per symbol), rayleigh:block:B (one "
+                     "per B symbols), bsc (crossover p) or bec (erasure probability)")
+      ->default_str("awgn");
   o->channel.add_to(*ch);
   ch->add_option("--sweep", o->sweep,
-                 "sweep values: list 1,1.5,2 or range START:STEP:STOP; Eb/N0 in dB (awgn), p "
-                 "(bsc), epsilon (bec); "
-                 "default awgn 1:0.25:1.75, bsc 0.08:-0.01:0.04, bec 0.46:-0.02:0.36");
+                 "sweep values: list 1,1.5,2 or range START:STEP:STOP; Eb/N0 in dB (awgn, "
+                 "rayleigh), p (bsc), epsilon (bec); default awgn 1:0.25:1.75, rayleigh 3:0.5:5, "
+                 "bsc 0.08:-0.01:0.04, bec 0.46:-0.02:0.36");
   o->stop.add_to(*sub->add_option_group("stop", "Stop rules"));
   o->run.add_to(*sub);
   sub->add_option("--threads", o->threads, "worker threads, 1 to 1024 (default: all cores)")

@@ -35,14 +35,27 @@ void ProgressLine::end_line() {
 
 void print_heading(const RunRecord& r) {
   const SimulationConfig& c = r.config;
-  fmt::print("code {}: n = {}, k = {}, rate {:.4f}{}\n", r.code.source, r.code.n, r.code.k,
-             static_cast<double>(r.code.k) / static_cast<double>(r.code.n),
-             c.channel.kind == ChannelKind::awgn
-                 ? fmt::format(" (Eb/N0 uses R = {:.4f}, {} rate)", r.rate_for_snr,
-                               c.channel.design_rate ? "design" : "true")
+  const ChannelSpec& ch = c.channel;
+  const double rate = static_cast<double>(r.code.k) / static_cast<double>(r.code.n);
+  fmt::print("code {}: n = {}, k = {}, rate {:.4f}{}{}\n", r.code.source, r.code.n, r.code.k, rate,
+             ch.puncture.empty()
+                 ? std::string()
+                 : fmt::format(", effective rate {:.4f} after {}", r.effective_rate, ch.puncture),
+             snr_swept(ch.kind)
+                 ? fmt::format(" (Eb/N0 uses {:.4f} information bits per symbol, {} rate)",
+                               r.rate_for_snr, ch.design_rate ? "design" : "true")
                  : std::string());
+  std::string link = channel_model(ch);
+  if (snr_swept(ch.kind)) {
+    link += fmt::format(", {} ({} demapper{}{})", SettingText<Modulation>::format(ch.modulation),
+                        name_of(ch.demapper),
+                        ch.interleaver == Interleaver{}
+                            ? ""
+                            : ", interleaver " + SettingText<Interleaver>::format(ch.interleaver),
+                        ch.ignore_fading ? ", fading ignored" : "");
+  }
   fmt::print("decoder {}; channel {}; seed {}, chunks of {} frames, {}{}\n", describe(c.decoder),
-             name_of(c.channel.kind), c.seed, c.chunk_frames, count_of(c.threads, "thread"),
+             link, c.seed, c.chunk_frames, count_of(c.threads, "thread"),
              c.all_zero ? "; all-zero codeword" : "");
   std::fflush(stdout);
 }

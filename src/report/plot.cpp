@@ -64,6 +64,8 @@ std::pair<double, std::string> capacity_limit(const RunRecord& run) {
       return {bsc_limit_crossover(rate), fmt::format("BSC capacity limit, R = {:.3f}", rate)};
     case ChannelKind::bec:
       return {1 - rate, fmt::format("BEC capacity limit, R = {:.3f}", rate)};
+    case ChannelKind::rayleigh:
+      break;
   }
   return {NAN, ""};
 }
@@ -105,8 +107,8 @@ std::string plot_svg(const std::vector<PlotRun>& runs, const PlotOptions& option
       throw Error(fmt::format(
           "plot: '{}' sweeps {} on {} and '{}' sweeps {} on {}: they cannot share one axis; plot "
           "them separately",
-          runs.front().label, parameter_heading(a), name_of(a.kind), r.label,
-          parameter_heading(b), name_of(b.kind)));
+          runs.front().label, parameter_heading(a), name_of(a.kind), r.label, parameter_heading(b),
+          name_of(b.kind)));
     }
   }
   const bool awgn_ebn0 = first.config.channel.kind == ChannelKind::awgn &&

@@ -32,6 +32,7 @@ PointStats point_stats(const PointResult& p, double confidence) {
 std::string parameter_key(const ChannelSpec& c) {
   switch (c.kind) {
     case ChannelKind::awgn:
+    case ChannelKind::rayleigh:
       return c.measure == SnrMeasure::ebn0 ? "ebn0_db" : "esn0_db";
     case ChannelKind::bsc:
       return "p";
@@ -44,6 +45,7 @@ std::string parameter_key(const ChannelSpec& c) {
 std::string parameter_heading(const ChannelSpec& c) {
   switch (c.kind) {
     case ChannelKind::awgn:
+    case ChannelKind::rayleigh:
       return c.measure == SnrMeasure::ebn0 ? "Eb/N0 dB" : "Es/N0 dB";
     case ChannelKind::bsc:
       return "p";
@@ -147,6 +149,8 @@ RunRecord new_run_record(const std::string& source, const Code& code, const Simu
   r.code = code_record(source, code, sim.encoder().k());
   r.config = sim.config();
   r.rate_for_snr = sim.rate();
+  r.effective_rate = sim.effective_rate();
+  r.bits_per_symbol = sim.link().constellation().bits();
   r.threads_used = sim.config().threads;
   return r;
 }
@@ -222,6 +226,8 @@ std::string results_json(const RunRecord& run) {
   j["channel"] = c.channel;
   j["channel"]["parameter"] = parameter_key(c.channel);
   j["channel"]["rate_for_snr"] = run.rate_for_snr;
+  j["channel"]["effective_rate"] = run.effective_rate;
+  j["channel"]["bits_per_symbol"] = run.bits_per_symbol;
   j["run"] = fields_json(c);
   j["run"]["sweep"] = c.sweep;
   j["run"]["threads"] = run.threads_used;
@@ -299,6 +305,13 @@ RunRecord parse_results(const json& j, const std::string& source) {
     throw Error(fmt::format("{}: {}", source, e.what()));
   }
   r.rate_for_snr = get<double>(ch, "rate_for_snr", source, "channel");
+  // Before links: BPSK with every code bit sent.
+  r.effective_rate =
+      ch.contains("effective_rate")
+          ? get<double>(ch, "effective_rate", source, "channel")
+          : static_cast<double>(r.code.k) / static_cast<double>(std::max<std::size_t>(r.code.n, 1));
+  r.bits_per_symbol =
+      ch.contains("bits_per_symbol") ? get<unsigned>(ch, "bits_per_symbol", source, "channel") : 1;
   if (c.chunk_frames == 0 || c.chunk_frames > kMaxChunkFrames) {
     throw Error(fmt::format("{}: run: chunk_frames {} is outside 1..{}", source, c.chunk_frames,
                             kMaxChunkFrames));

@@ -60,7 +60,9 @@ struct Simulator::Worker {
   std::vector<std::uint8_t> info, codewords, hard;
   std::vector<std::uint64_t> info_masks, codeword_masks, errors;  // lane layout
   std::vector<std::uint64_t> wide_codewords;  // 64 frames, bit-sliced (narrow lanes)
-  std::vector<double> llr, noise;
+  std::vector<double> llr, frame_llr;
+  std::vector<std::uint8_t> frame_codeword;
+  LinkBuffers link_buffers;
   std::vector<FrameOutcome> outcomes;
   LaneResults lane_results;
 };
@@ -73,8 +75,13 @@ Simulator::Simulator(std::shared_ptr<const Code> code, SimulationConfig config)
       code_(*shared_),
       config_(std::move(config)),
       encoder_(code_),
-      is_info_(code_.n(), 0) {
-  for (std::uint32_t p : encoder_.info_positions()) is_info_[p] = 1;
+      is_info_(code_.n(), 0),
+      link_(config_.channel, config_.channel.puncture.empty()
+                                 ? PunctureMap::all_sent(code_.n())
+                                 : read_puncture_map(config_.channel.puncture, code_.n())) {
+  check_shortening(link_, encoder_);
+  for (std::uint32_t p : encoder_.info_positions())
+    is_info_[p] = link_.puncture_map().state[p] != PunctureMap::shortened;
   if (config_.threads == 0) config_.threads = std::max(1u, std::thread::hardware_concurrency());
   config_.decoder = resolve_kernel(config_.decoder, code_);
   validate(config_.decoder, code_);
@@ -101,36 +108,68 @@ Simulator::Simulator(std::shared_ptr<const Code> code, SimulationConfig config)
   if (!(config_.confidence > 0 && config_.confidence < 1))
     throw Error("confidence must be in (0, 1)");
   if (encoder_.k() == 0) throw Error("the code has dimension k = 0: nothing to simulate");
-  if (config_.channel.kind == ChannelKind::awgn && rate() <= 0)
+  if (snr_swept(config_.channel.kind) && rate() <= 0)
     throw Error("the rate for Eb/N0 must be positive");
+  if (config_.all_zero && link_.constellation().bits() > 1) {
+    throw Error(
+        "all_zero needs a symmetric channel: with more than one bit per symbol the all-zero "
+        "codeword uses only some points of the constellation");
+  }
   for (double p : config_.sweep) channel_point(p);  // every point representable
 }
 
 double Simulator::rate() const noexcept {
-  const double n = static_cast<double>(code_.n());
-  return config_.channel.design_rate ? 1.0 - static_cast<double>(code_.m()) / n
-                                     : static_cast<double>(encoder_.k()) / n;
+  return link_.snr_rate(config_.channel.design_rate ? code_.n() - std::min(code_.m(), code_.n())
+                                                    : encoder_.k());
+}
+
+double Simulator::effective_rate() const noexcept {
+  return static_cast<double>(encoder_.k() - link_.shortened()) / static_cast<double>(link_.sent());
 }
 
 ChannelPoint Simulator::channel_point(double parameter) const {
   return tannery::channel_point(config_.channel, parameter, rate());
 }
 
-void generate_frame(const FrameId& id, const ChannelPoint& channel, const Encoder& encoder,
-                    bool all_zero, std::span<std::uint8_t> info, std::span<std::uint8_t> codeword,
-                    std::span<double> noise, std::span<double> llr) {
+void check_shortening(const Link& link, const Encoder& encoder) {
+  const auto& state = link.puncture_map().state;
+  std::vector<std::uint8_t> info(state.size(), 0);
+  for (std::uint32_t p : encoder.info_positions()) info[p] = 1;
+  for (std::size_t p = 0; p < state.size(); ++p) {
+    if (state[p] == PunctureMap::shortened && !info[p]) {
+      throw Error(fmt::format(
+          "puncture map: shortened position {} is a parity position of this code's systematic "
+          "encoder; only information positions can be known zeros (the first is {})",
+          p, encoder.info_positions().empty() ? 0 : encoder.info_positions().front()));
+    }
+  }
+}
+
+void frame_codeword(const FrameId& id, const Encoder& encoder, const Link& link, bool all_zero,
+                    std::span<std::uint8_t> info, std::span<std::uint8_t> codeword) {
   if (all_zero) {
     std::fill(info.begin(), info.end(), std::uint8_t{0});
     std::fill(codeword.begin(), codeword.end(), std::uint8_t{0});
-  } else {
-    frame_bits(id, info);
-    encoder.encode(info, codeword);
+    return;
   }
-  if (channel.kind() == ChannelKind::awgn)
-    frame_gaussians(id, noise);
+  frame_bits(id, info);
+  if (link.shortened() > 0) {
+    const auto& positions = encoder.info_positions();
+    for (std::size_t i = 0; i < info.size(); ++i)
+      if (link.puncture_map().state[positions[i]] == PunctureMap::shortened) info[i] = 0;
+  }
+  encoder.encode(info, codeword);
+}
+
+void frame_llrs(const FrameId& id, const ChannelPoint& channel, const Link& link,
+                std::span<const std::uint8_t> codeword, std::span<double> llr,
+                LinkBuffers& buffers) {
+  buffers.noise.resize(link.binary() ? link.n() : link.noise_values());
+  if (link.binary() && channel.kind() != ChannelKind::awgn)
+    frame_uniforms(id, buffers.noise);
   else
-    frame_uniforms(id, noise);
-  transmit(channel, codeword, noise, llr);
+    frame_gaussians(id, buffers.noise);
+  link.transmit(channel, codeword, buffers.noise, llr, buffers);
 }
 
 // Frame layout: every frame generated alone, the decoder given the whole chunk.
@@ -142,13 +181,13 @@ void Simulator::run_frames(Worker& w, std::size_t index, const ChannelPoint& cha
   w.codewords.resize(count * n);
   w.hard.resize(count * n);
   w.llr.resize(count * n);
-  w.noise.resize(n);
   w.outcomes.resize(count);
   for (std::size_t f = 0; f < count; ++f) {
-    generate_frame(FrameId{config_.seed, static_cast<std::uint32_t>(index), first + f}, channel,
-                   encoder_, config_.all_zero, std::span(w.info).subspan(f * k, k),
-                   std::span(w.codewords).subspan(f * n, n), w.noise,
-                   std::span(w.llr).subspan(f * n, n));
+    const FrameId id{config_.seed, static_cast<std::uint32_t>(index), first + f};
+    const std::span<std::uint8_t> codeword = std::span(w.codewords).subspan(f * n, n);
+    frame_codeword(id, encoder_, link_, config_.all_zero, std::span(w.info).subspan(f * k, k),
+                   codeword);
+    frame_llrs(id, channel, link_, codeword, std::span(w.llr).subspan(f * n, n), w.link_buffers);
   }
   w.decoder->decode(w.llr, w.hard, {}, w.outcomes, first);
   const auto& info_pos = encoder_.info_positions();
@@ -157,7 +196,7 @@ void Simulator::run_frames(Worker& w, std::size_t index, const ChannelPoint& cha
     const std::uint8_t* got = w.hard.data() + f * n;
     std::uint64_t coded = 0, info_errors = 0;
     for (std::size_t i = 0; i < n; ++i) coded += sent[i] != got[i];
-    for (std::uint32_t p : info_pos) info_errors += sent[p] != got[p];
+    for (std::uint32_t p : info_pos) info_errors += is_info_[p] && sent[p] != got[p];
     record(first + f, coded, info_errors, w.outcomes[f], [&] {
       const double* l = w.llr.data() + f * n;
       return std::vector<float>(l, l + n);
@@ -194,12 +233,27 @@ void Simulator::run_lanes(Worker& w, LaneDecoder& decoder, std::size_t index,
       if (g % per == 0) {
         const FrameGroup wide{group.seed, group.point, group.first, per * lanes};
         group_bits(wide, w.info_masks);
+        for (std::size_t i = 0; i < k; ++i) {
+          if (!is_info_[encoder_.info_positions()[i]]) w.info_masks[i] = 0;  // shortened
+        }
         encoder_.encode_lanes(w.info_masks, w.wide_codewords);
       }
       const auto shift = static_cast<unsigned>(g % per * lanes);
       for (std::size_t v = 0; v < n; ++v) sent[v] = (w.wide_codewords[v] >> shift) & keep;
     }
-    group_channel_llrs(group, channel, sent, w.llr);
+    if (link_.binary()) {
+      group_channel_llrs(group, channel, sent, w.llr);
+    } else {
+      // Through the link frame by frame (demapped with SIMD across its symbols), then into lanes.
+      w.frame_codeword.resize(n);
+      w.frame_llr.resize(n);
+      for (std::size_t l = 0; l < lanes; ++l) {
+        for (std::size_t v = 0; v < n; ++v) w.frame_codeword[v] = (sent[v] >> l) & 1;
+        frame_llrs(FrameId{group.seed, group.point, group.first + l}, channel, link_,
+                   w.frame_codeword, w.frame_llr, w.link_buffers);
+        for (std::size_t v = 0; v < n; ++v) w.llr[v * lanes + l] = w.frame_llr[v];
+      }
+    }
     decoder.load(g, w.llr);
   }
   decoder.decode(w.lane_results);
@@ -227,11 +281,11 @@ void Simulator::run_lanes(Worker& w, LaneDecoder& decoder, std::size_t index,
       // Regenerated alone: the same values as in its group.
       w.info.resize(k);
       w.codewords.resize(n);
-      w.noise.resize(n);
-      w.llr.resize(n);
-      generate_frame(FrameId{config_.seed, static_cast<std::uint32_t>(index), first + f}, channel,
-                     encoder_, config_.all_zero, w.info, w.codewords, w.noise, w.llr);
-      return std::vector<float>(w.llr.begin(), w.llr.end());
+      w.frame_llr.resize(n);
+      const FrameId id{config_.seed, static_cast<std::uint32_t>(index), first + f};
+      frame_codeword(id, encoder_, link_, config_.all_zero, w.info, w.codewords);
+      frame_llrs(id, channel, link_, w.codewords, w.frame_llr, w.link_buffers);
+      return std::vector<float>(w.frame_llr.begin(), w.frame_llr.end());
     });
   }
 }
@@ -276,7 +330,7 @@ PointResult Simulator::run_point(std::size_t index, PointResult total,
       ChunkResult r;
       PointResult& c = r.counts;
       c.frames = count;
-      c.bits = count * k;
+      c.bits = count * (k - link_.shortened());
       c.coded_bits = count * n;
       // One frame's counts; llr gives its channel LLRs, asked for only when it failed and is kept.
       auto record = [&](std::uint64_t frame, std::uint64_t coded, std::uint64_t info_errors,
@@ -399,10 +453,10 @@ FrameData Simulator::replay(std::size_t point, std::uint64_t frame) const {
   d.hard.resize(n);
   d.llr.resize(n);
   d.posterior.resize(n);
-  std::vector<double> noise(n);
-  generate_frame(FrameId{config_.seed, static_cast<std::uint32_t>(point), frame},
-                 channel_point(config_.sweep[point]), encoder_, config_.all_zero, d.info,
-                 d.codeword, noise, d.llr);
+  const FrameId id{config_.seed, static_cast<std::uint32_t>(point), frame};
+  LinkBuffers buffers;
+  frame_codeword(id, encoder_, link_, config_.all_zero, d.info, d.codeword);
+  frame_llrs(id, channel_point(config_.sweep[point]), link_, d.codeword, d.llr, buffers);
   auto decoder = make_decoder(shared_, config_.decoder);
   decoder->decode(d.llr, d.hard, d.posterior, std::span(&d.outcome, 1), frame);
   for (std::size_t i = 0; i < n; ++i) d.coded_errors += d.hard[i] != d.codeword[i];
@@ -424,6 +478,8 @@ std::vector<double> default_sweep(ChannelKind kind) {
   switch (kind) {
     case ChannelKind::awgn:
       return parse_sweep("1:0.25:1.75");
+    case ChannelKind::rayleigh:
+      return parse_sweep("3:0.5:5");
     case ChannelKind::bsc:
       return parse_sweep("0.08:-0.01:0.04");
     case ChannelKind::bec:

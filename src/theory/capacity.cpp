@@ -6,6 +6,7 @@
 
 #include "tannery/base/stats.hpp"
 #include "tannery/channel/channel.hpp"
+#include "tannery/error.hpp"
 
 namespace tannery {
 
@@ -93,8 +94,10 @@ std::pair<double, double> capacity_dispersion(ChannelKind kind, double value) {
       m2 *= h / 3;
       return {m1, std::max(0.0, m2 - m1 * m1)};
     }
+    case ChannelKind::rayleigh:
+      break;
   }
-  return {0, 0};
+  throw Error("capacity and dispersion: BPSK over AWGN, the BSC and the BEC only");
 }
 
 double normal_approximation_fer(ChannelKind kind, double value, std::size_t n, std::size_t k) {

@@ -521,6 +521,8 @@ double density_evolution_error(const Ensemble& e, const DecoderSettings& decoder
   e.validate();
   check_algorithm(decoder);
   if (kind == ChannelKind::bec) throw Error("on the BEC use bec_threshold (exact recursion)");
+  if (kind == ChannelKind::rayleigh)
+    throw Error("density evolution: BPSK on awgn, bsc or bec (not rayleigh)");
   DensityEvolution de(e, decoder, kStep, grid_limit(decoder));
   return de
       .evolve(kind == ChannelKind::awgn ? awgn_channel(de.grid(), value)
@@ -549,6 +551,8 @@ ThresholdResult threshold(const Ensemble& e, const DecoderSettings& decoder, Cha
                           ThresholdMethod method) {
   if (kind == ChannelKind::awgn) return awgn_threshold(e, decoder, method);
   if (kind == ChannelKind::bsc) return bsc_threshold(e, decoder);
+  if (kind == ChannelKind::rayleigh)
+    throw Error("density evolution: BPSK on awgn, bsc or bec (not rayleigh)");
   if (decoder.algorithm != Algorithm::sum_product) {
     throw Error(
         "on the BEC every message-passing decoder is the peeling decoder; use algorithm "

@@ -124,14 +124,14 @@ simulate --scenario nan-sweep.toml -o sentinel.out --plot ''|nan-sweep.toml:3:10
 simulate --code hamming-7-4 --sweep 1,x -o sentinel.out --plot ''|sweep: 'x' is not a number
 simulate --code hamming-7-4 --sweep 0:1e-9:100 -o sentinel.out --plot ''|more than 10000 points
 simulate --code hamming-7-4 --confidence 1.5 -o sentinel.out --plot ''|confidence must be in (0, 1)
-simulate --code hamming-7-4 --channel bec --snr-offset 1 -o sentinel.out --plot ''|apply to the awgn channel only
+simulate --code hamming-7-4 --channel bec --snr-offset 1 -o sentinel.out --plot ''|apply to the awgn and rayleigh channels only
 simulate --code hamming-7-4 --replay 9:0 -o sentinel.out --plot ''|replay: point 9 does not exist
 simulate --resume errors.json -o sentinel.out --plot ''|errors.json: point 0: more errors than trials
 simulate --resume order.json -o sentinel.out --plot ''|order.json: point 0: failed frames
 simulate --resume seconds.json -o sentinel.out --plot ''|seconds.json: point 0: seconds must be >= 0
 simulate --resume chunk.json -o sentinel.out --plot ''|chunk.json: run: chunk_frames 0
 compare version.json good.json|version.json: results version 99
-compare kind.json good.json|kind.json: channel: 'kind': channel 'wifi' is not one of: awgn, bsc, bec
+compare kind.json good.json|kind.json: channel: 'kind': channel 'wifi' is not one of: awgn, rayleigh, bsc, bec
 compare missing.json good.json|missing.json: missing section 'points'
 compare truncated.json good.json|truncated.json: not valid JSON
 compare good.json good.json --confidence 2|--confidence

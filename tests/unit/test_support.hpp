@@ -1,7 +1,10 @@
 // Helpers shared by the unit tests: shipped codes, random sparse codes, dense reference algebra.
 #pragma once
 
+#include <unistd.h>
+
 #include <cstdint>
+#include <filesystem>
 #include <string>
 #include <vector>
 
@@ -118,6 +121,13 @@ inline std::vector<double> gaussian_llrs(std::size_t count, std::uint64_t seed, 
   std::vector<double> llr(count);
   for (auto& x : llr) x = mean + spread * g();
   return llr;
+}
+
+// A path for a scratch file of this test process (in the system's temporary directory).
+inline std::string temp_path(const std::string& name) {
+  return (std::filesystem::temp_directory_path() /
+          ("tannery-" + std::to_string(::getpid()) + "-" + name))
+      .string();
 }
 
 // Restores automatic SIMD target choice when a test ends, even on failure.

@@ -35,7 +35,9 @@ struct RunRecord {
   std::string created;  // UTC, ISO 8601
   CodeRecord code;
   SimulationConfig config;
-  double rate_for_snr = 0;  // rate in the Eb/N0 conversion
+  double rate_for_snr = 0;    // information bits per symbol in the Eb/N0 conversion
+  double effective_rate = 0;  // information bits per sent code bit (puncturing, shortening)
+  unsigned bits_per_symbol = 1;
   unsigned threads_used = 0;
   bool interrupted = false;
   std::vector<PointResult> points;

@@ -21,7 +21,8 @@ struct Field {
   using Settings = S;
   using Value = T;
   std::string_view key;   // scenario and results files, Python keywords
-  std::string_view flag;  // command line; a "--no-..." flag sets a bool to false
+  std::string_view flag;  // command line ('' : set by a command-specific option); a "--no-..."
+                          // flag sets a bool to false
   std::string_view help;  // with units
   T S::*member;
 };
@@ -101,19 +102,42 @@ template <>
 struct Fields<ChannelSpec> {
   using S = ChannelSpec;
   static constexpr std::tuple all{
-      Field<S, ChannelKind>{"kind", "--channel",
-                            "awgn (BPSK over AWGN), bsc (crossover p) or bec (erasure "
+      // The command line gives kind and fading_block together: --channel rayleigh:block:8.
+      Field<S, ChannelKind>{"kind", "",
+                            "awgn, rayleigh, bsc (crossover p) or bec (erasure "
                             "probability)",
                             &S::kind},
+      Field<S, std::uint32_t>{"fading_block", "",
+                              "rayleigh: symbols per fading amplitude (1: fast fading)",
+                              &S::fading_block},
+      Field<S, Modulation>{"modulation", "--modulation",
+                           "bpsk, qpsk, 16qam, 64qam, 256qam, 4pam, 8pam (Gray labels, unit "
+                           "energy) or a constellation file (lines LABEL I [Q])",
+                           &S::modulation},
+      Field<S, Demapper>{"demapper", "--demapper",
+                         "bit LLRs: exact (log-sum-exp over the constellation) or max-log",
+                         &S::demapper},
+      Field<S, Interleaver>{"interleaver", "--interleaver",
+                            "order of the sent code bits in the symbols: none, random:SEED or "
+                            "block:ROWSxCOLS (written by rows, read by columns)",
+                            &S::interleaver},
+      Field<S, bool>{"ignore_fading", "--ignore-fading",
+                     "rayleigh: the receiver demaps as if the amplitude were 1 (mismatch study)",
+                     &S::ignore_fading},
+      Field<S, std::string>{"puncture", "--puncture",
+                            "puncture map file: lines 'punctured LIST' (not sent, LLR 0) or "
+                            "'shortened LIST' (information bits known to be 0, not sent)",
+                            &S::puncture},
       Field<S, SnrMeasure>{"snr", "--snr",
-                           "awgn sweep measure: ebn0 (Eb/N0 in dB) or esn0 (Es/N0 in dB)",
+                           "awgn/rayleigh sweep measure: ebn0 (Eb/N0 in dB) or esn0 (Es/N0 in "
+                           "dB)",
                            &S::measure},
       Field<S, bool>{"design_rate", "--design-rate",
                      "Eb/N0 with the design rate 1 - m/n instead of the true rate k/n",
                      &S::design_rate},
       Field<S, double>{"snr_offset_db", "--snr-offset",
                        "decoder's noise estimate is off: LLRs computed for an SNR this many dB "
-                       "higher (awgn mismatch)",
+                       "higher (awgn/rayleigh mismatch)",
                        &S::snr_offset_db},
       Field<S, std::optional<double>>{
           "assumed_crossover", "--assumed-p",

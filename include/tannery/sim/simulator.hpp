@@ -1,7 +1,8 @@
 // Monte Carlo error-rate simulation over a sweep of channel parameters.
 //
-// Frame pipeline: random information bits -> systematic encoder -> BPSK -> channel -> LLRs ->
-// decoder -> counts. With a batched (SIMD) decoder the pipeline runs in the decoder's
+// Frame pipeline: random information bits (0 at shortened positions) -> systematic encoder ->
+// link (puncturing, interleaving, modulation, channel, demapping: tannery/channel/link.hpp) ->
+// LLRs -> decoder -> counts. With a batched (SIMD) decoder the pipeline runs in the decoder's
 // lane layout: Philox, Box-Muller or uniforms, channel LLRs, encoding (bit-sliced) and error
 // counting for a whole batch of frames at once, giving the same numbers as frame by frame. Frames
 // run in fixed-size chunks on worker threads; completed chunks are added to the point's totals
@@ -26,6 +27,7 @@
 #include <vector>
 
 #include "tannery/channel/channel.hpp"
+#include "tannery/channel/link.hpp"
 #include "tannery/code/code.hpp"
 #include "tannery/code/gf2.hpp"
 #include "tannery/decode/decoder.hpp"
@@ -120,7 +122,12 @@ class Simulator {
   const Code& code() const noexcept { return code_; }
   const SimulationConfig& config() const noexcept { return config_; }
   const Encoder& encoder() const noexcept { return encoder_; }
-  double rate() const noexcept;  // the rate used for Eb/N0 (true or design)
+  const Link& link() const noexcept { return link_; }
+  // Information bits per transmitted symbol, the rate used for Eb/N0 (Link::snr_rate of k, or
+  // of n - m with design_rate): k/n for BPSK with every code bit sent.
+  double rate() const noexcept;
+  // Information bits per sent code bit: (k - shortened) / sent, k/n with every bit sent.
+  double effective_rate() const noexcept;
   ChannelPoint channel_point(double parameter) const;
 
   // Runs the sweep. previous (from a results file) holds points already simulated: complete ones
@@ -152,15 +159,22 @@ class Simulator {
   const Code& code_;  // *shared_
   SimulationConfig config_;
   Encoder encoder_;
-  std::vector<std::uint8_t> is_info_;  // 1 at the information positions
+  std::vector<std::uint8_t> is_info_;  // 1 at the information positions (not shortened)
+  Link link_;
   std::vector<KeptFrame> kept_;
 };
 
-// Generates frame id through the channel: information bits (zeros when all_zero), codeword and
-// channel LLRs. noise is scratch of n values. The simulator, replay and demo captures share it.
-void generate_frame(const FrameId& id, const ChannelPoint& channel, const Encoder& encoder,
-                    bool all_zero, std::span<std::uint8_t> info, std::span<std::uint8_t> codeword,
-                    std::span<double> noise, std::span<double> llr);
+// Generates frame id: information bits (stream 0; zeros when all_zero, and at the link's
+// shortened positions) and its codeword.
+void frame_codeword(const FrameId& id, const Encoder& encoder, const Link& link, bool all_zero,
+                    std::span<std::uint8_t> info, std::span<std::uint8_t> codeword);
+// The channel LLRs of a frame through the link from its stream-1 noise (buffers.noise).
+void frame_llrs(const FrameId& id, const ChannelPoint& channel, const Link& link,
+                std::span<const std::uint8_t> codeword, std::span<double> llr,
+                LinkBuffers& buffers);
+// Error unless the shortened positions of the link are information positions of the encoder
+// (only those can be known zeros).
+void check_shortening(const Link& link, const Encoder& encoder);
 
 // The largest chunk a simulation takes (each thread holds a chunk's frames in memory).
 inline constexpr std::uint32_t kMaxChunkFrames = 1u << 20;

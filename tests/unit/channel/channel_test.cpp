@@ -51,7 +51,7 @@ TEST_CASE("channel points refuse what cannot be represented, naming the setting"
   CHECK_THROWS_WITH(channel_point(spec, 4000.0, 0.5), Catch::Contains("outside what a simulation"));
   spec.kind = ChannelKind::bsc;
   spec.snr_offset_db = 1;
-  CHECK_THROWS_WITH(validate(spec), Catch::Contains("awgn channel only"));
+  CHECK_THROWS_WITH(validate(spec), Catch::Contains("awgn and rayleigh channels only"));
   spec.snr_offset_db = 0;
   spec.assumed_crossover = 0.2;
   CHECK(channel_point(spec, 0.1, 0.5).assumed_value() == 0.2);

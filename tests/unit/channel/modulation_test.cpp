@@ -3,8 +3,10 @@
 #include <catch2/catch.hpp>
 #include <cmath>
 #include <complex>
+#include <limits>
 #include <vector>
 
+#include "tannery/channel/link.hpp"
 #include "tannery/channel/modulation.hpp"
 #include "tannery/error.hpp"
 #include "tannery/sim/random.hpp"
@@ -314,5 +316,58 @@ TEST_CASE("uncoded M-QAM symbol error rates match Proakis", "[modulation]") {
     const Counts counts = uncoded(c, esn0, 200000, 23);
     INFO(m << "-QAM at Es/N0 " << esn0 << " dB");
     check_rate(counts.symbol_errors, counts.symbols, expected);
+  }
+}
+
+TEST_CASE("links: BPSK demapping is 2y/sigma^2, fading blocks, punctured and shortened positions",
+          "[modulation]") {
+  // BPSK through the demapper gives the binary channel's LLRs bit for bit (common practice:
+  // L = 2 a y / sigma^2).
+  ChannelSpec spec;
+  spec.interleaver = parse_text<Interleaver>("block:2x3");
+  PunctureMap map = PunctureMap::all_sent(8);
+  map.state[1] = PunctureMap::punctured;
+  map.state[4] = PunctureMap::shortened;
+  const Link link(spec, map);
+  CHECK_FALSE(link.binary());
+  CHECK(link.sent() == 6);
+  CHECK(link.symbols() == 6);
+  CHECK(link.snr_rate(4) == Approx(3.0 / 6));
+  const std::vector<double> y{0.3, -1.2, 0.8, 2.0, -0.1, 0.5};
+  std::vector<double> llr(8);
+  LinkBuffers buffers;
+  link.demodulate(y, {}, {}, 0.7, llr, buffers);
+  // Sent positions 0 2 3 5 6 7 are sent bits 0..5; the 2 x 3 block reads slots as bits
+  // 0 3 1 4 2 5: symbol j carries sent bit order[j].
+  const std::uint32_t sent_position[] = {0, 2, 3, 5, 6, 7};
+  const std::uint32_t order[] = {0, 3, 1, 4, 2, 5};
+  for (std::size_t j = 0; j < 6; ++j) CHECK(llr[sent_position[order[j]]] == 2 / 0.7 * y[j]);
+  CHECK(llr[1] == 0);
+  CHECK(llr[4] == std::numeric_limits<double>::infinity());
+  // The symbols sent: the same positions in the same order.
+  const std::vector<std::uint8_t> word{1, 0, 0, 1, 0, 1, 1, 0};
+  std::vector<std::complex<double>> symbols(6);
+  link.modulate(word, symbols);
+  for (std::size_t j = 0; j < 6; ++j)
+    CHECK(symbols[j].real() == (word[sent_position[order[j]]] ? -1.0 : 1.0));
+
+  // Block fading: one amplitude per 3 symbols, from the two Gaussians after the symbols' noise.
+  ChannelSpec faded;
+  faded.kind = ChannelKind::rayleigh;
+  faded.fading_block = 3;
+  faded.modulation = parse_text<Modulation>("16qam");
+  const Link qam(faded, PunctureMap::all_sent(40));
+  CHECK(qam.symbols() == 10);
+  CHECK(qam.noise_values() == 2 * 10 + 2 * 4);
+  std::vector<double> noise(qam.noise_values());
+  frame_gaussians(FrameId{3, 0, 0}, noise);
+  qam.receive(ChannelPoint::rayleigh(0.1), std::vector<std::uint8_t>(40, 0), noise, buffers);
+  for (std::size_t s = 0; s < 10; ++s) {
+    const double* g = noise.data() + 20 + 2 * (s / 3);
+    CHECK(buffers.amplitude[s] == std::sqrt((g[0] * g[0] + g[1] * g[1]) / 2));
+    // (Approx: this test may be compiled with fused multiply-adds, the library is not.)
+    CHECK(buffers.in_phase[s] ==
+          Approx(buffers.amplitude[s] * qam.constellation().point(0).real() + 0.1 * noise[2 * s])
+              .epsilon(1e-15));
   }
 }

@@ -91,7 +91,7 @@ TEST_CASE("scenario errors name the file, line and column and the setting", "[sc
   CHECK_THAT(error_of("code = \"x\"\n[channel]\nsweep = \"1\"\n[decoder]\nalgorithm = \"min\"\n"),
              Catch::Contains("min-sum"));
   CHECK_THAT(error_of("code = \"x\"\n[channel]\nkind = \"bsc\"\nsweep = \"0.1\"\nsnr = \"esn0\"\n"),
-             Catch::Contains("awgn channel only"));
+             Catch::Contains("awgn and rayleigh channels only"));
   CHECK_THAT(error_of("[channel]\nsweep = \"1\"\n"), Catch::Contains("code"));
   CHECK_THAT(error_of("code = \"x\"\n[stop]\nmax_frames = -5\n[channel]\nsweep = \"1\"\n"),
              Catch::StartsWith("s.toml:3:"));

@@ -2,6 +2,7 @@
 #include <algorithm>
 #include <catch2/catch.hpp>
 #include <cmath>
+#include <fstream>
 
 #include "tannery/base/stats.hpp"
 #include "tannery/code/construct.hpp"
@@ -109,6 +110,66 @@ TEST_CASE("repetition code with sum-product over AWGN has BER Q(sqrt(2 Eb/N0))",
     check_ber_inside(p, normal_tail(std::sqrt(2 * std::pow(10.0, p.parameter / 10))));
 }
 
+TEST_CASE("uncoded BPSK on Rayleigh fading has BER (1 - sqrt(g / (1 + g))) / 2", "[sim]") {
+  // Proakis, Digital Communications (4th ed., eq. 14.3-7): coherent BPSK on a Rayleigh channel
+  // with average Eb/N0 = g has P_b = (1 - sqrt(g / (1 + g))) / 2. Fast and block fading alike
+  // (the average over the amplitude is the same).
+  const Code uncoded = Code::from_checks(128, {});
+  for (std::uint32_t block : {1u, 16u}) {
+    SimulationConfig c = config(ChannelKind::rayleigh, {0, 5, 10}, 3000);
+    c.channel.fading_block = block;
+    const auto points = run(uncoded, c);
+    REQUIRE(points.size() == 3);
+    for (const auto& p : points) {
+      const double g = std::pow(10.0, p.parameter / 10);
+      INFO("fading block " << block);
+      check_ber_inside(p, (1 - std::sqrt(g / (1 + g))) / 2);
+    }
+  }
+  // A receiver that ignores the fading amplitude makes the same hard decisions (BPSK: the sign).
+  SimulationConfig c = config(ChannelKind::rayleigh, {5}, 500);
+  const auto known = run(uncoded, c);
+  c.channel.ignore_fading = true;
+  CHECK(run(uncoded, c)[0].bit_errors == known[0].bit_errors);
+}
+
+TEST_CASE("punctured and shortened links: effective rate, bits counted, refusals", "[sim]") {
+  const Code code = test::shipped("qc-rate-half-z54.qc");
+  const Encoder encoder(code);
+  const std::string path = test::temp_path("sim-test.punct");
+  {
+    std::ofstream map(path);
+    map << "shortened " << encoder.info_positions()[0] << "-" << encoder.info_positions()[0]
+        << "\npunctured 600-647\n";
+  }
+  SimulationConfig c = config(ChannelKind::awgn, {3}, 256);
+  c.channel.puncture = path;
+  c.channel.modulation = parse_text<Modulation>("qpsk");
+  Simulator sim(code, c);
+  // 324 - 1 information bits on 648 - 49 sent bits, 300 QPSK symbols (the last one padded).
+  CHECK(sim.effective_rate() == Approx(323.0 / 599));
+  CHECK(sim.link().symbols() == 300);
+  CHECK(sim.rate() == Approx(323.0 / 300));
+  const auto points = sim.run({}, {}, nullptr);
+  CHECK(points[0].bits == 256 * 323);
+  // A parity position cannot be a known zero; BICM is not symmetric for the all-zero codeword.
+  std::uint32_t parity = 0;
+  while (std::find(encoder.info_positions().begin(), encoder.info_positions().end(), parity) !=
+         encoder.info_positions().end())
+    ++parity;
+  {
+    std::ofstream map(path);
+    map << "shortened " << parity << "\n";
+  }
+  CHECK_THROWS_WITH(Simulator(code, c), Catch::Contains("is a parity position"));
+  c.channel.puncture.clear();
+  c.all_zero = true;
+  CHECK_THROWS_WITH(Simulator(code, c), Catch::Contains("all_zero needs a symmetric channel"));
+  c.all_zero = false;
+  c.channel.kind = ChannelKind::bsc;
+  CHECK_THROWS_WITH(Simulator(code, c), Catch::Contains("needs the awgn or rayleigh channel"));
+}
+
 TEST_CASE("Hamming (7,4) with ML over the BSC has block error 1 - (1-p)^7 - 7p(1-p)^6", "[sim]") {
   // Textbook (Lin & Costello): a perfect single-error-correcting code fails exactly on >= 2 errors.
   SimulationConfig c = config(ChannelKind::bsc, {0.02, 0.05, 0.1}, 20000);
@@ -207,15 +268,41 @@ TEST_CASE("the lane pipeline of the batched decoders counts exactly as frame by 
   // multiple of the batch width leaves idle lanes, one longer than a batch refills lanes.
   test::TargetGuard guard;
   const Code code = test::shipped("qc-rate-half-z54.qc");
+  // Links beyond binary BPSK go through the link frame by frame and then into lanes: 16-QAM with
+  // a random interleaver, and 64-QAM on block fading with punctured and shortened positions.
+  const std::string map_path = test::temp_path("lane-test.punct");
+  {
+    const Encoder encoder(code);
+    std::ofstream map(map_path);
+    map << "shortened";
+    for (std::size_t i = 0; i < 20; ++i) map << ' ' << encoder.info_positions()[3 * i];
+    map << "\npunctured 638-647\n";
+  }
+  ChannelSpec qam16;
+  qam16.modulation = parse_text<Modulation>("16qam");
+  qam16.interleaver = parse_text<Interleaver>("random:5");
+  ChannelSpec faded;
+  faded.kind = ChannelKind::rayleigh;
+  faded.fading_block = 7;
+  faded.modulation = parse_text<Modulation>("64qam");
+  faded.demapper = Demapper::max_log;
+  faded.puncture = map_path;
+  auto plain = [](ChannelKind kind) {
+    ChannelSpec spec;
+    spec.kind = kind;
+    return spec;
+  };
   struct Case {
-    ChannelKind kind;
+    ChannelSpec spec;
     std::vector<double> sweep;
     std::uint32_t chunk;
   };
-  for (const Case& k : {Case{ChannelKind::awgn, {1.5, 2.25}, 64}, Case{ChannelKind::awgn, {2}, 45},
-                        Case{ChannelKind::awgn, {2}, 200}, Case{ChannelKind::bsc, {0.07}, 200},
-                        Case{ChannelKind::bec, {0.4}, 200}}) {
-    SimulationConfig c = config(k.kind, k.sweep, 2000, 60);
+  for (const Case& k :
+       {Case{plain(ChannelKind::awgn), {1.5, 2.25}, 64}, Case{plain(ChannelKind::awgn), {2}, 45},
+        Case{plain(ChannelKind::awgn), {2}, 200}, Case{plain(ChannelKind::bsc), {0.07}, 200},
+        Case{plain(ChannelKind::bec), {0.4}, 200}, Case{qam16, {4}, 45}, Case{faded, {11}, 200}}) {
+    SimulationConfig c = config(k.spec.kind, k.sweep, 2000, 60);
+    c.channel = k.spec;
     const std::uint32_t chunk = k.chunk;
     c.chunk_frames = chunk;
     c.keep_failures = 5;
@@ -229,7 +316,8 @@ TEST_CASE("the lane pipeline of the batched decoders counts exactly as frame by 
       force_simd_target(target);
       Simulator lanes(code, c);
       const auto got = lanes.run({}, {}, nullptr);
-      INFO(name_of(k.kind) << " chunk " << chunk << " target " << target);
+      INFO(channel_model(k.spec) << " " << SettingText<Modulation>::format(k.spec.modulation)
+                                 << " chunk " << chunk << " target " << target);
       REQUIRE(got.size() == expected.size());
       CHECK(expected.back().frame_errors > 0);  // not vacuous
       for (std::size_t i = 0; i < got.size(); ++i) {

@@ -1,0 +1,85 @@
+// A link: which code bits are sent (puncture map), in which order (interleaver), on which
+// constellation, over which channel, and how received symbols become the code's LLRs.
+//
+//   Link link(spec, read_puncture_map("rate-2-3.punct", code.n()));  // or all_sent(n)
+//   std::vector<std::complex<double>> symbols(link.symbols());
+//   link.modulate(codeword, symbols);                   // what the transmitter sends
+//   LinkBuffers buffers;
+//   link.demodulate(in_phase, quadrature, {}, noise_variance, llr, buffers);  // receiver
+//
+// Frame layout: the sent positions of the code in increasing order are the sent bits 0 ..
+// sent() - 1; label slot j (symbol j / bits, label bit j % bits, most significant first) carries
+// sent bit order[j] of the interleaver; slots past the last sent bit are padding, label bit 0.
+// Punctured positions get LLR 0, shortened ones +Inf (known 0).
+#pragma once
+
+#include <complex>
+#include <cstdint>
+#include <span>
+#include <vector>
+
+#include "tannery/channel/channel.hpp"
+#include "tannery/channel/modulation.hpp"
+#include "tannery/io/capture.hpp"
+
+namespace tannery {
+
+// Reusable work space of demodulate() and transmit() (one per thread).
+struct LinkBuffers {
+  std::vector<std::complex<double>> symbols;
+  std::vector<double> in_phase, quadrature, amplitude, slots;
+  std::vector<double> noise;  // the caller's stream-1 values
+};
+
+class Link {
+ public:
+  // Error when the interleaver does not fit the sent bits or nothing is sent.
+  Link(const ChannelSpec& spec, PunctureMap map);
+
+  // BPSK on AWGN, BSC or BEC with every position sent: transmit() of channel.hpp is the link.
+  bool binary() const noexcept { return binary_; }
+  std::size_t n() const noexcept { return map_.state.size(); }
+  std::size_t sent() const noexcept { return sent_.size(); }
+  std::size_t shortened() const noexcept { return shortened_; }
+  std::size_t symbols() const noexcept { return symbols_; }
+  const Constellation& constellation() const noexcept { return constellation_; }
+  const PunctureMap& puncture_map() const noexcept { return map_; }
+  // Information bits per symbol, the rate in Eb/N0 = Es/N0 - 10 log10(rate): information bits
+  // (k less the shortened positions) over the symbols sent, = k/n x bits per symbol when every
+  // position is sent and fills whole symbols.
+  double snr_rate(std::size_t information_bits) const;
+
+  // Stream-1 values one simulated frame takes: a standard Gaussian per real dimension of each
+  // symbol (symbol s: values dims*s ..), then two per fading block (Rayleigh).
+  std::size_t noise_values() const noexcept { return noise_values_; }
+
+  // The symbols a codeword (n bits) is sent as.
+  void modulate(std::span<const std::uint8_t> codeword,
+                std::span<std::complex<double>> symbols) const;
+  // The code's LLRs (n) from received symbols (in_phase and, for complex constellations,
+  // quadrature: symbols() each), the fading amplitudes the receiver assumes (empty: 1) and the
+  // noise variance per real dimension.
+  void demodulate(std::span<const double> in_phase, std::span<const double> quadrature,
+                  std::span<const double> amplitude, double noise_variance, std::span<double> llr,
+                  LinkBuffers& buffers) const;
+  // The channel output of one frame at an AWGN or Rayleigh point, in buffers.in_phase,
+  // .quadrature (complex constellations) and .amplitude (Rayleigh): y = a x + sigma z from
+  // noise_values() stream-1 values; a = |g| with g = (g1 + i g2) / sqrt(2) per fading block.
+  void receive(const ChannelPoint& point, std::span<const std::uint8_t> codeword,
+               std::span<const double> noise, LinkBuffers& buffers) const;
+  // receive() then demodulate() with the noise the point assumes and the amplitudes unless
+  // ignore_fading: one simulated frame's LLRs. Binary links pass to transmit() of channel.hpp.
+  void transmit(const ChannelPoint& point, std::span<const std::uint8_t> codeword,
+                std::span<const double> noise, std::span<double> llr, LinkBuffers& buffers) const;
+
+ private:
+  ChannelSpec spec_;
+  PunctureMap map_;
+  Constellation constellation_;
+  std::vector<std::uint32_t> sent_;           // code position of sent bit i
+  std::vector<std::uint32_t> slot_position_;  // code position carried by label slot j (n: pad)
+  std::size_t symbols_ = 0, noise_values_ = 0, shortened_ = 0;
+  bool binary_ = false;
+};
+
+}  // namespace tannery
