@@ -36,19 +36,21 @@ double Link::snr_rate(std::size_t information_bits) const {
          static_cast<double>(symbols_);
 }
 
+std::uint32_t Link::label(std::span<const std::uint8_t> codeword, std::size_t symbol) const {
+  const unsigned bits = constellation_.bits();
+  std::uint32_t label = 0;
+  for (unsigned b = 0; b < bits; ++b) {
+    const std::uint32_t position = slot_position_[symbol * bits + b];
+    label = (label << 1) | (position < codeword.size() ? codeword[position] & 1u : 0u);
+  }
+  return label;
+}
+
 void Link::modulate(std::span<const std::uint8_t> codeword,
                     std::span<std::complex<double>> symbols) const {
   if (codeword.size() != n() || symbols.size() != symbols_)
     throw Error("modulate: the codeword or the symbols do not match the link in size");
-  const unsigned bits = constellation_.bits();
-  for (std::size_t s = 0; s < symbols_; ++s) {
-    std::uint32_t label = 0;
-    for (unsigned b = 0; b < bits; ++b) {
-      const std::uint32_t position = slot_position_[s * bits + b];
-      label = (label << 1) | (position < codeword.size() ? codeword[position] & 1u : 0u);
-    }
-    symbols[s] = constellation_.point(label);
-  }
+  for (std::size_t s = 0; s < symbols_; ++s) symbols[s] = constellation_.point(label(codeword, s));
 }
 
 void Link::demodulate(std::span<const double> in_phase, std::span<const double> quadrature,
@@ -104,6 +106,81 @@ void Link::transmit(const ChannelPoint& point, std::span<const std::uint8_t> cod
   demodulate(buffers.in_phase, buffers.quadrature,
              known ? std::span<const double>(buffers.amplitude) : std::span<const double>(),
              assumed * assumed, llr, buffers);
+}
+
+SymbolDemodulator::SymbolDemodulator(Link link, std::optional<double> noise_variance)
+    : link_(std::move(link)), variance_(noise_variance) {
+  if (variance_ && !(*variance_ > 0 && std::isfinite(1 / *variance_)))
+    throw Error(fmt::format("noise_variance must be a positive number, got {}", *variance_));
+}
+
+void SymbolDemodulator::convert(std::span<const double> values, std::span<const double> amplitudes,
+                                std::span<double> llr) {
+  const std::size_t symbols = link_.symbols(), n = link_.n();
+  const std::size_t frames = values.size() / received();
+  if (values.size() != frames * received() || llr.size() != frames * n ||
+      (!amplitudes.empty() && amplitudes.size() != frames * symbols)) {
+    throw Error("convert: the values, amplitudes and LLRs do not hold the same frames");
+  }
+  const Constellation& c = link_.constellation();
+  if (!variance_ && frames > 0) {
+    // Maximum likelihood for a Gaussian mixture with known centres and equal weights, by
+    // expectation-maximisation: sigma^2 <- mean over symbols of E[|y - a x|^2 | y] / dims, the
+    // expectation under the points' posteriors at the current sigma^2. Started from the
+    // nearest-point estimate (which alone is biased low once symbol errors are common).
+    const std::size_t count = std::min<std::size_t>(frames * symbols, 1 << 16);
+    const double dims = c.complex() ? 2 : 1;
+    std::vector<double> distance(c.size());
+    auto step = [&](std::optional<double> variance) {
+      double sum = 0;
+      for (std::size_t s = 0; s < count; ++s) {
+        const std::complex<double> y(values[2 * s], c.complex() ? values[2 * s + 1] : 0.0);
+        const double a = amplitudes.empty() ? 1.0 : amplitudes[s];
+        double nearest = std::numeric_limits<double>::infinity();
+        for (std::size_t i = 0; i < c.size(); ++i) {
+          distance[i] = std::norm(y - a * c.points()[i]);
+          nearest = std::min(nearest, distance[i]);
+        }
+        if (!variance) {
+          sum += nearest;
+          continue;
+        }
+        double weights = 0, weighted = 0;
+        for (double d : distance) {
+          const double w = std::exp(-(d - nearest) / (2 * *variance));
+          weights += w;
+          weighted += w * d;
+        }
+        sum += weighted / weights;
+      }
+      return sum / (static_cast<double>(count) * dims);
+    };
+    double variance = step(std::nullopt);
+    for (int i = 0; i < 200 && variance > 0; ++i) {
+      const double next = step(variance);
+      const bool settled = std::abs(next - variance) <= 1e-7 * variance;
+      variance = next;
+      if (settled) break;
+    }
+    estimated_from_ = count;
+    variance_ = variance;
+    if (!(*variance_ > 0 && std::isfinite(1 / *variance_))) {
+      throw Error(fmt::format(
+          "the noise variance estimated from the capture is {:g}: give --noise-variance",
+          *variance_));
+    }
+  }
+  buffers_.in_phase.resize(symbols);
+  buffers_.quadrature.resize(c.complex() ? symbols : 0);
+  for (std::size_t f = 0; f < frames; ++f) {
+    for (std::size_t s = 0; s < symbols; ++s) {
+      buffers_.in_phase[s] = values[(f * symbols + s) * 2];
+      if (c.complex()) buffers_.quadrature[s] = values[(f * symbols + s) * 2 + 1];
+    }
+    link_.demodulate(buffers_.in_phase, buffers_.quadrature,
+                     amplitudes.empty() ? amplitudes : amplitudes.subspan(f * symbols, symbols),
+                     *variance_, llr.subspan(f * n, n), buffers_);
+  }
 }
 
 }  // namespace tannery

@@ -7,6 +7,7 @@
 #include "commands.hpp"
 #include "settings_options.hpp"
 #include "tannery/base/output_file.hpp"
+#include "tannery/channel/link.hpp"
 #include "tannery/code/gf2.hpp"
 #include "tannery/decode/parallel.hpp"
 #include "tannery/error.hpp"
@@ -25,6 +26,10 @@ struct DecodeOptions {
   SampleMeaning meaning = SampleMeaning::llr;
   std::optional<double> noise_variance;
   std::string puncture;
+  std::optional<Modulation> modulation;
+  Interleaver interleaver;
+  Demapper demapper = Demapper::exact;
+  std::string fading;
   std::string output = "-";
   BitFormat output_format = BitFormat::text;
   bool codeword = false;
@@ -57,19 +62,42 @@ void run(const DecodeOptions& o) {
   check_paths({{"--code", o.input.code},
                {"INPUT", o.capture},
                {"--puncture", o.puncture},
-               {"--truth", o.truth}},
+               {"--truth", o.truth},
+               {"--fading", o.fading}},
               {{"--output", o.output}, {"--posterior", o.posterior}, {"--report", o.report}});
   const auto code = std::make_shared<const Code>(o.input.load());
   const std::size_t n = code->n();
   const Encoder encoder = make_encoder(*code, o.systematic_first);
-  const SampleConverter converter(
-      o.puncture.empty() ? PunctureMap::all_sent(n) : read_puncture_map(o.puncture, n), o.meaning,
-      o.noise_variance);
+  PunctureMap map =
+      o.puncture.empty() ? PunctureMap::all_sent(n) : read_puncture_map(o.puncture, n);
+  // Soft bits through the sample converter, or I/Q symbols through the demodulator.
+  std::optional<SampleConverter> converter;
+  std::optional<SymbolDemodulator> symbols;
+  if (o.modulation) {
+    if (o.meaning != SampleMeaning::llr)
+      throw Error("--meaning applies to soft-bit captures; --modulation reads I/Q symbols");
+    ChannelSpec link;
+    link.modulation = *o.modulation;
+    link.interleaver = o.interleaver;
+    link.demapper = o.demapper;
+    symbols.emplace(Link(link, std::move(map)), o.noise_variance);
+  } else {
+    if (!o.fading.empty()) throw Error("--fading needs --modulation (a capture of symbols)");
+    converter.emplace(std::move(map), o.meaning, o.noise_variance);
+  }
   ParallelDecoder decoder(code, o.decoder.settings(), o.threads);
 
-  std::ifstream file;
+  std::ifstream file, fading_file;
   CaptureReader reader(open_input(o.capture, file), o.capture == "-" ? "<stdin>" : o.capture,
-                       o.input_format, o.scale, converter.received());
+                       o.input_format, o.scale,
+                       symbols ? symbols->received() : converter->received());
+  // --fading: the amplitude of every symbol, f32, a frame of symbols() values per frame.
+  std::optional<CaptureReader> fading;
+  if (!o.fading.empty()) {
+    fading.emplace(open_input(o.fading, fading_file), o.fading, SampleFormat::f32, 1.0,
+                   symbols->link().symbols());
+  }
+  std::vector<double> amplitudes;
   // --truth: the information bits that were sent, as encode writes them (text, k per frame).
   std::ifstream truth_file;
   std::optional<BitFrameReader> truth;
@@ -98,7 +126,24 @@ void run(const DecodeOptions& o) {
   std::vector<float> as_float;
   for (std::size_t got; (got = reader.read(batch, values)) > 0; frames += got) {
     llr.resize(got * n);
-    converter.convert(values, llr);
+    if (symbols) {
+      if (fading && fading->read(got, amplitudes) != got) {
+        throw Error(fmt::format("{}: {}; decoding stopped at frame {}", o.fading,
+                                fading->error().value_or("ends before the capture"),
+                                frames + fading->frames_read()));
+      }
+      const bool estimate = !symbols->noise_variance();
+      symbols->convert(values, amplitudes, llr);
+      if (estimate) {
+        fmt::print(stderr,
+                   "noise variance {:.6g} per real dimension, estimated from the capture's first "
+                   "{} symbols (maximum likelihood, random data assumed; give --noise-variance "
+                   "when known)\n",
+                   *symbols->noise_variance(), symbols->estimated_from());
+      }
+    } else {
+      converter->convert(values, llr);
+    }
     hard.resize(got * n);
     outcomes.resize(got);
     posterior.resize(posterior_out.enabled() ? got * n : 0);
@@ -194,6 +239,8 @@ void add_decode(CLI::App& app) {
       "soft.f32\n"
       "  tannery decode --code my.alist rx.txt --input-format text --meaning samples "
       "--noise-variance 0.5\n"
+      "  tannery decode --code qc-rate-half-z54 iq.i16 --input-format i16 --scale 0.001 "
+      "--modulation 64qam\n"
       "Binary inputs are little-endian frames of n values (n minus punctured/shortened "
       "positions).\n"
       "Exit status: 0 decoded, 1 more frames failed than --max-failures, 2 error.");
@@ -209,7 +256,18 @@ void add_decode(CLI::App& app) {
                    "llr (log P(0)/P(1), positive = 0), llr-inverted (positive = 1), samples (BPSK "
                    "y with 0 -> +1; LLR = 2y/sigma^2)");
   sub->add_option("--noise-variance", o->noise_variance,
-                  "sigma^2 per real sample, for --meaning samples");
+                  "sigma^2 per real sample, for --meaning samples and --modulation (there "
+                  "estimated from the capture when not given)");
+  add_setting_option(*sub, "--modulation", o->modulation,
+                     "the capture holds received symbols as I/Q pairs (2 values per symbol, "
+                     "symbols per frame as 'tannery inspect' states): bpsk, qpsk, 16qam, 64qam, "
+                     "256qam, 4pam, 8pam or a constellation file");
+  add_setting_option(*sub, "--interleaver", o->interleaver,
+                     "with --modulation: the transmitter's bit interleaver");
+  add_named_option(*sub, "--demapper", o->demapper, "with --modulation: exact or max-log");
+  sub->add_option("--fading", o->fading,
+                  "with --modulation: fading amplitude of every symbol (f32, symbols per "
+                  "frame), for a receiver that knows the channel");
   sub->add_option("--puncture", o->puncture,
                   "map of positions the capture lacks: lines 'punctured LIST' (LLR 0) or "
                   "'shortened LIST' (known 0)");

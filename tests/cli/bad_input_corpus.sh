@@ -111,6 +111,16 @@ encode --code hamming-7-4 bits.txt -o sentinel.out|bits.txt: byte 2
 encode --code hamming-7-4 adir -o sentinel.out|adir: is a directory
 encode --code hamming-7-4 --demo 3 --channel bec --at 1.5 -o sentinel.out|erasure probability must be in [0, 1], got 1.5
 encode --code hamming-7-4 --demo 3 --at nan -o sentinel.out|not finite
+encode --code hamming-7-4 --demo 3 --modulation 16qam --channel bsc --at 0.1 -o sentinel.out|--modulation needs --channel awgn or rayleigh
+encode --code hamming-7-4 --demo 3 --modulation 16qam --interleaver block:3x3 -o sentinel.out|interleaver block:3x3 holds 9 bits, but a frame sends 7
+decode --code hamming-7-4 good.f32 --modulation qam -o sentinel.out|qam: cannot open the constellation file
+decode --code hamming-7-4 good.f32 --modulation 16qam --fading adir -o sentinel.out|adir: is a directory
+decode --code hamming-7-4 good.f32 --fading good.f32 -o sentinel.out|--fading needs --modulation
+decode --code hamming-7-4 good.f32 --modulation bpsk --meaning samples -o sentinel.out|--meaning applies to soft-bit captures
+simulate --code hamming-7-4 --channel rayleigh:block:0 -o sentinel.out --plot ''|--channel: 'rayleigh:block:0'
+simulate --code hamming-7-4 --modulation 16qam --all-zero -o sentinel.out --plot ''|all_zero needs a symmetric channel
+simulate --code hamming-7-4 --modulation 16qam --channel bec -o sentinel.out --plot ''|needs the awgn or rayleigh channel
+simulate --code hamming-7-4 --interleaver block:2 -o sentinel.out --plot ''|--interleaver: 'block:2': expected none, random:SEED or block:ROWSxCOLS
 simulate --scenario zero-step.toml -o sentinel.out --plot ''|never reaches its end
 simulate --scenario iterations.toml -o sentinel.out --plot ''|iterations.toml
 simulate --scenario algorithm.toml -o sentinel.out --plot ''|algorithm.toml:5

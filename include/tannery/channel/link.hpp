@@ -73,6 +73,8 @@ class Link {
                 std::span<const double> noise, std::span<double> llr, LinkBuffers& buffers) const;
 
  private:
+  std::uint32_t label(std::span<const std::uint8_t> codeword, std::size_t symbol) const;
+
   ChannelSpec spec_;
   PunctureMap map_;
   Constellation constellation_;
@@ -80,6 +82,33 @@ class Link {
   std::vector<std::uint32_t> slot_position_;  // code position carried by label slot j (n: pad)
   std::size_t symbols_ = 0, noise_values_ = 0, shortened_ = 0;
   bool binary_ = false;
+};
+
+// Captured frames of received symbols to the code's LLRs: each frame is symbols() I/Q pairs
+// (in-phase, quadrature; the quadrature value is ignored for real constellations), the fading
+// amplitude of each symbol optional. Without a given noise variance it is estimated from the
+// first frames converted (up to 65536 symbols): the maximum-likelihood variance of the Gaussian
+// mixture the received values form around the (amplitude-scaled) points, all points equally
+// likely, found by expectation-maximisation. It assumes the capture's symbols are
+// uniformly distributed over the constellation (random data) and the noise white and Gaussian.
+class SymbolDemodulator {
+ public:
+  SymbolDemodulator(Link link, std::optional<double> noise_variance);
+  const Link& link() const noexcept { return link_; }
+  std::size_t received() const noexcept { return 2 * link_.symbols(); }  // values per frame
+  // values: frames x received(); amplitudes: frames x symbols() or empty; llr: frames x n.
+  void convert(std::span<const double> values, std::span<const double> amplitudes,
+               std::span<double> llr);
+  // The noise variance used (nullopt before the first convert when estimated), and whether and
+  // from how many symbols it was estimated.
+  std::optional<double> noise_variance() const noexcept { return variance_; }
+  std::size_t estimated_from() const noexcept { return estimated_from_; }
+
+ private:
+  Link link_;
+  std::optional<double> variance_;
+  std::size_t estimated_from_ = 0;
+  LinkBuffers buffers_;
 };
 
 }  // namespace tannery
