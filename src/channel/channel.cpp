@@ -36,6 +36,20 @@ std::string channel_model(const ChannelSpec& spec) {
                                 : fmt::format("rayleigh:block:{}", spec.fading_block);
 }
 
+std::string describe(const ChannelSpec& spec) {
+  std::string text = channel_model(spec);
+  if (snr_swept(spec.kind)) {
+    text += fmt::format(", {} ({} demapper{}{})", SettingText<Modulation>::format(spec.modulation),
+                        name_of(spec.demapper),
+                        spec.interleaver == Interleaver{}
+                            ? ""
+                            : ", interleaver " + SettingText<Interleaver>::format(spec.interleaver),
+                        spec.ignore_fading ? ", fading ignored" : "");
+  }
+  if (!spec.puncture.empty()) text += ", puncture map " + spec.puncture;
+  return text;
+}
+
 void check_channel_parameter(ChannelKind kind, double parameter) {
   if (!std::isfinite(parameter))
     throw Error(fmt::format("channel parameter {} is not finite", parameter));

@@ -45,17 +45,8 @@ void print_heading(const RunRecord& r) {
                  ? fmt::format(" (Eb/N0 uses {:.4f} information bits per symbol, {} rate)",
                                r.rate_for_snr, ch.design_rate ? "design" : "true")
                  : std::string());
-  std::string link = channel_model(ch);
-  if (snr_swept(ch.kind)) {
-    link += fmt::format(", {} ({} demapper{}{})", SettingText<Modulation>::format(ch.modulation),
-                        name_of(ch.demapper),
-                        ch.interleaver == Interleaver{}
-                            ? ""
-                            : ", interleaver " + SettingText<Interleaver>::format(ch.interleaver),
-                        ch.ignore_fading ? ", fading ignored" : "");
-  }
   fmt::print("decoder {}; channel {}; seed {}, chunks of {} frames, {}{}\n", describe(c.decoder),
-             link, c.seed, c.chunk_frames, count_of(c.threads, "thread"),
+             describe(ch), c.seed, c.chunk_frames, count_of(c.threads, "thread"),
              c.all_zero ? "; all-zero codeword" : "");
   std::fflush(stdout);
 }

@@ -2,6 +2,7 @@
 // and capacities, as thin bindings of the library. Settings are keyword arguments named as the
 // library's settings tables name them (the keys of scenario files and results JSON), read
 // through the same checks; errors raise tannery.Error (a ValueError) with the library's message.
+#include <pybind11/complex.h>
 #include <pybind11/functional.h>
 #include <pybind11/numpy.h>
 #include <pybind11/pybind11.h>
@@ -327,19 +328,29 @@ py::object py_simulate(PyCode& c, const std::string& channel,
                        const std::optional<py::function>& progress, const py::kwargs& settings) {
   SimulationConfig config;
   json decoder = json::object(), chan = json::object(), stop = json::object(), run = json::object();
-  chan["kind"] = channel;
+  const auto model = parse_channel_model(channel);
+  if (!model) {
+    throw Error("channel '" + channel +
+                "' is not one of awgn, rayleigh:fast, rayleigh:block:B, bsc, bec");
+  }
+  chan["kind"] = name_of(model->first);
+  chan["fading_block"] = model->second;
   for (const auto& [key, value] : settings) {
     const auto name = key.cast<std::string>();
-    json* target = has_field<DecoderSettings>(name)                 ? &decoder
-                   : has_field<ChannelSpec>(name) && name != "kind" ? &chan
-                   : has_field<StopRules>(name)                     ? &stop
-                   : has_field<SimulationConfig>(name)              ? &run
-                                                                    : nullptr;
+    const bool model_key = name == "kind" || name == "fading_block";  // given by channel
+    json* target = has_field<DecoderSettings>(name)             ? &decoder
+                   : has_field<ChannelSpec>(name) && !model_key ? &chan
+                   : has_field<StopRules>(name)                 ? &stop
+                   : has_field<SimulationConfig>(name)          ? &run
+                                                                : nullptr;
     if (!target) {
+      std::string link;
+      for_each_field<ChannelSpec>([&](const auto& field) {
+        if (field.key != "kind" && field.key != "fading_block") link.append(", ").append(field.key);
+      });
       unknown_setting("simulate", name,
                       "channel, sweep, threads, progress, " + field_keys<DecoderSettings>() + ", " +
-                          field_keys<StopRules>() + ", " + field_keys<SimulationConfig>() +
-                          ", snr, design_rate, snr_offset_db, assumed_crossover");
+                          field_keys<StopRules>() + ", " + field_keys<SimulationConfig>() + link);
     }
     (*target)[name] = to_json(value);
   }
@@ -501,10 +512,12 @@ PYBIND11_MODULE(tannery, m) {
   m.def("simulate", &py_simulate, py::arg("code"), py::kw_only(), py::arg("channel") = "awgn",
         py::arg("sweep") = py::none(), py::arg("threads") = 0, py::arg("progress") = py::none(),
         "Monte Carlo error rates across a sweep, counts identical to 'tannery simulate' with the "
-        "same settings and seed. channel: awgn, bsc or bec; sweep: Eb/N0 dB (awgn), p or epsilon "
-        "(default as the CLI's). Settings as keywords (decoder, stop rules: frame_errors, "
-        "max_frames, max_seconds, stop_below_fer; run: seed, chunk_frames, all_zero, confidence; "
-        "channel: snr, design_rate, snr_offset_db, assumed_crossover). progress(dict) is called "
+        "same settings and seed. channel: awgn, rayleigh:fast, rayleigh:block:B, bsc or bec; "
+        "sweep: Eb/N0 dB (awgn, rayleigh), p or epsilon (default as the CLI's). Settings as "
+        "keywords (decoder, stop rules: frame_errors, max_frames, max_seconds, stop_below_fer; "
+        "run: seed, chunk_frames, all_zero, confidence; link: modulation, demapper, interleaver, "
+        "ignore_fading, puncture, snr, design_rate, snr_offset_db, assumed_crossover). "
+        "progress(dict) is called "
         "about five times a second. Ctrl-C stops at the next chunk and returns the results so far "
         "(interrupted: True). Returns the results document as a dict.");
   m.def("threshold", &py_threshold, py::kw_only(), py::arg("code") = py::none(),
@@ -516,6 +529,40 @@ PYBIND11_MODULE(tannery, m) {
         "Capacity of BPSK over AWGN (bits per channel use) at noise deviation sigma.");
   m.def("shannon_limit_ebn0_db", &biawgn_shannon_limit_ebn0_db, py::arg("rate"),
         "Smallest Eb/N0 (dB) at which BPSK-AWGN capacity reaches the rate.");
+  m.def(
+      "modulation_capacity",
+      [](const std::string& modulation, double esn0_db, const std::string& kind,
+         const std::string& channel) {
+        return modulation_capacity(Constellation::of(parse_text<Modulation>(modulation)),
+                                   parse_name<CapacityKind>(kind), parse_name<ChannelKind>(channel),
+                                   esn0_db);
+      },
+      py::arg("modulation"), py::arg("esn0_db"), py::arg("kind") = "bicm",
+      py::arg("channel") = "awgn",
+      "Capacity in bits per symbol of a modulation (bpsk ... 256qam, 4pam, 8pam or a "
+      "constellation file) at Es/N0 in dB: kind bicm (bit-interleaved) or coded-modulation; "
+      "channel awgn or rayleigh (ergodic, amplitude known).");
+  m.def(
+      "modulation_shannon_limit_ebn0_db",
+      [](const std::string& modulation, double rate, const std::string& kind,
+         const std::string& channel) {
+        return modulation_shannon_limit_ebn0_db(
+            Constellation::of(parse_text<Modulation>(modulation)), parse_name<CapacityKind>(kind),
+            parse_name<ChannelKind>(channel), rate);
+      },
+      py::arg("modulation"), py::arg("rate"), py::arg("kind") = "bicm", py::arg("channel") = "awgn",
+      "Smallest Eb/N0 (dB) at which that capacity reaches `rate` information bits per symbol.");
+  m.def(
+      "constellation",
+      [](const std::string& modulation) {
+        const Constellation c = Constellation::of(parse_text<Modulation>(modulation));
+        py::array_t<std::complex<double>> points(static_cast<py::ssize_t>(c.size()));
+        std::copy(c.points().begin(), c.points().end(), points.mutable_data());
+        return points;
+      },
+      py::arg("modulation"),
+      "The points of a modulation by label (index = label, first label bit the most "
+      "significant), unit average energy, as a complex numpy array.");
   m.def("bsc_capacity", &bsc_capacity, py::arg("p"), "1 - h2(p).");
   m.def("bec_capacity", &bec_capacity, py::arg("epsilon"), "1 - epsilon.");
   m.def(

@@ -48,26 +48,46 @@ struct Axes {
   }
 };
 
-// Capacity limit of the first run, in its own parameter, with a label; NaN when not applicable.
-std::pair<double, std::string> capacity_limit(const RunRecord& run) {
-  const double rate =
-      run.code.n ? static_cast<double>(run.code.k) / static_cast<double>(run.code.n) : 0;
-  if (rate <= 0 || rate >= 1) return {NAN, ""};
+// BPSK over AWGN with every code bit sent: the binary-input references (uncoded BER, normal
+// approximation) apply.
+bool binary_awgn(const RunRecord& run) {
   const ChannelSpec& c = run.config.channel;
-  switch (c.kind) {
-    case ChannelKind::awgn: {
-      double limit = biawgn_shannon_limit_ebn0_db(rate);
-      if (c.measure == SnrMeasure::esn0) limit = esn0_db_from_ebn0(limit, rate);
-      return {limit, fmt::format("BPSK Shannon limit, R = {:.3f}", rate)};
+  return c.kind == ChannelKind::awgn && c.modulation == Modulation{} && c.puncture.empty();
+}
+
+// Capacity limit of the first run, in its own parameter, with a label; NaN when not applicable.
+// AWGN and Rayleigh: the limit of the run's modulation for a bit-interleaved receiver (BICM; for
+// BPSK the binary-input AWGN capacity) at its information bits per symbol.
+std::pair<double, std::string> capacity_limit(const RunRecord& run) {
+  const ChannelSpec& c = run.config.channel;
+  if (snr_swept(c.kind)) {
+    const double rate = run.rate_for_snr;
+    double limit = NAN;
+    std::string label;
+    if (c.kind == ChannelKind::awgn && c.modulation == Modulation{}) {
+      if (!(rate > 0 && rate < 1)) return {NAN, ""};
+      limit = biawgn_shannon_limit_ebn0_db(rate);
+      label = fmt::format("BPSK Shannon limit, R = {:.3f}", rate);
+    } else {
+      try {
+        const Constellation points = Constellation::of(c.modulation);
+        if (!(rate > 0 && rate < points.bits())) return {NAN, ""};
+        limit = modulation_shannon_limit_ebn0_db(points, CapacityKind::bicm, c.kind, rate);
+      } catch (const Error&) {
+        return {NAN, ""};  // a custom constellation file no longer readable
+      }
+      label = fmt::format("{} BICM limit{}, {:.3f} bit/symbol",
+                          SettingText<Modulation>::format(c.modulation),
+                          c.kind == ChannelKind::rayleigh ? " (Rayleigh, ergodic)" : "", rate);
     }
-    case ChannelKind::bsc:
-      return {bsc_limit_crossover(rate), fmt::format("BSC capacity limit, R = {:.3f}", rate)};
-    case ChannelKind::bec:
-      return {1 - rate, fmt::format("BEC capacity limit, R = {:.3f}", rate)};
-    case ChannelKind::rayleigh:
-      break;
+    if (c.measure == SnrMeasure::esn0) limit = esn0_db_from_ebn0(limit, rate);
+    return {limit, label};
   }
-  return {NAN, ""};
+  const double rate = run.effective_rate;
+  if (!(rate > 0 && rate < 1)) return {NAN, ""};
+  if (c.kind == ChannelKind::bsc)
+    return {bsc_limit_crossover(rate), fmt::format("BSC capacity limit, R = {:.3f}", rate)};
+  return {1 - rate, fmt::format("BEC capacity limit, R = {:.3f}", rate)};
 }
 
 }  // namespace
@@ -80,8 +100,13 @@ std::string run_label(const RunRecord& run) {
   const std::string kernel = d.quantization
                                  ? fmt::format("fixed point {}", quantization_spec(*d.quantization))
                                  : fmt::format("{} kernel", name_of(d.kernel));
-  return fmt::format("{}/{}, {}, {}, {}", decoder, name_of(d.schedule), kernel,
-                     name_of(run.config.channel.kind), run.code.source);
+  const ChannelSpec& c = run.config.channel;
+  std::string link = channel_model(c);
+  if (snr_swept(c.kind) && !(c.modulation == Modulation{}))
+    link += fmt::format(" {}", SettingText<Modulation>::format(c.modulation));
+  if (!c.puncture.empty()) link += " punctured";
+  return fmt::format("{}/{}, {}, {}, {}", decoder, name_of(d.schedule), kernel, link,
+                     run.code.source);
 }
 
 std::string plot_svg(const std::vector<PlotRun>& runs, const PlotOptions& options) {
@@ -103,7 +128,7 @@ std::string plot_svg(const std::vector<PlotRun>& runs, const PlotOptions& option
   // One horizontal axis: every run must sweep the same quantity.
   for (const auto& r : runs) {
     const ChannelSpec &a = first.config.channel, &b = r.run.config.channel;
-    if (a.kind != b.kind || (a.kind == ChannelKind::awgn && a.measure != b.measure)) {
+    if (a.kind != b.kind || (snr_swept(a.kind) && a.measure != b.measure)) {
       throw Error(fmt::format(
           "plot: '{}' sweeps {} on {} and '{}' sweeps {} on {}: they cannot share one axis; plot "
           "them separately",
@@ -111,16 +136,14 @@ std::string plot_svg(const std::vector<PlotRun>& runs, const PlotOptions& option
           name_of(b.kind)));
     }
   }
-  const bool awgn_ebn0 = first.config.channel.kind == ChannelKind::awgn &&
-                         first.config.channel.measure == SnrMeasure::ebn0;
+  const bool awgn_ebn0 = binary_awgn(first) && first.config.channel.measure == SnrMeasure::ebn0;
   const auto [limit, limit_label] = options.references
                                         ? capacity_limit(first)
                                         : std::pair{static_cast<double>(NAN), std::string()};
   if (std::isfinite(limit)) xmin = std::min(xmin, limit), xmax = std::max(xmax, limit);
   if (options.threshold)
     xmin = std::min(xmin, *options.threshold), xmax = std::max(xmax, *options.threshold);
-  const double span =
-      std::max(xmax - xmin, first.config.channel.kind == ChannelKind::awgn ? 1.0 : 0.01);
+  const double span = std::max(xmax - xmin, snr_swept(first.config.channel.kind) ? 1.0 : 0.01);
   Axes ax{xmin - 0.05 * span, xmax + 0.05 * span, std::floor(std::log10(vmin)) - (vmin < 1 ? 0 : 1),
           0};
   if (ax.y0 >= ax.y1) ax.y0 = ax.y1 - 1;
@@ -193,7 +216,9 @@ std::string plot_svg(const std::vector<PlotRun>& runs, const PlotOptions& option
         points);
     legend.emplace_back("stroke=\"#777\" stroke-dasharray=\"6 4\"", "uncoded BPSK BER");
   }
-  if (options.normal_approximation && first.code.n > 0) {
+  if (options.normal_approximation && first.code.n > 0 &&
+      (binary_awgn(first) || !snr_swept(first.config.channel.kind)) &&
+      first.config.channel.puncture.empty()) {
     std::string points;
     for (int i = 0; i <= 200; ++i) {
       const double x = ax.x0 + (ax.x1 - ax.x0) * i / 200;

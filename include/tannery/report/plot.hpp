@@ -14,9 +14,12 @@ namespace tannery {
 struct PlotOptions {
   bool fer = true;
   bool ber = true;
-  bool references = true;  // uncoded BPSK (AWGN) and the Shannon limit of the first run's rate
-  bool normal_approximation = false;  // the finite-length limit for the first run's n and k
-  std::optional<double> threshold;    // a vertical line at this sweep value (e.g. a DE threshold)
+  // Uncoded BPSK (BPSK-AWGN runs) and the capacity limit of the first run's link at its rate
+  // (BPSK-AWGN, BSC, BEC; other modulations and Rayleigh: the BICM limit).
+  bool references = true;
+  // The finite-length limit for the first run's n and k (BPSK-AWGN, BSC, BEC, every bit sent).
+  bool normal_approximation = false;
+  std::optional<double> threshold;  // a vertical line at this sweep value (e.g. a DE threshold)
   std::string title;
 };
 
