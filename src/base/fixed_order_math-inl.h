@@ -1,4 +1,5 @@
-// Logarithm, exponential and fused multiply-add of doubles for every Highway target, from IEEE
+// Logarithm, exponential and fused multiply-add of doubles (and of floats, to single precision)
+// for every Highway target, from IEEE
 // add, subtract, multiply, divide and correctly rounded fused multiply-add in a fixed order, so
 // that each lane gives the same bits on every target and machine (the C library's exp and log may
 // differ in the last bit between machines). Included by the kernels that must be reproducible:
@@ -25,22 +26,35 @@ namespace fixed_order {
 using DD = hn::ScalableTag<double>;
 using DU = hn::RebindToUnsigned<DD>;
 using VD = hn::Vec<DD>;
+using DF = hn::ScalableTag<float>;
+using DFU = hn::RebindToUnsigned<DF>;
+using VF = hn::Vec<DF>;
+
+// 1 / i!, correctly rounded to T (i! is exact in a double up to 18!).
+template <class T>
+constexpr T inverse_factorial(int i) {
+  double f = 1;
+  for (int j = 2; j <= i; ++j) f *= j;
+  return static_cast<T>(1 / f);
+}
 }  // namespace fixed_order
 
 // a * b + c rounded once, on every target: the fused multiply-add instruction where the target
 // has one, else the C library's fma lane by lane (correctly rounded as well, only slower).
-HWY_INLINE fixed_order::VD Fma(fixed_order::VD a, fixed_order::VD b, fixed_order::VD c) {
+template <class V>
+HWY_INLINE V Fma(V a, V b, V c) {
 #if HWY_NATIVE_FMA
   return hn::MulAdd(a, b, c);
 #else
-  const fixed_order::DD dd;
-  constexpr std::size_t N = hn::MaxLanes(fixed_order::DD());
-  alignas(64) double x[N], y[N], z[N];
-  hn::Store(a, dd, x);
-  hn::Store(b, dd, y);
-  hn::Store(c, dd, z);
+  const hn::DFromV<V> d;
+  using T = hn::TFromV<V>;
+  constexpr std::size_t N = hn::MaxLanes(hn::DFromV<V>());
+  alignas(64) T x[N], y[N], z[N];
+  hn::Store(a, d, x);
+  hn::Store(b, d, y);
+  hn::Store(c, d, z);
   for (std::size_t i = 0; i < N; ++i) x[i] = std::fma(x[i], y[i], z[i]);
-  return hn::Load(dd, x);
+  return hn::Load(d, x);
 #endif
 }
 
@@ -97,18 +111,82 @@ HWY_INLINE fixed_order::VD Exp(fixed_order::VD x) {
   const VD k = hn::Sub(hn::Add(hn::Mul(x, hn::Set(dd, 1.4426950408889634)), shifter), shifter);
   VD r = Fma(hn::Neg(k), hn::Set(dd, 6.93147180369123816490e-01), x);
   r = Fma(hn::Neg(k), hn::Set(dd, 1.90821492927058770002e-10), r);
-  // 1 / i!, correctly rounded (i! is exact in a double up to 18!).
-  auto inverse_factorial = [](int i) {
-    double f = 1;
-    for (int j = 2; j <= i; ++j) f *= j;
-    return 1 / f;
-  };
-  VD p = hn::Set(dd, inverse_factorial(13));
-  for (int i = 12; i >= 0; --i) p = Fma(p, r, hn::Set(dd, inverse_factorial(i)));
+  VD p = hn::Set(dd, fixed_order::inverse_factorial<double>(13));
+  for (int i = 12; i >= 0; --i)
+    p = Fma(p, r, hn::Set(dd, fixed_order::inverse_factorial<double>(i)));
   // 2^k: (k + 1023) << 52, k + 1023 read from the low bits of k + 2^52 + 1023.
   const auto biased = hn::BitCast(du, hn::Add(k, hn::Set(dd, 4503599627371519.0)));
   const VD scale = hn::BitCast(dd, hn::ShiftLeft<52>(biased));
   return hn::Mul(p, scale);
+}
+
+// Single precision: e^x for x in [-87, 0] (callers clamp), as Exp with the Taylor series to r^7
+// (truncation below 6e-9 relative) and 2^k for k >= -126 (a normal float).
+HWY_INLINE fixed_order::VF Exp(fixed_order::VF x) {
+  using fixed_order::VF;
+  const fixed_order::DF df;
+  const fixed_order::DFU du;
+  const VF shifter = hn::Set(df, 12582912.0f);  // 1.5 * 2^23
+  const VF k = hn::Sub(hn::Add(hn::Mul(x, hn::Set(df, 1.44269504f)), shifter), shifter);
+  // log 2 split: the high part ends in 9 zero bits, so k * high is exact for |k| < 512.
+  VF r = Fma(hn::Neg(k), hn::Set(df, 0.693145751953125f), x);
+  r = Fma(hn::Neg(k), hn::Set(df, 1.42860677e-06f), r);
+  VF p = hn::Set(df, fixed_order::inverse_factorial<float>(7));
+  for (int i = 6; i >= 0; --i) p = Fma(p, r, hn::Set(df, fixed_order::inverse_factorial<float>(i)));
+  // 2^k: (k + 127) << 23, read from the low bits of k + 2^23 + 127.
+  const auto biased = hn::BitCast(du, hn::Add(k, hn::Set(df, 8388735.0f)));
+  return hn::Mul(p, hn::BitCast(df, hn::ShiftLeft<23>(biased)));
+}
+
+// Single precision: the natural logarithm of positive normal floats, as Ln with the series to
+// s^11 (truncation below 1e-10 relative).
+HWY_INLINE fixed_order::VF Ln(fixed_order::VF x) {
+  using fixed_order::VF;
+  const fixed_order::DFU du;
+  const fixed_order::DF df;
+  const auto bits = hn::BitCast(du, x);
+  VF m = hn::BitCast(df, hn::Or(hn::And(bits, hn::Set(du, 0x007FFFFFu)), hn::Set(du, 0x3F800000u)));
+  // The biased exponent as a float, exactly: 2^23 + e read back, minus 2^23 + 127.
+  VF k = hn::Sub(hn::BitCast(df, hn::Or(hn::ShiftRight<23>(bits), hn::Set(du, 0x4B000000u))),
+                 hn::Set(df, 8388735.0f));
+  const auto big = hn::Gt(m, hn::Set(df, 1.41421356f));
+  m = hn::IfThenElse(big, hn::Mul(m, hn::Set(df, 0.5f)), m);
+  k = hn::Add(k, hn::IfThenElseZero(big, hn::Set(df, 1.0f)));
+  const VF s = hn::Div(hn::Sub(m, hn::Set(df, 1.0f)), hn::Add(m, hn::Set(df, 1.0f)));
+  const VF z = hn::Mul(s, s);
+  VF p = hn::Set(df, 1.0f / 11);
+  for (int i = 4; i >= 0; --i) p = Fma(p, z, hn::Set(df, 1.0f / static_cast<float>(2 * i + 1)));
+  const VF log_m = hn::Mul(hn::Add(s, s), p);
+  return Fma(k, hn::Set(df, 0.693145751953125f), Fma(k, hn::Set(df, 1.42860677e-06f), log_m));
+}
+
+// Single precision: log(num / den) of positive normal floats with one division: the exponents
+// and significands split as in Ln, num / den = 2^k (m_num / m_den), the significand ratio
+// brought into [sqrt(1/2), sqrt(2)) and s = (m_num - m_den) / (m_num + m_den).
+HWY_INLINE fixed_order::VF LnRatio(fixed_order::VF num, fixed_order::VF den) {
+  using fixed_order::VF;
+  const fixed_order::DFU du;
+  const fixed_order::DF df;
+  auto split = [&](VF x, VF& m) {
+    const auto bits = hn::BitCast(du, x);
+    m = hn::BitCast(df, hn::Or(hn::And(bits, hn::Set(du, 0x007FFFFFu)), hn::Set(du, 0x3F800000u)));
+    return hn::BitCast(df, hn::Or(hn::ShiftRight<23>(bits), hn::Set(du, 0x4B000000u)));
+  };
+  VF mn, md;
+  const VF en = split(num, mn), ed = split(den, md);
+  VF k = hn::Sub(en, ed);  // exact: both are 2^23 + a biased exponent
+  const auto big = hn::Gt(mn, hn::Mul(md, hn::Set(df, 1.41421356f)));
+  const auto small = hn::Lt(mn, hn::Mul(md, hn::Set(df, 0.707106781f)));
+  mn = hn::IfThenElse(big, hn::Mul(mn, hn::Set(df, 0.5f)),
+                      hn::IfThenElse(small, hn::Add(mn, mn), mn));
+  k = hn::Add(
+      k, hn::IfThenElse(big, hn::Set(df, 1.0f), hn::IfThenElseZero(small, hn::Set(df, -1.0f))));
+  const VF s = hn::Div(hn::Sub(mn, md), hn::Add(mn, md));
+  const VF z = hn::Mul(s, s);
+  VF p = hn::Set(df, 1.0f / 11);
+  for (int i = 4; i >= 0; --i) p = Fma(p, z, hn::Set(df, 1.0f / static_cast<float>(2 * i + 1)));
+  const VF log_m = hn::Mul(hn::Add(s, s), p);
+  return Fma(k, hn::Set(df, 0.693145751953125f), Fma(k, hn::Set(df, 1.42860677e-06f), log_m));
 }
 
 }  // namespace tannery::detail::HWY_NAMESPACE

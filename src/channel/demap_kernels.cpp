@@ -1,7 +1,9 @@
-// The demapper in SIMD, compiled for every Highway target: per symbol the metrics
+// The demapper in SIMD, compiled for every Highway target. Two-level one-dimensional tables
+// (BPSK) in double precision: (x0 - x1) a y / sigma^2, the binary channel's LLR bit for bit.
+// Larger tables in single precision, a vector of floats at a time: per symbol the metrics
 // t_x = (2 a y.x - a^2 |x|^2) / (2 sigma^2) of every point (multiplies and adds in a fixed order,
 // no contraction), then per bit the largest metric of each bit value (max-log) or
-// log(sum_0 e^(t - t_max) / sum_1 e^(t - t_max)) with each term clamped at e^-700 (exact), with the
+// log(sum_0 e^(t - t_max) / sum_1 e^(t - t_max)) with each term clamped at e^-80 (exact), with the
 // fixed-order exp and log of src/base/fixed_order_math-inl.h: the same bits on every target.
 #undef HWY_TARGET_INCLUDE
 #define HWY_TARGET_INCLUDE "src/channel/demap_kernels.cpp"
@@ -9,7 +11,6 @@
 
 #include <hwy/highway.h>
 #include <algorithm>
-#include <cstring>
 
 #include "src/base/fixed_order_math-inl.h"
 #include "src/channel/demap_kernels.hpp"
@@ -20,76 +21,106 @@ namespace tannery::detail::HWY_NAMESPACE {
 namespace hn = hwy::HWY_NAMESPACE;
 
 using DD = hn::ScalableTag<double>;
-using VD = hn::Vec<DD>;
+using DF = hn::ScalableTag<float>;
+using VF = hn::Vec<DF>;
 
 constexpr std::size_t kMaxPoints = 256;
 
-// One vector of symbols at offset c (all lanes valid).
-HWY_INLINE void DemapVector(const DemapTable& t, bool exact, const double* yi, const double* yq,
-                            const double* amplitude, double inv_n0, double two_level_factor,
-                            std::size_t count, std::size_t c, double* out) {
-  const DD dd;
-  const std::size_t points = std::size_t{1} << t.bits;
-  const VD a = amplitude ? hn::LoadU(dd, amplitude + c) : hn::Set(dd, 1.0);
-  const VD ui = hn::Mul(a, hn::LoadU(dd, yi + c));
-  if (points == 2 && yq == nullptr) {
-    // Two levels +-x0: both demappers give (x0 - x1) a y / sigma^2.
-    hn::StoreU(hn::Mul(hn::Set(dd, two_level_factor), ui), dd, out + c);
-    return;
-  }
-  const VD uq = yq ? hn::Mul(a, hn::LoadU(dd, yq + c)) : hn::Zero(dd);
-  const VD aa = hn::Mul(a, a);
-  const VD scale = hn::Set(dd, inv_n0);
-  HWY_ALIGN double metric_store[kMaxPoints * hn::MaxLanes(DD())];
-  constexpr std::size_t N = hn::MaxLanes(DD());
-  VD top = hn::Set(dd, -HUGE_VAL);
+// One vector of symbols in single precision: received values, amplitudes and the bits' LLRs
+// (out[b * NF + lane]). P is the number of points when it is small enough for the metrics to stay
+// in registers (4, 8, 16: the PAMs of 16-, 64- and 256-QAM), else kMaxPoints (any table).
+// The table in single precision: 2 x_i, 2 x_q and |x|^2 per point.
+struct FloatTable {
+  unsigned bits = 1;
+  float two_i[kMaxPoints], two_q[kMaxPoints], energy[kMaxPoints];
+};
+
+template <std::size_t P>
+HWY_INLINE void DemapVector(const FloatTable& t, bool exact, const float* yi, const float* yq,
+                            const float* amplitude, float inv_n0, float* out) {
+  const DF df;
+  const std::size_t points = P < kMaxPoints ? P : std::size_t{1} << t.bits;
+  const VF a = hn::Load(df, amplitude);
+  const VF ui = hn::Mul(a, hn::Load(df, yi));
+  const VF uq = yq ? hn::Mul(a, hn::Load(df, yq)) : hn::Zero(df);  // yq: t two-dimensional
+  const VF aa = hn::Mul(a, a);
+  const VF scale = hn::Set(df, inv_n0);
+  VF metric[P];
+  VF top = hn::Set(df, -HUGE_VALF);
   for (std::size_t x = 0; x < points; ++x) {
-    const double pi = t.in_phase[x], pq = yq ? t.quadrature[x] : 0.0;
-    VD dot = hn::Mul(hn::Set(dd, 2 * pi), ui);
-    if (yq) dot = hn::Add(dot, hn::Mul(hn::Set(dd, 2 * pq), uq));
-    const VD metric = hn::Mul(hn::Sub(dot, hn::Mul(aa, hn::Set(dd, pi * pi + pq * pq))), scale);
-    hn::Store(metric, dd, metric_store + x * N);
-    top = hn::Max(top, metric);
+    VF dot = hn::Mul(hn::Set(df, t.two_i[x]), ui);
+    if (yq) dot = hn::Add(dot, hn::Mul(hn::Set(df, t.two_q[x]), uq));
+    metric[x] = hn::Mul(hn::Sub(dot, hn::Mul(aa, hn::Set(df, t.energy[x]))), scale);
+    top = hn::Max(top, metric[x]);
   }
   if (exact) {
-    const VD floor = hn::Set(dd, -700.0);
-    for (std::size_t x = 0; x < points; ++x) {
-      const VD m = hn::Load(dd, metric_store + x * N);
-      hn::Store(Exp(hn::Max(hn::Sub(m, top), floor)), dd, metric_store + x * N);
-    }
+    const VF floor = hn::Set(df, -80.0f);
+    for (std::size_t x = 0; x < points; ++x)
+      metric[x] = Exp(hn::Max(hn::Sub(metric[x], top), floor));
   }
+  constexpr std::size_t N = hn::MaxLanes(DF());
   for (unsigned b = 0; b < t.bits; ++b) {
     const unsigned shift = t.bits - 1 - b;
-    VD zero = exact ? hn::Zero(dd) : hn::Set(dd, -HUGE_VAL), one = zero;
+    VF zero = exact ? hn::Zero(df) : hn::Set(df, -HUGE_VALF), one = zero;
     for (std::size_t x = 0; x < points; ++x) {
-      const VD v = hn::Load(dd, metric_store + x * N);
-      VD& sum = (x >> shift) & 1 ? one : zero;
-      sum = exact ? hn::Add(sum, v) : hn::Max(sum, v);
+      VF& sum = (x >> shift) & 1 ? one : zero;
+      sum = exact ? hn::Add(sum, metric[x]) : hn::Max(sum, metric[x]);
     }
-    const VD llr = exact ? Ln(hn::Div(zero, one)) : hn::Sub(zero, one);
-    hn::StoreU(llr, dd, out + b * count + c);
+    hn::Store(exact ? LnRatio(zero, one) : hn::Sub(zero, one), df, out + b * N);
   }
 }
 
 void DemapSymbols(const DemapTable& t, bool exact, std::size_t count, const double* yi,
                   const double* yq, const double* amplitude, double noise_variance, double* out) {
-  constexpr std::size_t N = hn::MaxLanes(DD());
-  const double inv_n0 = 1 / (2 * noise_variance);
-  const double two_level_factor = (t.in_phase[0] - t.in_phase[1]) / noise_variance;
-  std::size_t c = 0;
-  for (; c + N <= count; c += N)
-    DemapVector(t, exact, yi, yq, amplitude, inv_n0, two_level_factor, count, c, out);
-  if (c == count) return;
-  // The last partial vector through padded copies (received 0, amplitude 1).
-  HWY_ALIGN double pi[N] = {}, pq[N] = {}, pa[N], po[32 * N];
-  std::fill(pa, pa + N, 1.0);
-  const std::size_t rest = count - c;
-  std::memcpy(pi, yi + c, rest * sizeof(double));
-  if (yq) std::memcpy(pq, yq + c, rest * sizeof(double));
-  if (amplitude) std::memcpy(pa, amplitude + c, rest * sizeof(double));
-  DemapVector(t, exact, pi, yq ? pq : nullptr, pa, inv_n0, two_level_factor, N, 0, po);
-  for (unsigned b = 0; b < t.bits; ++b)
-    std::memcpy(out + b * count + c, po + b * N, rest * sizeof(double));
+  if (t.in_phase.size() == 2 && yq == nullptr) {
+    // Two levels +-x0: both demappers give (x0 - x1) a y / sigma^2.
+    const double factor = (t.in_phase[0] - t.in_phase[1]) / noise_variance;
+    for (std::size_t c = 0; c < count; ++c)
+      out[c] = factor * ((amplitude ? amplitude[c] : 1.0) * yi[c]);
+    return;
+  }
+  constexpr std::size_t N = hn::MaxLanes(DF());
+  const auto inv_n0 = static_cast<float>(1 / (2 * noise_variance));
+  const std::size_t points = std::size_t{1} << t.bits;
+  FloatTable table;
+  table.bits = t.bits;
+  for (std::size_t x = 0; x < points; ++x) {
+    const auto pi = static_cast<float>(t.in_phase[x]);
+    const auto pq = yq ? static_cast<float>(t.quadrature[x]) : 0.0f;
+    table.two_i[x] = 2 * pi;
+    table.two_q[x] = 2 * pq;
+    table.energy[x] = pi * pi + pq * pq;
+  }
+  auto* const vector = points == 4    ? &DemapVector<4>
+                       : points == 8  ? &DemapVector<8>
+                       : points == 16 ? &DemapVector<16>
+                                      : &DemapVector<kMaxPoints>;
+  HWY_ALIGN float fi[N], fq[N], fa[N], fo[32 * N];
+  // In single precision a vector of symbols at a time; past the end received 0, amplitude 1.
+  auto convert = [&](const double* from, std::size_t c, std::size_t here, float fill, float* to) {
+    if (!from) return std::fill(to, to + N, fill);
+    if (here == N) {
+      for (std::size_t i = 0; i < N; ++i) to[i] = static_cast<float>(from[c + i]);
+    } else {
+      for (std::size_t i = 0; i < N; ++i) to[i] = i < here ? static_cast<float>(from[c + i]) : fill;
+    }
+  };
+  for (std::size_t c = 0; c < count; c += N) {
+    const std::size_t here = std::min(N, count - c);
+    convert(yi, c, here, 0.0f, fi);
+    convert(yq, c, here, 0.0f, fq);
+    convert(amplitude, c, here, 1.0f, fa);
+    vector(table, exact, fi, yq ? fq : nullptr, fa, inv_n0, fo);
+    for (unsigned b = 0; b < t.bits; ++b) {
+      double* to = out + b * count + c;
+      const float* from = fo + b * N;
+      if (here == N) {
+        for (std::size_t i = 0; i < N; ++i) to[i] = from[i];
+      } else {
+        for (std::size_t i = 0; i < here; ++i) to[i] = from[i];
+      }
+    }
+  }
 }
 
 }  // namespace tannery::detail::HWY_NAMESPACE

@@ -3,7 +3,10 @@
 #pragma once
 
 #include <cstddef>
+#include <span>
 #include <vector>
+
+#include "tannery/channel/modulation.hpp"
 
 namespace tannery::detail {
 
@@ -20,5 +23,10 @@ struct DemapTable {
 void demap_symbols(const DemapTable& table, bool exact, std::size_t count, const double* in_phase,
                    const double* quadrature, const double* amplitude, double noise_variance,
                    double* out);
+
+// demap() with the LLRs by bit plane: bit b of symbol s goes to planes[b * count + s].
+void demap_planes(const Constellation& c, Demapper demapper, std::span<const double> in_phase,
+                  std::span<const double> quadrature, std::span<const double> amplitude,
+                  double noise_variance, double* planes);
 
 }  // namespace tannery::detail

@@ -5,6 +5,7 @@
 #include <cmath>
 #include <limits>
 
+#include "demap_kernels.hpp"
 #include "tannery/error.hpp"
 
 namespace tannery {
@@ -56,15 +57,25 @@ void Link::modulate(std::span<const std::uint8_t> codeword,
 void Link::demodulate(std::span<const double> in_phase, std::span<const double> quadrature,
                       std::span<const double> amplitude, double noise_variance,
                       std::span<double> llr, LinkBuffers& buffers) const {
-  if (llr.size() != n()) throw Error("demodulate: the LLRs do not match the code length");
-  buffers.slots.resize(symbols_ * constellation_.bits());
-  demap(constellation_, spec_.demapper, in_phase, quadrature, amplitude, noise_variance,
-        buffers.slots);
-  for (std::size_t i = 0; i < n(); ++i) {
-    llr[i] = map_.state[i] == PunctureMap::shortened ? std::numeric_limits<double>::infinity() : 0;
+  if (llr.size() != n() || in_phase.size() != symbols_)
+    throw Error("demodulate: the symbols or the LLRs do not match the link in size");
+  const unsigned bits = constellation_.bits();
+  buffers.slots.resize(symbols_ * bits);
+  detail::demap_planes(constellation_, spec_.demapper, in_phase, quadrature, amplitude,
+                       noise_variance, buffers.slots.data());
+  if (sent_.size() < n()) {
+    for (std::size_t i = 0; i < n(); ++i) {
+      llr[i] =
+          map_.state[i] == PunctureMap::shortened ? std::numeric_limits<double>::infinity() : 0;
+    }
   }
-  for (std::size_t j = 0; j < slot_position_.size(); ++j) {
-    if (slot_position_[j] < llr.size()) llr[slot_position_[j]] = buffers.slots[j];
+  // Slot j = s * bits + b is bit plane b of symbol s; padding slots carry position n.
+  for (unsigned b = 0; b < bits; ++b) {
+    const double* plane = buffers.slots.data() + b * symbols_;
+    for (std::size_t s = 0; s < symbols_; ++s) {
+      const std::uint32_t position = slot_position_[s * bits + b];
+      if (position < llr.size()) llr[position] = plane[s];
+    }
   }
 }
 
@@ -76,15 +87,13 @@ void Link::receive(const ChannelPoint& point, std::span<const std::uint8_t> code
   const bool complex = constellation_.complex();
   const std::size_t dims = complex ? 2 : 1;
   const bool faded = point.kind() == ChannelKind::rayleigh;
-  buffers.symbols.resize(symbols_);
-  modulate(codeword, buffers.symbols);
   buffers.in_phase.resize(symbols_);
   buffers.quadrature.resize(complex ? symbols_ : 0);
   buffers.amplitude.resize(faded ? symbols_ : 0);
   const double sigma = point.value();
   const double* fading = noise.data() + dims * symbols_;
   for (std::size_t s = 0; s < symbols_; ++s) {
-    const std::complex<double> x = buffers.symbols[s];
+    const std::complex<double> x = constellation_.points()[label(codeword, s)];
     double a = 1;
     if (faded) {
       const double* g = fading + 2 * (s / spec_.fading_block);

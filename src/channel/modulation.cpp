@@ -240,38 +240,49 @@ std::string Constellation::table() const {
   return out;
 }
 
-void demap(const Constellation& c, Demapper demapper, std::span<const double> in_phase,
-           std::span<const double> quadrature, std::span<const double> amplitude,
-           double noise_variance, std::span<double> llr) {
+namespace detail {
+
+void demap_planes(const Constellation& c, Demapper demapper, std::span<const double> in_phase,
+                  std::span<const double> quadrature, std::span<const double> amplitude,
+                  double noise_variance, double* planes) {
   const std::size_t count = in_phase.size();
   if ((c.complex() && quadrature.size() != count) || (!c.complex() && !quadrature.empty()) ||
-      (!amplitude.empty() && amplitude.size() != count) || llr.size() != count * c.bits()) {
-    throw Error("demap: the received values, amplitudes and LLRs do not match in size");
+      (!amplitude.empty() && amplitude.size() != count)) {
+    throw Error("demap: the received values and amplitudes do not match in size");
   }
   if (!(noise_variance > 0 && std::isfinite(1 / noise_variance)))
     throw Error(fmt::format("demap: noise_variance must be positive, got {}", noise_variance));
-  std::vector<double> planes(count * c.bits());
   const bool exact = demapper == Demapper::exact;
   const double* a = amplitude.empty() ? nullptr : amplitude.data();
   if (c.pam_bits() > 0) {
     // A Gray PAM, or one on each axis: each axis demapped alone.
-    const detail::DemapTable pam{c.pam_bits(), c.pam_levels(), {}};
-    detail::demap_symbols(pam, exact, count, in_phase.data(), nullptr, a, noise_variance,
-                          planes.data());
+    const DemapTable pam{c.pam_bits(), c.pam_levels(), {}};
+    demap_symbols(pam, exact, count, in_phase.data(), nullptr, a, noise_variance, planes);
     if (c.complex()) {
-      detail::demap_symbols(pam, exact, count, quadrature.data(), nullptr, a, noise_variance,
-                            planes.data() + count * c.pam_bits());
+      demap_symbols(pam, exact, count, quadrature.data(), nullptr, a, noise_variance,
+                    planes + count * c.pam_bits());
     }
-  } else {
-    detail::DemapTable table{c.bits(), {}, {}};
-    for (const auto& x : c.points()) {
-      table.in_phase.push_back(x.real());
-      if (c.complex()) table.quadrature.push_back(x.imag());
-    }
-    detail::demap_symbols(table, exact, count, in_phase.data(),
-                          c.complex() ? quadrature.data() : nullptr, a, noise_variance,
-                          planes.data());
+    return;
   }
+  DemapTable table{c.bits(), {}, {}};
+  for (const auto& x : c.points()) {
+    table.in_phase.push_back(x.real());
+    if (c.complex()) table.quadrature.push_back(x.imag());
+  }
+  demap_symbols(table, exact, count, in_phase.data(), c.complex() ? quadrature.data() : nullptr, a,
+                noise_variance, planes);
+}
+
+}  // namespace detail
+
+void demap(const Constellation& c, Demapper demapper, std::span<const double> in_phase,
+           std::span<const double> quadrature, std::span<const double> amplitude,
+           double noise_variance, std::span<double> llr) {
+  const std::size_t count = in_phase.size();
+  if (llr.size() != count * c.bits())
+    throw Error("demap: the LLRs do not match the received values in size");
+  std::vector<double> planes(count * c.bits());
+  detail::demap_planes(c, demapper, in_phase, quadrature, amplitude, noise_variance, planes.data());
   for (std::size_t s = 0; s < count; ++s) {
     for (unsigned b = 0; b < c.bits(); ++b) llr[s * c.bits() + b] = planes[b * count + s];
   }

@@ -1,12 +1,18 @@
 // tannery inspect CODE: size, rank, rate, degree distributions, girth, structure, distance.
 #include <fmt/format.h>
+#include <cmath>
+#include <nlohmann/json.hpp>
 
 #include "commands.hpp"
+#include "settings_options.hpp"
+#include "tannery/channel/link.hpp"
 #include "tannery/code/analysis.hpp"
 #include "tannery/code/gf2.hpp"
 #include "tannery/error.hpp"
 #include "tannery/io/code_lookup.hpp"
 #include "tannery/io/matrix_io.hpp"
+#include "tannery/sim/simulator.hpp"
+#include "tannery/theory/capacity.hpp"
 
 namespace tannery::cli {
 
@@ -18,7 +24,66 @@ struct InspectOptions {
   std::size_t max_dimension = 24;
   std::string dot;
   bool no_cycle = false;
+  std::optional<Modulation> modulation, points;
+  std::string puncture;
 };
+
+// What the code becomes on a link: sent positions, symbols, rates and the capacity limits at its
+// information bits per symbol (Eb/N0, dB; null when the rate is outside what the modulation
+// carries).
+nlohmann::json link_summary(const InspectOptions& o, const Code& code) {
+  ChannelSpec spec;
+  spec.modulation = o.modulation.value_or(Modulation{});
+  const Link link(spec, o.puncture.empty() ? PunctureMap::all_sent(code.n())
+                                           : read_puncture_map(o.puncture, code.n()));
+  const Encoder encoder(code);
+  check_shortening(link, encoder);
+  const std::size_t k = encoder.k();
+  const Constellation& c = link.constellation();
+  const double per_symbol = link.snr_rate(k);
+  nlohmann::json limits = nlohmann::json::object();
+  for (ChannelKind channel : {ChannelKind::awgn, ChannelKind::rayleigh}) {
+    for (CapacityKind kind : {CapacityKind::bicm, CapacityKind::coded_modulation}) {
+      const bool fits = per_symbol > 0 && per_symbol < c.bits();
+      limits[std::string(name_of(channel))][std::string(name_of(kind))] =
+          fits ? nlohmann::json(modulation_shannon_limit_ebn0_db(c, kind, channel, per_symbol))
+               : nlohmann::json(nullptr);
+    }
+  }
+  const std::size_t shortened = link.shortened();
+  return {{"modulation", SettingText<Modulation>::format(spec.modulation)},
+          {"bits_per_symbol", c.bits()},
+          {"sent", link.sent()},
+          {"punctured", code.n() - link.sent() - shortened},
+          {"shortened", shortened},
+          {"symbols", link.symbols()},
+          {"effective_rate",
+           static_cast<double>(k - std::min(k, shortened)) / static_cast<double>(link.sent())},
+          {"information_bits_per_symbol", per_symbol},
+          {"shannon_limits_ebn0_db", limits}};
+}
+
+std::string link_text(const nlohmann::json& j) {
+  std::string s = fmt::format(
+      "link           {} ({} bits per symbol): {} positions sent, {} punctured, {} shortened\n"
+      "               {} symbols per frame, effective rate {:.6f}, {:.6f} information bits per "
+      "symbol\n",
+      j["modulation"].get<std::string>(), j["bits_per_symbol"].get<unsigned>(),
+      j["sent"].get<std::size_t>(), j["punctured"].get<std::size_t>(),
+      j["shortened"].get<std::size_t>(), j["symbols"].get<std::size_t>(),
+      j["effective_rate"].get<double>(), j["information_bits_per_symbol"].get<double>());
+  const auto& limits = j["shannon_limits_ebn0_db"];
+  auto limit = [&](const char* channel, const char* kind) {
+    const auto& v = limits[channel][kind];
+    return v.is_null() ? std::string("none") : fmt::format("{:.3f} dB", v.get<double>());
+  };
+  s += fmt::format(
+      "Eb/N0 limits   awgn: BICM {}, coded modulation {}; rayleigh (ergodic): BICM {}, coded "
+      "modulation {}\n",
+      limit("awgn", "bicm"), limit("awgn", "coded-modulation"), limit("rayleigh", "bicm"),
+      limit("rayleigh", "coded-modulation"));
+  return s;
+}
 
 // Writes the Tanner graph for Graphviz; a .svg name is rendered with `dot` when installed.
 void write_dot(const InspectOptions& o, const Code& code) {
@@ -120,13 +185,21 @@ void print_text(const InspectOptions& o, const CodeReport& r) {
 }
 
 void run(const InspectOptions& o) {
+  if (o.points) {
+    fmt::print("{}", Constellation::of(*o.points).table());
+    return;
+  }
   const Code code = o.input.load();
   const CodeReport r = inspect_code(code, o.max_dimension);
   if (!o.dot.empty()) write_dot(o, code);
+  const bool link = o.modulation || !o.puncture.empty();
   if (o.json) {
-    fmt::print("{}\n", code_report_json(r, o.input.code));
+    nlohmann::json j = nlohmann::json::parse(code_report_json(r, o.input.code));
+    if (link) j["link"] = link_summary(o, code);
+    fmt::print("{}\n", j.dump(2));
   } else {
     print_text(o, r);
+    if (link) fmt::print("{}", link_text(link_summary(o, code)));
   }
 }
 
@@ -150,6 +223,14 @@ void add_inspect(CLI::App& app) {
                   "write the Tanner graph for Graphviz (circles: variables, squares: checks; a "
                   "shortest cycle in red); a name ending in .svg is rendered with Graphviz");
   sub->add_flag("--no-cycle", o->no_cycle, "with --dot: do not highlight a shortest cycle");
+  add_setting_option(*sub, "--modulation", o->modulation,
+                     "also report the code on this modulation: symbols per frame, information "
+                     "bits per symbol, BICM and coded-modulation Eb/N0 limits (AWGN, Rayleigh)");
+  sub->add_option("--puncture", o->puncture,
+                  "also report the code with this puncture map: positions sent, effective rate");
+  add_setting_option(*sub, "--points", o->points,
+                     "print a modulation's label-to-point table (label bits, in-phase, "
+                     "quadrature; unit average energy) and nothing else");
   sub->callback([o] { run(*o); });
 }
 

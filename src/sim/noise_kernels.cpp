@@ -157,6 +157,11 @@ void GaussiansOfFrame(std::uint64_t seed, std::uint32_t point, std::uint64_t fra
     }
     Philox(r, seed);
     BoxMuller(r, g0, g1);
+    if (2 * (block + K * N) <= count) {  // a whole block: the pairs stored interleaved
+      for (std::size_t j = 0; j < K; ++j)
+        hn::StoreInterleaved2(g0[j], g1[j], dd, out + 2 * (block + j * N));
+      continue;
+    }
     for (std::size_t j = 0; j < K; ++j) {
       hn::Store(g0[j], dd, a[j]);
       hn::Store(g1[j], dd, b[j]);

@@ -244,14 +244,22 @@ void Simulator::run_lanes(Worker& w, LaneDecoder& decoder, std::size_t index,
     if (link_.binary()) {
       group_channel_llrs(group, channel, sent, w.llr);
     } else {
-      // Through the link frame by frame (demapped with SIMD across its symbols), then into lanes.
+      // Through the link frame by frame (demapped with SIMD across its symbols), then into lanes
+      // a tile of frames at a time (a cache line of each position's lane values written whole).
+      constexpr std::size_t kTile = 8;
       w.frame_codeword.resize(n);
-      w.frame_llr.resize(n);
-      for (std::size_t l = 0; l < lanes; ++l) {
-        for (std::size_t v = 0; v < n; ++v) w.frame_codeword[v] = (sent[v] >> l) & 1;
-        frame_llrs(FrameId{group.seed, group.point, group.first + l}, channel, link_,
-                   w.frame_codeword, w.frame_llr, w.link_buffers);
-        for (std::size_t v = 0; v < n; ++v) w.llr[v * lanes + l] = w.frame_llr[v];
+      w.frame_llr.resize(kTile * n);
+      for (std::size_t l0 = 0; l0 < lanes; l0 += kTile) {
+        const std::size_t tile = std::min(kTile, lanes - l0);
+        for (std::size_t t = 0; t < tile; ++t) {
+          const std::uint64_t lane = std::uint64_t{1} << (l0 + t);
+          for (std::size_t v = 0; v < n; ++v) w.frame_codeword[v] = (sent[v] & lane) != 0;
+          frame_llrs(FrameId{group.seed, group.point, group.first + l0 + t}, channel, link_,
+                     w.frame_codeword, std::span(w.frame_llr).subspan(t * n, n), w.link_buffers);
+        }
+        for (std::size_t v = 0; v < n; ++v) {
+          for (std::size_t t = 0; t < tile; ++t) w.llr[v * lanes + l0 + t] = w.frame_llr[t * n + v];
+        }
       }
     }
     decoder.load(g, w.llr);

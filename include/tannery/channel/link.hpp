@@ -26,7 +26,6 @@ namespace tannery {
 
 // Reusable work space of demodulate() and transmit() (one per thread).
 struct LinkBuffers {
-  std::vector<std::complex<double>> symbols;
   std::vector<double> in_phase, quadrature, amplitude, slots;
   std::vector<double> noise;  // the caller's stream-1 values
 };

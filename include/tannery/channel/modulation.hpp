@@ -118,9 +118,12 @@ class Constellation {
 // amplitude is empty; n Gaussian with variance noise_variance per real dimension):
 // llr[s * bits + b] = log sum_{x: b=0} exp(-|y - a x|^2 / 2 sigma^2) - log sum_{x: b=1} (...)
 // (exact), or the two largest terms' exponents (max-log). quadrature is empty for real
-// constellations. Exact LLRs are computed with the terms of each symbol scaled by its largest,
-// each clamped at e^-700 so no sum underflows: exact to rounding while |L| < 690, beyond which
-// they saturate near +-700. The same bits on every machine and SIMD target.
+// constellations. BPSK: 2 a y / sigma^2 in double precision. Larger constellations are
+// demapped in single precision (a vector of 16 symbols at a time with AVX-512), each metric
+// rounded to a float: LLRs exact to about 1e-7 of the largest metric's magnitude. Exact LLRs
+// scale each symbol's terms by its largest and clamp them at e^-80 so no sum underflows: beyond
+// |L| ~ 78 they saturate near +-80 (error probabilities below 1e-34, which no decoder
+// distinguishes). The same bits on every machine and SIMD target.
 void demap(const Constellation& c, Demapper demapper, std::span<const double> in_phase,
            std::span<const double> quadrature, std::span<const double> amplitude,
            double noise_variance, std::span<double> llr);

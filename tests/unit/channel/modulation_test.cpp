@@ -34,8 +34,17 @@ Constellation eight_psk() {
 // log sum exp(-|y - a x|^2 / 2 sigma^2) over points with bit b = 0, minus over b = 1, in long
 // double, term by term: the definition the demapper must match.
 std::vector<long double> brute_force_llr(const Constellation& c, std::complex<double> y, double a,
-                                         double variance) {
+                                         double variance, long double* scale = nullptr) {
   std::vector<long double> llr(c.bits());
+  if (scale) {  // the largest metric magnitude
+    *scale = 0;
+    for (std::uint32_t label = 0; label < c.size(); ++label) {
+      const auto x = std::complex<long double>(c.point(label));
+      const long double dot = 2.0L * a * (y.real() * x.real() + y.imag() * x.imag());
+      *scale = std::max(*scale, std::abs(dot - static_cast<long double>(a) * a * std::norm(x)) /
+                                    (2.0L * variance));
+    }
+  }
   for (unsigned b = 0; b < c.bits(); ++b) {
     long double best[2] = {-INFINITY, -INFINITY};
     std::vector<long double> metric(c.size());
@@ -189,12 +198,15 @@ TEST_CASE("interleavers: a block is written by rows and read by columns; random 
 
 TEST_CASE("exact LLRs equal a brute-force long-double computation at random points",
           "[modulation]") {
+  // The demapper works in single precision: each metric (2 a y.x - a^2 |x|^2) / 2 sigma^2 is
+  // rounded to a float, so an LLR is exact to about 1e-7 of the largest metric magnitude, and
+  // saturates near +-80 (a term below e^-80 of the largest is clamped there).
   std::vector<Constellation> all;
   for (ModulationKind kind : kStandard) all.push_back(Constellation::standard(kind));
   all.push_back(eight_psk());
   std::vector<double> u(4000);
   frame_uniforms(FrameId{5, 0, 0}, u);
-  std::size_t next = 0;
+  std::size_t next = 0, checked = 0, close = 0;
   auto uniform = [&] { return u[next++ % u.size()]; };
   for (const Constellation& c : all) {
     // 300 symbols: the received point anywhere around the constellation, the amplitude in
@@ -210,19 +222,25 @@ TEST_CASE("exact LLRs equal a brute-force long-double computation at random poin
     }
     demap(c, Demapper::exact, in_phase, quadrature, amplitude, variance, llr);
     for (std::size_t s = 0; s < count; ++s) {
+      long double scale = 0;
       const auto expected = brute_force_llr(c, {in_phase[s], c.complex() ? quadrature[s] : 0.0},
-                                            amplitude[s], variance);
+                                            amplitude[s], variance, &scale);
       for (unsigned b = 0; b < c.bits(); ++b) {
-        const double want = static_cast<double>(expected[b]);
-        INFO(c.size() << " points, symbol " << s << " bit " << b << " variance " << variance);
-        if (std::abs(want) < 600) {
-          CHECK(llr[s * c.bits() + b] == Approx(want).epsilon(1e-12).margin(1e-11));
-        } else {  // beyond the clamp: the sign and saturation only
-          CHECK(llr[s * c.bits() + b] * want > 0);
+        const double want = static_cast<double>(expected[b]), got = llr[s * c.bits() + b];
+        INFO(c.size() << " points, symbol " << s << " bit " << b << " variance " << variance
+                      << " largest metric " << static_cast<double>(scale));
+        if (std::abs(want) < 70) {
+          CHECK(std::abs(got - want) <= 1e-6 * (1 + static_cast<double>(scale)));
+          ++close;
+        } else {  // beyond the clamp: the sign, and at least the clamp's size
+          CHECK(got * want > 0);
+          CHECK(std::abs(got) > 70);
         }
+        ++checked;
       }
     }
   }
+  CHECK(close > checked / 2);  // mostly below the clamp: not vacuous
 }
 
 TEST_CASE("max-log and exact LLRs agree at high SNR", "[modulation]") {
@@ -246,7 +264,7 @@ TEST_CASE("max-log and exact LLRs agree at high SNR", "[modulation]") {
     std::size_t compared = 0;
     double gaps = 0, magnitudes = 0;
     for (std::size_t i = 0; i < exact.size(); ++i) {
-      if (std::abs(max_log[i]) >= 600) continue;  // the exact LLR saturates near 700
+      if (std::abs(max_log[i]) >= 70) continue;  // the exact LLR saturates near 80
       ++compared;
       const double gap = std::abs(exact[i] - max_log[i]);
       CHECK(gap <= std::log(static_cast<double>(c.size()) / 2) + 1e-9);
