@@ -38,7 +38,9 @@ std::string channel_model(const ChannelSpec& spec) {
 
 std::string describe(const ChannelSpec& spec) {
   std::string text = channel_model(spec);
-  if (snr_swept(spec.kind)) {
+  const bool plain_bpsk =
+      spec.modulation == Modulation{} && spec.interleaver == Interleaver{} && !spec.ignore_fading;
+  if (snr_swept(spec.kind) && !plain_bpsk) {
     text += fmt::format(", {} ({} demapper{}{})", SettingText<Modulation>::format(spec.modulation),
                         name_of(spec.demapper),
                         spec.interleaver == Interleaver{}

@@ -137,7 +137,7 @@ void SymbolDemodulator::convert(std::span<const double> values, std::span<const 
     // expectation-maximisation: sigma^2 <- mean over symbols of E[|y - a x|^2 | y] / dims, the
     // expectation under the points' posteriors at the current sigma^2. Started from the
     // nearest-point estimate (which alone is biased low once symbol errors are common).
-    const std::size_t count = std::min<std::size_t>(frames * symbols, 1 << 16);
+    const std::size_t count = std::min<std::size_t>(frames * symbols, 1 << 13);
     const double dims = c.complex() ? 2 : 1;
     std::vector<double> distance(c.size());
     auto step = [&](std::optional<double> variance) {
@@ -167,7 +167,7 @@ void SymbolDemodulator::convert(std::span<const double> values, std::span<const 
     double variance = step(std::nullopt);
     for (int i = 0; i < 200 && variance > 0; ++i) {
       const double next = step(variance);
-      const bool settled = std::abs(next - variance) <= 1e-7 * variance;
+      const bool settled = std::abs(next - variance) <= 1e-6 * variance;
       variance = next;
       if (settled) break;
     }

@@ -234,7 +234,7 @@ std::string Constellation::table() const {
   std::string out = fmt::format(
       "# label  in-phase  quadrature   ({} points, unit average energy)\n", points_.size());
   for (std::size_t label = 0; label < points_.size(); ++label) {
-    out += fmt::format("{:0{}b}  {:+.17g}  {:+.17g}\n", label, static_cast<int>(bits_),
+    out += fmt::format("{:0{}b}  {:.17g}  {:.17g}\n", label, static_cast<int>(bits_),
                        points_[label].real(), points_[label].imag());
   }
   return out;

@@ -41,10 +41,12 @@ void print_heading(const RunRecord& r) {
              ch.puncture.empty()
                  ? std::string()
                  : fmt::format(", effective rate {:.4f} after {}", r.effective_rate, ch.puncture),
-             snr_swept(ch.kind)
-                 ? fmt::format(" (Eb/N0 uses {:.4f} information bits per symbol, {} rate)",
-                               r.rate_for_snr, ch.design_rate ? "design" : "true")
-                 : std::string());
+             !snr_swept(ch.kind) ? std::string()
+             : r.bits_per_symbol == 1
+                 ? fmt::format(" (Eb/N0 uses R = {:.4f}, {} rate)", r.rate_for_snr,
+                               ch.design_rate ? "design" : "true")
+                 : fmt::format(" (Eb/N0 uses {:.4f} information bits per symbol, {} rate)",
+                               r.rate_for_snr, ch.design_rate ? "design" : "true"));
   fmt::print("decoder {}; channel {}; seed {}, chunks of {} frames, {}{}\n", describe(c.decoder),
              describe(ch), c.seed, c.chunk_frames, count_of(c.threads, "thread"),
              c.all_zero ? "; all-zero codeword" : "");

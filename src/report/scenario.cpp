@@ -124,9 +124,13 @@ Scenario parse_scenario(std::string_view text, const std::string& path) {
     throw Error(fmt::format("{}: the scenario names no code (code = \"...\")", path));
   r.get(root, "code", s.code);
   // A relative path is relative to the scenario file; a shipped name stays a name.
-  const auto beside = std::filesystem::path(path).parent_path() / s.code;
-  std::error_code ec;  // an over-long or odd name is simply no file beside the scenario
-  if (std::filesystem::exists(beside, ec)) s.code = beside.string();
+  auto resolve = [&](std::string& file) {
+    if (file.empty()) return;
+    const auto beside = std::filesystem::path(path).parent_path() / file;
+    std::error_code ec;  // an over-long or odd name is simply no file beside the scenario
+    if (std::filesystem::exists(beside, ec)) file = beside.string();
+  };
+  resolve(s.code);
 
   SimulationConfig& c = s.config;
   if (const toml::table* d = r.section("decoder")) {
@@ -149,6 +153,8 @@ Scenario parse_scenario(std::string_view text, const std::string& path) {
   if (!ch || !ch->get("sweep"))
     throw Error(fmt::format("{}: the scenario has no [channel] sweep", path));
   r.read_section(*ch, c.channel, "channel", {"sweep"});
+  resolve(c.channel.puncture);  // files the link reads, beside the scenario like the code
+  resolve(c.channel.modulation.file);
   try {
     validate(c.channel);
   } catch (const Error& e) {

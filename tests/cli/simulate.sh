@@ -118,4 +118,20 @@ expect_exit 2 "$T" simulate --scenario big.toml
 expect_in "big.toml:5:16: 'chunk_frames' must be an integer from 0 to 4294967295" "$WORK/err"
 expect_exit 2 "$T" simulate --resume one.csv
 expect_in "one.csv: not valid JSON" "$WORK/err"
+# Links: 16-QAM on fast Rayleigh fading (the example, fewer frames), the plot drawing the
+# BICM limit of that link; a scenario's puncture map beside it; the results state the rates.
+expect_exit 0 "$T" simulate --code qc-rate-half-z54 --modulation 16qam --channel rayleigh:fast \
+  --sweep 6:1:12 --kernel simd --max-frames 3000 -o link.json --plot link.svg
+expect_in "channel rayleigh:fast, 16qam (exact demapper)" "$WORK/out"
+expect_in "16qam BICM limit (Rayleigh, ergodic), 2.000 bit/symbol (4.11)" link.svg
+expect_in '"bits_per_symbol": 4' link.json
+mkdir -p scen && printf 'punctured 600-647\n' > scen/tail.punct
+printf 'code = "qc-rate-half-z54"\n[channel]\nmodulation = "qpsk"\npuncture = "tail.punct"\nsweep = "3"\n[stop]\nmax_frames = 200\n' > scen/p.toml
+expect_exit 0 "$T" simulate --scenario scen/p.toml -o p.json --plot ''
+expect_in "effective rate 0.5400 after" "$WORK/out"
+expect_in '"effective_rate": 0.54' p.json
+expect_exit 0 "$T" inspect --points 4pam
+expect_in "10  -1.3416407864998738  0" "$WORK/out"
+expect_exit 0 "$T" inspect qc-rate-half-z54 --modulation 16qam
+expect_in "Eb/N0 limits   awgn: BICM 2.270 dB" "$WORK/out"
 finish

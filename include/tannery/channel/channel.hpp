@@ -96,8 +96,8 @@ struct ChannelSpec {
 // bec (kind and fading_block); nullopt for other text.
 std::optional<std::pair<ChannelKind, std::uint32_t>> parse_channel_model(std::string_view text);
 std::string channel_model(const ChannelSpec& spec);
-// The link in words: "rayleigh:block:4, 64qam (exact demapper, interleaver random:3)", with the
-// puncture map file when there is one.
+// The link in words: "rayleigh:block:4, 64qam (exact demapper, interleaver random:3)" (the
+// channel alone for BPSK), with the puncture map file when there is one.
 std::string describe(const ChannelSpec& spec);
 
 // Throws Error for settings that do not fit the channel kind (an SNR offset on the BSC...).

@@ -86,7 +86,7 @@ class Link {
 // Captured frames of received symbols to the code's LLRs: each frame is symbols() I/Q pairs
 // (in-phase, quadrature; the quadrature value is ignored for real constellations), the fading
 // amplitude of each symbol optional. Without a given noise variance it is estimated from the
-// first frames converted (up to 65536 symbols): the maximum-likelihood variance of the Gaussian
+// first frames converted (up to 8192 symbols): the maximum-likelihood variance of the Gaussian
 // mixture the received values form around the (amplitude-scaled) points, all points equally
 // likely, found by expectation-maximisation. It assumes the capture's symbols are
 // uniformly distributed over the constellation (random data) and the noise white and Gaussian.

@@ -102,7 +102,9 @@ class Constellation {
   // QPSK): pam_levels() are the PAM's levels by label; 0 otherwise (custom).
   unsigned pam_bits() const noexcept { return pam_bits_; }
   const std::vector<double>& pam_levels() const noexcept { return pam_; }
-  // The label-to-point table: "label  in-phase  quadrature" lines, labels in binary.
+  // The label-to-point table: "label  in-phase  quadrature" lines, labels in binary, 17
+  // significant digits: a constellation file that parse() reads back to the same points (to
+  // rounding).
   std::string table() const;
 
  private:

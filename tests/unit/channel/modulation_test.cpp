@@ -149,7 +149,15 @@ TEST_CASE("standard constellations: unit energy, binary-reflected Gray labels", 
   CHECK(q16.point(0).imag() == Approx(3 / std::sqrt(10.0)));
   CHECK(q16.point(0b1000).real() == Approx(-3 / std::sqrt(10.0)));
   CHECK(q16.point(0b0001).imag() == Approx(1 / std::sqrt(10.0)));
-  CHECK(q16.table().find("0000  +0.94868329805051") != std::string::npos);
+  CHECK(q16.table().find("0000  0.94868329805051") != std::string::npos);
+  // The table is a constellation file giving back the same points (to rounding: reading scales
+  // to unit energy again).
+  for (ModulationKind kind : kStandard) {
+    const Constellation c = Constellation::standard(kind);
+    const Constellation back = Constellation::parse(c.table(), "table");
+    for (std::uint32_t label = 0; label < c.size(); ++label)
+      CHECK(std::abs(back.point(label) - c.point(label)) < 1e-15);
+  }
 }
 
 TEST_CASE("custom constellation files: scaled to unit energy, errors name file and line",
