@@ -24,12 +24,22 @@ Link::Link(const ChannelSpec& spec, PunctureMap map)
   const std::vector<std::uint32_t> order = interleaver_order(spec_.interleaver, sent_.size());
   slot_position_.assign(symbols_ * bits, static_cast<std::uint32_t>(n));
   for (std::size_t j = 0; j < order.size(); ++j) slot_position_[j] = sent_[order[j]];
+  binary_ = spec_.kind != ChannelKind::rayleigh && spec_.modulation == Modulation{} &&
+            spec_.interleaver == Interleaver{};
   const std::size_t dims = constellation_.complex() ? 2 : 1;
-  noise_values_ = dims * symbols_;
+  noise_values_ = binary_ ? n : dims * symbols_;
   if (spec_.kind == ChannelKind::rayleigh)
     noise_values_ += 2 * ((symbols_ + spec_.fading_block - 1) / spec_.fading_block);
-  binary_ = spec_.kind != ChannelKind::rayleigh && bits == 1 && sent_.size() == n &&
-            spec_.modulation.kind == ModulationKind::bpsk && spec_.interleaver == Interleaver{};
+}
+
+void Link::mark_unsent(std::span<double> llr, std::size_t stride) const {
+  if (sent_.size() == n()) return;
+  for (std::size_t i = 0; i < n(); ++i) {
+    if (map_.state[i] == PunctureMap::sent) continue;
+    const double value =
+        map_.state[i] == PunctureMap::shortened ? std::numeric_limits<double>::infinity() : 0.0;
+    std::fill_n(llr.begin() + static_cast<std::ptrdiff_t>(i * stride), stride, value);
+  }
 }
 
 double Link::snr_rate(std::size_t information_bits) const {
@@ -37,21 +47,31 @@ double Link::snr_rate(std::size_t information_bits) const {
          static_cast<double>(symbols_);
 }
 
-std::uint32_t Link::label(std::span<const std::uint8_t> codeword, std::size_t symbol) const {
-  const unsigned bits = constellation_.bits();
-  std::uint32_t label = 0;
-  for (unsigned b = 0; b < bits; ++b) {
-    const std::uint32_t position = slot_position_[symbol * bits + b];
-    label = (label << 1) | (position < codeword.size() ? codeword[position] & 1u : 0u);
+void Link::labels(std::span<const std::uint8_t> codeword, LinkBuffers& buffers) const {
+  // The label bits slot by slot (a gather; padding slots read 0), then shifted together.
+  const std::size_t slots = slot_position_.size();
+  buffers.label_bits.resize(slots);
+  const std::size_t n = codeword.size();
+  for (std::size_t j = 0; j < slots; ++j) {
+    const std::uint32_t position = slot_position_[j];
+    buffers.label_bits[j] = position < n ? codeword[position] & 1u : 0u;
   }
-  return label;
+  buffers.labels.assign(symbols_, 0);
+  const unsigned bits = constellation_.bits();
+  for (unsigned b = 0; b < bits; ++b) {
+    const std::uint8_t* from = buffers.label_bits.data() + b;
+    for (std::size_t s = 0; s < symbols_; ++s)
+      buffers.labels[s] = (buffers.labels[s] << 1) | from[s * bits];
+  }
 }
 
 void Link::modulate(std::span<const std::uint8_t> codeword,
                     std::span<std::complex<double>> symbols) const {
   if (codeword.size() != n() || symbols.size() != symbols_)
     throw Error("modulate: the codeword or the symbols do not match the link in size");
-  for (std::size_t s = 0; s < symbols_; ++s) symbols[s] = constellation_.point(label(codeword, s));
+  LinkBuffers buffers;
+  labels(codeword, buffers);
+  for (std::size_t s = 0; s < symbols_; ++s) symbols[s] = constellation_.point(buffers.labels[s]);
 }
 
 void Link::demodulate(std::span<const double> in_phase, std::span<const double> quadrature,
@@ -92,8 +112,11 @@ void Link::receive(const ChannelPoint& point, std::span<const std::uint8_t> code
   buffers.amplitude.resize(faded ? symbols_ : 0);
   const double sigma = point.value();
   const double* fading = noise.data() + dims * symbols_;
+  if (codeword.size() != n()) throw Error("receive: the codeword does not match the link");
+  labels(codeword, buffers);
+  const std::complex<double>* points = constellation_.points().data();
   for (std::size_t s = 0; s < symbols_; ++s) {
-    const std::complex<double> x = constellation_.points()[label(codeword, s)];
+    const std::complex<double> x = points[buffers.labels[s]];
     double a = 1;
     if (faded) {
       const double* g = fading + 2 * (s / spec_.fading_block);
@@ -108,7 +131,10 @@ void Link::receive(const ChannelPoint& point, std::span<const std::uint8_t> code
 void Link::transmit(const ChannelPoint& point, std::span<const std::uint8_t> codeword,
                     std::span<const double> noise, std::span<double> llr,
                     LinkBuffers& buffers) const {
-  if (binary_) return tannery::transmit(point, codeword, noise, llr);
+  if (binary_) {
+    tannery::transmit(point, codeword, noise, llr);
+    return mark_unsent(llr, 1);
+  }
   receive(point, codeword, noise, buffers);
   const double assumed = point.assumed_value();
   const bool known = point.kind() == ChannelKind::rayleigh && !spec_.ignore_fading;

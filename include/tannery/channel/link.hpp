@@ -28,6 +28,8 @@ namespace tannery {
 struct LinkBuffers {
   std::vector<double> in_phase, quadrature, amplitude, slots;
   std::vector<double> noise;  // the caller's stream-1 values
+  std::vector<std::uint8_t> label_bits;
+  std::vector<std::uint32_t> labels;
 };
 
 class Link {
@@ -35,8 +37,12 @@ class Link {
   // Error when the interleaver does not fit the sent bits or nothing is sent.
   Link(const ChannelSpec& spec, PunctureMap map);
 
-  // BPSK on AWGN, BSC or BEC with every position sent: transmit() of channel.hpp is the link.
+  // BPSK on AWGN, BSC or BEC, no interleaver: transmit() of channel.hpp on every position (n
+  // stream-1 values, one per position), then mark_unsent.
   bool binary() const noexcept { return binary_; }
+  // Sets the LLRs of punctured positions to 0 and of shortened ones to +Inf, in a layout with
+  // `stride` values per position (1: one frame; the lane count: a group in lane layout).
+  void mark_unsent(std::span<double> llr, std::size_t stride) const;
   std::size_t n() const noexcept { return map_.state.size(); }
   std::size_t sent() const noexcept { return sent_.size(); }
   std::size_t shortened() const noexcept { return shortened_; }
@@ -48,7 +54,8 @@ class Link {
   // position is sent and fills whole symbols.
   double snr_rate(std::size_t information_bits) const;
 
-  // Stream-1 values one simulated frame takes: a standard Gaussian per real dimension of each
+  // Stream-1 values one simulated frame takes: binary links one per code position (a Gaussian
+  // or, on the BSC and BEC, a uniform); others a standard Gaussian per real dimension of each
   // symbol (symbol s: values dims*s ..), then two per fading block (Rayleigh).
   std::size_t noise_values() const noexcept { return noise_values_; }
 
@@ -67,12 +74,14 @@ class Link {
   void receive(const ChannelPoint& point, std::span<const std::uint8_t> codeword,
                std::span<const double> noise, LinkBuffers& buffers) const;
   // receive() then demodulate() with the noise the point assumes and the amplitudes unless
-  // ignore_fading: one simulated frame's LLRs. Binary links pass to transmit() of channel.hpp.
+  // ignore_fading: one simulated frame's LLRs. Binary links pass to transmit() of channel.hpp
+  // and mark_unsent.
   void transmit(const ChannelPoint& point, std::span<const std::uint8_t> codeword,
                 std::span<const double> noise, std::span<double> llr, LinkBuffers& buffers) const;
 
  private:
-  std::uint32_t label(std::span<const std::uint8_t> codeword, std::size_t symbol) const;
+  // The label of every symbol of a codeword, into buffers.labels.
+  void labels(std::span<const std::uint8_t> codeword, LinkBuffers& buffers) const;
 
   ChannelSpec spec_;
   PunctureMap map_;

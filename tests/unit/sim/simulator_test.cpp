@@ -321,6 +321,8 @@ TEST_CASE("the lane pipeline of the batched decoders counts exactly as frame by 
     spec.kind = kind;
     return spec;
   };
+  ChannelSpec punctured_bpsk = plain(ChannelKind::awgn), punctured_bec = plain(ChannelKind::bec);
+  punctured_bpsk.puncture = punctured_bec.puncture = map_path;
   struct Case {
     ChannelSpec spec;
     std::vector<double> sweep;
@@ -329,7 +331,8 @@ TEST_CASE("the lane pipeline of the batched decoders counts exactly as frame by 
   for (const Case& k :
        {Case{plain(ChannelKind::awgn), {1.5, 2.25}, 64}, Case{plain(ChannelKind::awgn), {2}, 45},
         Case{plain(ChannelKind::awgn), {2}, 200}, Case{plain(ChannelKind::bsc), {0.07}, 200},
-        Case{plain(ChannelKind::bec), {0.4}, 200}, Case{qam16, {4}, 45}, Case{faded, {11}, 200}}) {
+        Case{plain(ChannelKind::bec), {0.4}, 200}, Case{qam16, {4}, 45}, Case{faded, {11}, 200},
+        Case{punctured_bpsk, {2.5}, 200}, Case{punctured_bec, {0.35}, 200}}) {
     SimulationConfig c = config(k.spec.kind, k.sweep, 2000, 60);
     c.channel = k.spec;
     const std::uint32_t chunk = k.chunk;
