@@ -47,21 +47,49 @@ double Link::snr_rate(std::size_t information_bits) const {
          static_cast<double>(symbols_);
 }
 
-void Link::labels(std::span<const std::uint8_t> codeword, LinkBuffers& buffers) const {
-  // The label bits slot by slot (a gather; padding slots read 0), then shifted together.
-  const std::size_t slots = slot_position_.size();
-  buffers.label_bits.resize(slots);
-  const std::size_t n = codeword.size();
-  for (std::size_t j = 0; j < slots; ++j) {
-    const std::uint32_t position = slot_position_[j];
-    buffers.label_bits[j] = position < n ? codeword[position] & 1u : 0u;
+namespace {
+
+// labels[s] from the label bits of symbol s, bits[s * Bits + b], first bit most significant.
+template <unsigned Bits>
+void pack_labels(const std::uint8_t* bits, std::size_t symbols, std::uint32_t* labels) {
+  for (std::size_t s = 0; s < symbols; ++s) {
+    std::uint32_t label = 0;
+    for (unsigned b = 0; b < Bits; ++b) label = (label << 1) | bits[s * Bits + b];
+    labels[s] = label;
   }
-  buffers.labels.assign(symbols_, 0);
-  const unsigned bits = constellation_.bits();
-  for (unsigned b = 0; b < bits; ++b) {
-    const std::uint8_t* from = buffers.label_bits.data() + b;
-    for (std::size_t s = 0; s < symbols_; ++s)
-      buffers.labels[s] = (buffers.labels[s] << 1) | from[s * bits];
+}
+
+}  // namespace
+
+void Link::labels(std::span<const std::uint8_t> codeword, LinkBuffers& buffers) const {
+  // The label bits slot by slot (a gather from the codeword with a 0 appended for padding
+  // slots, which point at position n), then packed per symbol.
+  const std::size_t slots = slot_position_.size(), n = codeword.size();
+  buffers.label_bits.resize(slots + n + 1);
+  std::uint8_t* padded = buffers.label_bits.data() + slots;
+  std::copy(codeword.begin(), codeword.end(), padded);
+  padded[n] = 0;
+  for (std::size_t j = 0; j < slots; ++j) buffers.label_bits[j] = padded[slot_position_[j]] & 1u;
+  buffers.labels.resize(symbols_);
+  const std::uint8_t* bits = buffers.label_bits.data();
+  std::uint32_t* labels = buffers.labels.data();
+  switch (constellation_.bits()) {
+    case 1:
+      return pack_labels<1>(bits, symbols_, labels);
+    case 2:
+      return pack_labels<2>(bits, symbols_, labels);
+    case 3:
+      return pack_labels<3>(bits, symbols_, labels);
+    case 4:
+      return pack_labels<4>(bits, symbols_, labels);
+    case 5:
+      return pack_labels<5>(bits, symbols_, labels);
+    case 6:
+      return pack_labels<6>(bits, symbols_, labels);
+    case 7:
+      return pack_labels<7>(bits, symbols_, labels);
+    default:
+      return pack_labels<8>(bits, symbols_, labels);
   }
 }
 
