@@ -111,7 +111,7 @@ Comparison compare_runs(const RunRecord& cur, const RunRecord& ref, const Compar
         cur.code.matrix_sha256.substr(0, 12), ref.code.matrix_sha256.substr(0, 12)));
   }
   Comparison c;
-  c.unit = cur.config.channel.kind == ChannelKind::awgn ? "dB" : parameter_key(cur.config.channel);
+  c.unit = snr_swept(cur.config.channel.kind) ? "dB" : parameter_key(cur.config.channel);
   const std::string differences = setting_differences(cur, ref);
   if (!differences.empty()) c.warnings.push_back("settings differ: " + differences);
   for (const auto& p : cur.points) {
@@ -211,7 +211,7 @@ Comparison compare_runs(const RunRecord& cur, const RunRecord& ref, const Compar
   if (o.tolerance) {
     // The tolerance alone decides; the point tests are shown for information.
     for (auto& pc : c.points) pc.regression = false;
-    const bool higher_better = cur.config.channel.kind == ChannelKind::awgn;
+    const bool higher_better = snr_swept(cur.config.channel.kind);
     const std::string unit = c.unit == "dB" ? " dB" : "";
     c.current_crossing = fer_crossing(cur.points, o.at_fer, higher_better);
     c.reference_crossing = fer_crossing(ref.points, o.at_fer, higher_better);

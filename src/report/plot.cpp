@@ -125,10 +125,13 @@ std::string plot_svg(const std::vector<PlotRun>& runs, const PlotOptions& option
   }
   if (!std::isfinite(xmin)) throw Error("plot: the results files have no points");
   const RunRecord& first = runs.front().run;
-  // One horizontal axis: every run must sweep the same quantity.
+  // One horizontal axis: every run must sweep the same quantity (AWGN and Rayleigh runs share an
+  // Eb/N0 or Es/N0 axis).
   for (const auto& r : runs) {
     const ChannelSpec &a = first.config.channel, &b = r.run.config.channel;
-    if (a.kind != b.kind || (snr_swept(a.kind) && a.measure != b.measure)) {
+    const bool same =
+        snr_swept(a.kind) ? snr_swept(b.kind) && a.measure == b.measure : a.kind == b.kind;
+    if (!same) {
       throw Error(fmt::format(
           "plot: '{}' sweeps {} on {} and '{}' sweeps {} on {}: they cannot share one axis; plot "
           "them separately",

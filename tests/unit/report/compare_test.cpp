@@ -100,6 +100,13 @@ TEST_CASE("the dB tolerance measures the shift of the FER crossing", "[compare]"
   CHECK(large.regression);
   const Comparison better = compare_runs(shifted(-0.3), ref, o);
   CHECK_FALSE(better.regression);
+  // On Rayleigh fading too the sweep is an SNR in dB: later is worse.
+  RunRecord faded_ref = ref, faded_late = shifted(0.2);
+  faded_ref.config.channel.kind = faded_late.config.channel.kind = ChannelKind::rayleigh;
+  const Comparison faded = compare_runs(faded_late, faded_ref, o);
+  CHECK(faded.unit == "dB");
+  CHECK(*faded.shift == Approx(0.2).margin(1e-4));
+  CHECK(faded.regression);
 }
 
 TEST_CASE("mode selection, unmatched points and warnings", "[compare]") {

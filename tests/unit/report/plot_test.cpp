@@ -41,6 +41,14 @@ TEST_CASE("plots overlay runs of one channel and refuse others", "[plot]") {
   // The finite-length limit of the code (n = 8, k = 4) is drawn beside the capacity limit.
   CHECK(count(svg, "normal approximation FER, n = 8, k = 4") == 1);
   CHECK(run_label(a).find("offset-min-sum") != std::string::npos);
+  // A Rayleigh 16-QAM run shares the Eb/N0 axis; the limit drawn is the first run's.
+  RunRecord faded = b;
+  faded.config.channel.kind = ChannelKind::rayleigh;
+  faded.config.channel.modulation = parse_text<Modulation>("16qam");
+  faded.rate_for_snr = 2.0;
+  CHECK(count(plot_svg({PlotRun{"a", a}, PlotRun{"faded", faded}}, fer), "FER faded") == 1);
+  CHECK(count(plot_svg({PlotRun{"faded", faded}}, fer),
+              "16qam BICM limit (Rayleigh, ergodic), 2.000 bit/symbol (4.11)") == 1);
   b.config.channel.kind = ChannelKind::bsc;
   b.config.channel.snr_offset_db = 0;
   CHECK_THROWS_AS(plot_svg({PlotRun{"a", a}, PlotRun{"b", b}}, fer), Error);
