@@ -182,6 +182,29 @@ def test_simulate_equals_the_cli_counts(tmp_path):
     assert py["code"]["matrix_sha256"] == cli["code"]["matrix_sha256"]
 
 
+def test_simulate_a_link_equals_the_cli_counts(tmp_path):
+    # 16-QAM on block fading with a random interleaver and a puncture map, keywords as the
+    # scenario keys: the same counts and link settings as the command line.
+    (tmp_path / "tail.punct").write_text("punctured 600-647\n")
+    r = run_cli("simulate", "--code", "qc-rate-half-z54", "--modulation", "16qam", "--channel",
+                "rayleigh:block:6", "--interleaver", "random:4", "--puncture", "tail.punct",
+                "--sweep", "8", "--max-frames", 2000, "--seed", 5, "-o", "cli.json", "--plot", "",
+                cwd=tmp_path)
+    assert r.returncode == 0, r.stderr
+    cli = json.loads((tmp_path / "cli.json").read_text())
+    py = tannery.simulate(tannery.Code.load("qc-rate-half-z54"), channel="rayleigh:block:6",
+                          modulation="16qam", interleaver="random:4",
+                          puncture=str(tmp_path / "tail.punct"), sweep=[8], max_frames=2000,
+                          seed=5)
+    a, b = py["points"][0], cli["points"][0]
+    assert all(a[key] == b[key] for key in COUNTS), (a, b)
+    assert a["frame_errors"] > 0
+    for key in ("kind", "fading_block", "modulation", "interleaver", "effective_rate",
+                "bits_per_symbol", "rate_for_snr"):
+        assert py["channel"][key] == cli["channel"][key], key
+    assert py["channel"]["effective_rate"] == pytest.approx(324 / 600)
+
+
 def test_simulate_progress_can_interrupt_and_errors_propagate():
     code = tannery.Code.load("qc-rate-half-z54")
 
