@@ -156,6 +156,67 @@ void Link::receive(const ChannelPoint& point, std::span<const std::uint8_t> code
   }
 }
 
+void Link::transmit_lanes(const ChannelPoint& point, std::span<const std::uint64_t> codewords,
+                          std::size_t lanes, std::span<const double> noise, std::span<double> llr,
+                          LinkBuffers& buffers) const {
+  if (binary_ || !snr_swept(point.kind()))
+    throw Error("transmit_lanes: a modulated link on the awgn or rayleigh channel only");
+  if (lanes == 0 || lanes > 64 || codewords.size() != n() || llr.size() != n() * lanes ||
+      noise.size() < noise_values_ * lanes) {
+    throw Error("transmit_lanes: the codewords, noise and LLRs do not match the link in size");
+  }
+  mark_unsent(llr, lanes);
+  const unsigned bits = constellation_.bits();
+  const bool complex = constellation_.complex();
+  const std::size_t dims = complex ? 2 : 1;
+  const bool faded = point.kind() == ChannelKind::rayleigh;
+  const bool known = faded && !spec_.ignore_fading;
+  const double sigma = point.value(), assumed = point.assumed_value();
+  const std::complex<double>* points = constellation_.points().data();
+  const double* fading = noise.data() + dims * symbols_ * lanes;
+  // A block of symbols at a time, [symbol][lane] in the buffers: the same operations on each
+  // value as receive() and demodulate() do frame by frame, so the same bits.
+  constexpr std::size_t kBlock = 16;
+  buffers.labels.resize(kBlock * lanes);
+  for (std::size_t s0 = 0; s0 < symbols_; s0 += kBlock) {
+    const std::size_t block = std::min(kBlock, symbols_ - s0), count = block * lanes;
+    buffers.in_phase.resize(count);
+    buffers.quadrature.resize(complex ? count : 0);
+    buffers.amplitude.resize(known ? count : 0);
+    std::fill_n(buffers.labels.begin(), count, 0u);
+    for (std::size_t s = 0; s < block; ++s) {
+      std::uint32_t* label = buffers.labels.data() + s * lanes;
+      for (unsigned b = 0; b < bits; ++b) {
+        const std::uint32_t position = slot_position_[(s0 + s) * bits + b];
+        const std::uint64_t mask = position < codewords.size() ? codewords[position] : 0;
+        for (std::size_t l = 0; l < lanes; ++l)
+          label[l] = (label[l] << 1) | static_cast<std::uint32_t>((mask >> l) & 1u);
+      }
+      const double* z = noise.data() + dims * (s0 + s) * lanes;
+      const double* g = fading + 2 * ((s0 + s) / spec_.fading_block) * lanes;
+      for (std::size_t l = 0; l < lanes; ++l) {
+        const std::complex<double> x = points[label[l]];
+        double a = 1;
+        if (faded) a = std::sqrt((g[l] * g[l] + g[lanes + l] * g[lanes + l]) / 2);
+        if (known) buffers.amplitude[s * lanes + l] = a;
+        buffers.in_phase[s * lanes + l] = a * x.real() + sigma * z[l];
+        if (complex) buffers.quadrature[s * lanes + l] = a * x.imag() + sigma * z[lanes + l];
+      }
+    }
+    buffers.slots.resize(count * bits);
+    detail::demap_planes(constellation_, spec_.demapper, buffers.in_phase, buffers.quadrature,
+                         buffers.amplitude, assumed * assumed, buffers.slots.data());
+    for (std::size_t s = 0; s < block; ++s) {
+      for (unsigned b = 0; b < bits; ++b) {
+        const std::uint32_t position = slot_position_[(s0 + s) * bits + b];
+        if (position >= n()) continue;
+        std::copy_n(buffers.slots.data() + b * count + s * lanes, lanes,
+                    llr.data() + std::size_t{position} * lanes);
+      }
+    }
+  }
+}
+
 void Link::transmit(const ChannelPoint& point, std::span<const std::uint8_t> codeword,
                     std::span<const double> noise, std::span<double> llr,
                     LinkBuffers& buffers) const {

@@ -60,8 +60,7 @@ struct Simulator::Worker {
   std::vector<std::uint8_t> info, codewords, hard;
   std::vector<std::uint64_t> info_masks, codeword_masks, errors;  // lane layout
   std::vector<std::uint64_t> wide_codewords;  // 64 frames, bit-sliced (narrow lanes)
-  std::vector<double> llr, frame_llr, group_noise, tile_noise;
-  std::vector<std::uint8_t> frame_codeword;
+  std::vector<double> llr, frame_llr, group_noise;
   LinkBuffers link_buffers;
   std::vector<FrameOutcome> outcomes;
   LaneResults lane_results;
@@ -245,34 +244,11 @@ void Simulator::run_lanes(Worker& w, LaneDecoder& decoder, std::size_t index,
       group_channel_llrs(group, channel, sent, w.llr);
       link_.mark_unsent(w.llr, lanes);
     } else {
-      // Through the link frame by frame (demapped with SIMD across its symbols), then into lanes
-      // a tile of frames at a time (a cache line of each position's lane values written whole).
-      // The noise of the whole group comes from group_gaussians (frame_gaussians of each frame,
-      // bit for bit, but generated side by side).
-      constexpr std::size_t kTile = 8;
-      const std::size_t values = link_.noise_values();
-      w.group_noise.resize(values * lanes);
+      // The group's noise side by side (group_gaussians: frame_gaussians of each frame, bit for
+      // bit), through the link in lane layout.
+      w.group_noise.resize(link_.noise_values() * lanes);
       group_gaussians(group, w.group_noise);
-      w.frame_codeword.resize(n);
-      w.frame_llr.resize(kTile * n);
-      w.tile_noise.resize(kTile * values);
-      for (std::size_t l0 = 0; l0 < lanes; l0 += kTile) {
-        const std::size_t tile = std::min(kTile, lanes - l0);
-        for (std::size_t i = 0; i < values; ++i) {
-          for (std::size_t t = 0; t < tile; ++t)
-            w.tile_noise[t * values + i] = w.group_noise[i * lanes + l0 + t];
-        }
-        for (std::size_t t = 0; t < tile; ++t) {
-          const std::uint64_t lane = std::uint64_t{1} << (l0 + t);
-          for (std::size_t v = 0; v < n; ++v) w.frame_codeword[v] = (sent[v] & lane) != 0;
-          link_.transmit(channel, w.frame_codeword,
-                         std::span<const double>(w.tile_noise).subspan(t * values, values),
-                         std::span(w.frame_llr).subspan(t * n, n), w.link_buffers);
-        }
-        for (std::size_t v = 0; v < n; ++v) {
-          for (std::size_t t = 0; t < tile; ++t) w.llr[v * lanes + l0 + t] = w.frame_llr[t * n + v];
-        }
-      }
+      link_.transmit_lanes(channel, sent, lanes, w.group_noise, w.llr, w.link_buffers);
     }
     decoder.load(g, w.llr);
   }

@@ -78,6 +78,12 @@ class Link {
   // and mark_unsent.
   void transmit(const ChannelPoint& point, std::span<const std::uint8_t> codeword,
                 std::span<const double> noise, std::span<double> llr, LinkBuffers& buffers) const;
+  // transmit() of `lanes` frames side by side, bit for bit (a modulated link): bit l of
+  // codewords[i] is position i of frame l, noise[i * lanes + l] its stream-1 value i (as
+  // group_gaussians makes them), llr[i * lanes + l] its LLR at position i.
+  void transmit_lanes(const ChannelPoint& point, std::span<const std::uint64_t> codewords,
+                      std::size_t lanes, std::span<const double> noise, std::span<double> llr,
+                      LinkBuffers& buffers) const;
 
  private:
   // The label of every symbol of a codeword, into buffers.labels.
