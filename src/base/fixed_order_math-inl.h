@@ -1,4 +1,4 @@
-// Logarithm, exponential and fused multiply-add of doubles (and of floats, to single precision)
+// Logarithm, exponential and fused multiply-add of doubles (exponential and log-ratio of floats)
 // for every Highway target, from IEEE
 // add, subtract, multiply, divide and correctly rounded fused multiply-add in a fixed order, so
 // that each lane gives the same bits on every target and machine (the C library's exp and log may
@@ -138,30 +138,8 @@ HWY_INLINE fixed_order::VF Exp(fixed_order::VF x) {
   return hn::Mul(p, hn::BitCast(df, hn::ShiftLeft<23>(biased)));
 }
 
-// Single precision: the natural logarithm of positive normal floats, as Ln with the series to
-// s^11 (truncation below 1e-10 relative).
-HWY_INLINE fixed_order::VF Ln(fixed_order::VF x) {
-  using fixed_order::VF;
-  const fixed_order::DFU du;
-  const fixed_order::DF df;
-  const auto bits = hn::BitCast(du, x);
-  VF m = hn::BitCast(df, hn::Or(hn::And(bits, hn::Set(du, 0x007FFFFFu)), hn::Set(du, 0x3F800000u)));
-  // The biased exponent as a float, exactly: 2^23 + e read back, minus 2^23 + 127.
-  VF k = hn::Sub(hn::BitCast(df, hn::Or(hn::ShiftRight<23>(bits), hn::Set(du, 0x4B000000u))),
-                 hn::Set(df, 8388735.0f));
-  const auto big = hn::Gt(m, hn::Set(df, 1.41421356f));
-  m = hn::IfThenElse(big, hn::Mul(m, hn::Set(df, 0.5f)), m);
-  k = hn::Add(k, hn::IfThenElseZero(big, hn::Set(df, 1.0f)));
-  const VF s = hn::Div(hn::Sub(m, hn::Set(df, 1.0f)), hn::Add(m, hn::Set(df, 1.0f)));
-  const VF z = hn::Mul(s, s);
-  VF p = hn::Set(df, 1.0f / 11);
-  for (int i = 4; i >= 0; --i) p = Fma(p, z, hn::Set(df, 1.0f / static_cast<float>(2 * i + 1)));
-  const VF log_m = hn::Mul(hn::Add(s, s), p);
-  return Fma(k, hn::Set(df, 0.693145751953125f), Fma(k, hn::Set(df, 1.42860677e-06f), log_m));
-}
-
 // Single precision: log(num / den) of positive normal floats with one division: the exponents
-// and significands split as in Ln, num / den = 2^k (m_num / m_den), the significand ratio
+// and significands split as in Ln (double), num / den = 2^k (m_num / m_den), the significand ratio
 // brought into [sqrt(1/2), sqrt(2)) and s = (m_num - m_den) / (m_num + m_den).
 HWY_INLINE fixed_order::VF LnRatio(fixed_order::VF num, fixed_order::VF den) {
   using fixed_order::VF;
