@@ -28,11 +28,6 @@ double seconds_since(Clock::time_point start) {
   return std::chrono::duration<double>(Clock::now() - start).count();
 }
 
-struct ChunkResult {
-  PointResult counts;
-  std::vector<KeptFrame> kept;
-};
-
 void accumulate(PointResult& total, const PointResult& chunk) {
   total.frames += chunk.frames;
   total.frame_errors += chunk.frame_errors;
@@ -286,13 +281,72 @@ void Simulator::run_lanes(Worker& w, LaneDecoder& decoder, std::size_t index,
   }
 }
 
-PointResult Simulator::run_point(std::size_t index, PointResult total,
-                                 const std::function<void(const Progress&)>& progress,
-                                 const std::atomic<bool>* interrupt) {
-  const ChannelPoint channel = channel_point(total.parameter);
+ChunkResult Simulator::compute_chunk(Worker& w, std::size_t index, const ChannelPoint& channel,
+                                     std::uint64_t j) const {
   const std::uint64_t chunk = config_.chunk_frames;
-  const std::uint64_t max_chunks = (config_.stop.max_frames + chunk - 1) / chunk;
+  const std::uint64_t first = j * chunk;
+  const std::size_t count =
+      static_cast<std::size_t>(std::min(chunk, config_.stop.max_frames - first));
   const std::size_t n = code_.n(), k = encoder_.k();
+  ChunkResult r;
+  PointResult& c = r.counts;
+  c.parameter = config_.sweep[index];
+  c.frames = count;
+  c.bits = count * (k - link_.shortened());
+  c.coded_bits = count * n;
+  c.chunks = 1;
+  // One frame's counts; llr gives its channel LLRs, asked for only when it failed and is kept.
+  auto record = [&](std::uint64_t frame, std::uint64_t coded, std::uint64_t info_errors,
+                    const FrameOutcome& o, const auto& llr) {
+    c.iterations += static_cast<std::uint64_t>(o.iterations);
+    const auto it = static_cast<std::size_t>(o.iterations);
+    if (c.iteration_histogram.size() <= it) c.iteration_histogram.resize(it + 1, 0);
+    ++c.iteration_histogram[it];
+    if (coded == 0) return;
+    ++c.frame_errors;
+    c.coded_bit_errors += coded;
+    c.bit_errors += info_errors;
+    c.bit_error_squares += static_cast<double>(info_errors) * static_cast<double>(info_errors);
+    c.undetected_errors += o.converged ? 1 : 0;
+    c.failed_frames.push_back(frame);
+    if (r.kept.size() < config_.keep_failures) r.kept.push_back(KeptFrame{index, frame, llr()});
+  };
+  if (LaneDecoder* lanes = w.decoder->lane_decoder()) {
+    run_lanes(w, *lanes, index, channel, first, count, record);
+  } else {
+    run_frames(w, index, channel, first, count, record);
+  }
+  return r;
+}
+
+std::unique_ptr<Simulator::Worker> Simulator::make_worker() const {
+  auto w = std::make_unique<Worker>();
+  w->decoder = make_decoder(shared_, config_.decoder);
+  return w;
+}
+
+Simulator::ChunkComputer::ChunkComputer(const Simulator& sim)
+    : sim_(&sim), worker_(sim.make_worker()) {}
+Simulator::ChunkComputer::ChunkComputer(ChunkComputer&&) noexcept = default;
+Simulator::ChunkComputer::~ChunkComputer() = default;
+
+ChunkResult Simulator::ChunkComputer::compute(std::size_t point, std::uint64_t chunk) {
+  if (point >= sim_->config_.sweep.size() || chunk >= sim_->chunks_per_point())
+    throw Error(fmt::format("chunk {} of point {} does not exist in this run", chunk, point));
+  return sim_->compute_chunk(*worker_, point, sim_->channel_point(sim_->config_.sweep[point]),
+                             chunk);
+}
+
+std::uint64_t Simulator::chunks_per_point() const noexcept {
+  return (config_.stop.max_frames + config_.chunk_frames - 1) / config_.chunk_frames;
+}
+
+PointResult Simulator::run_point(std::size_t index, PointResult total,
+                                 std::span<const PointResult> earlier,
+                                 const std::function<void(const Progress&)>& progress,
+                                 const std::atomic<bool>* interrupt, RemoteChunks* remote) {
+  const ChannelPoint channel = channel_point(total.parameter);
+  const std::uint64_t max_chunks = chunks_per_point();
   const unsigned threads = config_.threads;
 
   std::mutex mutex;
@@ -315,74 +369,56 @@ PointResult Simulator::run_point(std::size_t index, PointResult total,
     return total;
   }
 
+  // A computed chunk (here or elsewhere): add every chunk that is next in order and evaluate the
+  // stop rules after each one. The caller holds the mutex.
+  auto deliver = [&](std::uint64_t j, ChunkResult&& r) {
+    if (stop.load() || j < total.chunks) return;
+    done.emplace(j, std::move(r));
+    for (auto it = done.find(total.chunks); it != done.end() && !stop.load();
+         it = done.find(total.chunks)) {
+      const ChunkResult& ready = it->second;
+      accumulate(total, ready.counts);
+      for (std::uint64_t f : ready.counts.failed_frames) {
+        if (total.failed_frames.size() < config_.failed_index_limit)
+          total.failed_frames.push_back(f);
+      }
+      for (const KeptFrame& kf : ready.kept) {
+        if (kept_here < config_.keep_failures) kept_.push_back(kf), ++kept_here;
+      }
+      done.erase(it);
+      if (finished()) {
+        stop = true;
+      } else if (interrupt && interrupt->load()) {
+        stop = true, reason = "interrupted";  // at a chunk boundary, with chunk 0 in
+      }
+    }
+  };
   auto work_chunks = [&](Worker& w) {
     for (;;) {
       if (stop.load()) break;
       const std::uint64_t j = next.fetch_add(1);
-      if (j >= max_chunks) break;
-      const std::uint64_t first = j * chunk;
-      const std::size_t count =
-          static_cast<std::size_t>(std::min(chunk, config_.stop.max_frames - first));
-      ChunkResult r;
-      PointResult& c = r.counts;
-      c.frames = count;
-      c.bits = count * (k - link_.shortened());
-      c.coded_bits = count * n;
-      // One frame's counts; llr gives its channel LLRs, asked for only when it failed and is kept.
-      auto record = [&](std::uint64_t frame, std::uint64_t coded, std::uint64_t info_errors,
-                        const FrameOutcome& o, const auto& llr) {
-        c.iterations += static_cast<std::uint64_t>(o.iterations);
-        const auto it = static_cast<std::size_t>(o.iterations);
-        if (c.iteration_histogram.size() <= it) c.iteration_histogram.resize(it + 1, 0);
-        ++c.iteration_histogram[it];
-        if (coded == 0) return;
-        ++c.frame_errors;
-        c.coded_bit_errors += coded;
-        c.bit_errors += info_errors;
-        c.bit_error_squares += static_cast<double>(info_errors) * static_cast<double>(info_errors);
-        c.undetected_errors += o.converged ? 1 : 0;
-        c.failed_frames.push_back(frame);
-        if (r.kept.size() < config_.keep_failures) r.kept.push_back(KeptFrame{index, frame, llr()});
-      };
-      if (LaneDecoder* lanes = w.decoder->lane_decoder()) {
-        run_lanes(w, *lanes, index, channel, first, count, record);
-      } else {
-        run_frames(w, index, channel, first, count, record);
+      if (j >= max_chunks) {
+        // Every chunk is dealt; in a distributed run the point ends when the others' results
+        // are in (or a stop rule holds), which the calling thread sees.
+        while (remote && !stop.load()) std::this_thread::sleep_for(std::chrono::milliseconds(1));
+        break;
       }
+      ChunkResult r = compute_chunk(w, index, channel, j);
       std::lock_guard lock(mutex);
-      done.emplace(j, std::move(r));
-      // Add every chunk that is next in order; evaluate the stop rules after each one.
-      for (auto it = done.find(total.chunks); it != done.end() && !stop.load();
-           it = done.find(total.chunks)) {
-        const ChunkResult& ready = it->second;
-        accumulate(total, ready.counts);
-        for (std::uint64_t f : ready.counts.failed_frames) {
-          if (total.failed_frames.size() < config_.failed_index_limit)
-            total.failed_frames.push_back(f);
-        }
-        for (const KeptFrame& kf : ready.kept) {
-          if (kept_here < config_.keep_failures) kept_.push_back(kf), ++kept_here;
-        }
-        done.erase(it);
-        if (finished()) {
-          stop = true;
-        } else if (interrupt && interrupt->load()) {
-          stop = true, reason = "interrupted";  // at a chunk boundary, with chunk 0 in
-        }
-      }
+      deliver(j, std::move(r));
     }
   };
   std::vector<std::unique_ptr<Worker>> workers;
-  for (unsigned t = 0; t < threads; ++t) {
-    workers.push_back(std::make_unique<Worker>());
-    workers.back()->decoder = make_decoder(shared_, config_.decoder);
-  }
+  for (unsigned t = 0; t < threads; ++t) workers.push_back(make_worker());
   // The calling thread watches for an interrupt and the time limit and reports progress at most
-  // five times a second (chunks can finish far more often), and a last time at the end.
+  // five times a second (chunks can finish far more often), and a last time at the end. With
+  // other processes computing too, it also deals them chunks and takes their results, about
+  // every millisecond.
   auto report = [&] {
     const double now = seconds_since(start);
-    if (progress) progress(Progress{index, total, total.seconds + now});
+    if (progress) progress(Progress{index, total, total.seconds + now, earlier});
   };
+  auto last_report = Clock::now();
   ThreadPool pool(threads);
   pool.run(
       threads,
@@ -394,8 +430,24 @@ PointResult Simulator::run_point(std::size_t index, PointResult total,
           throw;
         }
       },
-      std::chrono::milliseconds(200),
+      std::chrono::milliseconds(remote ? 1 : 200),
       [&] {
+        if (remote) {
+          remote->exchange(
+              index,
+              [&](std::uint64_t count) -> std::pair<std::uint64_t, std::uint64_t> {
+                if (stop.load()) return {max_chunks, max_chunks};
+                const std::uint64_t a = std::min(next.fetch_add(count), max_chunks);
+                return {a, std::min(a + count, max_chunks)};
+              },
+              [&](std::size_t point, std::uint64_t j, ChunkResult&& r) {
+                if (point != index) return;
+                std::lock_guard lock(mutex);
+                deliver(j, std::move(r));
+              });
+          if (Clock::now() - last_report < std::chrono::milliseconds(200)) return;
+          last_report = Clock::now();
+        }
         std::lock_guard lock(mutex);
         if (!stop && interrupt && interrupt->load()) stop = true, reason = "interrupted";
         if (!stop && config_.stop.max_seconds > 0 &&
@@ -404,6 +456,7 @@ PointResult Simulator::run_point(std::size_t index, PointResult total,
         }
         report();
       });
+  if (remote) remote->cancel(index);
   report();
   total.seconds += seconds_since(start);
   if (reason.empty()) finished();  // all chunks consumed: the max-frames rule
@@ -414,7 +467,8 @@ PointResult Simulator::run_point(std::size_t index, PointResult total,
 
 std::vector<PointResult> Simulator::run(std::vector<PointResult> previous,
                                         const std::function<void(const Progress&)>& progress,
-                                        const std::atomic<bool>* interrupt) {
+                                        const std::atomic<bool>* interrupt,
+                                        RemoteChunks* remote) {
   kept_.clear();
   std::vector<PointResult> results;
   for (std::size_t i = 0; i < config_.sweep.size(); ++i) {
@@ -427,7 +481,8 @@ std::vector<PointResult> Simulator::run(std::vector<PointResult> previous,
       }
       start = previous[i];
     }
-    PointResult p = start.complete ? start : run_point(i, start, progress, interrupt);
+    PointResult p =
+        start.complete ? start : run_point(i, start, results, progress, interrupt, remote);
     results.push_back(p);
     if (!p.complete) break;
     if (config_.stop.stop_below_fer > 0 && p.fer() < config_.stop.stop_below_fer) break;

@@ -23,6 +23,7 @@
 #include <functional>
 #include <memory>
 #include <optional>
+#include <span>
 #include <string>
 #include <vector>
 
@@ -110,6 +111,35 @@ struct Progress {
   std::size_t point = 0;
   PointResult totals;  // in-order totals so far
   double seconds = 0;
+  std::span<const PointResult> earlier;  // the sweep's points before this one, final
+};
+
+// The counts of one chunk (chunks = 1) and the failing frames it kept: what a process computing
+// chunks for another hands back in a distributed run.
+struct ChunkResult {
+  PointResult counts;
+  std::vector<KeptFrame> kept;
+};
+
+// Chunks computed by other processes, seen from the process that runs the sweep: it alone keeps
+// the in-order totals, evaluates the stop rules and writes results (tannery/sim/mpi_run.hpp
+// implements this over MPI). The others compute with Simulator::ChunkComputer what they are
+// dealt; results are identical to a single-process run since chunks are pure functions of
+// (seed, point, chunk).
+class RemoteChunks {
+ public:
+  virtual ~RemoteChunks() = default;
+  // Chunks [first, last) of the running point for a process that asked for up to `count`
+  // (first == last: none left to deal).
+  using Deal = std::function<std::pair<std::uint64_t, std::uint64_t>(std::uint64_t count)>;
+  // A result that arrived: chunk `chunk` of sweep point `point`.
+  using Deliver = std::function<void(std::size_t point, std::uint64_t chunk, ChunkResult&&)>;
+  // Called about every millisecond from the thread that runs point `point` (a run calls it from
+  // one thread only): answers requests for work with deal and hands every arrived result to
+  // deliver.
+  virtual void exchange(std::size_t point, const Deal& deal, const Deliver& deliver) = 0;
+  // Point `point` stopped: the work dealt for it, queued or in flight, is dropped.
+  virtual void cancel(std::size_t point) = 0;
 };
 
 class Simulator {
@@ -133,19 +163,45 @@ class Simulator {
   // Runs the sweep. previous (from a results file) holds points already simulated: complete ones
   // are kept, a partial one continues from its next chunk. progress is called from the calling
   // thread about five times a second; interrupt, when set, stops at the next chunk boundary.
+  // With remote, other processes compute part of the chunks (a distributed run; the counts do
+  // not change).
   std::vector<PointResult> run(std::vector<PointResult> previous,
                                const std::function<void(const Progress&)>& progress,
-                               const std::atomic<bool>* interrupt);
+                               const std::atomic<bool>* interrupt, RemoteChunks* remote = nullptr);
   // Frames kept by keep_failures during the last run, by point then frame index.
   const std::vector<KeptFrame>& kept_frames() const noexcept { return kept_; }
 
   FrameData replay(std::size_t point, std::uint64_t frame) const;
 
+  // Chunks of a point: max_frames in chunks of chunk_frames (the last one may be shorter).
+  std::uint64_t chunks_per_point() const noexcept;
+
  private:
   struct Worker;
-  PointResult run_point(std::size_t index, PointResult start,
+
+ public:
+  // Computes single chunks with a decoder and buffers of its own (one per thread; the simulator
+  // must outlive it): what a process computing chunks dealt by another runs.
+  class ChunkComputer {
+   public:
+    explicit ChunkComputer(const Simulator& sim);
+    ChunkComputer(ChunkComputer&&) noexcept;
+    ~ChunkComputer();
+    // Chunk `chunk` of sweep point `point` (Error when the run has no such chunk).
+    ChunkResult compute(std::size_t point, std::uint64_t chunk);
+
+   private:
+    const Simulator* sim_;
+    std::unique_ptr<Worker> worker_;
+  };
+
+ private:
+  std::unique_ptr<Worker> make_worker() const;
+  ChunkResult compute_chunk(Worker& w, std::size_t index, const ChannelPoint& channel,
+                            std::uint64_t chunk) const;
+  PointResult run_point(std::size_t index, PointResult start, std::span<const PointResult> earlier,
                         const std::function<void(const Progress&)>& progress,
-                        const std::atomic<bool>* interrupt);
+                        const std::atomic<bool>* interrupt, RemoteChunks* remote);
   // One chunk in frame layout or, with a batched decoder, in lane layout (same
   // numbers); record(frame, coded errors, information errors, outcome, llr getter) per frame.
   template <class Record>
