@@ -2,6 +2,10 @@
 #include <fmt/format.h>
 #include <unistd.h>
 #include <chrono>
+#include <cstdlib>
+#include <memory>
+#include <optional>
+#include <thread>
 
 #include "commands.hpp"
 #include "simulate_output.hpp"
@@ -11,6 +15,10 @@
 #include "tannery/parse.hpp"
 #include "tannery/report/results.hpp"
 #include "tannery/report/scenario.hpp"
+#ifdef TANNERY_HAVE_MPI
+#include "tannery/base/sha256.hpp"
+#include "tannery/sim/mpi_run.hpp"
+#endif
 
 namespace tannery::cli {
 
@@ -35,6 +43,7 @@ struct SimulateOptions {
   std::size_t save_failures = 0;
   std::string failures = "tannery-failures.f32";
   std::string scenario;
+  std::optional<double> checkpoint_seconds;
 };
 
 // The run: base (the library's defaults, a scenario's or a recorded run's settings) with the
@@ -54,9 +63,19 @@ SimulationConfig config_of(const SimulateOptions& o, SimulationConfig c) {
   return c;
 }
 
-void run(SimulateOptions o, const CLI::App& sub) {
+// Everything a run needs, read and checked before any work starts.
+struct Prepared {
+  SimulateOptions o;
   RunRecord previous;
   SimulationConfig config;
+  std::unique_ptr<Code> code;
+  std::unique_ptr<Simulator> sim;
+  RunRecord record;
+};
+
+Prepared prepare(SimulateOptions o, const CLI::App& sub, unsigned default_threads) {
+  Prepared p;
+  SimulationConfig& config = p.config;
   if (!o.scenario.empty() && !o.resume.empty())
     throw Error("--scenario and --resume exclude each other");
   const bool code_given = sub.get_option("--code")->count() > 0;
@@ -67,10 +86,10 @@ void run(SimulateOptions o, const CLI::App& sub) {
   } else if (!o.resume.empty()) {
     // The recorded run continues exactly; options on the command line may repeat its settings
     // but not change them (threads, outputs and --save-failures apply freely).
-    previous = parse_results_json(read_text_file(o.resume), o.resume);
-    config = previous.config;
+    p.previous = parse_results_json(read_text_file(o.resume), o.resume);
+    config = p.previous.config;
     CodeInput recorded_input = o.input;
-    recorded_input.code = previous.code.path;
+    recorded_input.code = p.previous.code.path;
     const Code recorded_code = recorded_input.load();
     SimulationConfig asked = config_of(o, config);
     asked.decoder = resolve_kernel(asked.decoder, recorded_code);
@@ -97,34 +116,79 @@ void run(SimulateOptions o, const CLI::App& sub) {
                {"--plot", o.plot},
                {"--failures", o.save_failures ? o.failures : ""},
                {"--replay-llr", o.replay_llr}});
-  config.threads = o.threads;  // 0: the simulator takes every core
+  if (o.checkpoint_seconds && *o.checkpoint_seconds > 0 && o.output.empty())
+    throw Error("--checkpoint-seconds needs a results file (--output)");
+  config.threads = o.threads ? o.threads : default_threads;  // 0: the simulator takes every core
   config.keep_failures = o.save_failures;
 
-  const Code code = o.input.load();
-  Simulator sim(code, config);
-  if (!o.replay.empty()) {
-    const auto colon = o.replay.find(':');
-    const auto point = parse_count(std::string_view(o.replay).substr(0, colon));
-    const auto frame =
-        parse_count(colon == std::string::npos ? std::string_view()
-                                               : std::string_view(o.replay).substr(colon + 1));
-    if (!point || !frame)
-      throw Error(fmt::format("--replay expects POINT:FRAME (indices from 0), got '{}'", o.replay));
-    return print_replay(sim, *point, *frame, o.replay_llr);
-  }
-
-  RunRecord record = new_run_record(o.input.code, code, sim);
-  if (!o.resume.empty()) record.code.source = previous.code.source;
-  if (!o.resume.empty() && record.code.matrix_sha256 != previous.code.matrix_sha256) {
+  p.code = std::make_unique<Code>(o.input.load());
+  p.sim = std::make_unique<Simulator>(*p.code, config);
+  p.record = new_run_record(o.input.code, *p.code, *p.sim);
+  if (!o.resume.empty()) p.record.code.source = p.previous.code.source;
+  if (!o.resume.empty() && p.record.code.matrix_sha256 != p.previous.code.matrix_sha256) {
     throw Error(fmt::format("resume: {} no longer holds the matrix the run used (SHA-256 differs)",
                             o.input.code));
   }
+  p.o = std::move(o);
+  return p;
+}
+
+// Rewrites the results file with the in-order totals so far, at most every `interval` seconds
+// and at once when a stop is asked for (a launcher may kill the job a second later): what a
+// resumed run continues from if this one dies.
+class Checkpoint {
+ public:
+  Checkpoint(const RunRecord& base, std::string path, double interval)
+      : base_(base), path_(std::move(path)), interval_(interval) {}
+
+  void update(const Progress& p) {
+    if (path_.empty() || interval_ <= 0) return;
+    const auto now = std::chrono::steady_clock::now();
+    const bool stopping = g_interrupted.load() && !saved_on_stop_;
+    if (!stopping && std::chrono::duration<double>(now - last_).count() < interval_) return;
+    last_ = now;
+    saved_on_stop_ = saved_on_stop_ || stopping;
+    RunRecord r = base_;
+    r.points.assign(p.earlier.begin(), p.earlier.end());
+    r.points.push_back(p.totals);
+    r.points.back().complete = false;
+    r.points.back().stop_reason = "checkpoint";
+    r.points.back().seconds = p.seconds;
+    r.interrupted = true;
+    try {
+      write_file_atomically(path_, results_json(r));
+    } catch (const Error& e) {
+      if (!warned_) fmt::print(stderr, "tannery: warning: checkpoint not written: {}\n", e.what());
+      warned_ = true;
+    }
+  }
+
+ private:
+  const RunRecord& base_;
+  std::string path_;
+  double interval_;
+  std::chrono::steady_clock::time_point last_ = std::chrono::steady_clock::now();
+  bool saved_on_stop_ = false, warned_ = false;
+};
+
+// The run on this process, alone or as rank 0 of an MPI job (remote then deals chunks to the
+// other ranks): progress, checkpoints, the outputs and the summary.
+void run_sweep(Prepared& p, RemoteChunks* remote, unsigned ranks, double checkpoint_seconds) {
+  const SimulateOptions& o = p.o;
+  Simulator& sim = *p.sim;
+  RunRecord& record = p.record;
   if (!o.quiet) print_heading(record);
   const auto start = std::chrono::steady_clock::now();
   {
-    ProgressLine line(!o.quiet && isatty(STDERR_FILENO), sim.config());
+    ProgressLine line(!o.quiet && isatty(STDERR_FILENO), sim.config(), ranks);
+    Checkpoint checkpoint(record, o.output, checkpoint_seconds);
     record.points = sim.run(
-        previous.points, [&](const Progress& p) { line.update(p); }, &g_interrupted);
+        p.previous.points,
+        [&](const Progress& progress) {
+          line.update(progress);
+          checkpoint.update(progress);
+        },
+        &g_interrupted, remote);
   }
   const double wall =
       std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
@@ -137,17 +201,150 @@ void run(SimulateOptions o, const CLI::App& sub) {
     }
   }
   if (o.save_failures > 0) {
-    const FailureCapture kept = failure_capture(sim.kept_frames(), config.sweep);
+    const FailureCapture kept = failure_capture(sim.kept_frames(), p.config.sweep);
     write_file_atomically(o.failures, kept.llr_bytes);
     write_file_atomically(o.failures + ".txt", kept.index);
     if (!o.quiet) {
       fmt::print(
           "saved {} failing frames' channel LLRs to {} (float32, n = {} per frame; index in "
           "{}.txt)\n",
-          sim.kept_frames().size(), o.failures, code.n(), o.failures);
+          sim.kept_frames().size(), o.failures, p.code->n(), o.failures);
     }
   }
-  if (record.interrupted) throw CheckFailed{130};
+}
+
+// --replay POINT:FRAME.
+void replay(const Prepared& p) {
+  const std::string& text = p.o.replay;
+  const auto colon = text.find(':');
+  const auto point = parse_count(std::string_view(text).substr(0, colon));
+  const auto frame = parse_count(
+      colon == std::string::npos ? std::string_view() : std::string_view(text).substr(colon + 1));
+  if (!point || !frame)
+    throw Error(fmt::format("--replay expects POINT:FRAME (indices from 0), got '{}'", text));
+  print_replay(*p.sim, *point, *frame, p.o.replay_llr);
+}
+
+// Ranks the environment of an MPI launcher announces (Open MPI, or PMI of MPICH and Slurm);
+// 0 when not started by one.
+unsigned launcher_ranks() {
+  for (const char* name : {"OMPI_COMM_WORLD_SIZE", "PMI_SIZE"}) {
+    if (const char* v = std::getenv(name)) {
+      if (const auto n = parse_count(v)) return static_cast<unsigned>(std::max<std::uint64_t>(*n, 1));
+    }
+  }
+  return std::getenv("PMIX_RANK") ? 1 : 0;
+}
+
+#ifdef TANNERY_HAVE_MPI
+// A fingerprint of what a rank is about to run (settings, code matrix, tool version), so ranks
+// that read other files or run another build are found before any work.
+std::string run_fingerprint(const RunRecord& record) {
+  RunRecord r = record;
+  r.created.clear();
+  r.threads_used = 1;
+  r.code.source.clear();
+  r.code.path.clear();
+  r.config.threads = 0;
+  r.config.keep_failures = 0;
+  return sha256_hex(results_json(r));
+}
+
+// The run as one rank of an MPI job.
+void run_mpi(const SimulateOptions& o, const CLI::App& sub) {
+  mpi::Session session;
+  install_interrupt_handler();  // after MPI's own setup
+  const int rank = session.rank();
+  const unsigned threads =
+      std::max(1u, std::thread::hardware_concurrency() /
+                       static_cast<unsigned>(std::max(session.ranks_on_this_machine(), 1)));
+  std::optional<Prepared> p;
+  std::exception_ptr failed;
+  try {
+    p.emplace(prepare(o, sub, threads));
+  } catch (...) {
+    failed = std::current_exception();
+  }
+  const auto statuses = session.agree(!failed, p ? run_fingerprint(p->record) : std::string());
+  if (!statuses[0].ok) {  // every rank likely failed alike: rank 0 alone says why
+    if (rank == 0) std::rethrow_exception(failed);
+    throw CheckFailed{2};
+  }
+  for (std::size_t r = 1; r < statuses.size(); ++r) {
+    if (!statuses[r].ok) {
+      if (static_cast<std::size_t>(rank) == r) {
+        try {
+          std::rethrow_exception(failed);
+        } catch (const std::exception& e) {
+          throw Error(fmt::format("rank {} ({}): {}", rank, session.host(), e.what()));
+        }
+      }
+      if (rank == 0)
+        throw Error(fmt::format("rank {} could not start the run (its error is printed above)", r));
+      throw CheckFailed{2};
+    }
+    if (statuses[r].fingerprint != statuses[0].fingerprint) {
+      if (rank == 0) {
+        throw Error(fmt::format(
+            "rank {} would run other settings, another code or another build than rank 0: every "
+            "rank must read the same files (same paths, same contents) with the same tannery",
+            r));
+      }
+      throw CheckFailed{2};
+    }
+  }
+  // Past setup, an error on one rank ends every rank.
+  try {
+    if (!o.replay.empty()) {
+      if (rank == 0) replay(*p);
+      return;
+    }
+    p->record.threads_used = static_cast<unsigned>(session.sum(p->config.threads));
+    p->record.ranks_used = static_cast<unsigned>(session.size());
+    if (rank != 0) {
+      mpi::serve(session, *p->sim, p->sim->config().threads, &g_interrupted);
+      if (g_interrupted) throw CheckFailed{130};
+      return;
+    }
+    mpi::Coordinator coordinator(session, &g_interrupted);
+    run_sweep(*p, session.size() > 1 ? &coordinator : nullptr,
+              static_cast<unsigned>(session.size()),
+              o.checkpoint_seconds.value_or(300));
+    coordinator.finish();
+    if (!o.quiet) {
+      const mpi::CoordinatorFigures& f = coordinator.figures();
+      fmt::print("ranks: {} ({} threads); rank 0 took {} chunks from the others in {} messages, "
+                 "{:.2f} us each\n",
+                 session.size(), p->record.threads_used, f.remote_chunks, f.messages,
+                 f.microseconds_per_chunk());
+    }
+  } catch (const CheckFailed&) {
+    throw;
+  } catch (const std::exception& e) {
+    fmt::print(stderr, "tannery: error: rank {}: {}\n", rank, e.what());
+    std::fflush(stderr);
+    session.abort(2);
+  }
+  if (p->record.interrupted) throw CheckFailed{130};
+}
+#endif
+
+void run(const SimulateOptions& o, const CLI::App& sub) {
+  if (launcher_ranks() > 0) {
+#ifdef TANNERY_HAVE_MPI
+    return run_mpi(o, sub);
+#else
+    if (launcher_ranks() > 1) {
+      throw Error(
+          "started by an MPI launcher, but this tannery was built without MPI: every process would "
+          "run the whole simulation; rebuild with libopenmpi-dev installed (TANNERY_MPI)");
+    }
+#endif
+  }
+  Prepared p = prepare(o, sub, 0);
+  if (!o.replay.empty()) return replay(p);
+  run_sweep(p, nullptr, 1, o.checkpoint_seconds.value_or(0));
+  if (p.record.interrupted) throw CheckFailed{130};
 }
 
 }  // namespace
@@ -204,6 +401,10 @@ void add_simulate(CLI::App& app) {
   sub->add_option("--failures", o->failures,
                   "capture file for --save-failures (float32, n per frame)")
       ->capture_default_str();
+  sub->add_option("--checkpoint-seconds", o->checkpoint_seconds,
+                  "rewrite the results file with the totals so far at most every T seconds, for "
+                  "--resume after a crash (default: 300 under mpirun, 0 = never otherwise)")
+      ->check(kNonNegative);
   sub->add_option("--scenario", o->scenario,
                   "run the simulation a scenario file (TOML) describes; options given here "
                   "override its fields");

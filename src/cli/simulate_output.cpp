@@ -21,8 +21,9 @@ void ProgressLine::update(const Progress& p) {
       rate > 0 ? fmt::format("{:.0f} s", frames_to_go(t, config_.stop) / rate) : "?";
   fmt::print(
       stderr,
-      "\r  {} {:<8.4g} frames {:>10}  errors {:>6}  FER {:9.3e}  {:>8.0f} frames/s  ETA {:<8}",
-      heading_, config_.sweep[p.point], t.frames, t.frame_errors, t.fer(), rate, eta);
+      "\r  {} {:<8.4g} frames {:>10}  errors {:>6}  FER {:9.3e}  {:>8.0f} frames/s{}  ETA {:<8}",
+      heading_, config_.sweep[p.point], t.frames, t.frame_errors, t.fer(), rate,
+      ranks_ > 1 ? fmt::format(" on {} ranks", ranks_) : std::string(), eta);
   std::fflush(stderr);
   point_ = p.point;
   open_ = true;
@@ -82,7 +83,8 @@ void print_summary(const RunRecord& record, double seconds, const std::string& r
       "edge-updates/s ({:.3g} per thread, {})\n",
       t.frames_per_second, t.coded_bits_per_second / 1e6, t.info_bits_per_second / 1e6,
       t.edge_updates_per_second, t.edge_updates_per_thread,
-      count_of(record.threads_used, "thread"));
+      count_of(record.threads_used, "thread") +
+          (record.ranks_used > 1 ? fmt::format(" on {} ranks", record.ranks_used) : ""));
   if (record.interrupted) {
     fmt::print("interrupted: results so far saved; continue with --resume {}\n", resume_path);
   } else if (!record.points.empty() && record.points.size() < record.config.sweep.size()) {

@@ -11,8 +11,12 @@ namespace tannery::cli {
 // One line on stderr, rewritten in place (a terminal only), one per point.
 class ProgressLine {
  public:
-  ProgressLine(bool enabled, const SimulationConfig& config)
-      : enabled_(enabled), config_(config), heading_(parameter_heading(config.channel)) {}
+  // ranks: processes of an MPI job (1: this process alone), named when more than one.
+  ProgressLine(bool enabled, const SimulationConfig& config, unsigned ranks = 1)
+      : enabled_(enabled),
+        config_(config),
+        heading_(parameter_heading(config.channel)),
+        ranks_(ranks) {}
   ~ProgressLine() { end_line(); }
   ProgressLine(const ProgressLine&) = delete;
   ProgressLine& operator=(const ProgressLine&) = delete;
@@ -24,6 +28,7 @@ class ProgressLine {
   bool enabled_;
   const SimulationConfig& config_;
   std::string heading_;
+  unsigned ranks_;
   std::size_t point_ = SIZE_MAX;
   bool open_ = false;
 };

@@ -231,6 +231,7 @@ std::string results_json(const RunRecord& run) {
   j["run"] = fields_json(c);
   j["run"]["sweep"] = c.sweep;
   j["run"]["threads"] = run.threads_used;
+  j["run"]["ranks"] = run.ranks_used;
   j["run"]["interrupted"] = run.interrupted;
   j["run"]["stop"] = c.stop;
   j["points"] = json::array();
@@ -317,9 +318,14 @@ RunRecord parse_results(const json& j, const std::string& source) {
                             kMaxChunkFrames));
   }
   c.sweep = get<std::vector<double>>(run, "sweep", source, "run");
+  // Threads over all ranks of an MPI job (1024 per rank at most).
+  r.ranks_used = run.contains("ranks") ? get<unsigned>(run, "ranks", source, "run") : 1;
+  if (r.ranks_used == 0 || r.ranks_used > (1u << 20))
+    throw Error(fmt::format("{}: run: ranks {} is outside 1..{}", source, r.ranks_used, 1u << 20));
   r.threads_used = get<unsigned>(run, "threads", source, "run");
-  if (r.threads_used == 0 || r.threads_used > 1024)
-    throw Error(fmt::format("{}: run: threads {} is outside 1..1024", source, r.threads_used));
+  if (r.threads_used == 0 || r.threads_used / r.ranks_used > 1024)
+    throw Error(fmt::format("{}: run: threads {} is outside 1..{}", source, r.threads_used,
+                            1024 * r.ranks_used));
   r.interrupted = get<bool>(run, "interrupted", source, "run");
   if (!j["points"].is_array()) throw Error(fmt::format("{}: 'points' is not an array", source));
   for (std::size_t i = 0; i < j["points"].size(); ++i) {

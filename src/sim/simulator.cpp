@@ -412,13 +412,14 @@ PointResult Simulator::run_point(std::size_t index, PointResult total,
   for (unsigned t = 0; t < threads; ++t) workers.push_back(make_worker());
   // The calling thread watches for an interrupt and the time limit and reports progress at most
   // five times a second (chunks can finish far more often), and a last time at the end. With
-  // other processes computing too, it also deals them chunks and takes their results, about
-  // every millisecond.
+  // other processes computing too, it also deals them chunks and takes their results, every
+  // 5 ms.
   auto report = [&] {
     const double now = seconds_since(start);
     if (progress) progress(Progress{index, total, total.seconds + now, earlier});
   };
   auto last_report = Clock::now();
+  std::exception_ptr remote_error;
   ThreadPool pool(threads);
   pool.run(
       threads,
@@ -430,13 +431,19 @@ PointResult Simulator::run_point(std::size_t index, PointResult total,
           throw;
         }
       },
-      std::chrono::milliseconds(remote ? 1 : 200),
+      std::chrono::milliseconds(remote ? 5 : 200),
       [&] {
-        if (remote) {
-          remote->exchange(
+        if (remote && !remote_error) {
+          try {
+            remote->exchange(
               index,
               [&](std::uint64_t count) -> std::pair<std::uint64_t, std::uint64_t> {
                 if (stop.load()) return {max_chunks, max_chunks};
+                // Guided: at most a share of the chunks left (2 per process, this one
+                // included), so the last chunks of a point spread over every process.
+                const std::uint64_t left = max_chunks - std::min(next.load(), max_chunks);
+                count = std::clamp<std::uint64_t>(left / (2 * (remote->processes() + 1)), 1,
+                                                  count);
                 const std::uint64_t a = std::min(next.fetch_add(count), max_chunks);
                 return {a, std::min(a + count, max_chunks)};
               },
@@ -445,6 +452,10 @@ PointResult Simulator::run_point(std::size_t index, PointResult total,
                 std::lock_guard lock(mutex);
                 deliver(j, std::move(r));
               });
+          } catch (...) {
+            remote_error = std::current_exception();  // rethrown once the threads stopped
+            stop = true;
+          }
           if (Clock::now() - last_report < std::chrono::milliseconds(200)) return;
           last_report = Clock::now();
         }
@@ -456,6 +467,7 @@ PointResult Simulator::run_point(std::size_t index, PointResult total,
         }
         report();
       });
+  if (remote_error) std::rethrow_exception(remote_error);
   if (remote) remote->cancel(index);
   report();
   total.seconds += seconds_since(start);

@@ -38,7 +38,8 @@ struct RunRecord {
   double rate_for_snr = 0;    // information bits per symbol in the Eb/N0 conversion
   double effective_rate = 0;  // information bits per sent code bit (puncturing, shortening)
   unsigned bits_per_symbol = 1;
-  unsigned threads_used = 0;
+  unsigned threads_used = 0;  // over all ranks of an MPI job
+  unsigned ranks_used = 1;    // processes of an MPI job
   bool interrupted = false;
   std::vector<PointResult> points;
 };

@@ -134,12 +134,14 @@ class RemoteChunks {
   using Deal = std::function<std::pair<std::uint64_t, std::uint64_t>(std::uint64_t count)>;
   // A result that arrived: chunk `chunk` of sweep point `point`.
   using Deliver = std::function<void(std::size_t point, std::uint64_t chunk, ChunkResult&&)>;
-  // Called about every millisecond from the thread that runs point `point` (a run calls it from
+  // Called every 5 ms from the thread that runs point `point` (a run calls it from
   // one thread only): answers requests for work with deal and hands every arrived result to
   // deliver.
   virtual void exchange(std::size_t point, const Deal& deal, const Deliver& deliver) = 0;
   // Point `point` stopped: the work dealt for it, queued or in flight, is dropped.
   virtual void cancel(std::size_t point) = 0;
+  // The other processes (a deal never gives one of them more than a share of what is left).
+  virtual unsigned processes() const = 0;
 };
 
 class Simulator {
