@@ -69,6 +69,7 @@ void add_plot(CLI::App& app);
 void add_decode(CLI::App& app);
 void add_encode(CLI::App& app);
 void add_compare(CLI::App& app);
+void add_merge(CLI::App& app);
 void add_threshold(CLI::App& app);
 
 // Set by SIGINT/SIGTERM once install_interrupt_handler() ran (every signal only asks to stop, so

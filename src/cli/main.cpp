@@ -105,6 +105,7 @@ int main(int argc, char** argv) {
   tannery::cli::add_decode(app);
   tannery::cli::add_encode(app);
   tannery::cli::add_compare(app);
+  tannery::cli::add_merge(app);
   tannery::cli::add_threshold(app);
   try {
     app.parse(argc, argv);

@@ -15,6 +15,7 @@
 #include "tannery/parse.hpp"
 #include "tannery/report/results.hpp"
 #include "tannery/report/scenario.hpp"
+#include "tannery/report/shards.hpp"
 #ifdef TANNERY_HAVE_MPI
 #include "tannery/base/sha256.hpp"
 #include "tannery/sim/mpi_run.hpp"
@@ -44,6 +45,8 @@ struct SimulateOptions {
   std::string failures = "tannery-failures.f32";
   std::string scenario;
   std::optional<double> checkpoint_seconds;
+  std::string shard;
+  std::optional<std::uint64_t> shard_frames, shard_errors;
 };
 
 // The run: base (the library's defaults, a scenario's or a recorded run's settings) with the
@@ -67,6 +70,7 @@ SimulationConfig config_of(const SimulateOptions& o, SimulationConfig c) {
 struct Prepared {
   SimulateOptions o;
   RunRecord previous;
+  std::optional<ShardRecord> previous_shard;  // --resume of a shard file
   SimulationConfig config;
   std::unique_ptr<Code> code;
   std::unique_ptr<Simulator> sim;
@@ -86,7 +90,13 @@ Prepared prepare(SimulateOptions o, const CLI::App& sub, unsigned default_thread
   } else if (!o.resume.empty()) {
     // The recorded run continues exactly; options on the command line may repeat its settings
     // but not change them (threads, outputs and --save-failures apply freely).
-    p.previous = parse_results_json(read_text_file(o.resume), o.resume);
+    const std::string text = read_text_file(o.resume);
+    if (is_shard_json(text)) {
+      p.previous_shard = parse_shard_json(text, o.resume);
+      p.previous = p.previous_shard->run;
+    } else {
+      p.previous = parse_results_json(text, o.resume);
+    }
     config = p.previous.config;
     CodeInput recorded_input = o.input;
     recorded_input.code = p.previous.code.path;
@@ -108,6 +118,18 @@ Prepared prepare(SimulateOptions o, const CLI::App& sub, unsigned default_thread
     if (o.output == "tannery-run.json") o.output = o.resume;
   } else {
     config = config_of(o, SimulationConfig{});
+  }
+  if (!o.shard.empty() || (!o.resume.empty() && p.previous_shard)) {
+    // A shard writes its shard file only: results, CSV and plots come from tannery merge.
+    if (sub.get_option("--plot")->count() > 0 || !o.csv.empty())
+      throw Error("a shard writes only its shard file: merge the shards (tannery merge) for the "
+                  "results, CSV and plot");
+    o.plot.clear();
+    if (o.output == "tannery-run.json" && !o.shard.empty()) {
+      const auto slash = o.shard.find('/');
+      o.output = "tannery-shard-" + o.shard.substr(0, slash) +
+                 (slash == std::string::npos ? "" : "-of-" + o.shard.substr(slash + 1)) + ".json";
+    }
   }
   check_plot_path(o.plot);
   check_paths({{"--code", o.input.code}, {"--scenario", o.scenario}},
@@ -225,6 +247,75 @@ void replay(const Prepared& p) {
   print_replay(*p.sim, *point, *frame, p.o.replay_llr);
 }
 
+// The shard --shard I/N asks for (or the resumed shard file holds), with its budget.
+std::optional<ShardPlan> shard_plan(const Prepared& p) {
+  const SimulateOptions& o = p.o;
+  std::optional<ShardPlan> plan;
+  if (p.previous_shard) plan = p.previous_shard->plan;
+  if (!o.shard.empty()) {
+    const auto slash = o.shard.find('/');
+    const auto index = parse_count(std::string_view(o.shard).substr(0, slash));
+    const auto count =
+        slash == std::string::npos ? std::nullopt
+                                   : parse_count(std::string_view(o.shard).substr(slash + 1));
+    if (!index || !count || *count == 0 || *index >= *count || *count > 1'000'000)
+      throw Error(fmt::format(
+          "--shard expects I/N with 0 <= I < N <= 1000000 (shard I of N), got '{}'", o.shard));
+    const ShardPlan asked = default_shard_plan(p.config.stop, static_cast<std::uint32_t>(*index),
+                                               static_cast<std::uint32_t>(*count));
+    if (plan && (plan->index != asked.index || plan->count != asked.count))
+      throw Error(fmt::format("--shard {} differs from the resumed shard {}/{}", o.shard,
+                              plan->index, plan->count));
+    if (!plan) plan = asked;
+  } else if (!plan && (o.shard_frames || o.shard_errors)) {
+    throw Error("--shard-frames and --shard-errors need --shard I/N (or a shard file to resume)");
+  }
+  if (!plan) return plan;
+  if (o.shard_frames) plan->frames = *o.shard_frames;
+  if (o.shard_errors) plan->frame_errors = *o.shard_errors;
+  if (plan->frames == 0 || plan->frame_errors == 0)
+    throw Error("--shard-frames and --shard-errors must be at least 1");
+  if (o.save_failures > 0)
+    throw Error("--save-failures does not work with shards: after merging, --replay POINT:FRAME "
+                "regenerates any failed frame the results list");
+  if (o.checkpoint_seconds.value_or(0) > 0)
+    throw Error("--checkpoint-seconds does not work with shards (a stopped shard saves its file "
+                "on SIGINT/SIGTERM, and --resume continues it)");
+  return plan;
+}
+
+// One shard of a run: its chunks of every point, written as a shard file for tannery merge.
+void run_shard(Prepared& p, const ShardPlan& plan) {
+  const SimulateOptions& o = p.o;
+  if (o.output.empty()) throw Error("a shard needs its file (--output)");
+  ShardRecord shard;
+  shard.run = p.record;
+  shard.plan = plan;
+  if (!o.quiet) {
+    print_heading(p.record);
+    fmt::print("shard {}/{}: chunks c = {} (mod {}) of every point, until {} frames or {} frame "
+               "errors per point\n",
+               plan.index, plan.count, plan.index, plan.count, plan.frames, plan.frame_errors);
+  }
+  {
+    ProgressLine line(!o.quiet && isatty(STDERR_FILENO), p.sim->config());
+    shard.points = p.sim->run_shard(
+        plan, p.previous_shard ? p.previous_shard->points : std::vector<ShardPoint>{},
+        [&](const Progress& progress) { line.update(progress); }, &g_interrupted);
+  }
+  for (const ShardPoint& point : shard.points) shard.run.points.push_back(point.totals);
+  shard.run.interrupted =
+      !shard.run.points.empty() && !shard.run.points.back().complete;
+  write_file_atomically(o.output, shard_json(shard));
+  if (!o.quiet) {
+    fmt::print("\nthis shard's own chunks (merge every shard for the run's results):\n{}",
+               results_table(shard.run));
+    if (shard.run.interrupted) fmt::print("interrupted: continue with --resume {}\n", o.output);
+    fmt::print("wrote {}\n", o.output);
+  }
+  if (shard.run.interrupted) throw CheckFailed{130};
+}
+
 // Ranks the environment of an MPI launcher announces (Open MPI, or PMI of MPICH and Slurm);
 // 0 when not started by one.
 unsigned launcher_ranks() {
@@ -261,7 +352,11 @@ void run_mpi(const SimulateOptions& o, const CLI::App& sub) {
   std::optional<Prepared> p;
   std::exception_ptr failed;
   try {
+    if (!o.shard.empty())
+      throw Error("--shard is for independent jobs without MPI; under mpirun the ranks share one run");
     p.emplace(prepare(o, sub, threads));
+    if (p->previous_shard)
+      throw Error(fmt::format("--resume {}: a shard continues without MPI", o.resume));
   } catch (...) {
     failed = std::current_exception();
   }
@@ -343,6 +438,7 @@ void run(const SimulateOptions& o, const CLI::App& sub) {
   }
   Prepared p = prepare(o, sub, 0);
   if (!o.replay.empty()) return replay(p);
+  if (const auto plan = shard_plan(p)) return run_shard(p, *plan);
   run_sweep(p, nullptr, 1, o.checkpoint_seconds.value_or(0));
   if (p.record.interrupted) throw CheckFailed{130};
 }
@@ -363,7 +459,10 @@ void add_simulate(CLI::App& app) {
       "  tannery simulate --channel bsc --sweep 0.02,0.03,0.04 --algorithm bit-flip\n"
       "  tannery simulate --resume tannery-run.json          # continue an interrupted run\n"
       "  tannery simulate --scenario sims/qc-sum-product.toml --threads 2\n"
-      "Counts are identical for any --threads: frames are pure functions of (seed, point, frame).");
+      "  mpirun -np 8 tannery simulate --scenario sims/qc-sum-product.toml   # one run, 8 ranks\n"
+      "  tannery simulate --scenario sims/qc-sum-product.toml --shard 3/16   # job array task 3\n"
+      "Counts are identical for any --threads and any number of MPI ranks, and merged shards equal\n"
+      "a single run: frames are pure functions of (seed, point, frame).");
   o->input.add_to(*sub, false, kDefaultCode);
   o->decoder.add_to(*sub);
   auto* ch = sub->add_option_group("channel", "Link options");
@@ -404,6 +503,17 @@ void add_simulate(CLI::App& app) {
   sub->add_option("--checkpoint-seconds", o->checkpoint_seconds,
                   "rewrite the results file with the totals so far at most every T seconds, for "
                   "--resume after a crash (default: 300 under mpirun, 0 = never otherwise)")
+      ->check(kNonNegative);
+  auto* shards = sub->add_option_group("shards", "Independent jobs (job arrays, no MPI)");
+  shards->add_option("--shard", o->shard,
+                     "compute only chunks c = I (mod N) of each point and write a shard file "
+                     "(default tannery-shard-I-of-N.json) for tannery merge, I/N with 0 <= I < N");
+  shards->add_option("--shard-frames", o->shard_frames,
+                     "a shard's frames per point (default: max frames / N)")
+      ->check(kNonNegative);
+  shards->add_option("--shard-errors", o->shard_errors,
+                     "a shard's frame errors per point before it moves on (default: E/N + "
+                     "2 sqrt(E/N) + 2 for the run's frame-error target E)")
       ->check(kNonNegative);
   sub->add_option("--scenario", o->scenario,
                   "run the simulation a scenario file (TOML) describes; options given here "

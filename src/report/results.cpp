@@ -1,5 +1,7 @@
 #include "tannery/report/results.hpp"
 
+#include "results_document.hpp"
+
 #include <fmt/format.h>
 #include <algorithm>
 #include <chrono>
@@ -203,10 +205,12 @@ std::vector<std::string> config_differences(const SimulationConfig& recorded,
   return d;
 }
 
-std::string results_json(const RunRecord& run) {
+std::string results_json(const RunRecord& run) { return results_document(run).dump(1) + "\n"; }
+
+json results_document(const RunRecord& run, std::string_view format) {
   const SimulationConfig& c = run.config;
   json j;
-  j["format"] = "tannery-results";
+  j["format"] = format;
   j["version"] = kResultsVersion;
   j["tool"] = {{"name", "tannery"}, {"version", run.tool_version}};
   j["created"] = run.created;
@@ -236,11 +240,11 @@ std::string results_json(const RunRecord& run) {
   j["run"]["stop"] = c.stop;
   j["points"] = json::array();
   for (const auto& p : run.points) j["points"].push_back(point_json(p, run, run.code.edges));
-  return j.dump(1) + "\n";
+  return j;
 }
 
 namespace {
-RunRecord parse_results(const json& j, const std::string& source);
+RunRecord parse_results(const json& j, const std::string& source, std::string_view format);
 }  // namespace
 
 RunRecord parse_results_json(std::string_view text, const std::string& source) {
@@ -252,19 +256,25 @@ RunRecord parse_results_json(std::string_view text, const std::string& source) {
   } catch (const json::exception& e) {  // e.g. a number too large for any JSON number type
     throw Error(fmt::format("{}: not valid JSON ({})", source, e.what()));
   }
+  return parse_results_document(j, source);
+}
+
+RunRecord parse_results_document(const json& j, const std::string& source,
+                                 std::string_view format) {
   try {
-    return parse_results(j, source);
+    return parse_results(j, source, format);
   } catch (const json::exception& e) {  // a field of an unexpected type in a nested object
-    throw Error(fmt::format("{}: malformed results file ({})", source, e.what()));
+    throw Error(fmt::format("{}: malformed {} file ({})", source,
+                            format == "tannery-results" ? "results" : format, e.what()));
   }
 }
 
 namespace {
 
-RunRecord parse_results(const json& j, const std::string& source) {
-  if (!j.is_object() || j.value("format", "") != "tannery-results") {
-    throw Error(
-        fmt::format("{}: not a tannery results file (no \"format\": \"tannery-results\")", source));
+RunRecord parse_results(const json& j, const std::string& source, std::string_view format) {
+  if (!j.is_object() || j.value("format", "") != format) {
+    throw Error(fmt::format("{}: not a {} file (no \"format\": \"{}\")", source,
+                            format == "tannery-results" ? "tannery results" : format, format));
   }
   if (!j.contains("version") || !j["version"].is_number_integer() ||
       j["version"].get<std::int64_t>() != kResultsVersion) {

@@ -28,7 +28,9 @@ double seconds_since(Clock::time_point start) {
   return std::chrono::duration<double>(Clock::now() - start).count();
 }
 
-void accumulate(PointResult& total, const PointResult& chunk) {
+}  // namespace
+
+void add_chunk(PointResult& total, const PointResult& chunk, std::size_t failed_index_limit) {
   total.frames += chunk.frames;
   total.frame_errors += chunk.frame_errors;
   total.bit_errors += chunk.bit_errors;
@@ -44,10 +46,11 @@ void accumulate(PointResult& total, const PointResult& chunk) {
   for (std::size_t i = 0; i < chunk.iteration_histogram.size(); ++i) {
     total.iteration_histogram[i] += chunk.iteration_histogram[i];
   }
+  for (std::uint64_t f : chunk.failed_frames) {
+    if (total.failed_frames.size() < failed_index_limit) total.failed_frames.push_back(f);
+  }
   total.chunks += 1;
 }
-
-}  // namespace
 
 // Per-thread state: a decoder and the buffers of one chunk, reused for every chunk.
 struct Simulator::Worker {
@@ -344,9 +347,15 @@ std::uint64_t Simulator::chunks_per_point() const noexcept {
 PointResult Simulator::run_point(std::size_t index, PointResult total,
                                  std::span<const PointResult> earlier,
                                  const std::function<void(const Progress&)>& progress,
-                                 const std::atomic<bool>* interrupt, RemoteChunks* remote) {
+                                 const std::atomic<bool>* interrupt, RemoteChunks* remote,
+                                 const ShardPlan* shard, std::vector<ChunkCounts>* log) {
   const ChannelPoint channel = channel_point(total.parameter);
-  const std::uint64_t max_chunks = chunks_per_point();
+  // Slot j of the point is chunk j, or in a shard chunk index + j * count.
+  const std::uint64_t stride = shard ? shard->count : 1, offset = shard ? shard->index : 0;
+  auto chunk_of = [&](std::uint64_t j) { return offset + j * stride; };
+  const std::uint64_t all_chunks = chunks_per_point();
+  const std::uint64_t max_chunks =
+      all_chunks > offset ? (all_chunks - offset + stride - 1) / stride : 0;
   const unsigned threads = config_.threads;
 
   std::mutex mutex;
@@ -359,6 +368,12 @@ PointResult Simulator::run_point(std::size_t index, PointResult total,
 
   // Stop rules over the in-order totals; true when the point is finished.
   auto finished = [&] {
+    if (shard) {  // the shard's own budget over its own chunks
+      if (total.frame_errors >= shard->frame_errors) return reason = "shard frame errors", true;
+      if (total.frames >= shard->frames) return reason = "shard frames", true;
+      if (total.chunks >= max_chunks) return reason = "max frames", true;
+      return false;
+    }
     if (total.frame_errors >= config_.stop.frame_errors) return reason = "frame errors", true;
     if (total.frames >= config_.stop.max_frames) return reason = "max frames", true;
     return false;
@@ -377,11 +392,8 @@ PointResult Simulator::run_point(std::size_t index, PointResult total,
     for (auto it = done.find(total.chunks); it != done.end() && !stop.load();
          it = done.find(total.chunks)) {
       const ChunkResult& ready = it->second;
-      accumulate(total, ready.counts);
-      for (std::uint64_t f : ready.counts.failed_frames) {
-        if (total.failed_frames.size() < config_.failed_index_limit)
-          total.failed_frames.push_back(f);
-      }
+      if (log) log->push_back({chunk_of(total.chunks), ready.counts});
+      add_chunk(total, ready.counts, config_.failed_index_limit);
       for (const KeptFrame& kf : ready.kept) {
         if (kept_here < config_.keep_failures) kept_.push_back(kf), ++kept_here;
       }
@@ -403,7 +415,7 @@ PointResult Simulator::run_point(std::size_t index, PointResult total,
         while (remote && !stop.load()) std::this_thread::sleep_for(std::chrono::milliseconds(1));
         break;
       }
-      ChunkResult r = compute_chunk(w, index, channel, j);
+      ChunkResult r = compute_chunk(w, index, channel, chunk_of(j));
       std::lock_guard lock(mutex);
       deliver(j, std::move(r));
     }
@@ -493,14 +505,49 @@ std::vector<PointResult> Simulator::run(std::vector<PointResult> previous,
       }
       start = previous[i];
     }
-    PointResult p =
-        start.complete ? start : run_point(i, start, results, progress, interrupt, remote);
+    PointResult p = start.complete ? start
+                                   : run_point(i, start, results, progress, interrupt, remote,
+                                               nullptr, nullptr);
     results.push_back(p);
     if (!p.complete) break;
     if (config_.stop.stop_below_fer > 0 && p.fer() < config_.stop.stop_below_fer) break;
     if (p.frame_errors == 0) break;
   }
   return results;
+}
+
+std::vector<ShardPoint> Simulator::run_shard(const ShardPlan& plan,
+                                             std::vector<ShardPoint> previous,
+                                             const std::function<void(const Progress&)>& progress,
+                                             const std::atomic<bool>* interrupt) {
+  if (plan.count == 0 || plan.index >= plan.count) {
+    throw Error(fmt::format("shard {}/{}: the index must be below the number of shards",
+                            plan.index, plan.count));
+  }
+  if (plan.frames == 0 || plan.frame_errors == 0)
+    throw Error("shard: the frame budget and the frame-error target must be at least 1");
+  kept_.clear();
+  std::vector<ShardPoint> points;
+  std::vector<PointResult> earlier;
+  for (std::size_t i = 0; i < config_.sweep.size(); ++i) {
+    ShardPoint p;
+    p.totals.parameter = config_.sweep[i];
+    if (i < previous.size()) {
+      if (previous[i].totals.parameter != config_.sweep[i]) {
+        throw Error(fmt::format("resume: point {} of the shard file is at {}, the sweep has {}", i,
+                                previous[i].totals.parameter, config_.sweep[i]));
+      }
+      p = std::move(previous[i]);
+    }
+    // Every point runs (the sweep's own end is decided when the shards are merged); a point the
+    // shard finished continues when its budget was raised.
+    p.totals = run_point(i, std::move(p.totals), earlier, progress, interrupt, nullptr, &plan,
+                         &p.chunks);
+    earlier.push_back(p.totals);
+    points.push_back(std::move(p));
+    if (!points.back().totals.complete) break;  // interrupted
+  }
+  return points;
 }
 
 FrameData Simulator::replay(std::size_t point, std::uint64_t frame) const {

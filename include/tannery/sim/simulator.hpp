@@ -88,6 +88,30 @@ struct PointResult {
   }
 };
 
+// Adds a chunk's counts to a point's in-order totals (failed frame indices up to a limit).
+void add_chunk(PointResult& total, const PointResult& chunk, std::size_t failed_index_limit);
+
+// The counts of chunk `chunk` of a point, as a shard keeps them for merging.
+struct ChunkCounts {
+  std::uint64_t chunk = 0;
+  PointResult counts;
+};
+
+// One of `count` independent jobs a run is split into (job arrays, no MPI): it computes the
+// chunks c = index (mod count) of every point in order, each point until its own totals reach
+// `frame_errors` or `frames` (or the point has no such chunk left). merge_shards
+// (tannery/report/shards.hpp) then applies the run's stop rules in chunk order.
+struct ShardPlan {
+  std::uint32_t index = 0, count = 1;
+  std::uint64_t frames = 0, frame_errors = 0;  // per point, over this shard's chunks
+};
+// A shard's work on one point: its totals (chunks = the shard's chunks done; complete when
+// its plan is met) and every chunk's counts in order.
+struct ShardPoint {
+  PointResult totals;
+  std::vector<ChunkCounts> chunks;
+};
+
 // A failing frame kept for offline study.
 struct KeptFrame {
   std::size_t point = 0;
@@ -170,6 +194,10 @@ class Simulator {
   std::vector<PointResult> run(std::vector<PointResult> previous,
                                const std::function<void(const Progress&)>& progress,
                                const std::atomic<bool>* interrupt, RemoteChunks* remote = nullptr);
+  // Runs one shard of the sweep (every point; previous from its shard file continues it).
+  std::vector<ShardPoint> run_shard(const ShardPlan& plan, std::vector<ShardPoint> previous,
+                                    const std::function<void(const Progress&)>& progress,
+                                    const std::atomic<bool>* interrupt);
   // Frames kept by keep_failures during the last run, by point then frame index.
   const std::vector<KeptFrame>& kept_frames() const noexcept { return kept_; }
 
@@ -203,7 +231,8 @@ class Simulator {
                             std::uint64_t chunk) const;
   PointResult run_point(std::size_t index, PointResult start, std::span<const PointResult> earlier,
                         const std::function<void(const Progress&)>& progress,
-                        const std::atomic<bool>* interrupt, RemoteChunks* remote);
+                        const std::atomic<bool>* interrupt, RemoteChunks* remote,
+                        const ShardPlan* shard, std::vector<ChunkCounts>* log);
   // One chunk in frame layout or, with a batched decoder, in lane layout (same
   // numbers); record(frame, coded errors, information errors, outcome, llr getter) per frame.
   template <class Record>
