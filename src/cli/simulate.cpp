@@ -121,7 +121,7 @@ Prepared prepare(SimulateOptions o, const CLI::App& sub, unsigned default_thread
   }
   if (!o.shard.empty() || (!o.resume.empty() && p.previous_shard)) {
     // A shard writes its shard file only: results, CSV and plots come from tannery merge.
-    if (sub.get_option("--plot")->count() > 0 || !o.csv.empty())
+    if ((sub.get_option("--plot")->count() > 0 && !o.plot.empty()) || !o.csv.empty())
       throw Error("a shard writes only its shard file: merge the shards (tannery merge) for the "
                   "results, CSV and plot");
     o.plot.clear();
