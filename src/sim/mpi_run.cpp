@@ -43,6 +43,7 @@ void put(std::vector<char>& out, const T& v) {
 template <class T>
 void put_vector(std::vector<char>& out, const std::vector<T>& v) {
   put(out, static_cast<std::uint64_t>(v.size()));
+  if (v.empty()) return;
   const auto* p = reinterpret_cast<const char*>(v.data());
   out.insert(out.end(), p, p + v.size() * sizeof(T));
 }
@@ -62,7 +63,8 @@ class Reader {
     const auto count = get<std::uint64_t>();
     if (count > (size_ - at_) / sizeof(T)) bad();
     std::vector<T> v(count);
-    std::memcpy(v.data(), take(count * sizeof(T)), count * sizeof(T));
+    const char* bytes = take(count * sizeof(T));
+    if (count > 0) std::memcpy(v.data(), bytes, count * sizeof(T));
     return v;
   }
 
