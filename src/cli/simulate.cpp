@@ -3,6 +3,7 @@
 #include <unistd.h>
 #include <chrono>
 #include <cstdlib>
+#include <functional>
 #include <memory>
 #include <optional>
 #include <thread>
@@ -195,7 +196,8 @@ class Checkpoint {
 
 // The run on this process, alone or as rank 0 of an MPI job (remote then deals chunks to the
 // other ranks): progress, checkpoints, the outputs and the summary.
-void run_sweep(Prepared& p, RemoteChunks* remote, unsigned ranks, double checkpoint_seconds) {
+void run_sweep(Prepared& p, RemoteChunks* remote, unsigned ranks, double checkpoint_seconds,
+               const std::function<void()>& after_summary = {}) {
   const SimulateOptions& o = p.o;
   Simulator& sim = *p.sim;
   RunRecord& record = p.record;
@@ -216,8 +218,9 @@ void run_sweep(Prepared& p, RemoteChunks* remote, unsigned ranks, double checkpo
       std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
   record.interrupted = !record.points.empty() && !record.points.back().complete;
   write_outputs(record, o.output, o.csv, o.plot);
+  if (!o.quiet) print_summary(record, wall, o.output);
+  if (after_summary) after_summary();
   if (!o.quiet) {
-    print_summary(record, wall, o.output);
     for (const auto* f : {&o.output, &o.csv, &o.plot}) {
       if (!f->empty()) fmt::print("wrote {}\n", *f);
     }
@@ -402,17 +405,19 @@ void run_mpi(const SimulateOptions& o, const CLI::App& sub) {
       return;
     }
     mpi::Coordinator coordinator(session, &g_interrupted);
+    // The other ranks are released once the sweep is over; rank 0's figures go under the
+    // summary.
     run_sweep(*p, session.size() > 1 ? &coordinator : nullptr,
-              static_cast<unsigned>(session.size()),
-              o.checkpoint_seconds.value_or(300));
+              static_cast<unsigned>(session.size()), o.checkpoint_seconds.value_or(300), [&] {
+                coordinator.finish();
+                if (o.quiet) return;
+                const mpi::CoordinatorFigures& f = coordinator.figures();
+                fmt::print("ranks: {} ({}); rank 0 took {} chunks from the others in {} "
+                           "messages, {:.2f} us of its time per chunk\n",
+                           session.size(), count_of(p->record.threads_used, "thread"),
+                           f.remote_chunks, f.messages, f.microseconds_per_chunk());
+              });
     coordinator.finish();
-    if (!o.quiet) {
-      const mpi::CoordinatorFigures& f = coordinator.figures();
-      fmt::print("ranks: {} ({} threads); rank 0 took {} chunks from the others in {} messages, "
-                 "{:.2f} us each\n",
-                 session.size(), p->record.threads_used, f.remote_chunks, f.messages,
-                 f.microseconds_per_chunk());
-    }
   } catch (const CheckFailed&) {
     throw;
   } catch (const std::exception& e) {

@@ -48,8 +48,9 @@ void print_heading(const RunRecord& r) {
                                ch.design_rate ? "design" : "true")
                  : fmt::format(" (Eb/N0 uses {:.4f} information bits per symbol, {} rate)",
                                r.rate_for_snr, ch.design_rate ? "design" : "true"));
-  fmt::print("decoder {}; channel {}; seed {}, chunks of {} frames, {}{}\n", describe(c.decoder),
-             describe(ch), c.seed, c.chunk_frames, count_of(c.threads, "thread"),
+  fmt::print("decoder {}; channel {}; seed {}, chunks of {} frames, {}{}{}\n", describe(c.decoder),
+             describe(ch), c.seed, c.chunk_frames, count_of(r.threads_used, "thread"),
+             r.ranks_used > 1 ? fmt::format(" on {} ranks", r.ranks_used) : std::string(),
              c.all_zero ? "; all-zero codeword" : "");
   std::fflush(stdout);
 }

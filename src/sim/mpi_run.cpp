@@ -208,11 +208,17 @@ Coordinator::Coordinator(const Session& session, std::atomic<bool>* interrupt)
 Coordinator::~Coordinator() = default;
 
 void Coordinator::exchange(std::size_t point, const Deal& deal, const Deliver& deliver) {
-  const auto start = Clock::now();
-  bool busy = false;
+  // The time of each message handled is measured, but for the first exchange with each rank
+  // (it sets up the connection, a one-off cost that would swamp short runs' figures).
+  if (greeted_.empty()) greeted_.assign(static_cast<std::size_t>(session_.size()), 0);
+  auto timed = [&](int rank, Clock::time_point start) {
+    std::uint8_t& seen = greeted_[static_cast<std::size_t>(rank)];
+    if (seen >= 2) figures_.busy_seconds += seconds(Clock::now() - start);
+    seen = static_cast<std::uint8_t>(std::min(seen + 1, 2));
+  };
   MPI_Status status;
   while (probe(status)) {
-    busy = true;
+    const auto start = Clock::now();
     const std::size_t bytes = receive(status, buffer_);
     ++figures_.messages;
     switch (status.MPI_TAG) {
@@ -235,18 +241,19 @@ void Coordinator::exchange(std::size_t point, const Deal& deal, const Deliver& d
         throw Error(fmt::format("MPI: rank {} sent an unexpected message (tag {})",
                                 status.MPI_SOURCE, status.MPI_TAG));
     }
+    timed(status.MPI_SOURCE, start);
   }
   // Requests wait while the point has nothing left to deal (its last chunks are in flight);
   // the next point's chunks answer them.
   for (auto it = pending_.begin(); it != pending_.end();) {
+    const auto start = Clock::now();
     const auto [first, last] = deal(it->count);
     if (first == last) break;
     const std::uint64_t work[3] = {point, first, last};
     send(work, sizeof work, it->rank, kWork);
-    busy = true;
+    timed(it->rank, start);
     it = pending_.erase(it);
   }
-  if (busy) figures_.busy_seconds += seconds(Clock::now() - start);
 }
 
 void Coordinator::cancel(std::size_t point) {

@@ -65,7 +65,7 @@ class Session {
 
 // What the coordinator measured: the chunks the other ranks computed, and the time rank 0's
 // coordinating thread spent on them (receiving, decoding, dealing; the in-order accumulation
-// of their results included).
+// of their results included), but for the first two exchanges with each rank (connection set-up).
 struct CoordinatorFigures {
   std::uint64_t remote_chunks = 0, messages = 0;
   double busy_seconds = 0;
@@ -96,6 +96,7 @@ class Coordinator final : public RemoteChunks {
   std::atomic<bool>* interrupt_;
   std::vector<Request> pending_;
   std::vector<char> buffer_;
+  std::vector<std::uint8_t> greeted_;  // per rank: messages exchanged (up to 2)
   CoordinatorFigures figures_;
   bool finished_ = false;
 };
