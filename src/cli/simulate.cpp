@@ -123,8 +123,9 @@ Prepared prepare(SimulateOptions o, const CLI::App& sub, unsigned default_thread
   if (!o.shard.empty() || (!o.resume.empty() && p.previous_shard)) {
     // A shard writes its shard file only: results, CSV and plots come from tannery merge.
     if ((sub.get_option("--plot")->count() > 0 && !o.plot.empty()) || !o.csv.empty())
-      throw Error("a shard writes only its shard file: merge the shards (tannery merge) for the "
-                  "results, CSV and plot");
+      throw Error(
+          "a shard writes only its shard file: merge the shards (tannery merge) for the "
+          "results, CSV and plot");
     o.plot.clear();
     if (o.output == "tannery-run.json" && !o.shard.empty()) {
       const auto slash = o.shard.find('/');
@@ -258,9 +259,9 @@ std::optional<ShardPlan> shard_plan(const Prepared& p) {
   if (!o.shard.empty()) {
     const auto slash = o.shard.find('/');
     const auto index = parse_count(std::string_view(o.shard).substr(0, slash));
-    const auto count =
-        slash == std::string::npos ? std::nullopt
-                                   : parse_count(std::string_view(o.shard).substr(slash + 1));
+    const auto count = slash == std::string::npos
+                           ? std::nullopt
+                           : parse_count(std::string_view(o.shard).substr(slash + 1));
     if (!index || !count || *count == 0 || *index >= *count || *count > 1'000'000)
       throw Error(fmt::format(
           "--shard expects I/N with 0 <= I < N <= 1000000 (shard I of N), got '{}'", o.shard));
@@ -279,11 +280,13 @@ std::optional<ShardPlan> shard_plan(const Prepared& p) {
   if (plan->frames == 0 || plan->frame_errors == 0)
     throw Error("--shard-frames and --shard-errors must be at least 1");
   if (o.save_failures > 0)
-    throw Error("--save-failures does not work with shards: after merging, --replay POINT:FRAME "
-                "regenerates any failed frame the results list");
+    throw Error(
+        "--save-failures does not work with shards: after merging, --replay POINT:FRAME "
+        "regenerates any failed frame the results list");
   if (o.checkpoint_seconds.value_or(0) > 0)
-    throw Error("--checkpoint-seconds does not work with shards (a stopped shard saves its file "
-                "on SIGINT/SIGTERM, and --resume continues it)");
+    throw Error(
+        "--checkpoint-seconds does not work with shards (a stopped shard saves its file "
+        "on SIGINT/SIGTERM, and --resume continues it)");
   return plan;
 }
 
@@ -296,9 +299,10 @@ void run_shard(Prepared& p, const ShardPlan& plan) {
   shard.plan = plan;
   if (!o.quiet) {
     print_heading(p.record);
-    fmt::print("shard {}/{}: chunks c = {} (mod {}) of every point, until {} frames or {} frame "
-               "errors per point\n",
-               plan.index, plan.count, plan.index, plan.count, plan.frames, plan.frame_errors);
+    fmt::print(
+        "shard {}/{}: chunks c = {} (mod {}) of every point, until {} frames or {} frame "
+        "errors per point\n",
+        plan.index, plan.count, plan.index, plan.count, plan.frames, plan.frame_errors);
   }
   {
     ProgressLine line(!o.quiet && isatty(STDERR_FILENO), p.sim->config());
@@ -307,8 +311,7 @@ void run_shard(Prepared& p, const ShardPlan& plan) {
         [&](const Progress& progress) { line.update(progress); }, &g_interrupted);
   }
   for (const ShardPoint& point : shard.points) shard.run.points.push_back(point.totals);
-  shard.run.interrupted =
-      !shard.run.points.empty() && !shard.run.points.back().complete;
+  shard.run.interrupted = !shard.run.points.empty() && !shard.run.points.back().complete;
   write_file_atomically(o.output, shard_json(shard));
   if (!o.quiet) {
     fmt::print("\nthis shard's own chunks (merge every shard for the run's results):\n{}",
@@ -324,7 +327,8 @@ void run_shard(Prepared& p, const ShardPlan& plan) {
 unsigned launcher_ranks() {
   for (const char* name : {"OMPI_COMM_WORLD_SIZE", "PMI_SIZE"}) {
     if (const char* v = std::getenv(name)) {
-      if (const auto n = parse_count(v)) return static_cast<unsigned>(std::max<std::uint64_t>(*n, 1));
+      if (const auto n = parse_count(v))
+        return static_cast<unsigned>(std::max<std::uint64_t>(*n, 1));
     }
   }
   return std::getenv("PMIX_RANK") ? 1 : 0;
@@ -356,7 +360,8 @@ void run_mpi(const SimulateOptions& o, const CLI::App& sub) {
   std::exception_ptr failed;
   try {
     if (!o.shard.empty())
-      throw Error("--shard is for independent jobs without MPI; under mpirun the ranks share one run");
+      throw Error(
+          "--shard is for independent jobs without MPI; under mpirun the ranks share one run");
     p.emplace(prepare(o, sub, threads));
     if (p->previous_shard)
       throw Error(fmt::format("--resume {}: a shard continues without MPI", o.resume));
@@ -412,10 +417,11 @@ void run_mpi(const SimulateOptions& o, const CLI::App& sub) {
                 coordinator.finish();
                 if (o.quiet) return;
                 const mpi::CoordinatorFigures& f = coordinator.figures();
-                fmt::print("ranks: {} ({}); rank 0 took {} chunks from the others in {} "
-                           "messages, {:.2f} us of its time per chunk\n",
-                           session.size(), count_of(p->record.threads_used, "thread"),
-                           f.remote_chunks, f.messages, f.microseconds_per_chunk());
+                fmt::print(
+                    "ranks: {} ({}); rank 0 took {} chunks from the others in {} "
+                    "messages, {:.2f} us of its time per chunk\n",
+                    session.size(), count_of(p->record.threads_used, "thread"), f.remote_chunks,
+                    f.messages, f.microseconds_per_chunk());
               });
     coordinator.finish();
   } catch (const CheckFailed&) {
@@ -466,7 +472,8 @@ void add_simulate(CLI::App& app) {
       "  tannery simulate --scenario sims/qc-sum-product.toml --threads 2\n"
       "  mpirun -np 8 tannery simulate --scenario sims/qc-sum-product.toml   # one run, 8 ranks\n"
       "  tannery simulate --scenario sims/qc-sum-product.toml --shard 3/16   # job array task 3\n"
-      "Counts are identical for any --threads and any number of MPI ranks, and merged shards equal\n"
+      "Counts are identical for any --threads and any number of MPI ranks, and merged shards "
+      "equal\n"
       "a single run: frames are pure functions of (seed, point, frame).");
   o->input.add_to(*sub, false, kDefaultCode);
   o->decoder.add_to(*sub);
@@ -513,12 +520,14 @@ void add_simulate(CLI::App& app) {
   shards->add_option("--shard", o->shard,
                      "compute only chunks c = I (mod N) of each point and write a shard file "
                      "(default tannery-shard-I-of-N.json) for tannery merge, I/N with 0 <= I < N");
-  shards->add_option("--shard-frames", o->shard_frames,
-                     "a shard's frames per point (default: max frames / N)")
+  shards
+      ->add_option("--shard-frames", o->shard_frames,
+                   "a shard's frames per point (default: max frames / N)")
       ->check(kNonNegative);
-  shards->add_option("--shard-errors", o->shard_errors,
-                     "a shard's frame errors per point before it moves on (default: E/N + "
-                     "2 sqrt(E/N) + 2 for the run's frame-error target E)")
+  shards
+      ->add_option("--shard-errors", o->shard_errors,
+                   "a shard's frame errors per point before it moves on (default: E/N + "
+                   "2 sqrt(E/N) + 2 for the run's frame-error target E)")
       ->check(kNonNegative);
   sub->add_option("--scenario", o->scenario,
                   "run the simulation a scenario file (TOML) describes; options given here "

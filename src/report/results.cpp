@@ -205,7 +205,9 @@ std::vector<std::string> config_differences(const SimulationConfig& recorded,
   return d;
 }
 
-std::string results_json(const RunRecord& run) { return results_document(run).dump(1) + "\n"; }
+std::string results_json(const RunRecord& run) {
+  return results_document(run).dump(1) + "\n";
+}
 
 json results_document(const RunRecord& run, std::string_view format) {
   const SimulationConfig& c = run.config;

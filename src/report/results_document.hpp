@@ -11,8 +11,7 @@
 namespace tannery {
 
 // The results file of a run as a document with the given "format".
-nlohmann::json results_document(const RunRecord& run,
-                                std::string_view format = "tannery-results");
+nlohmann::json results_document(const RunRecord& run, std::string_view format = "tannery-results");
 // Reads a document written by results_document with that format; throws Error naming source.
 RunRecord parse_results_document(const nlohmann::json& j, const std::string& source,
                                  std::string_view format = "tannery-results");

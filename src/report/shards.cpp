@@ -17,16 +17,24 @@ using json = nlohmann::json;
 constexpr const char* kFormat = "tannery-shard";
 
 // The fields of a chunk record, in order; the histogram as (iterations, frames) pairs.
-const std::vector<std::string> kChunkFields = {
-    "chunk",           "frames",     "frame_errors",      "bit_errors",
-    "bits",            "coded_bit_errors", "coded_bits", "undetected_errors",
-    "bit_error_squares", "iteration_histogram_pairs", "failed_frames"};
+const std::vector<std::string> kChunkFields = {"chunk",
+                                               "frames",
+                                               "frame_errors",
+                                               "bit_errors",
+                                               "bits",
+                                               "coded_bit_errors",
+                                               "coded_bits",
+                                               "undetected_errors",
+                                               "bit_error_squares",
+                                               "iteration_histogram_pairs",
+                                               "failed_frames"};
 
 json chunk_record(const ChunkCounts& c) {
   const PointResult& p = c.counts;
   json pairs = json::array();
   for (std::size_t it = 0; it < p.iteration_histogram.size(); ++it) {
-    if (p.iteration_histogram[it] > 0) pairs.push_back(it), pairs.push_back(p.iteration_histogram[it]);
+    if (p.iteration_histogram[it] > 0)
+      pairs.push_back(it), pairs.push_back(p.iteration_histogram[it]);
   }
   return json::array({c.chunk, p.frames, p.frame_errors, p.bit_errors, p.bits, p.coded_bit_errors,
                       p.coded_bits, p.undetected_errors, p.bit_error_squares, pairs,
@@ -149,9 +157,10 @@ ShardRecord parse_shard_json(std::string_view text, const std::string& source) {
     s.plan.frames = plan.at("frames").get<std::uint64_t>();
     s.plan.frame_errors = plan.at("frame_errors").get<std::uint64_t>();
   } catch (const json::exception&) {
-    throw Error(fmt::format("{}: the 'shard' object needs index, count, frames and frame_errors "
-                            "(counts)",
-                            source));
+    throw Error(
+        fmt::format("{}: the 'shard' object needs index, count, frames and frame_errors "
+                    "(counts)",
+                    source));
   }
   if (s.plan.count == 0 || s.plan.index >= s.plan.count || s.plan.frames == 0 ||
       s.plan.frame_errors == 0)
@@ -159,8 +168,8 @@ ShardRecord parse_shard_json(std::string_view text, const std::string& source) {
                             source, s.plan.index, s.plan.count, s.plan.frames,
                             s.plan.frame_errors));
   if (j.value("chunk_fields", json()) != json(kChunkFields))
-    throw Error(fmt::format("{}: the chunk records have other fields than this tool writes",
-                            source));
+    throw Error(
+        fmt::format("{}: the chunk records have other fields than this tool writes", source));
   const std::uint64_t chunk_frames = s.run.config.chunk_frames;
   for (std::size_t i = 0; i < s.run.points.size(); ++i) {
     const std::string where = fmt::format("{}: point {}", source, i);
@@ -172,14 +181,12 @@ ShardRecord parse_shard_json(std::string_view text, const std::string& source) {
     for (std::size_t k = 0; k < records.size(); ++k) {
       ChunkCounts c = parse_chunk_record(records[k], fmt::format("{}, chunk record {}", where, k));
       if (c.chunk != s.plan.index + k * s.plan.count)
-        throw Error(fmt::format("{}: chunk record {} is chunk {}, shard {}/{} computes chunk {} there",
-                                where, k, c.chunk, s.plan.index, s.plan.count,
-                                s.plan.index + k * s.plan.count));
+        throw Error(fmt::format(
+            "{}: chunk record {} is chunk {}, shard {}/{} computes chunk {} there", where, k,
+            c.chunk, s.plan.index, s.plan.count, s.plan.index + k * s.plan.count));
       if (c.counts.frames > chunk_frames ||
           std::any_of(c.counts.failed_frames.begin(), c.counts.failed_frames.end(),
-                      [&](std::uint64_t f) {
-                        return f / chunk_frames != c.chunk;
-                      }))
+                      [&](std::uint64_t f) { return f / chunk_frames != c.chunk; }))
         throw Error(fmt::format("{}: chunk record {} does not fit chunk {} of {} frames", where, k,
                                 c.chunk, chunk_frames));
       add_chunk(sum, c.counts, SIZE_MAX);
@@ -204,14 +211,16 @@ MergeResult merge_shards(const std::vector<ShardRecord>& shards,
   for (std::size_t s = 0; s < shards.size(); ++s) {
     const ShardRecord& shard = shards[s];
     if (shard.plan.count != count) {
-      throw Error(fmt::format("merge: {} is shard {}/{}, {} is of {} shards: shards of one run share N",
-                              files[s], shard.plan.index, shard.plan.count, files[0], count));
+      throw Error(
+          fmt::format("merge: {} is shard {}/{}, {} is of {} shards: shards of one run share N",
+                      files[s], shard.plan.index, shard.plan.count, files[0], count));
     }
     const std::string d = settings_differences(first.run, shard.run);
     if (!d.empty()) {
-      throw Error(fmt::format("merge: {} belongs to another run than {} ({}): shards of one run "
-                              "share every setting, the seed and the code",
-                              files[s], files[0], d));
+      throw Error(
+          fmt::format("merge: {} belongs to another run than {} ({}): shards of one run "
+                      "share every setting, the seed and the code",
+                      files[s], files[0], d));
     }
     if (by_index[shard.plan.index]) {
       throw Error(fmt::format("merge: shard {}/{} is given twice ({} and {})", shard.plan.index,
@@ -261,20 +270,21 @@ MergeResult merge_shards(const std::vector<ShardRecord>& shards,
         const std::string& file = file_of[index];
         const PointResult& t = i < s->points.size() ? s->points[i].totals : PointResult{};
         if (t.stop_reason == "shard frame errors") {
-          how = fmt::format("continue it with tannery simulate --resume {} --shard-errors {}",
-                            file, 2 * s->plan.frame_errors);
+          how = fmt::format("continue it with tannery simulate --resume {} --shard-errors {}", file,
+                            2 * s->plan.frame_errors);
         } else if (t.stop_reason == "shard frames") {
-          how = fmt::format("continue it with tannery simulate --resume {} --shard-frames {}",
-                            file, 2 * s->plan.frames);
+          how = fmt::format("continue it with tannery simulate --resume {} --shard-frames {}", file,
+                            2 * s->plan.frames);
         } else {
-          how = fmt::format("it did not finish: continue it with tannery simulate --resume {}",
-                            file);
+          how =
+              fmt::format("it did not finish: continue it with tannery simulate --resume {}", file);
         }
       }
-      m.shortfalls.push_back(fmt::format(
-          "point {} ({} {}) needs chunk {} from shard {}/{} after {} frames and {} frame errors; {}",
-          i, parameter_heading(c.channel), c.sweep[i], chunk, index, count, total.frames,
-          total.frame_errors, how));
+      m.shortfalls.push_back(
+          fmt::format("point {} ({} {}) needs chunk {} from shard {}/{} after {} frames and {} "
+                      "frame errors; {}",
+                      i, parameter_heading(c.channel), c.sweep[i], chunk, index, count,
+                      total.frames, total.frame_errors, how));
       break;
     }
     total.complete = !total.stop_reason.empty();

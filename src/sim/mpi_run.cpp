@@ -85,8 +85,8 @@ std::size_t receive(const MPI_Status& status, std::vector<char>& buffer) {
   int bytes = 0;
   MPI_Get_count(&status, MPI_BYTE, &bytes);
   buffer.resize(static_cast<std::size_t>(std::max(bytes, 1)));
-  check(MPI_Recv(buffer.data(), bytes, MPI_BYTE, status.MPI_SOURCE, status.MPI_TAG,
-                 MPI_COMM_WORLD, MPI_STATUS_IGNORE),
+  check(MPI_Recv(buffer.data(), bytes, MPI_BYTE, status.MPI_SOURCE, status.MPI_TAG, MPI_COMM_WORLD,
+                 MPI_STATUS_IGNORE),
         "receive");
   return static_cast<std::size_t>(bytes);
 }
@@ -97,7 +97,9 @@ bool probe(MPI_Status& status) {
   return flag != 0;
 }
 
-double seconds(Clock::duration d) { return std::chrono::duration<double>(d).count(); }
+double seconds(Clock::duration d) {
+  return std::chrono::duration<double>(d).count();
+}
 
 }  // namespace
 
@@ -116,7 +118,9 @@ Session::Session() {
   MPI_Comm_free(&local);
 }
 
-Session::~Session() { MPI_Finalize(); }
+Session::~Session() {
+  MPI_Finalize();
+}
 
 std::string Session::host() const {
   char name[MPI_MAX_PROCESSOR_NAME] = {};
@@ -179,9 +183,9 @@ std::vector<ChunkMessage> parse_chunks(const char* data, std::size_t size) {
     m.point = static_cast<std::size_t>(in.get<std::uint64_t>());
     m.chunk = in.get<std::uint64_t>();
     PointResult& c = m.result.counts;
-    for (std::uint64_t* v : {&c.frames, &c.frame_errors, &c.bit_errors, &c.bits,
-                             &c.coded_bit_errors, &c.coded_bits, &c.undetected_errors,
-                             &c.iterations})
+    for (std::uint64_t* v :
+         {&c.frames, &c.frame_errors, &c.bit_errors, &c.bits, &c.coded_bit_errors, &c.coded_bits,
+          &c.undetected_errors, &c.iterations})
       *v = in.get<std::uint64_t>();
     c.bit_error_squares = in.get<double>();
     c.iteration_histogram = in.get_vector<std::uint64_t>();
@@ -364,8 +368,7 @@ void serve(const Session& session, const Simulator& sim, unsigned threads,
           for (std::uint64_t c = work[1]; c < work[2]; ++c) s.queue.push_back({point, c});
           asked = false;
           // (a request rank 0 held back while it had nothing to deal counts as 20 ms)
-          round_trip =
-              0.8 * round_trip + 0.2 * std::min(seconds(Clock::now() - asked_at), 0.02);
+          round_trip = 0.8 * round_trip + 0.2 * std::min(seconds(Clock::now() - asked_at), 0.02);
           s.wake.notify_all();
           break;
         }
@@ -388,8 +391,8 @@ void serve(const Session& session, const Simulator& sim, unsigned threads,
           s.wake.notify_all();
           break;
         default:
-          throw Error(fmt::format("MPI: rank 0 sent an unexpected message (tag {})",
-                                  status.MPI_TAG));
+          throw Error(
+              fmt::format("MPI: rank 0 sent an unexpected message (tag {})", status.MPI_TAG));
       }
     }
     std::unique_lock lock(s.mutex);
@@ -409,14 +412,14 @@ void serve(const Session& session, const Simulator& sim, unsigned threads,
     const double per_chunk =
         s.computed ? s.compute_seconds / static_cast<double>(s.computed) / threads : 0;
     const double batch_seconds = std::max(0.02, 0.5e-3 * static_cast<double>(session.size()));
-    const auto batch = static_cast<std::uint64_t>(std::clamp(
-        per_chunk > 0 ? batch_seconds / per_chunk : 1.0 * threads, 1.0 * threads, 1e6));
+    const auto batch = static_cast<std::uint64_t>(
+        std::clamp(per_chunk > 0 ? batch_seconds / per_chunk : 1.0 * threads, 1.0 * threads, 1e6));
     const bool low = per_chunk > 0 ? static_cast<double>(s.queue.size()) * per_chunk <=
                                          std::max(batch_seconds / 2, 2 * round_trip)
                                    : s.queue.empty() && s.running == 0;
-    const bool flush = s.outbox_chunks > 0 &&
-                       (seconds(Clock::now() - last_flush) >= batch_seconds / 4 ||
-                        (s.queue.empty() && s.running == 0));
+    const bool flush =
+        s.outbox_chunks > 0 && (seconds(Clock::now() - last_flush) >= batch_seconds / 4 ||
+                                (s.queue.empty() && s.running == 0));
     std::vector<char> bundle;
     if (flush) bundle.swap(s.outbox), s.outbox_chunks = 0, last_flush = Clock::now();
     lock.unlock();

@@ -448,22 +448,22 @@ PointResult Simulator::run_point(std::size_t index, PointResult total,
         if (remote && !remote_error) {
           try {
             remote->exchange(
-              index,
-              [&](std::uint64_t count) -> std::pair<std::uint64_t, std::uint64_t> {
-                if (stop.load()) return {max_chunks, max_chunks};
-                // Guided: at most a share of the chunks left (2 per process, this one
-                // included), so the last chunks of a point spread over every process.
-                const std::uint64_t left = max_chunks - std::min(next.load(), max_chunks);
-                count = std::clamp<std::uint64_t>(left / (2 * (remote->processes() + 1)), 1,
-                                                  count);
-                const std::uint64_t a = std::min(next.fetch_add(count), max_chunks);
-                return {a, std::min(a + count, max_chunks)};
-              },
-              [&](std::size_t point, std::uint64_t j, ChunkResult&& r) {
-                if (point != index) return;
-                std::lock_guard lock(mutex);
-                deliver(j, std::move(r));
-              });
+                index,
+                [&](std::uint64_t count) -> std::pair<std::uint64_t, std::uint64_t> {
+                  if (stop.load()) return {max_chunks, max_chunks};
+                  // Guided: at most a share of the chunks left (2 per process, this one
+                  // included), so the last chunks of a point spread over every process.
+                  const std::uint64_t left = max_chunks - std::min(next.load(), max_chunks);
+                  count =
+                      std::clamp<std::uint64_t>(left / (2 * (remote->processes() + 1)), 1, count);
+                  const std::uint64_t a = std::min(next.fetch_add(count), max_chunks);
+                  return {a, std::min(a + count, max_chunks)};
+                },
+                [&](std::size_t point, std::uint64_t j, ChunkResult&& r) {
+                  if (point != index) return;
+                  std::lock_guard lock(mutex);
+                  deliver(j, std::move(r));
+                });
           } catch (...) {
             remote_error = std::current_exception();  // rethrown once the threads stopped
             stop = true;
@@ -491,8 +491,7 @@ PointResult Simulator::run_point(std::size_t index, PointResult total,
 
 std::vector<PointResult> Simulator::run(std::vector<PointResult> previous,
                                         const std::function<void(const Progress&)>& progress,
-                                        const std::atomic<bool>* interrupt,
-                                        RemoteChunks* remote) {
+                                        const std::atomic<bool>* interrupt, RemoteChunks* remote) {
   kept_.clear();
   std::vector<PointResult> results;
   for (std::size_t i = 0; i < config_.sweep.size(); ++i) {
@@ -521,8 +520,8 @@ std::vector<ShardPoint> Simulator::run_shard(const ShardPlan& plan,
                                              const std::function<void(const Progress&)>& progress,
                                              const std::atomic<bool>* interrupt) {
   if (plan.count == 0 || plan.index >= plan.count) {
-    throw Error(fmt::format("shard {}/{}: the index must be below the number of shards",
-                            plan.index, plan.count));
+    throw Error(fmt::format("shard {}/{}: the index must be below the number of shards", plan.index,
+                            plan.count));
   }
   if (plan.frames == 0 || plan.frame_errors == 0)
     throw Error("shard: the frame budget and the frame-error target must be at least 1");
@@ -541,8 +540,8 @@ std::vector<ShardPoint> Simulator::run_shard(const ShardPlan& plan,
     }
     // Every point runs (the sweep's own end is decided when the shards are merged); a point the
     // shard finished continues when its budget was raised.
-    p.totals = run_point(i, std::move(p.totals), earlier, progress, interrupt, nullptr, &plan,
-                         &p.chunks);
+    p.totals =
+        run_point(i, std::move(p.totals), earlier, progress, interrupt, nullptr, &plan, &p.chunks);
     earlier.push_back(p.totals);
     points.push_back(std::move(p));
     if (!points.back().totals.complete) break;  // interrupted

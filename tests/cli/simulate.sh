@@ -71,6 +71,18 @@ interrupted cut.json 1.5 INT 1
 # lose the results; a first one before the handler was installed, too).
 interrupted early.json 0.05 TERM 1
 interrupted twice.json 0.05 TERM 2
+# Killed outright (SIGKILL, nothing saved at the end): the last checkpoint resumes to the same
+# counts.
+"$T" simulate "${RESUME[@]}" --output killed.json --checkpoint-seconds 0.2 --quiet &
+pid=$!
+sleep 1.5
+kill -KILL $pid
+wait $pid
+grep -q '"stop_reason": "checkpoint"' killed.json || fail "no checkpoint before SIGKILL"
+"$T" simulate --resume killed.json --quiet || fail "resume from a checkpoint"
+[ "$(counts killed.json)" = "$(counts full.json)" ] || fail "resumed from a checkpoint: counts differ"
+expect_exit 2 "$T" simulate --checkpoint-seconds 5 --output ""
+expect_in "--checkpoint-seconds needs a results file" "$WORK/err"
 
 # Beyond a file-size limit: a clear error, exit 2, no temporary file left (was SIGXFSZ, exit 153).
 mkdir limited
