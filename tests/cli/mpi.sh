@@ -86,7 +86,10 @@ mpirun --oversubscribe -np 3 "$T" simulate --resume long-b.json --threads 1 --qu
 mpirun --oversubscribe -np 2 "$T" simulate "${LONG[@]}" --threads 1 --checkpoint-seconds 0.5 \
   -o long-c.json >long-c.log 2>&1 &
 pid=$!
-sleep 2.5
+for _ in $(seq 200); do  # until the first checkpoint is written (at most 20 s)
+  grep -qs '"stop_reason": "checkpoint"' long-c.json && break
+  sleep 0.1
+done
 for child in $(pgrep -P $pid -x tannery); do
   tr '\0' '\n' <"/proc/$child/environ" | grep -qx OMPI_COMM_WORLD_RANK=0 && kill -KILL "$child"
 done
