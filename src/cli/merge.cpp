@@ -26,7 +26,7 @@ void run(const MergeCommand& o) {
   const MergeResult m = merge_shards(shards, o.shards);
   write_outputs(m.run, o.output, o.csv, o.plot);
   if (!o.quiet) {
-    fmt::print("{}", results_table(m.run));
+    fmt::print("{}{}", results_table(m.run), failure_anatomy_text(m.run));
     for (const auto* f : {&o.output, &o.csv, &o.plot}) {
       if (!f->empty()) fmt::print("wrote {}\n", *f);
     }

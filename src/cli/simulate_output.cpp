@@ -77,7 +77,7 @@ void write_outputs(const RunRecord& record, const std::string& json_path,
 }
 
 void print_summary(const RunRecord& record, double seconds, const std::string& resume_path) {
-  fmt::print("\n{}", results_table(record));
+  fmt::print("\n{}{}", results_table(record), failure_anatomy_text(record));
   const Throughput t = throughput(record, seconds);
   fmt::print(
       "throughput: {:.0f} frames/s, {:.3f} coded Mbit/s, {:.3f} information Mbit/s, {:.3g} "

@@ -353,4 +353,34 @@ std::string code_report_json(const CodeReport& r, const std::string& source) {
   return j.dump(2);
 }
 
+StructureClassifier::StructureClassifier(const Code& code)
+    : code_(code), state_(code.m(), 0), in_set_(code.n(), 0) {}
+
+StructureClass StructureClassifier::classify(std::span<const std::uint32_t> variables) {
+  StructureClass c;
+  c.a = static_cast<std::uint32_t>(variables.size());
+  const auto checks = code_.edge_checks();
+  for (std::uint32_t v : variables) {
+    if (v >= code_.n() || in_set_[v]) {
+      for (std::uint32_t u : variables) {
+        if (u < code_.n()) in_set_[u] = 0;
+      }
+      for (std::uint32_t ch : touched_) state_[ch] = 0;
+      touched_.clear();
+      throw Error(
+          fmt::format("structure: variable {} is out of range or repeated (n = {})", v, code_.n()));
+    }
+    in_set_[v] = 1;
+    for (std::uint32_t e : code_.variable_edges(v)) {
+      std::uint8_t& state = state_[checks[e]];  // bit 0: parity, bit 1: listed in touched_
+      if (!(state & 2)) touched_.push_back(checks[e]);
+      state = static_cast<std::uint8_t>((state | 2) ^ 1);
+    }
+  }
+  for (std::uint32_t ch : touched_) c.b += state_[ch] & 1u, state_[ch] = 0;
+  for (std::uint32_t v : variables) in_set_[v] = 0;
+  touched_.clear();
+  return c;
+}
+
 }  // namespace tannery

@@ -68,6 +68,21 @@ std::string utc_now() {
 
 namespace {
 
+// The failure classes, most frequent first (then by a, b): {a, b, frames, examples}.
+json failure_classes_json(const PointResult& p) {
+  std::vector<std::pair<StructureClass, const FailureClassCount*>> order;
+  for (const auto& [cls, count] : p.failure_classes) order.emplace_back(cls, &count);
+  std::stable_sort(order.begin(), order.end(), [](const auto& x, const auto& y) {
+    return x.second->frames > y.second->frames;
+  });
+  json out = json::array();
+  for (const auto& [cls, count] : order) {
+    out.push_back(
+        {{"a", cls.a}, {"b", cls.b}, {"frames", count->frames}, {"examples", count->examples}});
+  }
+  return out;
+}
+
 json point_json(const PointResult& p, const RunRecord& run, std::size_t edges) {
   const PointStats s = point_stats(p, run.config.confidence);
   json j;
@@ -97,6 +112,8 @@ json point_json(const PointResult& p, const RunRecord& run, std::size_t edges) {
   j["edge_updates_per_second"] =
       static_cast<double>(p.iterations) * static_cast<double>(edges) / secs;
   j["failed_frames"] = p.failed_frames;
+  j["failure_classes"] = failure_classes_json(p);
+  j["larger_failures"] = p.larger_failures;
   return j;
 }
 
@@ -391,12 +408,84 @@ RunRecord parse_results(const json& j, const std::string& source, std::string_vi
     }
     if (p.failed_frames.size() > p.frame_errors)
       bad("more failed frames listed than frame errors counted");
+    // Failure anatomy (absent from files written before it was recorded).
+    if (pj.contains("failure_classes")) {
+      const json& classes = pj["failure_classes"];
+      if (!classes.is_array()) bad("failure_classes is not a list");
+      std::uint64_t classified = 0;
+      for (const json& cj : classes) {
+        const std::string what = "a failure class";
+        const auto a = get<std::uint32_t>(cj, "a", source, where + ", " + what);
+        const auto b = get<std::uint32_t>(cj, "b", source, where + ", " + what);
+        FailureClassCount count;
+        count.frames = get<std::uint64_t>(cj, "frames", source, where + ", " + what);
+        const json& sets = cj.value("examples", json());
+        if (!sets.is_array() || !std::all_of(sets.begin(), sets.end(), [](const json& set) {
+              return set.is_array() && std::all_of(set.begin(), set.end(), [](const json& v) {
+                       return v.is_number_unsigned() && v.get<std::uint64_t>() < (1ull << 32);
+                     });
+            }))
+          bad("a failure class's examples are not lists of positions");
+        count.examples = get<std::vector<std::vector<std::uint32_t>>>(cj, "examples", source,
+                                                                      where + ", " + what);
+        if (a == 0 || a > kAnatomyMaxBits || b > a * 1024 || count.frames == 0 ||
+            count.examples.size() > std::min<std::uint64_t>(count.frames, kAnatomyExamples))
+          bad(fmt::format("failure class ({}, {}) is not valid", a, b));
+        for (const auto& example : count.examples) {
+          if (example.size() != a || !std::is_sorted(example.begin(), example.end()) ||
+              std::adjacent_find(example.begin(), example.end()) != example.end() ||
+              (r.code.n && example.back() >= r.code.n))
+            bad(
+                fmt::format("failure class ({}, {}) lists a set that is not {} distinct positions "
+                            "of the code",
+                            a, b, a));
+        }
+        if (!p.failure_classes.emplace(StructureClass{a, b}, std::move(count)).second)
+          bad(fmt::format("failure class ({}, {}) is listed twice", a, b));
+        classified += p.failure_classes[StructureClass{a, b}].frames;
+      }
+      p.larger_failures = get<std::uint64_t>(pj, "larger_failures", source, where);
+      if (classified > p.frame_errors || p.larger_failures > p.frame_errors - classified)
+        bad("more classified failures than frame errors");
+    }
     r.points.push_back(std::move(p));
   }
   return r;
 }
 
 }  // namespace
+
+std::string failure_anatomy_text(const RunRecord& run, std::size_t top) {
+  std::string out;
+  for (const PointResult& p : run.points) {
+    if (p.frame_errors == 0) continue;
+    std::vector<std::pair<StructureClass, std::uint64_t>> order;
+    for (const auto& [cls, count] : p.failure_classes) order.emplace_back(cls, count.frames);
+    std::stable_sort(order.begin(), order.end(),
+                     [](const auto& x, const auto& y) { return x.second > y.second; });
+    std::string line;
+    for (std::size_t i = 0; i < order.size() && i < top; ++i) {
+      const auto& [cls, frames] = order[i];
+      line += fmt::format("{}({}, {}){} x{}", line.empty() ? "" : ", ", cls.a, cls.b,
+                          cls.b == 0 ? " codeword" : "", frames);
+    }
+    if (order.size() > top) line += fmt::format(", {} more classes", order.size() - top);
+    if (p.larger_failures > 0)
+      line += fmt::format("{}{} with more than {} wrong bits", line.empty() ? "" : ", ",
+                          p.larger_failures, kAnatomyMaxBits);
+    const std::uint64_t known = p.larger_failures + [&] {
+      std::uint64_t n = 0;
+      for (const auto& [cls, count] : p.failure_classes) n += count.frames;
+      return n;
+    }();
+    if (known < p.frame_errors)
+      line += fmt::format("{}{} not recorded", line.empty() ? "" : ", ", p.frame_errors - known);
+    out += fmt::format("  {:<8.4g} {}\n", p.parameter, line);
+  }
+  if (out.empty()) return out;
+  return "failures by structure (a wrong bits, b odd-degree checks among their neighbours):\n" +
+         out;
+}
 
 std::string results_csv(const RunRecord& run) {
   std::string out =

@@ -27,7 +27,9 @@ const std::vector<std::string> kChunkFields = {"chunk",
                                                "undetected_errors",
                                                "bit_error_squares",
                                                "iteration_histogram_pairs",
-                                               "failed_frames"};
+                                               "failed_frames",
+                                               "failure_classes (a, b, frames, examples)",
+                                               "larger_failures"};
 
 json chunk_record(const ChunkCounts& c) {
   const PointResult& p = c.counts;
@@ -36,9 +38,12 @@ json chunk_record(const ChunkCounts& c) {
     if (p.iteration_histogram[it] > 0)
       pairs.push_back(it), pairs.push_back(p.iteration_histogram[it]);
   }
+  json classes = json::array();
+  for (const auto& [cls, count] : p.failure_classes)
+    classes.push_back(json::array({cls.a, cls.b, count.frames, count.examples}));
   return json::array({c.chunk, p.frames, p.frame_errors, p.bit_errors, p.bits, p.coded_bit_errors,
                       p.coded_bits, p.undetected_errors, p.bit_error_squares, pairs,
-                      p.failed_frames});
+                      p.failed_frames, classes, p.larger_failures});
 }
 
 ChunkCounts parse_chunk_record(const json& a, const std::string& where) {
@@ -91,6 +96,41 @@ ChunkCounts parse_chunk_record(const json& a, const std::string& where) {
     p.failed_frames.push_back(frame);
   }
   if (p.failed_frames.size() > p.frame_errors) bad("more failed frames than frame errors");
+  const json& classes = a[11];
+  if (!classes.is_array()) bad("failure_classes is not a list");
+  std::uint64_t classified = 0;
+  for (const json& cj : classes) {
+    if (!cj.is_array() || cj.size() != 4 || !cj[0].is_number_unsigned() ||
+        !cj[1].is_number_unsigned() || !cj[2].is_number_unsigned() || !cj[3].is_array())
+      bad("a failure class must be [a, b, frames, examples]");
+    const auto ca = cj[0].get<std::uint64_t>(), cb = cj[1].get<std::uint64_t>();
+    FailureClassCount cls;
+    cls.frames = cj[2].get<std::uint64_t>();
+    if (ca == 0 || ca > kAnatomyMaxBits || cb > ca * 1024 || cls.frames == 0 ||
+        cls.frames > p.frame_errors ||
+        cj[3].size() > std::min<std::uint64_t>(cls.frames, kAnatomyExamples))
+      bad(fmt::format("failure class ({}, {}) is not valid", ca, cb));
+    for (const json& set : cj[3]) {
+      if (!set.is_array()) bad("a failure class's example is not a list of positions");
+      std::vector<std::uint32_t> positions;
+      for (const json& v : set) {
+        if (!v.is_number_unsigned() || v.get<std::uint64_t>() >= (1ull << 32) ||
+            (!positions.empty() && v.get<std::uint64_t>() <= positions.back()))
+          bad("a failure class's example is not a list of increasing positions");
+        positions.push_back(v.get<std::uint32_t>());
+      }
+      if (positions.size() != ca)
+        bad(fmt::format("an example of class ({}, {}) has {} positions", ca, cb, positions.size()));
+      cls.examples.push_back(std::move(positions));
+    }
+    classified += cls.frames;
+    const StructureClass key{static_cast<std::uint32_t>(ca), static_cast<std::uint32_t>(cb)};
+    if (!p.failure_classes.emplace(key, std::move(cls)).second)
+      bad(fmt::format("failure class ({}, {}) is listed twice", ca, cb));
+  }
+  p.larger_failures = count(12);
+  if (classified > p.frame_errors || p.larger_failures > p.frame_errors - classified)
+    bad("more classified failures than frame errors");
   p.chunks = 1;
   return c;
 }

@@ -168,6 +168,15 @@ void append_chunk(std::vector<char>& out, std::size_t point, std::uint64_t chunk
   put(out, c.bit_error_squares);
   put_vector(out, c.iteration_histogram);
   put_vector(out, c.failed_frames);
+  put(out, static_cast<std::uint64_t>(c.failure_classes.size()));
+  for (const auto& [cls, count] : c.failure_classes) {
+    put(out, cls.a);
+    put(out, cls.b);
+    put(out, count.frames);
+    put(out, static_cast<std::uint64_t>(count.examples.size()));
+    for (const auto& example : count.examples) put_vector(out, example);
+  }
+  put(out, c.larger_failures);
   put(out, static_cast<std::uint64_t>(r.kept.size()));
   for (const KeptFrame& k : r.kept) {
     put(out, k.frame);
@@ -190,6 +199,18 @@ std::vector<ChunkMessage> parse_chunks(const char* data, std::size_t size) {
     c.bit_error_squares = in.get<double>();
     c.iteration_histogram = in.get_vector<std::uint64_t>();
     c.failed_frames = in.get_vector<std::uint64_t>();
+    const auto classes = in.get<std::uint64_t>();
+    for (std::uint64_t i = 0; i < classes; ++i) {
+      StructureClass cls;
+      cls.a = in.get<std::uint32_t>();
+      cls.b = in.get<std::uint32_t>();
+      FailureClassCount& count = c.failure_classes[cls];
+      count.frames = in.get<std::uint64_t>();
+      const auto examples = in.get<std::uint64_t>();
+      for (std::uint64_t e = 0; e < examples; ++e)
+        count.examples.push_back(in.get_vector<std::uint32_t>());
+    }
+    c.larger_failures = in.get<std::uint64_t>();
     c.chunks = 1;
     const auto kept = in.get<std::uint64_t>();
     for (std::uint64_t i = 0; i < kept; ++i) {

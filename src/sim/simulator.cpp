@@ -49,6 +49,14 @@ void add_chunk(PointResult& total, const PointResult& chunk, std::size_t failed_
   for (std::uint64_t f : chunk.failed_frames) {
     if (total.failed_frames.size() < failed_index_limit) total.failed_frames.push_back(f);
   }
+  for (const auto& [cls, count] : chunk.failure_classes) {
+    FailureClassCount& into = total.failure_classes[cls];
+    into.frames += count.frames;
+    for (const auto& example : count.examples) {
+      if (into.examples.size() < kAnatomyExamples) into.examples.push_back(example);
+    }
+  }
+  total.larger_failures += chunk.larger_failures;
   total.chunks += 1;
 }
 
@@ -62,6 +70,8 @@ struct Simulator::Worker {
   LinkBuffers link_buffers;
   std::vector<FrameOutcome> outcomes;
   LaneResults lane_results;
+  std::unique_ptr<StructureClassifier> classifier;
+  std::vector<std::uint32_t> wrong, wrong_start;  // failures' wrong positions (lane layout: all)
 };
 
 Simulator::Simulator(Code code, SimulationConfig config)
@@ -194,10 +204,19 @@ void Simulator::run_frames(Worker& w, std::size_t index, const ChannelPoint& cha
     std::uint64_t coded = 0, info_errors = 0;
     for (std::size_t i = 0; i < n; ++i) coded += sent[i] != got[i];
     for (std::uint32_t p : info_pos) info_errors += is_info_[p] && sent[p] != got[p];
-    record(first + f, coded, info_errors, w.outcomes[f], [&] {
-      const double* l = w.llr.data() + f * n;
-      return std::vector<float>(l, l + n);
-    });
+    w.wrong.clear();
+    if (coded <= kAnatomyMaxBits) {
+      for (std::size_t i = 0; i < n && coded > 0; ++i) {
+        if (sent[i] != got[i]) w.wrong.push_back(static_cast<std::uint32_t>(i));
+      }
+    }
+    record(
+        first + f, coded, info_errors, w.outcomes[f],
+        [&] {
+          const double* l = w.llr.data() + f * n;
+          return std::vector<float>(l, l + n);
+        },
+        std::span<const std::uint32_t>(w.wrong));
   }
 }
 
@@ -269,18 +288,52 @@ void Simulator::run_lanes(Worker& w, LaneDecoder& decoder, std::size_t index,
       }
     }
   }
+  // The wrong positions of the failures small enough to classify: a second pass, only when
+  // there are any.
+  w.wrong_start.assign(count + 1, 0);
+  for (std::size_t f = 0; f < count; ++f) {
+    const std::uint64_t e = w.errors[2 * f];
+    w.wrong_start[f + 1] =
+        w.wrong_start[f] + (e <= kAnatomyMaxBits ? static_cast<std::uint32_t>(e) : 0);
+  }
+  w.wrong.resize(w.wrong_start[count]);
+  if (!w.wrong.empty()) {
+    std::vector<std::uint32_t>& fill = w.wrong_start;  // advanced per frame, then restored
+    for (std::size_t g = 0; g < groups; ++g) {
+      const std::uint64_t* sent = w.codeword_masks.data() + g * n;
+      const std::uint64_t* decided = w.lane_results.hard.data() + g * n;
+      const std::uint64_t* zero = w.lane_results.undecided.data() + g * n;
+      const std::size_t in_chunk = std::min(lanes, count - g * lanes);
+      const std::uint64_t valid =
+          in_chunk >= 64 ? ~std::uint64_t{0} : (std::uint64_t{1} << in_chunk) - 1;
+      for (std::size_t v = 0; v < n; ++v) {
+        for (std::uint64_t x = ((decided[v] ^ sent[v]) | zero[v]) & valid; x; x &= x - 1) {
+          const std::size_t f = g * lanes + static_cast<std::size_t>(std::countr_zero(x));
+          if (w.errors[2 * f] <= kAnatomyMaxBits)
+            w.wrong[fill[f]++] = static_cast<std::uint32_t>(v);
+        }
+      }
+    }
+    for (std::size_t f = count; f > 0; --f) fill[f] = fill[f - 1];  // fill[f] is now start of f+1
+    fill[0] = 0;
+  }
   const std::vector<FrameOutcome>& outcomes = w.lane_results.outcome;
   for (std::size_t f = 0; f < count; ++f) {
-    record(first + f, w.errors[2 * f], w.errors[2 * f + 1], outcomes[f], [&] {
-      // Regenerated alone: the same values as in its group.
-      w.info.resize(k);
-      w.codewords.resize(n);
-      w.frame_llr.resize(n);
-      const FrameId id{config_.seed, static_cast<std::uint32_t>(index), first + f};
-      frame_codeword(id, encoder_, link_, config_.all_zero, w.info, w.codewords);
-      frame_llrs(id, channel, link_, w.codewords, w.frame_llr, w.link_buffers);
-      return std::vector<float>(w.frame_llr.begin(), w.frame_llr.end());
-    });
+    const std::span<const std::uint32_t> wrong(w.wrong.data() + w.wrong_start[f],
+                                               w.wrong_start[f + 1] - w.wrong_start[f]);
+    record(
+        first + f, w.errors[2 * f], w.errors[2 * f + 1], outcomes[f],
+        [&] {
+          // Regenerated alone: the same values as in its group.
+          w.info.resize(k);
+          w.codewords.resize(n);
+          w.frame_llr.resize(n);
+          const FrameId id{config_.seed, static_cast<std::uint32_t>(index), first + f};
+          frame_codeword(id, encoder_, link_, config_.all_zero, w.info, w.codewords);
+          frame_llrs(id, channel, link_, w.codewords, w.frame_llr, w.link_buffers);
+          return std::vector<float>(w.frame_llr.begin(), w.frame_llr.end());
+        },
+        wrong);
   }
 }
 
@@ -300,7 +353,7 @@ ChunkResult Simulator::compute_chunk(Worker& w, std::size_t index, const Channel
   c.chunks = 1;
   // One frame's counts; llr gives its channel LLRs, asked for only when it failed and is kept.
   auto record = [&](std::uint64_t frame, std::uint64_t coded, std::uint64_t info_errors,
-                    const FrameOutcome& o, const auto& llr) {
+                    const FrameOutcome& o, const auto& llr, std::span<const std::uint32_t> wrong) {
     c.iterations += static_cast<std::uint64_t>(o.iterations);
     const auto it = static_cast<std::size_t>(o.iterations);
     if (c.iteration_histogram.size() <= it) c.iteration_histogram.resize(it + 1, 0);
@@ -312,6 +365,14 @@ ChunkResult Simulator::compute_chunk(Worker& w, std::size_t index, const Channel
     c.bit_error_squares += static_cast<double>(info_errors) * static_cast<double>(info_errors);
     c.undetected_errors += o.converged ? 1 : 0;
     c.failed_frames.push_back(frame);
+    if (coded <= kAnatomyMaxBits) {
+      FailureClassCount& cls = c.failure_classes[w.classifier->classify(wrong)];
+      ++cls.frames;
+      if (cls.examples.size() < kAnatomyExamples)
+        cls.examples.emplace_back(wrong.begin(), wrong.end());
+    } else {
+      ++c.larger_failures;
+    }
     if (r.kept.size() < config_.keep_failures) r.kept.push_back(KeptFrame{index, frame, llr()});
   };
   if (LaneDecoder* lanes = w.decoder->lane_decoder()) {
@@ -325,6 +386,7 @@ ChunkResult Simulator::compute_chunk(Worker& w, std::size_t index, const Channel
 std::unique_ptr<Simulator::Worker> Simulator::make_worker() const {
   auto w = std::make_unique<Worker>();
   w->decoder = make_decoder(shared_, config_.decoder);
+  w->classifier = std::make_unique<StructureClassifier>(code_);
   return w;
 }
 

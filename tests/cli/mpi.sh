@@ -18,7 +18,7 @@ j = json.load(open(sys.argv[1]))
 for p in j["points"]:
     print(p["parameter"], p["frames"], p["frame_errors"], p["bit_errors"], p["bits"], p["coded_bit_errors"],
           p["undetected_errors"], p["bit_error_squares"], p["iteration_histogram"], p["failed_frames"],
-          p["chunks"], p["complete"], p["stop_reason"])' "$1"
+          p["chunks"], p["complete"], p["stop_reason"], p["failure_classes"], p["larger_failures"])' "$1"
 }
 
 # Chunks of 64 frames, so a rank's batch holds many and the frame-error stop (37) lands inside

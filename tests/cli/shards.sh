@@ -9,7 +9,7 @@ j = json.load(open(sys.argv[1]))
 for p in j["points"]:
     print(p["parameter"], p["frames"], p["frame_errors"], p["bit_errors"], p["bits"], p["coded_bit_errors"],
           p["undetected_errors"], p["bit_error_squares"], p["iteration_histogram"], p["failed_frames"],
-          p["chunks"], p["complete"], p["stop_reason"])' "$1"
+          p["chunks"], p["complete"], p["stop_reason"], p["failure_classes"], p["larger_failures"])' "$1"
 }
 
 # The sweep ends early (no frame error at 3 dB... or the last point), points stop by frame errors

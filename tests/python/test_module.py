@@ -157,7 +157,8 @@ def test_bad_input_raises_the_cli_message(tmp_path):
 # ---- simulation ------------------------------------------------------------------------------
 
 COUNTS = ["parameter", "frames", "frame_errors", "bit_errors", "coded_bit_errors", "chunks",
-          "iteration_histogram", "failed_frames", "undetected_errors", "complete"]
+          "iteration_histogram", "failed_frames", "undetected_errors", "complete", "failure_classes",
+          "larger_failures"]
 
 
 def test_simulate_equals_the_cli_counts(tmp_path):
@@ -180,6 +181,28 @@ def test_simulate_equals_the_cli_counts(tmp_path):
     for key in ("stop", "seed", "chunk_frames", "sweep"):
         assert py["run"][key] == cli["run"][key], key
     assert py["code"]["matrix_sha256"] == cli["code"]["matrix_sha256"]
+
+
+def test_failure_classes_match_scipy():
+    # Every recorded wrong-bit set has the (a, b) class of its failure: a its size, b the checks of
+    # H (by scipy) with an odd number of its positions (Richardson 2003's trapping-set notation);
+    # the classes and the larger failures add up to the frame errors.
+    code = tannery.Code.load("qc-rate-half-z54")
+    H = code.to_scipy().tocsc().astype(np.int64)
+    r = tannery.simulate(code, sweep=[2.5, 3.5], frame_errors=30, max_frames=60000, seed=3)
+    checked = 0
+    for p in r["points"]:
+        classes = p["failure_classes"]
+        assert sum(c["frames"] for c in classes) + p["larger_failures"] == p["frame_errors"]
+        assert [c["frames"] for c in classes] == sorted((c["frames"] for c in classes), reverse=True)
+        for c in classes:
+            assert 1 <= len(c["examples"]) <= min(3, c["frames"])
+            for example in c["examples"]:
+                assert len(example) == c["a"] <= 40 and example == sorted(set(example))
+                odd = np.asarray(H[:, example].sum(axis=1)).ravel() % 2
+                assert int(np.count_nonzero(odd)) == c["b"], (c, example)
+                checked += 1
+    assert checked >= 20
 
 
 def test_simulate_a_link_equals_the_cli_counts(tmp_path):

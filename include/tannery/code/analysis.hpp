@@ -6,6 +6,7 @@
 #include <cstdint>
 #include <map>
 #include <optional>
+#include <span>
 #include <string>
 #include <vector>
 
@@ -73,6 +74,28 @@ struct CodeReport {
     return n ? 1.0 - static_cast<double>(m) / static_cast<double>(n) : 0.0;
   }
 };
+// The (a, b) class of a set of variables (the trapping-set notation of Richardson, "Error floors
+// of LDPC codes", 2003): a = its size, b = the checks of odd degree in the subgraph it induces.
+// b = 0: the set is the support of a nonzero codeword.
+struct StructureClass {
+  std::uint32_t a = 0, b = 0;
+  auto operator<=>(const StructureClass&) const = default;
+};
+
+// Classifies variable sets of one code, reusing its buffers (one per thread).
+class StructureClassifier {
+ public:
+  explicit StructureClassifier(const Code& code);
+  // variables: distinct indices below n (Error otherwise).
+  StructureClass classify(std::span<const std::uint32_t> variables);
+
+ private:
+  const Code& code_;
+  std::vector<std::uint8_t> state_;  // per check: parity of the set's edges into it, listed
+  std::vector<std::uint8_t> in_set_;
+  std::vector<std::uint32_t> touched_;
+};
+
 CodeReport inspect_code(const Code& code, std::size_t max_dimension = 24);
 // The report as one JSON document (the schema of `tannery inspect --json`); source names the code.
 std::string code_report_json(const CodeReport& report, const std::string& source);

@@ -80,6 +80,11 @@ std::string results_csv(const RunRecord& run);
 // The aligned table printed after a run.
 std::string results_table(const RunRecord& run);
 
+// The failure anatomy printed under the table: per point with failures, its `top` most frequent
+// (a, b) classes (codewords marked) and the failures too large to classify; empty when no
+// point failed.
+std::string failure_anatomy_text(const RunRecord& run, std::size_t top = 4);
+
 // Current UTC time as 2026-12-02T10:00:00Z.
 std::string utc_now();
 

@@ -21,6 +21,7 @@
 #include <atomic>
 #include <cstdint>
 #include <functional>
+#include <map>
 #include <memory>
 #include <optional>
 #include <span>
@@ -29,6 +30,7 @@
 
 #include "tannery/channel/channel.hpp"
 #include "tannery/channel/link.hpp"
+#include "tannery/code/analysis.hpp"
 #include "tannery/code/code.hpp"
 #include "tannery/code/gf2.hpp"
 #include "tannery/decode/decoder.hpp"
@@ -64,6 +66,18 @@ struct SimulationConfig {
   std::size_t failed_index_limit = 100'000;  // failed frame indices recorded per point
 };
 
+// Failure anatomy: the failed frames of one (a, b) class of their wrong bits at decoder exit
+// (code/analysis.hpp, StructureClass; undecided bits count as wrong), with the wrong-bit sets of
+// the first kAnatomyExamples of them in frame order.
+struct FailureClassCount {
+  std::uint64_t frames = 0;
+  std::vector<std::vector<std::uint32_t>> examples;
+  bool operator==(const FailureClassCount&) const = default;
+};
+// Failures with more wrong bits than this are counted apart (larger_failures), unclassified.
+inline constexpr std::uint32_t kAnatomyMaxBits = 40;
+inline constexpr std::size_t kAnatomyExamples = 3;
+
 // Counts of one sweep point (only whole chunks, in order).
 struct PointResult {
   double parameter = 0;
@@ -72,6 +86,8 @@ struct PointResult {
   double bit_error_squares = 0;                    // sum over frames of (information bit errors)^2
   std::vector<std::uint64_t> iteration_histogram;  // frames by iterations used
   std::vector<std::uint64_t> failed_frames;        // indices of failed frames, increasing (capped)
+  std::map<StructureClass, FailureClassCount> failure_classes;  // failures of <= 40 wrong bits
+  std::uint64_t larger_failures = 0;                            // failures of more
   std::uint64_t chunks = 0;
   bool complete = false;
   std::string stop_reason;  // why the point stopped (or "interrupted")
@@ -234,7 +250,8 @@ class Simulator {
                         const std::atomic<bool>* interrupt, RemoteChunks* remote,
                         const ShardPlan* shard, std::vector<ChunkCounts>* log);
   // One chunk in frame layout or, with a batched decoder, in lane layout (same
-  // numbers); record(frame, coded errors, information errors, outcome, llr getter) per frame.
+  // numbers); record(frame, coded errors, information errors, outcome, llr getter, wrong
+  // positions) per frame, the wrong positions given for failures of at most kAnatomyMaxBits.
   template <class Record>
   void run_frames(Worker& w, std::size_t index, const ChannelPoint& channel, std::uint64_t first,
                   std::size_t count, const Record& record) const;

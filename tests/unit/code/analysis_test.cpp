@@ -153,3 +153,36 @@ TEST_CASE("redundant rows: empty and repeated are listed", "[analysis]") {
   CHECK(r.repeated[0] == std::pair<std::size_t, std::size_t>{0, 3});
   CHECK(r.repeated[1] == std::pair<std::size_t, std::size_t>{0, 4});
 }
+
+TEST_CASE("(a, b) classes of hand-made variable sets", "[analysis]") {
+  // H of a small code written out: checks {0,1,2}, {1,3}, {2,3,4}, {0,4}. A set's b counts the
+  // checks joined to it an odd number of times (Richardson 2003's trapping-set notation).
+  const Code code = Code::from_checks(5, {{0, 1, 2}, {1, 3}, {2, 3, 4}, {0, 4}});
+  StructureClassifier classify(code);
+  using V = std::vector<std::uint32_t>;
+  CHECK(classify.classify(V{0}) == StructureClass{1, 2});     // checks 0 and 3
+  CHECK(classify.classify(V{2}) == StructureClass{1, 2});     // checks 0 and 2
+  CHECK(classify.classify(V{0, 4}) == StructureClass{2, 2});  // check 3 twice: even; 0 and 2
+  CHECK(classify.classify(V{1, 3}) == StructureClass{2, 2});  // check 1 even; 0 and 2 odd
+  CHECK(classify.classify(V{0, 1, 2, 3, 4}) == StructureClass{5, 2});  // checks 0, 2 hold 3
+  CHECK(classify.classify(V{}) == StructureClass{0, 0});
+  CHECK_THROWS_WITH(classify.classify(V{1, 1}), Catch::Contains("out of range or repeated"));
+  CHECK_THROWS_WITH(classify.classify(V{5}), Catch::Contains("out of range or repeated"));
+  CHECK(classify.classify(V{3}) == StructureClass{1, 2});  // nothing left over from the errors
+}
+
+TEST_CASE("codeword supports are the b = 0 class", "[analysis]") {
+  // Every weight-3 codeword of Hamming (7,4) (columns 1..7 in binary: i ^ j ^ k = 0) has b = 0;
+  // any other 3-set has b > 0 (Lin & Costello: exactly 7 codewords of weight 3).
+  const Code code = construct_hamming(3);
+  StructureClassifier classify(code);
+  int codewords = 0;
+  for (std::uint32_t i = 0; i < 7; ++i)
+    for (std::uint32_t j = i + 1; j < 7; ++j)
+      for (std::uint32_t k = j + 1; k < 7; ++k) {
+        const StructureClass c = classify.classify(std::vector<std::uint32_t>{i, j, k});
+        CHECK(c.a == 3);
+        codewords += c.b == 0;
+      }
+  CHECK(codewords == 7);
+}

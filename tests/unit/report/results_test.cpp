@@ -17,6 +17,8 @@ TEST_CASE("results JSON round-trips every field a resume or comparison needs", "
   REQUIRE(b.points.size() == 1);
   CHECK(b.points[0].iterations == a.points[0].iterations);
   CHECK(b.points[0].failed_frames == a.points[0].failed_frames);
+  CHECK(b.points[0].failure_classes == a.points[0].failure_classes);
+  CHECK(b.points[0].larger_failures == a.points[0].larger_failures);
   CHECK(results_json(b) == results_json(a));
 }
 

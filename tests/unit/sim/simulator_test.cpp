@@ -49,7 +49,8 @@ bool same_counts(const PointResult& a, const PointResult& b) {
          a.coded_bit_errors == b.coded_bit_errors && a.undetected_errors == b.undetected_errors &&
          a.iterations == b.iterations && a.iteration_histogram == b.iteration_histogram &&
          a.failed_frames == b.failed_frames && a.bit_error_squares == b.bit_error_squares &&
-         a.chunks == b.chunks;
+         a.chunks == b.chunks && a.failure_classes == b.failure_classes &&
+         a.larger_failures == b.larger_failures;
 }
 
 }  // namespace
