@@ -20,6 +20,7 @@ struct PlotCommand {
   std::string metric = "both";
   bool no_references = false;
   bool normal_approximation = false;
+  bool failure_classes = false;
   std::optional<double> threshold;
   std::string title;
 };
@@ -76,6 +77,9 @@ void add_plot(CLI::App& app) {
   sub->add_flag("--no-references", o->no_references,
                 "leave out the uncoded BPSK curve and the capacity limit");
   sub->add_option("--title", o->title, "plot title");
+  sub->add_flag("--failure-classes", o->failure_classes,
+                "label each FER point with the (a, b) class of its most frequent failures and "
+                "its share (results of this version; cw: codewords)");
   sub->add_flag("--normal-approximation", o->normal_approximation,
                 "overlay the finite-length limit (Polyanskiy-Poor-Verdu normal approximation) for "
                 "the first run's n, k");
@@ -96,6 +100,7 @@ void add_plot(CLI::App& app) {
     options.references = !o->no_references;
     options.title = o->title;
     options.normal_approximation = o->normal_approximation;
+    options.failure_classes = o->failure_classes;
     options.threshold = o->threshold;
     write_plot(o->output, plot_svg(runs, options));
   });

@@ -109,6 +109,25 @@ std::string run_label(const RunRecord& run) {
                      run.code.source);
 }
 
+namespace {
+
+// "(8, 2) 40%" beside a FER point: its most frequent failure class (the smallest a, then b, on
+// a tie) and that class's share of the point's failures; nothing when none was classified.
+std::string failure_class_label(const PointResult& p, double x, double y, const char* colour) {
+  const std::pair<const StructureClass, FailureClassCount>* top = nullptr;
+  for (const auto& entry : p.failure_classes) {
+    if (!top || entry.second.frames > top->second.frames) top = &entry;
+  }
+  if (!top || p.frame_errors == 0) return "";
+  const StructureClass& cls = top->first;
+  return fmt::format(
+      "<text x=\"{:.1f}\" y=\"{:.1f}\" font-size=\"9\" fill=\"{}\">({}, {}){} {:.0f}%</text>\n",
+      x + 6, y - 6, colour, cls.a, cls.b, cls.b == 0 ? " cw" : "",
+      100.0 * static_cast<double>(top->second.frames) / static_cast<double>(p.frame_errors));
+}
+
+}  // namespace
+
 std::string plot_svg(const std::vector<PlotRun>& runs, const PlotOptions& options) {
   if (runs.empty()) throw Error("plot: no results to draw");
   double xmin = INFINITY, xmax = -INFINITY, vmin = 1.0;
@@ -282,6 +301,7 @@ std::string plot_svg(const std::vector<PlotRun>& runs, const PlotOptions& option
                 : fmt::format(
                       "<rect x=\"{:.1f}\" y=\"{:.1f}\" width=\"7\" height=\"7\" fill=\"{}\"/>\n",
                       x - 3.5, ax.py(v) - 3.5, c);
+        if (metric == 0 && options.failure_classes) marks += failure_class_label(p, x, ax.py(v), c);
       }
       svg += fmt::format(
           "<polyline points=\"{}\" fill=\"none\" stroke=\"{}\" stroke-width=\"1.6\"/>\n{}", line, c,

@@ -20,6 +20,9 @@ struct PlotOptions {
   // The finite-length limit for the first run's n and k (BPSK-AWGN, BSC, BEC, every bit sent).
   bool normal_approximation = false;
   std::optional<double> threshold;  // a vertical line at this sweep value (e.g. a DE threshold)
+  // Beside each FER point, the (a, b) class of its most frequent failures (results' failure
+  // anatomy; "cw" marks codewords) and the share of the point's failures it holds.
+  bool failure_classes = false;
   std::string title;
 };
 

@@ -54,3 +54,14 @@ TEST_CASE("plots overlay runs of one channel and refuse others", "[plot]") {
   CHECK_THROWS_AS(plot_svg({PlotRun{"a", a}, PlotRun{"b", b}}, fer), Error);
   CHECK_THROWS_WITH(plot_svg({}, fer), Catch::Contains("no results"));
 }
+
+TEST_CASE("failure classes label the FER points when asked", "[plot]") {
+  // The sample's first point: 12 failures, 5 of class (2, 4), 1 codeword (3, 0), 6 larger.
+  const PlotRun run{"demo", test::sample_run()};
+  PlotOptions options;
+  CHECK(plot_svg({run}, options).find("(2, 4)") == std::string::npos);
+  options.failure_classes = true;
+  const std::string svg = plot_svg({run}, options);
+  CHECK(svg.find(">(2, 4) 42%</text>") != std::string::npos);
+  CHECK(svg.find("(3, 0) cw") == std::string::npos);  // not the most frequent
+}
