@@ -266,16 +266,18 @@ namespace {
 RunRecord parse_results(const json& j, const std::string& source, std::string_view format);
 }  // namespace
 
-RunRecord parse_results_json(std::string_view text, const std::string& source) {
-  json j;
+json parse_json_text(std::string_view text, const std::string& source) {
   try {
-    j = json::parse(text);
+    return json::parse(text);
   } catch (const json::parse_error& e) {
     throw Error(fmt::format("{}: not valid JSON (byte {})", source, e.byte));
   } catch (const json::exception& e) {  // e.g. a number too large for any JSON number type
     throw Error(fmt::format("{}: not valid JSON ({})", source, e.what()));
   }
-  return parse_results_document(j, source);
+}
+
+RunRecord parse_results_json(std::string_view text, const std::string& source) {
+  return parse_results_document(parse_json_text(text, source), source);
 }
 
 RunRecord parse_results_document(const json& j, const std::string& source,

@@ -10,6 +10,9 @@
 
 namespace tannery {
 
+// Text as JSON; throws Error naming source ("not valid JSON (byte B)").
+nlohmann::json parse_json_text(std::string_view text, const std::string& source);
+
 // The results file of a run as a document with the given "format".
 nlohmann::json results_document(const RunRecord& run, std::string_view format = "tannery-results");
 // Reads a document written by results_document with that format; throws Error naming source.

@@ -180,14 +180,7 @@ bool is_shard_json(std::string_view text) {
 }
 
 ShardRecord parse_shard_json(std::string_view text, const std::string& source) {
-  json j;
-  try {
-    j = json::parse(text);
-  } catch (const json::parse_error& e) {
-    throw Error(fmt::format("{}: not valid JSON (byte {})", source, e.byte));
-  } catch (const json::exception& e) {
-    throw Error(fmt::format("{}: not valid JSON ({})", source, e.what()));
-  }
+  const json j = parse_json_text(text, source);
   ShardRecord s;
   s.run = parse_results_document(j, source, kFormat);
   try {

@@ -272,22 +272,27 @@ void Simulator::run_lanes(Worker& w, LaneDecoder& decoder, std::size_t index,
   decoder.decode(w.lane_results);
   // Errors per frame: lane l of group g holds frame g * lanes + l, whose sent bits are bit l of
   // that group's masks. An undecided bit is an error whatever was sent.
-  w.errors.assign(2 * count, 0);
-  for (std::size_t g = 0; g < groups; ++g) {
-    const std::uint64_t* sent = w.codeword_masks.data() + g * n;
-    const std::uint64_t* decided = w.lane_results.hard.data() + g * n;
-    const std::uint64_t* zero = w.lane_results.undecided.data() + g * n;
-    const std::size_t in_chunk = std::min(lanes, count - g * lanes);
-    const std::uint64_t valid =
-        in_chunk >= 64 ? ~std::uint64_t{0} : (std::uint64_t{1} << in_chunk) - 1;
-    for (std::size_t v = 0; v < n; ++v) {
-      for (std::uint64_t x = ((decided[v] ^ sent[v]) | zero[v]) & valid; x; x &= x - 1) {
-        const std::size_t f = g * lanes + static_cast<std::size_t>(std::countr_zero(x));
-        ++w.errors[2 * f];
-        w.errors[2 * f + 1] += is_info_[v];
+  // wrong_bits(fn): fn(frame, position) for every wrong bit of every frame of the chunk, by
+  // group, then position, then lane.
+  auto wrong_bits = [&](const auto& fn) {
+    for (std::size_t g = 0; g < groups; ++g) {
+      const std::uint64_t* sent = w.codeword_masks.data() + g * n;
+      const std::uint64_t* decided = w.lane_results.hard.data() + g * n;
+      const std::uint64_t* zero = w.lane_results.undecided.data() + g * n;
+      const std::size_t in_chunk = std::min(lanes, count - g * lanes);
+      const std::uint64_t valid =
+          in_chunk >= 64 ? ~std::uint64_t{0} : (std::uint64_t{1} << in_chunk) - 1;
+      for (std::size_t v = 0; v < n; ++v) {
+        for (std::uint64_t x = ((decided[v] ^ sent[v]) | zero[v]) & valid; x; x &= x - 1)
+          fn(g * lanes + static_cast<std::size_t>(std::countr_zero(x)), v);
       }
     }
-  }
+  };
+  w.errors.assign(2 * count, 0);
+  wrong_bits([&](std::size_t f, std::size_t v) {
+    ++w.errors[2 * f];
+    w.errors[2 * f + 1] += is_info_[v];
+  });
   // The wrong positions of the failures small enough to classify: a second pass, only when
   // there are any.
   w.wrong_start.assign(count + 1, 0);
@@ -299,21 +304,9 @@ void Simulator::run_lanes(Worker& w, LaneDecoder& decoder, std::size_t index,
   w.wrong.resize(w.wrong_start[count]);
   if (!w.wrong.empty()) {
     std::vector<std::uint32_t>& fill = w.wrong_start;  // advanced per frame, then restored
-    for (std::size_t g = 0; g < groups; ++g) {
-      const std::uint64_t* sent = w.codeword_masks.data() + g * n;
-      const std::uint64_t* decided = w.lane_results.hard.data() + g * n;
-      const std::uint64_t* zero = w.lane_results.undecided.data() + g * n;
-      const std::size_t in_chunk = std::min(lanes, count - g * lanes);
-      const std::uint64_t valid =
-          in_chunk >= 64 ? ~std::uint64_t{0} : (std::uint64_t{1} << in_chunk) - 1;
-      for (std::size_t v = 0; v < n; ++v) {
-        for (std::uint64_t x = ((decided[v] ^ sent[v]) | zero[v]) & valid; x; x &= x - 1) {
-          const std::size_t f = g * lanes + static_cast<std::size_t>(std::countr_zero(x));
-          if (w.errors[2 * f] <= kAnatomyMaxBits)
-            w.wrong[fill[f]++] = static_cast<std::uint32_t>(v);
-        }
-      }
-    }
+    wrong_bits([&](std::size_t f, std::size_t v) {
+      if (w.errors[2 * f] <= kAnatomyMaxBits) w.wrong[fill[f]++] = static_cast<std::uint32_t>(v);
+    });
     for (std::size_t f = count; f > 0; --f) fill[f] = fill[f - 1];  // fill[f] is now start of f+1
     fill[0] = 0;
   }

@@ -12,15 +12,6 @@ export OMPI_MCA_btl_vader_single_copy_mechanism=none
 SCENARIO="$(cd "$(dirname "$0")/../.." && pwd)/sims/qc-sum-product.toml"
 cd "$WORK"
 
-counts() {
-  /usr/bin/python3 -c 'import json,sys
-j = json.load(open(sys.argv[1]))
-for p in j["points"]:
-    print(p["parameter"], p["frames"], p["frame_errors"], p["bit_errors"], p["bits"], p["coded_bit_errors"],
-          p["undetected_errors"], p["bit_error_squares"], p["iteration_histogram"], p["failed_frames"],
-          p["chunks"], p["complete"], p["stop_reason"], p["failure_classes"], p["larger_failures"])' "$1"
-}
-
 # Chunks of 64 frames, so a rank's batch holds many and the frame-error stop (37) lands inside
 # one; fixed point, reference kernels, the BSC.
 CASES=(
@@ -40,7 +31,7 @@ for case in "${CASES[@]}"; do
       # shellcheck disable=SC2086
       mpirun --oversubscribe -np $np "$T" simulate $args --threads $threads --plot "" --quiet \
         -o "$out.json" --failures "$out.f32" >"$out.log" 2>&1 || fail "$out: exit $? ($(head -c 300 "$out.log"))"
-      [ "$(counts "$out.json")" = "$(counts "$name-single.json")" ] || fail "$out: counts differ from one process"
+      [ "$(all_counts "$out.json")" = "$(all_counts "$name-single.json")" ] || fail "$out: counts differ from one process"
       grep -q "\"ranks\": $np" "$out.json" || fail "$out: ranks not recorded"
       if [ -f "$name-single.f32" ]; then
         cmp -s "$out.f32" "$name-single.f32" || fail "$out: saved failures differ from one process"
@@ -54,7 +45,7 @@ done
 mpirun --oversubscribe -np 3 "$T" simulate --scenario "$SCENARIO" --plot "" -o scenario-mpi.json >scenario.log 2>&1 ||
   fail "scenario under mpirun: $(tail -c 300 scenario.log)"
 "$T" simulate --scenario "$SCENARIO" --threads 1 --plot "" --quiet -o scenario-one.json || fail "scenario alone"
-[ "$(counts scenario-mpi.json)" = "$(counts scenario-one.json)" ] || fail "scenario: 3 ranks differ from 1 thread"
+[ "$(all_counts scenario-mpi.json)" = "$(all_counts scenario-one.json)" ] || fail "scenario: 3 ranks differ from 1 thread"
 grep -q "ranks: 3" scenario.log || fail "no coordinator figures in the summary: $(tail -c 300 scenario.log)"
 
 # Interrupts: SIGTERM to mpirun (it forwards it to every rank) part-way, resumed without MPI; a
@@ -69,7 +60,7 @@ kill -TERM $pid
 wait $pid
 grep -q '"interrupted": true' long-a.json || fail "MPI run: not recorded as interrupted ($(tail -c 300 long-a.log))"
 "$T" simulate --resume long-a.json --quiet || fail "resume without MPI"
-[ "$(counts long-a.json)" = "$(counts long-whole.json)" ] || fail "MPI run resumed without MPI: counts differ"
+[ "$(all_counts long-a.json)" = "$(all_counts long-whole.json)" ] || fail "MPI run resumed without MPI: counts differ"
 
 "$T" simulate "${LONG[@]}" --threads 2 -o long-b.json &
 pid=$!
@@ -79,7 +70,7 @@ wait $pid
 [ $? = 130 ] || fail "single run interrupted: exit code not 130"
 mpirun --oversubscribe -np 3 "$T" simulate --resume long-b.json --threads 1 --quiet >long-b.log 2>&1 ||
   fail "resume under MPI: $(tail -c 300 long-b.log)"
-[ "$(counts long-b.json)" = "$(counts long-whole.json)" ] || fail "single run resumed under MPI: counts differ"
+[ "$(all_counts long-b.json)" = "$(all_counts long-whole.json)" ] || fail "single run resumed under MPI: counts differ"
 
 # Rank 0, the one that writes, dies (SIGKILL: no chance to save anything): the job ends, and the
 # last checkpoint (every half second here) resumes to the uninterrupted counts.
@@ -96,7 +87,7 @@ done
 wait $pid && fail "the job went on after rank 0 died"
 grep -q '"stop_reason": "checkpoint"' long-c.json || fail "no checkpoint written before rank 0 died"
 "$T" simulate --resume long-c.json --quiet || fail "resume from the checkpoint"
-[ "$(counts long-c.json)" = "$(counts long-whole.json)" ] || fail "resumed from a checkpoint: counts differ"
+[ "$(all_counts long-c.json)" = "$(all_counts long-whole.json)" ] || fail "resumed from a checkpoint: counts differ"
 
 # Errors: every rank fails alike, rank 0 alone says why (one line), exit 2.
 mpirun --oversubscribe -np 3 "$T" simulate --code no-such-code.alist >err.log 2>&1
