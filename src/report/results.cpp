@@ -77,8 +77,11 @@ json failure_classes_json(const PointResult& p) {
   });
   json out = json::array();
   for (const auto& [cls, count] : order) {
-    out.push_back(
-        {{"a", cls.a}, {"b", cls.b}, {"frames", count->frames}, {"examples", count->examples}});
+    out.push_back({{"a", cls.a},
+                   {"b", cls.b},
+                   {"frames", count->frames},
+                   {"oscillating", count->oscillating},
+                   {"examples", count->examples}});
   }
   return out;
 }
@@ -421,6 +424,7 @@ RunRecord parse_results(const json& j, const std::string& source, std::string_vi
         const auto b = get<std::uint32_t>(cj, "b", source, where + ", " + what);
         FailureClassCount count;
         count.frames = get<std::uint64_t>(cj, "frames", source, where + ", " + what);
+        count.oscillating = get<std::uint64_t>(cj, "oscillating", source, where + ", " + what);
         const json& sets = cj.value("examples", json());
         if (!sets.is_array() || !std::all_of(sets.begin(), sets.end(), [](const json& set) {
               return set.is_array() && std::all_of(set.begin(), set.end(), [](const json& v) {
@@ -431,6 +435,7 @@ RunRecord parse_results(const json& j, const std::string& source, std::string_vi
         count.examples = get<std::vector<std::vector<std::uint32_t>>>(cj, "examples", source,
                                                                       where + ", " + what);
         if (a == 0 || a > kAnatomyMaxBits || b > a * 1024 || count.frames == 0 ||
+            count.oscillating > count.frames ||
             count.examples.size() > std::min<std::uint64_t>(count.frames, kAnatomyExamples))
           bad(fmt::format("failure class ({}, {}) is not valid", a, b));
         for (const auto& example : count.examples) {
@@ -468,8 +473,10 @@ std::string failure_anatomy_text(const RunRecord& run, std::size_t top) {
     std::string line;
     for (std::size_t i = 0; i < order.size() && i < top; ++i) {
       const auto& [cls, frames] = order[i];
-      line += fmt::format("{}({}, {}){} x{}", line.empty() ? "" : ", ", cls.a, cls.b,
-                          cls.b == 0 ? " codeword" : "", frames);
+      const std::uint64_t oscillating = p.failure_classes.at(cls).oscillating;
+      line += fmt::format("{}({}, {}){} x{}{}", line.empty() ? "" : ", ", cls.a, cls.b,
+                          cls.b == 0 ? " codeword" : "", frames,
+                          oscillating ? fmt::format(" ({} oscillating)", oscillating) : "");
     }
     if (order.size() > top) line += fmt::format(", {} more classes", order.size() - top);
     if (p.larger_failures > 0)

@@ -17,19 +17,20 @@ using json = nlohmann::json;
 constexpr const char* kFormat = "tannery-shard";
 
 // The fields of a chunk record, in order; the histogram as (iterations, frames) pairs.
-const std::vector<std::string> kChunkFields = {"chunk",
-                                               "frames",
-                                               "frame_errors",
-                                               "bit_errors",
-                                               "bits",
-                                               "coded_bit_errors",
-                                               "coded_bits",
-                                               "undetected_errors",
-                                               "bit_error_squares",
-                                               "iteration_histogram_pairs",
-                                               "failed_frames",
-                                               "failure_classes (a, b, frames, examples)",
-                                               "larger_failures"};
+const std::vector<std::string> kChunkFields = {
+    "chunk",
+    "frames",
+    "frame_errors",
+    "bit_errors",
+    "bits",
+    "coded_bit_errors",
+    "coded_bits",
+    "undetected_errors",
+    "bit_error_squares",
+    "iteration_histogram_pairs",
+    "failed_frames",
+    "failure_classes (a, b, frames, oscillating, examples)",
+    "larger_failures"};
 
 json chunk_record(const ChunkCounts& c) {
   const PointResult& p = c.counts;
@@ -40,7 +41,7 @@ json chunk_record(const ChunkCounts& c) {
   }
   json classes = json::array();
   for (const auto& [cls, count] : p.failure_classes)
-    classes.push_back(json::array({cls.a, cls.b, count.frames, count.examples}));
+    classes.push_back(json::array({cls.a, cls.b, count.frames, count.oscillating, count.examples}));
   return json::array({c.chunk, p.frames, p.frame_errors, p.bit_errors, p.bits, p.coded_bit_errors,
                       p.coded_bits, p.undetected_errors, p.bit_error_squares, pairs,
                       p.failed_frames, classes, p.larger_failures});
@@ -100,17 +101,19 @@ ChunkCounts parse_chunk_record(const json& a, const std::string& where) {
   if (!classes.is_array()) bad("failure_classes is not a list");
   std::uint64_t classified = 0;
   for (const json& cj : classes) {
-    if (!cj.is_array() || cj.size() != 4 || !cj[0].is_number_unsigned() ||
-        !cj[1].is_number_unsigned() || !cj[2].is_number_unsigned() || !cj[3].is_array())
-      bad("a failure class must be [a, b, frames, examples]");
+    if (!cj.is_array() || cj.size() != 5 || !cj[0].is_number_unsigned() ||
+        !cj[1].is_number_unsigned() || !cj[2].is_number_unsigned() || !cj[3].is_number_unsigned() ||
+        !cj[4].is_array())
+      bad("a failure class must be [a, b, frames, oscillating, examples]");
     const auto ca = cj[0].get<std::uint64_t>(), cb = cj[1].get<std::uint64_t>();
     FailureClassCount cls;
     cls.frames = cj[2].get<std::uint64_t>();
+    cls.oscillating = cj[3].get<std::uint64_t>();
     if (ca == 0 || ca > kAnatomyMaxBits || cb > ca * 1024 || cls.frames == 0 ||
-        cls.frames > p.frame_errors ||
-        cj[3].size() > std::min<std::uint64_t>(cls.frames, kAnatomyExamples))
+        cls.frames > p.frame_errors || cls.oscillating > cls.frames ||
+        cj[4].size() > std::min<std::uint64_t>(cls.frames, kAnatomyExamples))
       bad(fmt::format("failure class ({}, {}) is not valid", ca, cb));
-    for (const json& set : cj[3]) {
+    for (const json& set : cj[4]) {
       if (!set.is_array()) bad("a failure class's example is not a list of positions");
       std::vector<std::uint32_t> positions;
       for (const json& v : set) {

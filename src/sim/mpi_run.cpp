@@ -173,6 +173,7 @@ void append_chunk(std::vector<char>& out, std::size_t point, std::uint64_t chunk
     put(out, cls.a);
     put(out, cls.b);
     put(out, count.frames);
+    put(out, count.oscillating);
     put(out, static_cast<std::uint64_t>(count.examples.size()));
     for (const auto& example : count.examples) put_vector(out, example);
   }
@@ -206,6 +207,7 @@ std::vector<ChunkMessage> parse_chunks(const char* data, std::size_t size) {
       cls.b = in.get<std::uint32_t>();
       FailureClassCount& count = c.failure_classes[cls];
       count.frames = in.get<std::uint64_t>();
+      count.oscillating = in.get<std::uint64_t>();
       const auto examples = in.get<std::uint64_t>();
       for (std::uint64_t e = 0; e < examples; ++e)
         count.examples.push_back(in.get_vector<std::uint32_t>());

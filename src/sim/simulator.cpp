@@ -52,6 +52,7 @@ void add_chunk(PointResult& total, const PointResult& chunk, std::size_t failed_
   for (const auto& [cls, count] : chunk.failure_classes) {
     FailureClassCount& into = total.failure_classes[cls];
     into.frames += count.frames;
+    into.oscillating += count.oscillating;
     for (const auto& example : count.examples) {
       if (into.examples.size() < kAnatomyExamples) into.examples.push_back(example);
     }
@@ -71,6 +72,8 @@ struct Simulator::Worker {
   std::vector<FrameOutcome> outcomes;
   LaneResults lane_results;
   std::unique_ptr<StructureClassifier> classifier;
+  std::unique_ptr<Decoder> shorter;  // one iteration less (made when first needed)
+  std::vector<std::uint8_t> shorter_hard;
   std::vector<std::uint32_t> wrong, wrong_start;  // failures' wrong positions (lane layout: all)
 };
 
@@ -213,8 +216,8 @@ void Simulator::run_frames(Worker& w, std::size_t index, const ChannelPoint& cha
     record(
         first + f, coded, info_errors, w.outcomes[f],
         [&] {
-          const double* l = w.llr.data() + f * n;
-          return std::vector<float>(l, l + n);
+          return std::pair(std::span<const double>(w.llr).subspan(f * n, n),
+                           std::span<const std::uint8_t>(w.codewords).subspan(f * n, n));
         },
         std::span<const std::uint32_t>(w.wrong));
   }
@@ -324,7 +327,8 @@ void Simulator::run_lanes(Worker& w, LaneDecoder& decoder, std::size_t index,
           const FrameId id{config_.seed, static_cast<std::uint32_t>(index), first + f};
           frame_codeword(id, encoder_, link_, config_.all_zero, w.info, w.codewords);
           frame_llrs(id, channel, link_, w.codewords, w.frame_llr, w.link_buffers);
-          return std::vector<float>(w.frame_llr.begin(), w.frame_llr.end());
+          return std::pair(std::span<const double>(w.frame_llr),
+                           std::span<const std::uint8_t>(w.codewords));
         },
         wrong);
   }
@@ -344,9 +348,12 @@ ChunkResult Simulator::compute_chunk(Worker& w, std::size_t index, const Channel
   c.bits = count * (k - link_.shortened());
   c.coded_bits = count * n;
   c.chunks = 1;
-  // One frame's counts; llr gives its channel LLRs, asked for only when it failed and is kept.
+  // One frame's counts; sent() gives its channel LLRs and codeword, asked for only when it
+  // failed and is kept or checked for oscillation (iterative decoders with 2 iterations or more).
+  const bool check_oscillation =
+      config_.decoder.algorithm != Algorithm::ml && config_.decoder.iterations >= 2;
   auto record = [&](std::uint64_t frame, std::uint64_t coded, std::uint64_t info_errors,
-                    const FrameOutcome& o, const auto& llr, std::span<const std::uint32_t> wrong) {
+                    const FrameOutcome& o, const auto& sent, std::span<const std::uint32_t> wrong) {
     c.iterations += static_cast<std::uint64_t>(o.iterations);
     const auto it = static_cast<std::size_t>(o.iterations);
     if (c.iteration_histogram.size() <= it) c.iteration_histogram.resize(it + 1, 0);
@@ -361,12 +368,19 @@ ChunkResult Simulator::compute_chunk(Worker& w, std::size_t index, const Channel
     if (coded <= kAnatomyMaxBits) {
       FailureClassCount& cls = c.failure_classes[w.classifier->classify(wrong)];
       ++cls.frames;
+      if (check_oscillation && !o.converged && o.iterations == config_.decoder.iterations) {
+        const auto [llr, codeword] = sent();
+        cls.oscillating += oscillates(w, frame, llr, codeword, wrong) ? 1 : 0;
+      }
       if (cls.examples.size() < kAnatomyExamples)
         cls.examples.emplace_back(wrong.begin(), wrong.end());
     } else {
       ++c.larger_failures;
     }
-    if (r.kept.size() < config_.keep_failures) r.kept.push_back(KeptFrame{index, frame, llr()});
+    if (r.kept.size() < config_.keep_failures) {
+      const std::span<const double> llr = sent().first;
+      r.kept.push_back(KeptFrame{index, frame, std::vector<float>(llr.begin(), llr.end())});
+    }
   };
   if (LaneDecoder* lanes = w.decoder->lane_decoder()) {
     run_lanes(w, *lanes, index, channel, first, count, record);
@@ -374,6 +388,27 @@ ChunkResult Simulator::compute_chunk(Worker& w, std::size_t index, const Channel
     run_frames(w, index, channel, first, count, record);
   }
   return r;
+}
+
+bool Simulator::oscillates(Worker& w, std::uint64_t frame, std::span<const double> llr,
+                           std::span<const std::uint8_t> codeword,
+                           std::span<const std::uint32_t> wrong) const {
+  if (!w.shorter) {
+    DecoderSettings d = config_.decoder;
+    d.iterations -= 1;
+    w.shorter = make_decoder(shared_, d);
+  }
+  const std::size_t n = code_.n();
+  w.shorter_hard.resize(n);
+  FrameOutcome o;
+  w.shorter->decode(llr, w.shorter_hard, {}, std::span(&o, 1), frame);
+  std::size_t at = 0;  // walks `wrong` alongside the earlier wrong bits
+  for (std::size_t i = 0; i < n; ++i) {
+    if (w.shorter_hard[i] == codeword[i]) continue;
+    if (at == wrong.size() || wrong[at] != i) return true;
+    ++at;
+  }
+  return at != wrong.size();
 }
 
 std::unique_ptr<Simulator::Worker> Simulator::make_worker() const {

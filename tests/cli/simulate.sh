@@ -84,6 +84,37 @@ grep -q '"stop_reason": "checkpoint"' killed.json || fail "no checkpoint before 
 expect_exit 2 "$T" simulate --checkpoint-seconds 5 --output ""
 expect_in "--checkpoint-seconds needs a results file" "$WORK/err"
 
+# Failure anatomy against the decode command: with the all-zero codeword a failed frame's wrong
+# bits are its decoded ones; decoded again with 49 iterations instead of 50, a different set means
+# the failure oscillated. The sizes and oscillation counts must be those the run recorded.
+AZ=(--code qc-rate-half-z54 --sweep 3.5 --max-frames 100000 --frame-errors 8 --all-zero)
+"$T" simulate "${AZ[@]}" -o anatomy.json --plot "" --quiet || fail "anatomy run"
+/usr/bin/python3 - "$T" anatomy.json "${AZ[@]}" <<'PY' || fail "failure anatomy differs from the decode command"
+import json, subprocess, sys
+tool, results, run = sys.argv[1], sys.argv[2], sys.argv[3:]
+point = json.load(open(results))["points"][0]
+sizes, oscillating = {}, 0
+for frame in point["failed_frames"]:
+    subprocess.run([tool, "simulate", *run, "--replay", f"0:{frame}", "--replay-llr", "f.f32"],
+                   capture_output=True, check=True)
+    sets = []
+    for iterations in (50, 49):
+        subprocess.run([tool, "decode", "--code", "qc-rate-half-z54", "f.f32", "--input-format", "f32",
+                        "--codeword", "--iterations", str(iterations), "--output", "f.txt"],
+                       capture_output=True, check=True)
+        bits = "".join(open("f.txt").read().split())
+        sets.append([i for i, c in enumerate(bits) if c != "0"])
+    if len(sets[0]) <= 40:
+        sizes[len(sets[0])] = sizes.get(len(sets[0]), 0) + 1
+        oscillating += sets[0] != sets[1]
+recorded = {}
+for c in point["failure_classes"]:
+    recorded[c["a"]] = recorded.get(c["a"], 0) + c["frames"]
+assert recorded == sizes, (recorded, sizes)
+assert sum(c["oscillating"] for c in point["failure_classes"]) == oscillating
+assert sum(sizes.values()) >= 8
+PY
+
 # Beyond a file-size limit: a clear error, exit 2, no temporary file left (was SIGXFSZ, exit 153).
 mkdir limited
 (ulimit -f 8; "$T" construct regular --length 20000 --variable-degree 3 --check-degree 6 -o limited/big.tanner) 2> limited.err

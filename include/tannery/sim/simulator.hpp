@@ -72,6 +72,9 @@ struct SimulationConfig {
 struct FailureClassCount {
   std::uint64_t frames = 0;
   std::vector<std::vector<std::uint32_t>> examples;
+  // Of those frames, the ones that oscillated: the decoder ran all its iterations without
+  // converging and its wrong bits one iteration earlier were another set.
+  std::uint64_t oscillating = 0;
   bool operator==(const FailureClassCount&) const = default;
 };
 // Failures with more wrong bits than this are counted apart (larger_failures), unclassified.
@@ -243,6 +246,11 @@ class Simulator {
 
  private:
   std::unique_ptr<Worker> make_worker() const;
+  // Whether a failed frame's wrong bits one iteration before the last differ from `wrong` (the
+  // frame decoded again, alone, with one iteration less).
+  bool oscillates(Worker& w, std::uint64_t frame, std::span<const double> llr,
+                  std::span<const std::uint8_t> codeword,
+                  std::span<const std::uint32_t> wrong) const;
   ChunkResult compute_chunk(Worker& w, std::size_t index, const ChannelPoint& channel,
                             std::uint64_t chunk) const;
   PointResult run_point(std::size_t index, PointResult start, std::span<const PointResult> earlier,

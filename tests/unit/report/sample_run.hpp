@@ -32,7 +32,7 @@ inline RunRecord sample_run() {
   p.iterations = 600 + 56 + 36;
   p.bit_error_squares = 50;
   p.failed_frames = {3, 99};
-  p.failure_classes[StructureClass{2, 4}] = FailureClassCount{5, {{1, 6}, {0, 3}, {2, 7}}};
+  p.failure_classes[StructureClass{2, 4}] = FailureClassCount{5, {{1, 6}, {0, 3}, {2, 7}}, 2};
   p.failure_classes[StructureClass{3, 0}] = FailureClassCount{1, {{0, 1, 5}}};
   p.larger_failures = 6;
   p.chunks = 20;

@@ -20,7 +20,7 @@ TEST_CASE("chunk results survive the trip between ranks", "[mpi]") {
   a.counts.bit_error_squares = 145.0;
   a.counts.iteration_histogram = {0, 0, 3, 50, 0, 11};
   a.counts.failed_frames = {130, 171};
-  a.counts.failure_classes[StructureClass{3, 0}] = FailureClassCount{1, {{4, 9, 600}}};
+  a.counts.failure_classes[StructureClass{3, 0}] = FailureClassCount{1, {{4, 9, 600}}, 1};
   a.counts.failure_classes[StructureClass{8, 2}] = FailureClassCount{1, {}};
   a.counts.larger_failures = 0;
   a.kept.push_back(KeptFrame{2, 130, {1.5f, -0.25f, 3.0f}});
