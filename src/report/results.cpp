@@ -6,6 +6,7 @@
 #include <algorithm>
 #include <chrono>
 #include <ctime>
+#include <functional>
 #include <nlohmann/json.hpp>
 #include <sstream>
 #include <type_traits>
@@ -269,6 +270,30 @@ namespace {
 RunRecord parse_results(const json& j, const std::string& source, std::string_view format);
 }  // namespace
 
+std::string failure_anatomy_problem(const PointResult& p, std::size_t n) {
+  std::uint64_t classified = 0;
+  for (const auto& [cls, count] : p.failure_classes) {
+    if (cls.a == 0 || cls.a > kAnatomyMaxBits || cls.b > cls.a * std::uint64_t{1024} ||
+        count.frames == 0 || count.oscillating > count.frames ||
+        count.examples.size() > std::min<std::uint64_t>(count.frames, kAnatomyExamples))
+      return fmt::format("failure class ({}, {}) is not valid", cls.a, cls.b);
+    for (const auto& example : count.examples) {
+      if (example.size() != cls.a ||
+          std::adjacent_find(example.begin(), example.end(), std::greater_equal<>()) !=
+              example.end() ||
+          (n && example.back() >= n))
+        return fmt::format(
+            "failure class ({}, {}) lists a set that is not {} increasing "
+            "positions of the code",
+            cls.a, cls.b, cls.a);
+    }
+    classified += count.frames;
+  }
+  if (classified > p.frame_errors || p.larger_failures > p.frame_errors - classified)
+    return "more classified failures than frame errors";
+  return "";
+}
+
 json parse_json_text(std::string_view text, const std::string& source) {
   try {
     return json::parse(text);
@@ -417,7 +442,6 @@ RunRecord parse_results(const json& j, const std::string& source, std::string_vi
     if (pj.contains("failure_classes")) {
       const json& classes = pj["failure_classes"];
       if (!classes.is_array()) bad("failure_classes is not a list");
-      std::uint64_t classified = 0;
       for (const json& cj : classes) {
         const std::string what = "a failure class";
         const auto a = get<std::uint32_t>(cj, "a", source, where + ", " + what);
@@ -434,26 +458,12 @@ RunRecord parse_results(const json& j, const std::string& source, std::string_vi
           bad("a failure class's examples are not lists of positions");
         count.examples = get<std::vector<std::vector<std::uint32_t>>>(cj, "examples", source,
                                                                       where + ", " + what);
-        if (a == 0 || a > kAnatomyMaxBits || b > a * 1024 || count.frames == 0 ||
-            count.oscillating > count.frames ||
-            count.examples.size() > std::min<std::uint64_t>(count.frames, kAnatomyExamples))
-          bad(fmt::format("failure class ({}, {}) is not valid", a, b));
-        for (const auto& example : count.examples) {
-          if (example.size() != a || !std::is_sorted(example.begin(), example.end()) ||
-              std::adjacent_find(example.begin(), example.end()) != example.end() ||
-              (r.code.n && example.back() >= r.code.n))
-            bad(
-                fmt::format("failure class ({}, {}) lists a set that is not {} distinct positions "
-                            "of the code",
-                            a, b, a));
-        }
         if (!p.failure_classes.emplace(StructureClass{a, b}, std::move(count)).second)
           bad(fmt::format("failure class ({}, {}) is listed twice", a, b));
-        classified += p.failure_classes[StructureClass{a, b}].frames;
       }
       p.larger_failures = get<std::uint64_t>(pj, "larger_failures", source, where);
-      if (classified > p.frame_errors || p.larger_failures > p.frame_errors - classified)
-        bad("more classified failures than frame errors");
+      if (const std::string problem = failure_anatomy_problem(p, r.code.n); !problem.empty())
+        bad(problem);
     }
     r.points.push_back(std::move(p));
   }
