@@ -369,32 +369,43 @@ void run_mpi(const SimulateOptions& o, const CLI::App& sub) {
     failed = std::current_exception();
   }
   const auto statuses = session.agree(!failed, p ? run_fingerprint(p->record) : std::string());
-  if (!statuses[0].ok) {  // every rank likely failed alike: rank 0 alone says why
-    if (rank == 0) std::rethrow_exception(failed);
-    throw CheckFailed{2};
-  }
-  for (std::size_t r = 1; r < statuses.size(); ++r) {
-    if (!statuses[r].ok) {
-      if (static_cast<std::size_t>(rank) == r) {
-        try {
-          std::rethrow_exception(failed);
-        } catch (const std::exception& e) {
-          throw Error(fmt::format("rank {} ({}): {}", rank, session.host(), e.what()));
-        }
-      }
-      if (rank == 0)
-        throw Error(fmt::format("rank {} could not start the run (its error is printed above)", r));
-      throw CheckFailed{2};
+  // What this rank must say about the setup ('' when nothing); each message is printed before
+  // a barrier, since mpirun ends the whole job as soon as one rank exits with an error.
+  auto error_of = [&] {
+    try {
+      std::rethrow_exception(failed);
+    } catch (const std::exception& e) {
+      return std::string(e.what());
     }
-    if (statuses[r].fingerprint != statuses[0].fingerprint) {
+  };
+  std::string message;
+  bool stop = false;
+  if (!statuses[0].ok) {  // every rank likely failed alike: rank 0 alone says why
+    stop = true;
+    if (rank == 0) message = error_of();
+  }
+  for (std::size_t r = 1; r < statuses.size() && !stop; ++r) {
+    if (!statuses[r].ok) {
+      stop = true;
+      if (static_cast<std::size_t>(rank) == r)
+        message = fmt::format("rank {} ({}): {}", rank, session.host(), error_of());
+      if (rank == 0)
+        message = fmt::format("rank {} could not start the run (its error is printed too)", r);
+    } else if (statuses[r].fingerprint != statuses[0].fingerprint) {
+      stop = true;
       if (rank == 0) {
-        throw Error(fmt::format(
+        message = fmt::format(
             "rank {} would run other settings, another code or another build than rank 0: every "
             "rank must read the same files (same paths, same contents) with the same tannery",
-            r));
+            r);
       }
-      throw CheckFailed{2};
     }
+  }
+  if (stop) {
+    if (!message.empty()) fmt::print(stderr, "tannery: error: {}\n", message);
+    std::fflush(stderr);
+    session.barrier();
+    throw CheckFailed{2};
   }
   // Past setup, an error on one rank ends every rank.
   try {

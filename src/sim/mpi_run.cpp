@@ -146,6 +146,10 @@ std::vector<Session::Status> Session::agree(bool ok, const std::string& fingerpr
   return out;
 }
 
+void Session::barrier() const {
+  check(MPI_Barrier(MPI_COMM_WORLD), "barrier");
+}
+
 std::uint64_t Session::sum(std::uint64_t value) const {
   std::uint64_t total = 0;
   check(MPI_Allreduce(&value, &total, 1, MPI_UINT64_T, MPI_SUM, MPI_COMM_WORLD), "allreduce");

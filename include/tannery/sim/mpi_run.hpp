@@ -54,6 +54,8 @@ class Session {
     std::string fingerprint;
   };
   std::vector<Status> agree(bool ok, const std::string& fingerprint) const;
+  // Waits until every rank is here (collective).
+  void barrier() const;
   // Sum of a count over the ranks (collective).
   std::uint64_t sum(std::uint64_t value) const;
   // Ends every rank of the job at once (after an error on one rank past setup).
