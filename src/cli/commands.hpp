@@ -71,6 +71,7 @@ void add_encode(CLI::App& app);
 void add_compare(CLI::App& app);
 void add_merge(CLI::App& app);
 void add_threshold(CLI::App& app);
+void add_floor(CLI::App& app);
 
 // Set by SIGINT/SIGTERM once install_interrupt_handler() ran (every signal only asks to stop, so
 // the results so far are always saved; SIGKILL stops at once).

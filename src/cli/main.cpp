@@ -107,6 +107,7 @@ int main(int argc, char** argv) {
   tannery::cli::add_compare(app);
   tannery::cli::add_merge(app);
   tannery::cli::add_threshold(app);
+  tannery::cli::add_floor(app);
   try {
     app.parse(argc, argv);
   } catch (const CLI::CallForHelp& e) {

@@ -354,33 +354,61 @@ std::string code_report_json(const CodeReport& r, const std::string& source) {
 }
 
 StructureClassifier::StructureClassifier(const Code& code)
-    : code_(code), state_(code.m(), 0), in_set_(code.n(), 0) {}
+    : code_(code), degree_(code.m(), 0), in_set_(code.n(), 0) {}
 
-StructureClass StructureClassifier::classify(std::span<const std::uint32_t> variables) {
-  StructureClass c;
-  c.a = static_cast<std::uint32_t>(variables.size());
-  const auto checks = code_.edge_checks();
+void StructureClassifier::clear(std::span<const std::uint32_t> variables) {
   for (std::uint32_t v : variables) {
+    if (v < code_.n()) in_set_[v] = 0;
+  }
+  for (std::uint32_t ch : touched_) degree_[ch] = 0;
+  touched_.clear();
+}
+
+void StructureClassifier::load(std::span<const std::uint32_t> variables) {
+  const auto checks = code_.edge_checks();
+  for (std::size_t i = 0; i < variables.size(); ++i) {
+    const std::uint32_t v = variables[i];
     if (v >= code_.n() || in_set_[v]) {
-      for (std::uint32_t u : variables) {
-        if (u < code_.n()) in_set_[u] = 0;
-      }
-      for (std::uint32_t ch : touched_) state_[ch] = 0;
-      touched_.clear();
+      clear(variables.first(i));
       throw Error(
           fmt::format("structure: variable {} is out of range or repeated (n = {})", v, code_.n()));
     }
     in_set_[v] = 1;
     for (std::uint32_t e : code_.variable_edges(v)) {
-      std::uint8_t& state = state_[checks[e]];  // bit 0: parity, bit 1: listed in touched_
-      if (!(state & 2)) touched_.push_back(checks[e]);
-      state = static_cast<std::uint8_t>((state | 2) ^ 1);
+      if (degree_[checks[e]]++ == 0) touched_.push_back(checks[e]);
     }
   }
-  for (std::uint32_t ch : touched_) c.b += state_[ch] & 1u, state_[ch] = 0;
-  for (std::uint32_t v : variables) in_set_[v] = 0;
-  touched_.clear();
+}
+
+StructureClass StructureClassifier::classify(std::span<const std::uint32_t> variables) {
+  load(variables);
+  StructureClass c;
+  c.a = static_cast<std::uint32_t>(variables.size());
+  for (std::uint32_t ch : touched_) c.b += degree_[ch] & 1u;
+  clear(variables);
   return c;
+}
+
+StructureShape StructureClassifier::shape(std::span<const std::uint32_t> variables) {
+  load(variables);
+  StructureShape s;
+  s.cls.a = static_cast<std::uint32_t>(variables.size());
+  s.elementary = true;
+  for (std::uint32_t ch : touched_) {
+    if (degree_[ch] & 1u) s.odd_checks.push_back(ch);
+    if (degree_[ch] > 2) s.elementary = false;
+  }
+  s.cls.b = static_cast<std::uint32_t>(s.odd_checks.size());
+  std::sort(s.odd_checks.begin(), s.odd_checks.end());
+  s.absorbing = !variables.empty();
+  const auto checks = code_.edge_checks();
+  for (std::uint32_t v : variables) {
+    int balance = 0;  // even-degree checks minus odd-degree checks
+    for (std::uint32_t e : code_.variable_edges(v)) balance += (degree_[checks[e]] & 1u) ? -1 : 1;
+    if (balance <= 0) s.absorbing = false;
+  }
+  clear(variables);
+  return s;
 }
 
 }  // namespace tannery

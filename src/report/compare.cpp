@@ -56,6 +56,26 @@ std::string setting_differences(const RunRecord& a, const RunRecord& b) {
   return out;
 }
 
+// One-sided z-test that the current estimate is larger, for points where either side is
+// importance-sampled: standard errors from the estimates (binomial ones for counted points).
+double estimate_p(double current, double current_sd, double reference, double reference_sd) {
+  const double sd = std::sqrt(current_sd * current_sd + reference_sd * reference_sd);
+  if (!(sd > 0)) return current > reference ? 0.0 : 1.0;
+  return normal_tail((current - reference) / sd);
+}
+
+std::pair<double, double> fer_and_sd(const PointResult& p) {
+  if (p.importance) return {p.importance->fer, p.importance->fer_sd};
+  const double f = p.fer(), n = static_cast<double>(std::max<std::uint64_t>(p.frames, 1));
+  return {f, std::sqrt(f * (1 - f) / n)};
+}
+
+std::pair<double, double> ber_and_sd(const PointResult& p) {
+  if (p.importance) return {p.importance->ber, p.importance->ber_sd};
+  const double b = p.ber(), n = static_cast<double>(std::max<std::uint64_t>(p.bits, 1));
+  return {b, std::sqrt(b * (1 - b) / n)};
+}
+
 }  // namespace
 
 std::optional<double> fer_crossing(const std::vector<PointResult>& points, double target,
@@ -143,7 +163,15 @@ Comparison compare_runs(const RunRecord& cur, const RunRecord& ref, const Compar
       same_seed && std::all_of(c.points.begin(), c.points.end(), [](const PointComparison& p) {
         return has_all_failures(p.current) && has_all_failures(p.reference);
       });
+  const bool estimated = std::any_of(c.points.begin(), c.points.end(), [](const auto& pc) {
+    return pc.current.importance || pc.reference.importance;
+  });
   c.mode = o.mode;
+  if (estimated && c.mode != CompareMode::automatic && c.mode != CompareMode::unpaired)
+    throw Error(
+        "importance-sampled points can only be compared unpaired (their counts are of biased "
+        "frames)");
+  if (estimated) c.mode = CompareMode::unpaired;
   if (c.mode == CompareMode::automatic) {
     c.mode = same_seed && differences.empty()
                  ? CompareMode::exact
@@ -155,12 +183,25 @@ Comparison compare_runs(const RunRecord& cur, const RunRecord& ref, const Compar
         "both files");
   }
   // Two tests per point and, with more than one point, one over all points together.
-  const bool combined = c.mode != CompareMode::exact && c.points.size() > 1;
+  const bool combined = c.mode != CompareMode::exact && c.points.size() > 1 && !estimated;
   c.tests = 2 * c.points.size() + (combined ? 1 : 0);
   c.level = (1 - o.confidence) / static_cast<double>(c.tests);
   for (auto& pc : c.points) {
     const PointResult &p = pc.current, &r = pc.reference;
     pc.p_ber = ber_p(p, r);
+    if (p.importance || r.importance) {
+      pc.test = "z (importance-sampled)";
+      const auto [fc, sfc] = fer_and_sd(p);
+      const auto [fr, sfr] = fer_and_sd(r);
+      const auto [bc, sbc] = ber_and_sd(p);
+      const auto [br, sbr] = ber_and_sd(r);
+      pc.p_fer = estimate_p(fc, sfc, fr, sfr);
+      pc.p_ber = estimate_p(bc, sbc, br, sbr);
+      pc.regression = pc.p_fer < c.level || pc.p_ber < c.level;
+      pc.note = pc.regression ? (pc.p_fer < c.level ? "FER worse" : "BER worse")
+                              : "no evidence of a regression";
+      continue;
+    }
     if (c.mode == CompareMode::exact) {
       pc.test = "exact";
       const bool equal = p.frames == r.frames && p.frame_errors == r.frame_errors &&
@@ -273,6 +314,13 @@ Comparison compare_runs(const RunRecord& cur, const RunRecord& ref, const Compar
   return c;
 }
 
+namespace {
+bool estimated_text(const Comparison& c) {
+  return std::any_of(c.points.begin(), c.points.end(),
+                     [](const auto& pc) { return pc.current.importance || pc.reference.importance; });
+}
+}  // namespace
+
 std::string comparison_text(const Comparison& c, const ChannelSpec& channel,
                             const CompareOptions& o) {
   std::string out;
@@ -283,8 +331,11 @@ std::string comparison_text(const Comparison& c, const ChannelSpec& channel,
       name_of(c.mode),
       c.mode == CompareMode::exact
           ? "counts must match"
-          : (c.mode == CompareMode::paired ? "McNemar on discordant frames"
-                                           : "Fisher exact on FER, clustered z on BER"),
+          : (c.mode == CompareMode::paired
+                 ? "McNemar on discordant frames"
+                 : (estimated_text(c) ? "z on importance-sampled estimates, Fisher exact on "
+                                        "counted FER, clustered z on BER"
+                                      : "Fisher exact on FER, clustered z on BER")),
       c.level, o.confidence * 100, c.tests);
   out += fmt::format("{:>9}  {:>31}  {:>31}  {:>16}  {:>9}  {:>9}  {}\n",
                      parameter_heading(channel), "current FER [interval]",

@@ -283,6 +283,9 @@ std::string plot_svg(const std::vector<PlotRun>& runs, const PlotOptions& option
     for (int metric = 0; metric < 2; ++metric) {
       if ((metric == 0 && !options.fer) || (metric == 1 && !options.ber)) continue;
       const char* c = kColours[colour++ % std::size(kColours)];
+      // Importance-sampled runs: dashed line, hollow diamonds, '?' beside an unreliable point.
+      const bool sampled = std::any_of(r.run.points.begin(), r.run.points.end(),
+                                       [](const PointResult& p) { return p.importance.has_value(); });
       std::string line, marks;
       for (const auto& p : r.run.points) {
         const PointStats s = point_stats(p, r.run.config.confidence);
@@ -294,6 +297,18 @@ std::string plot_svg(const std::vector<PlotRun>& runs, const PlotOptions& option
             x, ax.py(iv.low), ax.py(iv.high), c);
         if (v <= 0) continue;  // no errors: only the interval is drawn
         line += fmt::format("{:.1f},{:.1f} ", x, ax.py(v));
+        if (p.importance) {
+          const double y = ax.py(v);
+          marks += fmt::format(
+              "<polygon points=\"{0:.1f},{1:.1f} {2:.1f},{3:.1f} {0:.1f},{4:.1f} {5:.1f},{3:.1f}\" "
+              "fill=\"white\" stroke=\"{6}\" stroke-width=\"1.5\"/>\n",
+              x, y - 5, x + 5, y, y + 5, x - 5, c);
+          if (!p.importance->reliable)
+            marks += fmt::format(
+                "<text x=\"{:.1f}\" y=\"{:.1f}\" font-size=\"11\" fill=\"{}\">?</text>\n",
+                x + 6, y + 4, c);
+          continue;
+        }
         marks +=
             metric == 0
                 ? fmt::format("<circle cx=\"{:.1f}\" cy=\"{:.1f}\" r=\"3.5\" fill=\"{}\"/>\n", x,
@@ -303,11 +318,13 @@ std::string plot_svg(const std::vector<PlotRun>& runs, const PlotOptions& option
                       x - 3.5, ax.py(v) - 3.5, c);
         if (metric == 0 && options.failure_classes) marks += failure_class_label(p, x, ax.py(v), c);
       }
+      const std::string dash = sampled ? " stroke-dasharray=\"5 3\"" : "";
       svg += fmt::format(
-          "<polyline points=\"{}\" fill=\"none\" stroke=\"{}\" stroke-width=\"1.6\"/>\n{}", line, c,
-          marks);
-      legend.emplace_back(fmt::format("stroke=\"{}\" stroke-width=\"2\"", c),
-                          fmt::format("{} {}", metric == 0 ? "FER" : "BER", r.label));
+          "<polyline points=\"{}\" fill=\"none\" stroke=\"{}\" stroke-width=\"1.6\"{}/>\n{}", line,
+          c, dash, marks);
+      legend.emplace_back(fmt::format("stroke=\"{}\" stroke-width=\"2\"{}", c, dash),
+                          fmt::format("{} {}{}", metric == 0 ? "FER" : "BER", r.label,
+                                      sampled ? " (importance-sampled, lower estimate)" : ""));
     }
   }
   double ly = kTop + 10;

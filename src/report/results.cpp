@@ -25,6 +25,14 @@ using nlohmann::json;
 
 PointStats point_stats(const PointResult& p, double confidence) {
   PointStats s;
+  if (p.importance) {
+    // Importance-sampled: the normal interval from the estimate's standard error.
+    const double z = normal_quantile(0.5 + confidence / 2);
+    const ImportanceEstimate& e = *p.importance;
+    s.fer = {std::max(0.0, e.fer - z * e.fer_sd), std::min(1.0, e.fer + z * e.fer_sd)};
+    s.ber = {std::max(0.0, e.ber - z * e.ber_sd), std::min(1.0, e.ber + z * e.ber_sd)};
+    return s;
+  }
   s.fer = clopper_pearson(p.frame_errors, p.frames, confidence);
   const std::uint64_t per_frame = p.frames ? p.bits / p.frames : 0;
   s.ber = clustered_ber_interval(p.frames, per_frame, p.bit_errors, p.bit_error_squares, confidence,
@@ -87,6 +95,60 @@ json failure_classes_json(const PointResult& p) {
   return out;
 }
 
+// An importance-sampled point's estimate; bad(what) throws for a damaged one.
+template <class Bad>
+ImportanceEstimate parse_importance(const json& j, std::size_t n, const Bad& bad) {
+  auto number = [&](const json& o, const char* key, bool probability) {
+    if (!o.is_object() || !o.contains(key) || !o[key].is_number())
+      bad(fmt::format("importance_sampled: '{}' is missing or not a number", key));
+    const double x = o[key].get<double>();
+    if (!std::isfinite(x) || x < 0 || (probability && x > 1))
+      bad(fmt::format("importance_sampled: '{}' = {} is out of range", key, x));
+    return x;
+  };
+  auto count = [&](const json& o, const char* key) {
+    if (!o.contains(key) || !o[key].is_number_unsigned())
+      bad(fmt::format("importance_sampled: '{}' is missing or not a count", key));
+    return o[key].get<std::uint64_t>();
+  };
+  ImportanceEstimate e;
+  e.fer = number(j, "fer", true);
+  e.fer_sd = number(j, "fer_sd", false);
+  e.ber = number(j, "ber", true);
+  e.ber_sd = number(j, "ber_sd", false);
+  e.ess = number(j, "ess", false);
+  if (!j.contains("reliable") || !j["reliable"].is_boolean())
+    bad("importance_sampled: 'reliable' is missing or not true/false");
+  e.reliable = j["reliable"].get<bool>();
+  if (!j.contains("structures") || !j["structures"].is_array())
+    bad("importance_sampled: 'structures' is not a list");
+  for (const json& sj : j["structures"]) {
+    StructureEstimate se;
+    if (!sj.is_object()) bad("importance_sampled: a structure is not an object");
+    const std::uint64_t a = count(sj, "a"), b = count(sj, "b");
+    se.multiplicity = count(sj, "multiplicity");
+    se.frames = count(sj, "frames");
+    se.hits = count(sj, "hits");
+    se.shift = number(sj, "shift", false);
+    se.fer = number(sj, "fer", false);
+    se.fer_sd = number(sj, "fer_sd", false);
+    se.ber = number(sj, "ber", false);
+    se.ber_sd = number(sj, "ber_sd", false);
+    se.ess = number(sj, "ess", false);
+    const json& vars = sj.value("variables", json());
+    if (!vars.is_array() || vars.size() != a ||
+        !std::all_of(vars.begin(), vars.end(),
+                     [&](const json& v) { return v.is_number_unsigned() && v.get<std::uint64_t>() < n; }))
+      bad("importance_sampled: a structure's variables are not its a positions below n");
+    if (b > a * 64 || se.hits > se.frames || se.multiplicity == 0)
+      bad("importance_sampled: a structure's counts are inconsistent");
+    se.cls = {static_cast<std::uint32_t>(a), static_cast<std::uint32_t>(b)};
+    se.variables = vars.get<std::vector<std::uint32_t>>();
+    e.structures.push_back(std::move(se));
+  }
+  return e;
+}
+
 json point_json(const PointResult& p, const RunRecord& run, std::size_t edges) {
   const PointStats s = point_stats(p, run.config.confidence);
   json j;
@@ -118,6 +180,27 @@ json point_json(const PointResult& p, const RunRecord& run, std::size_t edges) {
   j["failed_frames"] = p.failed_frames;
   j["failure_classes"] = failure_classes_json(p);
   j["larger_failures"] = p.larger_failures;
+  if (p.importance) {
+    const ImportanceEstimate& e = *p.importance;
+    json structures = json::array();
+    for (const auto& se : e.structures) {
+      structures.push_back({{"a", se.cls.a},
+                            {"b", se.cls.b},
+                            {"multiplicity", se.multiplicity},
+                            {"shift", se.shift},
+                            {"frames", se.frames},
+                            {"hits", se.hits},
+                            {"fer", se.fer},
+                            {"fer_sd", se.fer_sd},
+                            {"ber", se.ber},
+                            {"ber_sd", se.ber_sd},
+                            {"ess", se.ess},
+                            {"variables", se.variables}});
+    }
+    j["importance_sampled"] = {{"fer", e.fer},       {"fer_sd", e.fer_sd}, {"ber", e.ber},
+                               {"ber_sd", e.ber_sd}, {"ess", e.ess},       {"reliable", e.reliable},
+                               {"structures", structures}};
+  }
   return j;
 }
 
@@ -150,14 +233,18 @@ T get(const json& j, const char* key, const std::string& source, const std::stri
 
 }  // namespace
 
+std::string matrix_sha256(const Code& code) {
+  std::ostringstream canonical;
+  write_code(code, MatrixFormat::tannery, canonical);
+  return sha256_hex(canonical.str());
+}
+
 CodeRecord code_record(const std::string& source, const Code& code, std::size_t k) {
   CodeRecord r;
   r.source = source;
   r.path = resolve_code_path(source);
   r.sha256 = r.path == "-" ? std::string() : sha256_hex(read_text_file(r.path));
-  std::ostringstream canonical;
-  write_code(code, MatrixFormat::tannery, canonical);
-  r.matrix_sha256 = sha256_hex(canonical.str());
+  r.matrix_sha256 = matrix_sha256(code);
   r.n = code.n();
   r.m = code.m();
   r.k = k;
@@ -465,6 +552,7 @@ RunRecord parse_results(const json& j, const std::string& source, std::string_vi
       if (const std::string problem = failure_anatomy_problem(p, r.code.n); !problem.empty())
         bad(problem);
     }
+    if (pj.contains("importance_sampled")) p.importance = parse_importance(pj["importance_sampled"], r.code.n, bad);
     r.points.push_back(std::move(p));
   }
   return r;

@@ -82,16 +82,32 @@ struct StructureClass {
   auto operator<=>(const StructureClass&) const = default;
 };
 
+// A set's class and the shape of the subgraph it induces.
+struct StructureShape {
+  StructureClass cls;
+  // Every variable of the set has more checks of even degree than of odd degree in the subgraph
+  // (an absorbing set, Dolecek et al., "Analysis of absorbing sets and fully absorbing sets of
+  // array-based LDPC codes", 2010): bit flipping cannot leave it.
+  bool absorbing = false;
+  bool elementary = false;                // every check of the subgraph has degree 1 or 2
+  std::vector<std::uint32_t> odd_checks;  // the b checks of odd degree, increasing
+};
+
 // Classifies variable sets of one code, reusing its buffers (one per thread).
 class StructureClassifier {
  public:
   explicit StructureClassifier(const Code& code);
   // variables: distinct indices below n (Error otherwise).
   StructureClass classify(std::span<const std::uint32_t> variables);
+  StructureShape shape(std::span<const std::uint32_t> variables);
 
  private:
+  // Counts the set's edges into each check (listed in touched_); Error for a bad index.
+  void load(std::span<const std::uint32_t> variables);
+  void clear(std::span<const std::uint32_t> variables);
+
   const Code& code_;
-  std::vector<std::uint8_t> state_;  // per check: parity of the set's edges into it, listed
+  std::vector<std::uint32_t> degree_;  // per check: the set's edges into it
   std::vector<std::uint8_t> in_set_;
   std::vector<std::uint32_t> touched_;
 };

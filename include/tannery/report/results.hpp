@@ -21,6 +21,8 @@ struct CodeRecord {
   std::size_t n = 0, m = 0, k = 0, edges = 0;
 };
 
+// SHA-256 of the code's matrix written in tannery's own format (the same for any file format).
+std::string matrix_sha256(const Code& code);
 // The provenance of a code: where it came from (source as given, resolved path, the file's
 // SHA-256), the SHA-256 of its matrix in tannery's own format (the same for any file format)
 // and its dimensions; k from the encoder.

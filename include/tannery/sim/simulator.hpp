@@ -81,7 +81,34 @@ struct FailureClassCount {
 inline constexpr std::uint32_t kAnatomyMaxBits = 40;
 inline constexpr std::size_t kAnatomyExamples = 3;
 
-// Counts of one sweep point (only whole chunks, in order).
+// One structure's share of an importance-sampled point (floor/estimate.hpp).
+struct StructureEstimate {
+  std::vector<std::uint32_t> variables;  // the structure (its orbit's representative)
+  StructureClass cls;
+  std::uint64_t multiplicity = 1;  // sets in its orbit, all counted in fer
+  double shift = 0;                // noise mean shift on its bits, in signal amplitudes
+  std::uint64_t frames = 0;        // biased frames decoded
+  std::uint64_t hits = 0;          // of them, failures attributed to the structure
+  double fer = 0, fer_sd = 0;      // its contribution (whole orbit) and standard error
+  double ber = 0, ber_sd = 0;
+  double ess = 0;  // effective sample size of the weighted hits, (sum w)^2 / sum w^2
+  bool operator==(const StructureEstimate&) const = default;
+};
+
+// A point estimated by importance sampling: the sum over structures of each one's estimate;
+// a lower estimate of the true FER (structures not listed are not counted).
+struct ImportanceEstimate {
+  double fer = 0, fer_sd = 0, ber = 0, ber_sd = 0;
+  // Smallest effective sample size among the structures carrying >= 5% of fer (0: no hit).
+  double ess = 0;
+  bool reliable = false;  // fer > 0 and that ess reaches the run's minimum
+  std::vector<StructureEstimate> structures;
+  bool operator==(const ImportanceEstimate&) const = default;
+};
+
+// Counts of one sweep point (only whole chunks, in order), or an importance-sampled estimate:
+// then frames and frame_errors count the biased frames and their failures, and fer() and ber()
+// are the estimate's.
 struct PointResult {
   double parameter = 0;
   std::uint64_t frames = 0, frame_errors = 0, bit_errors = 0, bits = 0;
@@ -95,11 +122,14 @@ struct PointResult {
   bool complete = false;
   std::string stop_reason;  // why the point stopped (or "interrupted")
   double seconds = 0;       // wall-clock time spent on the point
+  std::optional<ImportanceEstimate> importance;
 
   double fer() const {
+    if (importance) return importance->fer;
     return frames ? static_cast<double>(frame_errors) / static_cast<double>(frames) : 0;
   }
   double ber() const {
+    if (importance) return importance->ber;
     return bits ? static_cast<double>(bit_errors) / static_cast<double>(bits) : 0;
   }
   double mean_iterations() const {
