@@ -4,6 +4,7 @@
 #include <unistd.h>
 
 #include <cstdio>
+#include <numeric>
 #include <thread>
 
 #include "commands.hpp"
@@ -168,8 +169,11 @@ std::string estimate_table(const RunRecord& run, const std::vector<FloorEstimate
                            : "UNRELIABLE (no failure on a listed structure)");
     for (const auto& se : e.structures) {
       out += fmt::format(
-          "{:>9} {:>11.3e}   ({}, {}) x{}, shift {:.3f}, {} hits of {}, ESS {:.1f}\n", "",
-          se.fer, se.cls.a, se.cls.b, se.multiplicity, se.shift, se.hits, se.frames, se.ess);
+          "{:>9} {:>11.3e}   ({}, {}) x{}, mean shift {:.3f}, {} hits of {}, ESS {:.1f}\n", "",
+          se.fer, se.cls.a, se.cls.b, se.multiplicity,
+          std::accumulate(se.shifts.begin(), se.shifts.end(), 0.0) /
+              static_cast<double>(std::max<std::size_t>(se.shifts.size(), 1)),
+          se.hits, se.frames, se.ess);
     }
   }
   return out;

@@ -24,6 +24,8 @@ constexpr double kMaxShift = 3;               // bisection range of the shift
 constexpr int kBisectionSteps = 14;           // shift to 3 / 2^14
 constexpr std::size_t kMaxStructures = 1u << 20;  // structure index in the noise stream id
 constexpr double kLeadingShare = 0.05;        // structures that must be reliable
+constexpr int kCrossEntropyRounds = 3;        // refinements of the shifts before the estimate
+constexpr double kSmoothing = 0.7;            // weight of a round's update
 
 // Every member of the sampled structures' orbits, and for each bit the members holding it.
 class Attribution {
@@ -189,12 +191,12 @@ std::vector<FloorEstimatePoint> floor_estimate(std::shared_ptr<const Code> share
     }
     attribution.finish();
 
-    // Step 3: biased frames, task by task.
-    const std::uint64_t tasks_per = (settings.frames + kBatch - 1) / kBatch;
-    const std::uint64_t total_tasks = tasks_per * order.size();
-    std::vector<TaskSums> sums(total_tasks);
+    // Step 3: biased frames, task by task: cross-entropy rounds refine each structure's
+    // per-bit shifts from the weighted noise of its hits, then the estimate's frames.
+    std::vector<std::vector<double>> shifts(order.size());
+    for (std::size_t o = 0; o < order.size(); ++o)
+      shifts[o].assign(sets[biases[order[o]].structure].size(), *biases[order[o]].shift);
     std::vector<Attribution> attributions(pool.size(), attribution);
-    std::atomic<std::uint64_t> done{0};
     struct Scratch {
       std::vector<double> llr, gauss, logw;
       std::vector<std::uint8_t> hard;
@@ -202,66 +204,113 @@ std::vector<FloorEstimatePoint> floor_estimate(std::shared_ptr<const Code> share
       std::vector<std::uint32_t> wrong;
     };
     std::vector<Scratch> scratch(pool.size());
+    // Frames first.. of structure o's stream into t (with the hits' weighted noise per bit in
+    // hit_noise when given).
+    auto run_frames = [&](std::size_t o, std::uint64_t first, std::size_t count, unsigned worker,
+                          TaskSums& t, std::vector<double>* hit_noise) {
+      const std::size_t i = biases[order[o]].structure;
+      const auto& set = sets[i];
+      const auto& shift = shifts[o];
+      Scratch& sc = scratch[worker];
+      sc.llr.resize(count * n);
+      sc.gauss.resize(n);
+      sc.logw.resize(count);
+      sc.hard.resize(count * n);
+      sc.outcome.resize(count);
+      const auto stream = static_cast<std::uint32_t>(pi << 20 | i);
+      for (std::size_t f = 0; f < count; ++f) {
+        frame_gaussians(FrameId{settings.seed, stream, first + f}, sc.gauss);
+        double* llr = sc.llr.data() + f * n;
+        for (std::size_t v = 0; v < n; ++v) llr[v] = 2 * (1 + sigma * sc.gauss[v]) / s2;
+        double logw = 0;
+        for (std::size_t b = 0; b < set.size(); ++b) {
+          const double noise = sigma * sc.gauss[set[b]] - shift[b];
+          logw += shift[b] * shift[b] + 2 * shift[b] * noise;
+          llr[set[b]] = 2 * (1 + noise) / s2;
+        }
+        sc.logw[f] = logw / (2 * s2);
+      }
+      decoders[worker]->decode(sc.llr, sc.hard, {}, sc.outcome);
+      if (hit_noise) hit_noise->assign(set.size(), 0);
+      for (std::size_t f = 0; f < count; ++f) {
+        const std::uint8_t* hard = sc.hard.data() + f * n;
+        const int it = sc.outcome[f].iterations;
+        t.iterations += static_cast<std::uint64_t>(it);
+        if (t.histogram.size() <= static_cast<std::size_t>(it)) t.histogram.resize(it + 1);
+        ++t.histogram[it];
+        sc.wrong.clear();
+        for (std::size_t v = 0; v < n; ++v) {
+          if (hard[v]) sc.wrong.push_back(static_cast<std::uint32_t>(v));
+        }
+        if (sc.wrong.empty()) continue;
+        ++t.failures;
+        t.coded_bit_errors += sc.wrong.size();
+        const double share = attributions[worker].share(sc.wrong, o);
+        if (share == 0) continue;
+        std::uint64_t errors = 0;
+        for (auto v : info) errors += hard[v] != 0;
+        ++t.hits;
+        t.bit_errors += errors;
+        const double w = share * std::exp(sc.logw[f]);
+        const double we = w * static_cast<double>(errors) / static_cast<double>(k);
+        t.w += w, t.w2 += w * w, t.we += we, t.we2 += we * we;
+        if (hit_noise) {
+          // Regenerated: the scratch noise holds only the last frame's samples.
+          frame_gaussians(FrameId{settings.seed, stream, first + f}, sc.gauss);
+          for (std::size_t b = 0; b < set.size(); ++b)
+            (*hit_noise)[b] += w * (sigma * sc.gauss[set[b]] - shift[b]);
+        }
+      }
+    };
+    const std::uint64_t pilot = std::max<std::uint64_t>(kBatch, settings.frames / 8);
+    const std::uint64_t pilot_tasks = (pilot + kBatch - 1) / kBatch;
+    const std::uint64_t tasks_per = (settings.frames + kBatch - 1) / kBatch;
+    const std::uint64_t total_tasks = tasks_per * order.size();
+    const std::uint64_t work = (settings.shift ? 0 : kCrossEntropyRounds * pilot_tasks * order.size()) + total_tasks;
+    std::atomic<std::uint64_t> done{0};
+    auto tick = [&] {
+      if (progress) progress(pi, done.load() * kBatch, work * kBatch);
+    };
+    for (int round = 0; round < (settings.shift ? 0 : kCrossEntropyRounds); ++round) {
+      std::vector<TaskSums> sums(pilot_tasks * order.size());
+      std::vector<std::vector<double>> noise(sums.size());
+      pool.run(
+          sums.size(),
+          [&](std::size_t task, unsigned worker) {
+            const std::size_t o = task / pilot_tasks;
+            const std::uint64_t first =
+                (std::uint64_t{1} << 40) * static_cast<std::uint64_t>(round + 1) +
+                (task % pilot_tasks) * kBatch;
+            run_frames(o, first, kBatch, worker, sums[task], &noise[task]);
+            ++done;
+          },
+          std::chrono::milliseconds(500), tick);
+      for (std::size_t o = 0; o < order.size(); ++o) {
+        double w = 0;
+        std::vector<double> mean(shifts[o].size(), 0);
+        for (std::uint64_t t = o * pilot_tasks; t < (o + 1) * pilot_tasks; ++t) {
+          w += sums[t].w;
+          for (std::size_t b = 0; b < mean.size(); ++b) mean[b] += noise[t][b];
+        }
+        if (!(w > 0)) continue;  // no hit: keep the shifts
+        for (std::size_t b = 0; b < mean.size(); ++b) {
+          const double update = std::clamp(-mean[b] / w, 0.0, kMaxShift);
+          shifts[o][b] = kSmoothing * update + (1 - kSmoothing) * shifts[o][b];
+        }
+      }
+    }
+    std::vector<TaskSums> sums(total_tasks);
     pool.run(
         total_tasks,
         [&](std::size_t task, unsigned worker) {
           const std::size_t o = task / tasks_per;
-          const std::size_t i = biases[order[o]].structure;
-          const double s = *biases[order[o]].shift;
-          const auto& set = sets[i];
-          const double a = static_cast<double>(set.size());
           const std::uint64_t first = (task % tasks_per) * kBatch;
           const std::size_t count =
               static_cast<std::size_t>(std::min<std::uint64_t>(kBatch, settings.frames - first));
-          Scratch& sc = scratch[worker];
-          sc.llr.resize(count * n);
-          sc.gauss.resize(n);
-          sc.logw.resize(count);
-          sc.hard.resize(count * n);
-          sc.outcome.resize(count);
-          const auto stream = static_cast<std::uint32_t>(pi << 20 | i);
-          for (std::size_t f = 0; f < count; ++f) {
-            frame_gaussians(FrameId{settings.seed, stream, first + f}, sc.gauss);
-            double* llr = sc.llr.data() + f * n;
-            for (std::size_t v = 0; v < n; ++v) llr[v] = 2 * (1 + sigma * sc.gauss[v]) / s2;
-            double along = 0;  // sum of the structure's noise samples
-            for (auto v : set) {
-              const double noise = sigma * sc.gauss[v] - s;
-              along += noise;
-              llr[v] = 2 * (1 + noise) / s2;
-            }
-            sc.logw[f] = (a * s * s + 2 * s * along) / (2 * s2);
-          }
-          decoders[worker]->decode(sc.llr, sc.hard, {}, sc.outcome);
-          TaskSums& t = sums[task];
-          for (std::size_t f = 0; f < count; ++f) {
-            const std::uint8_t* hard = sc.hard.data() + f * n;
-            const int it = sc.outcome[f].iterations;
-            t.iterations += static_cast<std::uint64_t>(it);
-            if (t.histogram.size() <= static_cast<std::size_t>(it)) t.histogram.resize(it + 1);
-            ++t.histogram[it];
-            sc.wrong.clear();
-            for (std::size_t v = 0; v < n; ++v) {
-              if (hard[v]) sc.wrong.push_back(static_cast<std::uint32_t>(v));
-            }
-            if (sc.wrong.empty()) continue;
-            ++t.failures;
-            t.coded_bit_errors += sc.wrong.size();
-            const double share = attributions[worker].share(sc.wrong, o);
-            if (share == 0) continue;
-            std::uint64_t errors = 0;
-            for (auto v : info) errors += hard[v] != 0;
-            ++t.hits;
-            t.bit_errors += errors;
-            const double w = share * std::exp(sc.logw[f]);
-            const double we = w * static_cast<double>(errors) / static_cast<double>(k);
-            t.w += w, t.w2 += w * w, t.we += we, t.we2 += we * we;
-          }
+          run_frames(o, first, count, worker, sums[task], nullptr);
           ++done;
         },
-        std::chrono::milliseconds(500), [&] {
-          if (progress) progress(pi, done.load() * kBatch, total_tasks * kBatch);
-        });
+        std::chrono::milliseconds(500), tick);
 
     // Step 4: estimates per structure, then the point.
     PointResult& p = point.point;
@@ -284,7 +333,7 @@ std::vector<FloorEstimatePoint> floor_estimate(std::shared_ptr<const Code> share
       se.variables = sets[bias.structure];
       se.cls = structures[bias.structure].shape.cls;
       se.multiplicity = multiplicity[bias.structure];
-      se.shift = *bias.shift;
+      se.shifts = shifts[o];
       se.frames = settings.frames;
       se.hits = total.hits;
       const double m = static_cast<double>(se.multiplicity);

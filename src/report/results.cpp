@@ -129,7 +129,13 @@ ImportanceEstimate parse_importance(const json& j, std::size_t n, const Bad& bad
     se.multiplicity = count(sj, "multiplicity");
     se.frames = count(sj, "frames");
     se.hits = count(sj, "hits");
-    se.shift = number(sj, "shift", false);
+    const json& shifts = sj.value("shifts", json());
+    if (!shifts.is_array() || shifts.size() != a ||
+        !std::all_of(shifts.begin(), shifts.end(), [](const json& x) {
+          return x.is_number() && std::isfinite(x.get<double>()) && x.get<double>() >= 0;
+        }))
+      bad("importance_sampled: a structure's shifts are not a finite numbers >= 0, one per bit");
+    se.shifts = shifts.get<std::vector<double>>();
     se.fer = number(sj, "fer", false);
     se.fer_sd = number(sj, "fer_sd", false);
     se.ber = number(sj, "ber", false);
@@ -187,7 +193,7 @@ json point_json(const PointResult& p, const RunRecord& run, std::size_t edges) {
       structures.push_back({{"a", se.cls.a},
                             {"b", se.cls.b},
                             {"multiplicity", se.multiplicity},
-                            {"shift", se.shift},
+                            {"shifts", se.shifts},
                             {"frames", se.frames},
                             {"hits", se.hits},
                             {"fer", se.fer},

@@ -86,7 +86,7 @@ struct StructureEstimate {
   std::vector<std::uint32_t> variables;  // the structure (its orbit's representative)
   StructureClass cls;
   std::uint64_t multiplicity = 1;  // sets in its orbit, all counted in fer
-  double shift = 0;                // noise mean shift on its bits, in signal amplitudes
+  std::vector<double> shifts;      // noise mean shift on each of its bits, in signal amplitudes
   std::uint64_t frames = 0;        // biased frames decoded
   std::uint64_t hits = 0;          // of them, failures attributed to the structure
   double fer = 0, fer_sd = 0;      // its contribution (whole orbit) and standard error
