@@ -218,6 +218,8 @@ void estimate(EstimateCommand& o) {
   run.config.decoder = resolve_kernel(s.decoder, *code);
   run.config.sweep = s.sweep;
   run.config.seed = s.seed;
+  run.config.chunk_frames = 64;  // frames per task of the estimate
+  run.config.all_zero = true;    // the all-zero word is sent, as the weights assume
   run.config.confidence = o.confidence;
   run.rate_for_snr = run.effective_rate = static_cast<double>(k) / static_cast<double>(code->n());
   run.threads_used = s.threads ? s.threads : std::max(1u, std::thread::hardware_concurrency());

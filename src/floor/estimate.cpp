@@ -127,7 +127,8 @@ std::vector<FloorEstimatePoint> floor_estimate(std::shared_ptr<const Code> share
   std::vector<std::unique_ptr<Decoder>> decoders;
   for (unsigned t = 0; t < pool.size(); ++t)
     decoders.push_back(make_decoder(shared, settings.decoder));
-  const auto& info = encoder.info_positions();
+  std::vector<std::uint8_t> is_info(n, 0);
+  for (auto v : encoder.info_positions()) is_info[v] = 1;
 
   std::vector<FloorEstimatePoint> out;
   for (std::size_t pi = 0; pi < settings.sweep.size(); ++pi) {
@@ -247,12 +248,18 @@ std::vector<FloorEstimatePoint> floor_estimate(std::shared_ptr<const Code> share
         t.coded_bit_errors += sc.wrong.size();
         const double share = attributions[worker].share(sc.wrong, o);
         if (share == 0) continue;
+        // Information bits wrong, averaged over the orbit: the same failure on a shifted member
+        // hits other positions, and information positions are not shift-invariant.
         std::uint64_t errors = 0;
-        for (auto v : info) errors += hard[v] != 0;
+        for (std::uint64_t shift_t = 0; shift_t < multiplicity[i]; ++shift_t) {
+          for (auto v : orbits.shifted(sc.wrong, shift_t)) errors += is_info[v];
+        }
+        const double mean_errors =
+            static_cast<double>(errors) / static_cast<double>(multiplicity[i]);
         ++t.hits;
-        t.bit_errors += errors;
+        t.bit_errors += static_cast<std::uint64_t>(std::llround(mean_errors));
         const double w = share * std::exp(sc.logw[f]);
-        const double we = w * static_cast<double>(errors) / static_cast<double>(k);
+        const double we = w * mean_errors / static_cast<double>(k);
         t.w += w, t.w2 += w * w, t.we += we, t.we2 += we * we;
         if (hit_noise) {
           // Regenerated: the scratch noise holds only the last frame's samples.

@@ -20,16 +20,19 @@ bool has_all_failures(const PointResult& p) {
   return p.failed_frames.size() == p.frame_errors;
 }
 
+// A counted point's BER and the variance of that estimate from per-frame (clustered) bit errors.
+std::pair<double, double> ber_moments(const PointResult& p) {
+  const double nf = static_cast<double>(p.frames),
+               k = p.frames ? static_cast<double>(p.bits) / nf : 1;
+  const double mean = static_cast<double>(p.bit_errors) / nf;
+  const double var =
+      p.frames > 1 ? std::max(0.0, (p.bit_error_squares - nf * mean * mean) / (nf - 1)) : 0;
+  return {mean / k, var / nf / (k * k)};
+}
+
 // One-sided z-test that the current BER is larger, with per-frame (clustered) variances.
 double ber_p(const PointResult& cur, const PointResult& ref) {
-  auto moments = [](const PointResult& p) {
-    const double nf = static_cast<double>(p.frames),
-                 k = p.frames ? static_cast<double>(p.bits) / nf : 1;
-    const double mean = static_cast<double>(p.bit_errors) / nf;
-    const double var =
-        p.frames > 1 ? std::max(0.0, (p.bit_error_squares - nf * mean * mean) / (nf - 1)) : 0;
-    return std::pair{mean / k, var / nf / (k * k)};
-  };
+  const auto moments = ber_moments;
   if (cur.frames == 0 || ref.frames == 0) return 1;
   const auto [bc, vc] = moments(cur);
   const auto [br, vr] = moments(ref);
@@ -72,8 +75,9 @@ std::pair<double, double> fer_and_sd(const PointResult& p) {
 
 std::pair<double, double> ber_and_sd(const PointResult& p) {
   if (p.importance) return {p.importance->ber, p.importance->ber_sd};
-  const double b = p.ber(), n = static_cast<double>(std::max<std::uint64_t>(p.bits, 1));
-  return {b, std::sqrt(b * (1 - b) / n)};
+  if (p.frames == 0) return {0, 0};
+  const auto [ber, variance] = ber_moments(p);
+  return {ber, std::sqrt(variance)};
 }
 
 }  // namespace
