@@ -51,7 +51,8 @@ struct SearchCommand {
 
 void add_search_options(CLI::App& sub, SearchCommand& o) {
   sub.add_option("--amplitudes", o.amplitudes,
-                 "impulse amplitudes tried in turn, in signal units, increasing (default "
+                 "impulse amplitudes, in signal units, increasing: the smallest that breaks the "
+                 "decoder is found by bisection (default "
                  "2,3,4,5,6,7,8,10,12,14,16,20,24,32; the impulse bits' LLR is background * (1 - "
                  "A))");
   sub.add_option("--background", o.settings.background,

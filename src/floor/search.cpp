@@ -92,10 +92,14 @@ class Catalogue {
   std::vector<FoundStructure> found_;
 };
 
-// One impulse's state: the next amplitude to try, and its failure once found.
+// One impulse's bisection over the amplitude ladder (decoding is taken to fail from some
+// amplitude on): amplitudes below `low` decoded correctly, the one at `high` failed (high = the
+// ladder's size: none yet); the next one tried is the middle. The failure kept is the one at the
+// smallest failing amplitude tried.
 struct ImpulseState {
-  std::size_t next = 0;
-  bool done = false;
+  std::size_t low = 0, high = 0;
+  std::size_t next() const { return (low + high) / 2; }
+  bool done() const { return low >= high; }
   std::vector<std::uint32_t> wrong;  // failure's wrong bits (empty: none or too many)
   bool converged = false, too_large = false;
   double amplitude = 0;
@@ -206,6 +210,7 @@ FloorSearchResult floor_search(std::shared_ptr<const Code> shared,
   for (unsigned t = 0; t < pool.size(); ++t) decoders.push_back(make_decoder(shared, settings.decoder));
 
   std::vector<ImpulseState> states(impulses.size());
+  for (auto& st : states) st.high = settings.amplitudes.size();
   std::atomic<std::uint64_t> done{0}, decodes{0};
   const std::uint64_t total = impulses.size();
   auto tick = [&] {
@@ -236,7 +241,7 @@ FloorSearchResult floor_search(std::shared_ptr<const Code> shared,
             const Impulse& imp = impulses[active[first + f]];
             double* llr = s.llr.data() + f * n;
             std::copy(background.begin(), background.end(), llr);
-            const double value = settings.background * (1 - settings.amplitudes[st.next]);
+            const double value = settings.background * (1 - settings.amplitudes[st.next()]);
             llr[imp.first] = value;
             if (imp.second != kNone) llr[imp.second] = value;
           }
@@ -256,21 +261,21 @@ FloorSearchResult floor_search(std::shared_ptr<const Code> shared,
               wrong.push_back(static_cast<std::uint32_t>(v));
             }
             if (wrong.empty() && !too_large) {
-              if (++st.next == settings.amplitudes.size()) st.done = true, ++done;
-              continue;
+              st.low = st.next() + 1;
+            } else {
+              st.high = st.next();
+              st.amplitude = settings.amplitudes[st.high];
+              st.converged = s.outcome[f].converged;
+              st.too_large = too_large;
+              st.wrong = too_large ? std::vector<std::uint32_t>{} : std::move(wrong);
             }
-            st.done = true;
-            st.amplitude = settings.amplitudes[st.next];
-            st.converged = s.outcome[f].converged;
-            st.too_large = too_large;
-            if (!too_large) st.wrong = std::move(wrong);
-            ++done;
+            if (st.done()) ++done;
           }
         },
         std::chrono::milliseconds(500), tick);
     std::vector<std::size_t> still;
     for (std::size_t i : active) {
-      if (!states[i].done) still.push_back(i);
+      if (!states[i].done()) still.push_back(i);
     }
     active = std::move(still);
   }

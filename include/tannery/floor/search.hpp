@@ -11,9 +11,10 @@
 // Every impulse is decoded from the noiseless all-zero word: each bit's channel LLR is the
 // background (times 1 ± dither, a fixed pattern drawn from the seed so ties break), the impulse
 // bits' LLR is background * (1 - A) for amplitude A in signal units (A = 2: the bit received as
-// a clean 1). For each impulse the amplitudes are tried in increasing order until decoding
-// fails; the wrong bits at that point (undecided included) are a codeword when the decoder
-// converged to it, else a trapping-set candidate. For a quasi-cyclic code every structure stands
+// a clean 1). For each impulse the smallest amplitude of the ladder at which decoding fails is
+// found by bisection (about log2 of the ladder's length decodes, taking failure to persist at
+// larger amplitudes, as the method does); the wrong bits there (undecided included) are a
+// codeword when the decoder converged to it, else a trapping-set candidate. For a quasi-cyclic code every structure stands
 // for its orbit under the code's cyclic shifts (all blocks shifted alike), counted in its
 // multiplicity, and impulses are placed at one position per block column only.
 #pragma once
@@ -33,7 +34,7 @@ struct FloorSearchSettings {
   DecoderSettings decoder;  // sum-product, flooding, 50 iterations by default
   double background = 2.0;  // channel LLR of every bit of the all-zero word (BPSK, sigma = 1)
   double dither = 0.05;     // relative spread of the background, from the seed
-  std::vector<double> amplitudes = {2, 3, 4, 5, 6, 7, 8, 10, 12, 14, 16, 20, 24, 32};
+  std::vector<double> amplitudes = {2, 3, 4, 5, 6, 7, 8, 10, 12, 14, 16, 20, 24, 32};  // increasing
   // 1: single impulses; 2: also pairs of positions that share a check (every codeword of
   // weight >= 2 holds such a pair); 0: pairs when n <= 4096.
   int impulse_order = 0;
