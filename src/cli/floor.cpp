@@ -165,9 +165,9 @@ std::string estimate_table(const RunRecord& run, const std::vector<FloorEstimate
     out += fmt::format("{:>9.4g} {:>11.3e} [{:9.3e}, {:9.3e}] {:>10} {:>9} {:>8.1f}  {}\n",
                        p.parameter, e.fer, s.fer.low, s.fer.high, p.frames, hits, e.ess,
                        e.reliable ? "lower estimate"
-                       : e.fer > 0
-                           ? fmt::format("UNRELIABLE (ESS below {:g})", min_ess)
-                           : "UNRELIABLE (no failure on a listed structure)");
+                       : e.fer > 0 ? fmt::format("UNRELIABLE (ESS below {:g})", min_ess)
+                       : hits > 0  ? "UNRELIABLE (weights below double precision)"
+                                   : "UNRELIABLE (no failure on a listed structure)");
     for (const auto& se : e.structures) {
       out += fmt::format(
           "{:>9} {:>11.3e}   ({}, {}) x{}, mean shift {:.3f}, {} hits of {}, ESS {:.1f}\n", "",

@@ -58,6 +58,15 @@ variant("chunk.json", lambda j: j["run"].update(chunk_frames=0))
 variant("missing.json", lambda j: j.pop("points"))
 open("truncated.json", "w").write(json.dumps(good)[:200])
 PY
+"$T" floor search hamming-7-4 --json > good-structures.json || fail "fixture structures"
+/usr/bin/python3 - <<'PY'
+import json
+good = json.load(open("good-structures.json"))
+open("truncated-structures.json", "w").write(json.dumps(good)[:150])
+j = json.loads(json.dumps(good)); j["structures"][0]["variables"] = [1, 1, 2]; json.dump(j, open("repeated.json", "w"))
+j = json.loads(json.dumps(good)); j["structures"][0]["variables"] = [1, 7]; json.dump(j, open("beyond.json", "w"))
+j = json.loads(json.dumps(good)); j["version"] = 99; json.dump(j, open("version-structures.json", "w"))
+PY
 mkdir adir
 echo "keep me" > sentinel.out
 cp sentinel.out sentinel.orig
@@ -160,5 +169,17 @@ construct lift --base ragged.base --lifting 4 -o sentinel.out|ragged.base:2: row
 construct lift --base big.base --lifting 4 -o sentinel.out|big.base:1: base multiplicity 256 is out of range
 simulate --code hamming-7-4 --sweep 1 --replay 0:1x -o sentinel.out --plot ''|--replay expects POINT:FRAME
 decode --code hamming-7-4 --puncture tail.map good.f32 -o sentinel.out|tail.map:1: '3x' is not an index
+floor estimate hamming-7-4 --structures truncated-structures.json --sweep 5 -o sentinel.out|truncated-structures.json: not JSON (byte 151)
+floor estimate hamming-7-4 --structures repeated.json --sweep 5 -o sentinel.out|repeated.json: structure 1: a position is repeated
+floor estimate hamming-7-4 --structures beyond.json --sweep 5 -o sentinel.out|beyond.json: structure 1: 'variables' must be a list of positions below n = 7
+floor estimate hamming-15-11 --structures good-structures.json --sweep 5 -o sentinel.out|good-structures.json: its structures belong to another code
+floor estimate hamming-7-4 --structures version-structures.json --sweep 5 -o sentinel.out|version-structures.json: structures version 99
+floor estimate hamming-7-4 --structures adir --sweep 5 -o sentinel.out|adir
+floor estimate hamming-7-4 --sweep nan -o sentinel.out|sweep: 'nan' is not a number
+floor estimate hamming-7-4 --sweep 5 --frames 1 -o sentinel.out|--frames
+floor estimate hamming-7-4 --sweep 5 --shift -1 -o sentinel.out|--shift
+floor search hamming-7-4 --amplitudes 0,2 -o sentinel.out|impulse amplitudes must be increasing
+floor search hamming-7-4 --failures good-structures.json -o sentinel.out|good-structures.json: not a tannery results file
+floor search hamming-7-4 --failures truncated.json -o sentinel.out|truncated.json
 CASES
 finish
