@@ -35,6 +35,25 @@ printf '1 1 1 1 1 1\n1 1 1 1 1 1\n1 1 1 1 1 1\n' >base.txt
 strip() { $PY -c 'import json,sys; j=json.load(open(sys.argv[1])); j.pop("created"); j["search"].pop("seconds"); print(json.dumps(j))' "$1"; }
 [ "$(strip structures.json)" = "$(strip structures1.json)" ] || fail "floor search depends on threads"
 
+# Failures kept by a simulation seed the search: every failure example of the run is in the
+# structures file, as itself or as a cyclic shift (Z = 8) of a listed set.
+"$T" simulate --code small.qc --sweep 4 --frame-errors 300 -o failures.json --plot "" --quiet \
+  || fail "simulation with failures"
+"$T" floor search small.qc --failures failures.json -o seeded.json --quiet || fail "seeded search"
+$PY - failures.json seeded.json <<'EOF' || fail "simulation failures missing from the seeded search"
+import json, sys
+examples = [e for p in json.load(open(sys.argv[1]))["points"] for c in p["failure_classes"]
+            for e in c["examples"]]
+found = {tuple(s["variables"]) for s in json.load(open(sys.argv[2]))["structures"]}
+z = 8
+def shifts(s):
+    return {tuple(sorted((v // z) * z + (v % z + t) % z for v in s)) for t in range(z)}
+assert examples, "the simulation kept no failure"
+missing = [e for e in examples if not shifts(e) & found]
+assert not missing, missing
+print(f"{len(examples)} simulation failures, all in the seeded search's {len(found)} structures")
+EOF
+
 # 2. Importance sampling (Cole, Wilson, Hall & Giallorenzi 2006) against brute force: the
 # estimate's interval overlaps the Clopper-Pearson interval of a plain simulation at 6 and 7 dB.
 "$T" simulate --code small.qc --all-zero --sweep 6,7 --frame-errors 200 --max-frames 50000000 \
