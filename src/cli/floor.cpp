@@ -5,7 +5,6 @@
 
 #include <cstdio>
 #include <numeric>
-#include <thread>
 
 #include "commands.hpp"
 #include "simulate_output.hpp"
@@ -14,7 +13,6 @@
 #include "tannery/io/matrix_io.hpp"
 #include "tannery/parse.hpp"
 #include "tannery/report/structures.hpp"
-#include "tannery/version.hpp"
 
 namespace tannery::cli {
 
@@ -124,10 +122,7 @@ void search(const SearchCommand& o) {
   FloorSearchSettings s = o.settings;
   OutputFile out(o.output, false);
   const FloorSearchResult r = run_search(o, code, s, !o.quiet && isatty(STDERR_FILENO));
-  StructuresRecord record{std::string(version()), utc_now(), code_record(o.input.code, *code, 0),
-                          s.decoder, s, r};
-  record.code.k = Encoder(*code).k();
-  const std::string json = structures_json(record);
+  const std::string json = structures_json(new_structures_record(o.input.code, *code, s, r));
   if (o.json) {
     fmt::print("{}", json);
   } else if (!o.quiet) {
@@ -198,37 +193,21 @@ void estimate(EstimateCommand& o) {
   const bool shown = !o.quiet && isatty(STDERR_FILENO);
   std::vector<FoundStructure> list;
   if (!o.structures.empty()) {
-    StructuresRecord r = parse_structures_json(read_text_file(o.structures), o.structures, *code);
-    list = std::move(r.result.codewords);
-    list.insert(list.end(), r.result.trapping_sets.begin(), r.result.trapping_sets.end());
+    list = parse_structures_json(read_text_file(o.structures), o.structures, *code).result.all();
   } else {
     FloorSearchSettings ss = o.search.settings;
     const FloorSearchResult r = run_search(o.search, code, ss, shown);
     if (!o.quiet) fmt::print("{}", search_heading(o.search.input.code, *code, ss, r));
-    list = r.codewords;
-    list.insert(list.end(), r.trapping_sets.begin(), r.trapping_sets.end());
+    list = r.all();
     if (list.empty())
       throw Error("floor estimate: the search found no structure to bias toward; try --impulses 2 "
                   "or more --amplitudes");
   }
-  const std::size_t k = Encoder(*code).k();
-  RunRecord run;
-  run.tool_version = std::string(version());
-  run.created = utc_now();
-  run.code = code_record(o.search.input.code, *code, k);
-  run.config.decoder = resolve_kernel(s.decoder, *code);
-  run.config.sweep = s.sweep;
-  run.config.seed = s.seed;
-  run.config.chunk_frames = 64;  // frames per task of the estimate
-  run.config.all_zero = true;    // the all-zero word is sent, as the weights assume
-  run.config.confidence = o.confidence;
-  run.rate_for_snr = run.effective_rate = static_cast<double>(k) / static_cast<double>(code->n());
-  run.threads_used = s.threads ? s.threads : std::max(1u, std::thread::hardware_concurrency());
-  run.config.threads = run.threads_used;
   if (!o.quiet) {
     fmt::print("importance sampling: {} candidate structures, up to {} per point, {} biased frames "
                "each; decoder {}; seed {}\n",
-               list.size(), s.max_structures, s.frames, describe(run.config.decoder), s.seed);
+               list.size(), s.max_structures, s.frames,
+               describe(resolve_kernel(s.decoder, *code)), s.seed);
     std::fflush(stdout);
   }
   StageLine line(shown);
@@ -237,7 +216,7 @@ void estimate(EstimateCommand& o) {
         line.show(fmt::format("Eb/N0 {:g} dB: {}/{} biased frames", s.sweep[point], done, total));
       });
   line.finish();
-  for (const auto& fp : points) run.points.push_back(fp.point);
+  const RunRecord run = estimate_run_record(o.search.input.code, *code, s, o.confidence, points);
   write_outputs(run, o.output, o.csv, o.plot);
   if (!o.quiet) {
     fmt::print("\n{}", estimate_table(run, points, s.min_ess));

@@ -52,6 +52,12 @@ std::size_t FloorSearchResult::smallest_codeword_weight() const {
   return w;
 }
 
+std::vector<FoundStructure> FloorSearchResult::all() const {
+  std::vector<FoundStructure> out = codewords;
+  out.insert(out.end(), trapping_sets.begin(), trapping_sets.end());
+  return out;
+}
+
 namespace {
 
 constexpr std::uint32_t kNone = UINT32_MAX;

@@ -26,9 +26,12 @@
 #include "tannery/code/gf2.hpp"
 #include "tannery/decode/parallel.hpp"
 #include "tannery/error.hpp"
+#include "tannery/floor/estimate.hpp"
+#include "tannery/floor/search.hpp"
 #include "tannery/io/code_lookup.hpp"
 #include "tannery/report/results.hpp"
 #include "tannery/report/settings_json.hpp"
+#include "tannery/report/structures.hpp"
 #include "tannery/theory/capacity.hpp"
 #include "tannery/theory/density_evolution.hpp"
 #include "tannery/version.hpp"
@@ -122,6 +125,20 @@ DecoderSettings decoder_settings(const json& given) {
 [[noreturn]] void unknown_setting(const std::string& function, const std::string& key,
                                   const std::string& known) {
   throw Error(function + ": unknown setting '" + key + "' (settings: " + known + ")");
+}
+
+// Decoder settings from a function's keyword arguments (others: its other keywords, for the
+// message naming the settings it takes).
+DecoderSettings decoder_keywords(const std::string& function, const py::kwargs& settings,
+                                 const std::string& others) {
+  json given = json::object();
+  for (const auto& [key, value] : settings) {
+    const auto name = key.cast<std::string>();
+    if (!has_field<DecoderSettings>(name))
+      unknown_setting(function, name, others + field_keys<DecoderSettings>());
+    given[name] = to_json(value);
+  }
+  return decoder_settings(given);
 }
 
 py::object json_to_python(const json& j) {
@@ -224,15 +241,7 @@ constexpr std::size_t kBatchPerThread = 256;
 
 py::dict py_decode(PyCode& c, const py::array& llr, unsigned threads, bool posteriors,
                    std::optional<double> scale, const py::kwargs& settings) {
-  json given = json::object();
-  for (const auto& [key, value] : settings) {
-    const auto name = key.cast<std::string>();
-    if (!has_field<DecoderSettings>(name))
-      unknown_setting("decode", name,
-                      field_keys<DecoderSettings>() + ", threads, posteriors, scale");
-    given[name] = to_json(value);
-  }
-  const DecoderSettings s = decoder_settings(given);
+  const DecoderSettings s = decoder_keywords("decode", settings, "threads, posteriors, scale, ");
   const std::size_t n = c.code->n();
   if (llr.ndim() == 0 || static_cast<std::size_t>(llr.shape(llr.ndim() - 1)) != n) {
     throw Error("decode: llr must have n = " + std::to_string(n) + " values in its last dimension");
@@ -402,20 +411,12 @@ py::dict py_threshold(std::optional<py::object> code,
                       std::optional<std::pair<std::size_t, std::size_t>> regular,
                       const std::string& channel, const std::string& method,
                       const py::kwargs& settings) {
-  json given = json::object();
-  for (const auto& [key, value] : settings) {
-    const auto name = key.cast<std::string>();
-    if (!has_field<DecoderSettings>(name))
-      unknown_setting("threshold", name,
-                      "code, regular, channel, method, " + field_keys<DecoderSettings>());
-    given[name] = to_json(value);
-  }
+  const DecoderSettings d = decoder_keywords("threshold", settings, "code, regular, channel, method, ");
   if (code.has_value() == regular.has_value())
     throw Error("threshold: give either a code (its degree distribution) or regular=(dv, dc)");
   const Ensemble e = regular ? Ensemble::regular(regular->first, regular->second)
                              : Ensemble::from_code(degree_profile(*code->cast<PyCode&>().code));
   e.validate();
-  const DecoderSettings d = decoder_settings(given);
   const ThresholdResult r =
       threshold(e, d, parse_name<ChannelKind>(channel), parse_name<ThresholdMethod>(method));
   py::dict out;
@@ -428,6 +429,73 @@ py::dict py_threshold(std::optional<py::object> code,
   out["method"] = r.method;
   out["accuracy"] = r.accuracy;
   return out;
+}
+
+// ---- floor ---------------------------------------------------------------------------------
+
+py::object py_floor_search(PyCode& c, unsigned threads, std::uint64_t seed, int impulses,
+                           std::optional<std::vector<double>> amplitudes, double background,
+                           unsigned local_steps, std::uint32_t max_size,
+                           std::optional<std::vector<std::vector<std::uint32_t>>> failures,
+                           const py::kwargs& settings) {
+  FloorSearchSettings s;
+  s.decoder = decoder_keywords("floor_search", settings,
+                               "threads, seed, impulses, amplitudes, background, local_steps, "
+                               "max_size, failures, ");
+  s.threads = threads;
+  s.seed = seed;
+  s.impulse_order = impulses;
+  if (amplitudes) s.amplitudes = *amplitudes;
+  s.background = background;
+  s.search_steps = local_steps;
+  s.max_size = max_size;
+  if (failures) s.seeds = *failures;
+  std::string text;
+  {
+    py::gil_scoped_release unlocked;
+    text = structures_json(new_structures_record(c.source, *c.code, s, floor_search(c.code, s)));
+  }
+  return json_to_python(json::parse(text));
+}
+
+py::object py_floor_estimate(PyCode& c, const py::object& structures, std::vector<double> sweep,
+                             std::uint64_t frames, std::size_t per_point,
+                             std::optional<double> shift, double min_ess, std::uint64_t seed,
+                             unsigned threads, double confidence, const py::kwargs& settings) {
+  FloorEstimateSettings s;
+  s.decoder = decoder_keywords("floor_estimate", settings,
+                               "structures, sweep, frames, per_point, shift, min_ess, seed, "
+                               "threads, confidence, ");
+  s.sweep = std::move(sweep);
+  s.frames = frames;
+  s.max_structures = per_point;
+  s.shift = shift;
+  s.min_ess = min_ess;
+  s.seed = seed;
+  s.threads = threads;
+  if (!(confidence > 0 && confidence < 1)) throw Error("floor_estimate: confidence must be in (0, 1)");
+  // A floor_search result (a dict), or lists of positions.
+  std::vector<FoundStructure> list;
+  if (py::isinstance<py::dict>(structures)) {
+    const auto text = py::module_::import("json").attr("dumps")(structures).cast<std::string>();
+    list = parse_structures_json(text, "structures", *c.code).result.all();
+  } else {
+    StructureClassifier classifier(*c.code);
+    for (const auto& set : structures.cast<std::vector<std::vector<std::uint32_t>>>()) {
+      FoundStructure f;
+      f.variables = set;
+      std::sort(f.variables.begin(), f.variables.end());
+      f.shape = classifier.shape(f.variables);
+      list.push_back(std::move(f));
+    }
+  }
+  std::string text;
+  {
+    py::gil_scoped_release unlocked;
+    const auto points = floor_estimate(c.code, list, s);
+    text = results_json(estimate_run_record(c.source, *c.code, s, confidence, points));
+  }
+  return json_to_python(json::parse(text));
 }
 
 }  // namespace
@@ -525,6 +593,23 @@ PYBIND11_MODULE(tannery, m) {
         py::arg("method") = "discretized",
         "Density-evolution threshold of a code's degree distribution or of regular=(dv, dc) on "
         "awgn (sigma and Eb/N0), bsc (p) or bec (epsilon), for the decoder the keywords give.");
+  m.def("floor_search", &py_floor_search, py::arg("code"), py::kw_only(), py::arg("threads") = 0,
+        py::arg("seed") = 1, py::arg("impulses") = 0, py::arg("amplitudes") = py::none(),
+        py::arg("background") = 2.0, py::arg("local_steps") = 6, py::arg("max_size") = 40,
+        py::arg("failures") = py::none(),
+        "Low-weight codewords (error impulses) and trapping sets of the code, as 'tannery floor "
+        "search --json' gives them: a dict with smallest_codeword_weight (an upper bound on "
+        "d_min), classes and structures (variables, a, b, multiplicity, absorbing, ...). "
+        "failures: lists of positions (e.g. a simulation's failure_classes examples) seeding "
+        "the trapping-set search. Decoder settings as keywords.");
+  m.def("floor_estimate", &py_floor_estimate, py::arg("code"), py::arg("structures"),
+        py::kw_only(), py::arg("sweep"), py::arg("frames") = 20000, py::arg("per_point") = 8,
+        py::arg("shift") = py::none(), py::arg("min_ess") = 30.0, py::arg("seed") = 1,
+        py::arg("threads") = 0, py::arg("confidence") = 0.95,
+        "Importance-sampled FER at each Eb/N0 of sweep (BPSK, AWGN) toward the structures "
+        "(a floor_search result, or lists of positions), as 'tannery floor estimate': the results "
+        "document, each point with importance_sampled (fer, fer_sd, ess, reliable, structures). "
+        "A lower estimate: failures on structures not listed are not counted.");
   m.def("biawgn_capacity", &biawgn_capacity, py::arg("sigma"),
         "Capacity of BPSK over AWGN (bits per channel use) at noise deviation sigma.");
   m.def("shannon_limit_ebn0_db", &biawgn_shannon_limit_ebn0_db, py::arg("rate"),

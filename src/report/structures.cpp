@@ -4,9 +4,11 @@
 #include <fmt/ranges.h>
 #include <map>
 #include <nlohmann/json.hpp>
+#include <thread>
 
 #include "tannery/error.hpp"
 #include "tannery/report/settings_json.hpp"
+#include "tannery/version.hpp"
 
 namespace tannery {
 
@@ -33,6 +35,42 @@ std::map<StructureClass, std::uint64_t> class_counts(const std::vector<FoundStru
 }
 
 }  // namespace
+
+StructuresRecord new_structures_record(const std::string& source, const Code& code,
+                                       const FloorSearchSettings& settings,
+                                       FloorSearchResult result) {
+  StructuresRecord r;
+  r.tool_version = std::string(version());
+  r.created = utc_now();
+  r.code = code_record(source, code, Encoder(code).k());
+  r.decoder = resolve_kernel(settings.decoder, code);
+  r.settings = settings;
+  r.result = std::move(result);
+  return r;
+}
+
+RunRecord estimate_run_record(const std::string& source, const Code& code,
+                              const FloorEstimateSettings& settings, double confidence,
+                              const std::vector<FloorEstimatePoint>& points) {
+  const std::size_t k = Encoder(code).k();
+  RunRecord run;
+  run.tool_version = std::string(version());
+  run.created = utc_now();
+  run.code = code_record(source, code, k);
+  run.config.decoder = resolve_kernel(settings.decoder, code);
+  run.config.sweep = settings.sweep;
+  run.config.seed = settings.seed;
+  run.config.chunk_frames = 64;  // frames per task of the estimate
+  run.config.all_zero = true;    // the all-zero word is sent, as the weights assume
+  run.config.confidence = confidence;
+  run.rate_for_snr = run.effective_rate =
+      static_cast<double>(k) / static_cast<double>(std::max<std::size_t>(code.n(), 1));
+  run.threads_used =
+      settings.threads ? settings.threads : std::max(1u, std::thread::hardware_concurrency());
+  run.config.threads = run.threads_used;
+  for (const auto& p : points) run.points.push_back(p.point);
+  return run;
+}
 
 std::string structures_json(const StructuresRecord& r) {
   const FloorSearchResult& s = r.result;

@@ -79,6 +79,8 @@ struct FloorSearchResult {
 
   // Smallest codeword weight found: an upper bound on d_min (0 when none was found).
   std::size_t smallest_codeword_weight() const;
+  // Codewords, then trapping sets.
+  std::vector<FoundStructure> all() const;
 };
 
 // The cyclic shifts of a quasi-cyclic code: shifting every block column's positions by t

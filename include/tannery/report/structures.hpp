@@ -6,6 +6,7 @@
 #include <string_view>
 #include <vector>
 
+#include "tannery/floor/estimate.hpp"
 #include "tannery/floor/search.hpp"
 #include "tannery/report/results.hpp"
 
@@ -20,6 +21,16 @@ struct StructuresRecord {
   FloorSearchSettings settings;  // seeds are not recorded (they are in the structures found)
   FloorSearchResult result;
 };
+
+// The record of a search just run on the code `source` names (its provenance, this build).
+StructuresRecord new_structures_record(const std::string& source, const Code& code,
+                                       const FloorSearchSettings& settings,
+                                       FloorSearchResult result);
+// The results document of an importance-sampled estimate (all-zero word, chunks of 64 frames:
+// the estimate's tasks; threads as used).
+RunRecord estimate_run_record(const std::string& source, const Code& code,
+                              const FloorEstimateSettings& settings, double confidence,
+                              const std::vector<FloorEstimatePoint>& points);
 
 std::string structures_json(const StructuresRecord& record);
 // Parses a structures file for `code` (its matrix must be the one searched: Error otherwise,
