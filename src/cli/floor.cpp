@@ -66,6 +66,9 @@ void add_search_options(CLI::App& sub, SearchCommand& o) {
                  "local-search steps from each trapping-set seed (0: none)")
       ->capture_default_str()
       ->check(CLI::Range(0, 100));
+  sub.add_option("--beam", o.settings.search_beam, "sets the local search keeps per step")
+      ->capture_default_str()
+      ->check(CLI::Range(1, 10000));
   sub.add_option("--max-size", o.settings.max_size,
                  "largest structure classified (bits); larger failures are only counted")
       ->capture_default_str()

@@ -111,48 +111,49 @@ struct ImpulseState {
   double amplitude = 0;
 };
 
-// Greedy local search from a seed: each step moves to the best set one variable away (added
-// next to an odd-degree check, or removed) while that lowers b (or keeps b and lowers a); every
-// absorbing set or codeword met on the way, and among the candidates, is reported.
+// Beam search from a seed: each step takes every set one variable away from the beam's sets
+// (a variable added next to an odd-degree check, or one removed), reports the absorbing sets and
+// codewords among them, and keeps the `beam` best not seen before (fewest odd-degree checks,
+// then fewest variables, then the smallest bits) as the next beam. Sets may get worse on the way
+// (a single stuck bit, (1, 3), reaches a (3, 3) six-cycle through a (2, 4) pair).
 void local_search(StructureClassifier& classifier, const Code& code,
-                  std::vector<std::uint32_t> set, unsigned steps, std::uint32_t max_size,
-                  std::vector<std::vector<std::uint32_t>>& out) {
-  std::sort(set.begin(), set.end());
-  StructureShape current = classifier.shape(set);
-  for (unsigned step = 0; step < steps; ++step) {
-    std::vector<std::vector<std::uint32_t>> candidates;
-    for (std::uint32_t c : current.odd_checks) {
-      for (std::uint32_t v : code.check_variables(c)) {
-        if (std::binary_search(set.begin(), set.end(), v) || set.size() >= max_size) continue;
-        auto grown = set;
-        grown.insert(std::upper_bound(grown.begin(), grown.end(), v), v);
-        candidates.push_back(std::move(grown));
+                  std::vector<std::uint32_t> seed, unsigned steps, std::size_t beam,
+                  std::uint32_t max_size, std::vector<std::vector<std::uint32_t>>& out) {
+  using Set = std::vector<std::uint32_t>;
+  std::sort(seed.begin(), seed.end());
+  std::set<Set> seen{seed};
+  std::vector<std::pair<StructureShape, Set>> current;
+  current.emplace_back(classifier.shape(seed), seed);
+  for (unsigned step = 0; step < steps && !current.empty(); ++step) {
+    std::set<Set> candidates;
+    for (const auto& [shape, set] : current) {
+      for (std::uint32_t c : shape.odd_checks) {
+        for (std::uint32_t v : code.check_variables(c)) {
+          if (set.size() >= max_size || std::binary_search(set.begin(), set.end(), v)) continue;
+          Set grown = set;
+          grown.insert(std::upper_bound(grown.begin(), grown.end(), v), v);
+          if (!seen.count(grown)) candidates.insert(std::move(grown));
+        }
       }
-    }
-    if (set.size() > 1) {
-      for (std::size_t i = 0; i < set.size(); ++i) {
-        auto trimmed = set;
+      for (std::size_t i = 0; set.size() > 1 && i < set.size(); ++i) {
+        Set trimmed = set;
         trimmed.erase(trimmed.begin() + static_cast<std::ptrdiff_t>(i));
-        candidates.push_back(std::move(trimmed));
+        if (!seen.count(trimmed)) candidates.insert(std::move(trimmed));
       }
     }
-    std::sort(candidates.begin(), candidates.end());
-    candidates.erase(std::unique(candidates.begin(), candidates.end()), candidates.end());
-    const std::vector<std::uint32_t>* best = nullptr;
-    StructureShape best_shape;
+    std::vector<std::pair<StructureShape, Set>> next;
     for (const auto& cand : candidates) {
-      StructureShape s = classifier.shape(cand);
-      if (s.absorbing || s.cls.b == 0) out.push_back(cand);
-      if (!best || std::pair(s.cls.b, s.cls.a) < std::pair(best_shape.cls.b, best_shape.cls.a)) {
-        best = &cand;
-        best_shape = std::move(s);
-      }
+      StructureShape shape = classifier.shape(cand);
+      if (shape.absorbing || shape.cls.b == 0) out.push_back(cand);
+      next.emplace_back(std::move(shape), cand);
     }
-    if (!best || std::pair(best_shape.cls.b, best_shape.cls.a) >=
-                     std::pair(current.cls.b, current.cls.a))
-      break;
-    set = *best;
-    current = std::move(best_shape);
+    std::sort(next.begin(), next.end(), [](const auto& x, const auto& y) {
+      return std::tie(x.first.cls.b, x.first.cls.a, x.second) <
+             std::tie(y.first.cls.b, y.first.cls.a, y.second);
+    });
+    if (next.size() > beam) next.resize(beam);
+    for (const auto& [shape, set] : next) seen.insert(set);
+    current = std::move(next);
   }
 }
 
@@ -326,7 +327,7 @@ FloorSearchResult floor_search(std::shared_ptr<const Code> shared,
         seeds.size(),
         [&](std::size_t i, unsigned worker) {
           local_search(*classifiers[worker], code, seeds[i], settings.search_steps,
-                       settings.max_size, grown[i]);
+                       settings.search_beam, settings.max_size, grown[i]);
           ++searched;
         },
         std::chrono::milliseconds(500),

@@ -435,19 +435,20 @@ py::dict py_threshold(std::optional<py::object> code,
 
 py::object py_floor_search(PyCode& c, unsigned threads, std::uint64_t seed, int impulses,
                            std::optional<std::vector<double>> amplitudes, double background,
-                           unsigned local_steps, std::uint32_t max_size,
+                           unsigned local_steps, std::size_t beam, std::uint32_t max_size,
                            std::optional<std::vector<std::vector<std::uint32_t>>> failures,
                            const py::kwargs& settings) {
   FloorSearchSettings s;
   s.decoder = decoder_keywords("floor_search", settings,
                                "threads, seed, impulses, amplitudes, background, local_steps, "
-                               "max_size, failures, ");
+                               "beam, max_size, failures, ");
   s.threads = threads;
   s.seed = seed;
   s.impulse_order = impulses;
   if (amplitudes) s.amplitudes = *amplitudes;
   s.background = background;
   s.search_steps = local_steps;
+  s.search_beam = beam;
   s.max_size = max_size;
   if (failures) s.seeds = *failures;
   std::string text;
@@ -595,7 +596,8 @@ PYBIND11_MODULE(tannery, m) {
         "awgn (sigma and Eb/N0), bsc (p) or bec (epsilon), for the decoder the keywords give.");
   m.def("floor_search", &py_floor_search, py::arg("code"), py::kw_only(), py::arg("threads") = 0,
         py::arg("seed") = 1, py::arg("impulses") = 0, py::arg("amplitudes") = py::none(),
-        py::arg("background") = 2.0, py::arg("local_steps") = 6, py::arg("max_size") = 40,
+        py::arg("background") = 2.0, py::arg("local_steps") = 6, py::arg("beam") = 16,
+        py::arg("max_size") = 40,
         py::arg("failures") = py::none(),
         "Low-weight codewords (error impulses) and trapping sets of the code, as 'tannery floor "
         "search --json' gives them: a dict with smallest_codeword_weight (an upper bound on "

@@ -90,6 +90,7 @@ std::string structures_json(const StructuresRecord& r) {
                  {"amplitudes", r.settings.amplitudes},
                  {"impulse_order", s.impulse_order},
                  {"local_search_steps", r.settings.search_steps},
+                 {"local_search_beam", r.settings.search_beam},
                  {"max_size", r.settings.max_size},
                  {"seed", r.settings.seed},
                  {"lifting", s.lifting},

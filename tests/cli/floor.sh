@@ -35,6 +35,16 @@ printf '1 1 1 1 1 1\n1 1 1 1 1 1\n1 1 1 1 1 1\n' >base.txt
 strip() { $PY -c 'import json,sys; j=json.load(open(sys.argv[1])); j.pop("created"); j["search"].pop("seconds"); print(json.dumps(j))' "$1"; }
 [ "$(strip structures.json)" = "$(strip structures1.json)" ] || fail "floor search depends on threads"
 
+# In a code with every variable of degree 3 and girth 6, the (3, 3) sets are exactly the
+# six-cycles' variables (each bit has two even checks, one shared with each other bit): the search
+# finds all of them, counted independently by inspect's cycle census (breadth-first search).
+for code in small.qc regular-3-6-n2016; do
+  "$T" floor search $code --json >s.json || fail "floor search $code"
+  cycles=$("$T" inspect $code | sed -n 's/^girth *6 *(\([0-9]*\) cycles of length 6)/\1/p')
+  found=$($PY -c 'import json,sys; print(sum(c["sets"] for c in json.load(open(sys.argv[1]))["classes"] if (c["a"], c["b"]) == (3, 3)))' s.json)
+  [ -n "$cycles" ] && [ "$found" = "$cycles" ] || fail "$code: $found (3, 3) sets, $cycles six-cycles"
+done
+
 # Failures kept by a simulation seed the search: every failure example of the run is in the
 # structures file, as itself or as a cyclic shift (Z = 8) of a listed set.
 "$T" simulate --code small.qc --sweep 4 --frame-errors 300 -o failures.json --plot "" --quiet \

@@ -2,7 +2,7 @@
 // error-impulse method (Berrou & Vaton 2002; Hu, Fossorier & Eleftheriou 2004; pairs of impulses
 // as in Declercq & Fossorier 2008) and trapping sets — (a, b) structures the decoder stops in —
 // seeded by the impulse outcomes and by failures kept from simulations, grown and trimmed by a
-// local search.
+// local beam search.
 //
 //   FloorSearchSettings s;  // sum-product, the default amplitude ladder
 //   FloorSearchResult r = floor_search(load_code("regular-3-6-n2016"), s);
@@ -39,8 +39,10 @@ struct FloorSearchSettings {
   // weight >= 2 holds such a pair); 0: pairs when n <= 4096.
   int impulse_order = 0;
   std::uint32_t max_size = 40;  // larger failures are counted, not classified
-  // Local search steps from each trapping-set seed (0: keep the seeds only).
+  // Local (beam) search from each trapping-set seed: steps (0: keep the seeds only) and the
+  // sets kept per step.
   unsigned search_steps = 6;
+  std::size_t search_beam = 16;
   std::vector<std::vector<std::uint32_t>> seeds;  // extra trapping-set seeds (simulation failures)
   std::uint64_t seed = 1;
   unsigned threads = 0;  // 0: one per core
