@@ -98,10 +98,10 @@ FloorSearchResult run_search(const SearchCommand& o, const std::shared_ptr<const
     }
   }
   StageLine line(progress_shown);
-  FloorSearchResult r = floor_search(code, s, [&](std::uint64_t done, std::uint64_t total,
-                                                  const char* stage) {
-    line.show(fmt::format("{} {}/{}", stage, done, total));
-  });
+  FloorSearchResult r =
+      floor_search(code, s, [&](std::uint64_t done, std::uint64_t total, const char* stage) {
+        line.show(fmt::format("{} {}/{}", stage, done, total));
+      });
   line.finish();
   return r;
 }
@@ -112,9 +112,9 @@ std::string search_heading(const std::string& source, const Code& code,
       "code {}: n = {}, m = {}{}\ndecoder {}\n{} impulses ({}), {} decodes in {:.1f} s; {} never "
       "broke the decoder, {} failed on more than {} bits\n",
       source, code.n(), code.m(),
-      r.lifting ? fmt::format("; quasi-cyclic, Z = {}: counts include every cyclic shift",
-                              r.lifting)
-                : std::string(),
+      r.lifting
+          ? fmt::format("; quasi-cyclic, Z = {}: counts include every cyclic shift", r.lifting)
+          : std::string(),
       describe(s.decoder), r.impulses, r.impulse_order == 2 ? "single and pairs" : "single",
       r.decodes, r.seconds, r.unbroken, r.larger_failures, s.max_size);
 }
@@ -151,9 +151,9 @@ struct EstimateCommand {
 std::string estimate_table(const RunRecord& run, const std::vector<FloorEstimatePoint>& points,
                            double min_ess) {
   const int level = static_cast<int>(std::lround(run.config.confidence * 100));
-  std::string out = fmt::format("{:>9} {:>11} {:>23} {:>10} {:>9} {:>8}  {}\n", "Eb/N0 dB",
-                                "FER", fmt::format("{}% interval", level), "frames", "hits", "ESS",
-                                "verdict");
+  std::string out =
+      fmt::format("{:>9} {:>11} {:>23} {:>10} {:>9} {:>8}  {}\n", "Eb/N0 dB", "FER",
+                  fmt::format("{}% interval", level), "frames", "hits", "ESS", "verdict");
   for (const auto& fp : points) {
     const PointResult& p = fp.point;
     const ImportanceEstimate& e = *p.importance;
@@ -162,7 +162,7 @@ std::string estimate_table(const RunRecord& run, const std::vector<FloorEstimate
     for (const auto& se : e.structures) hits += se.hits;
     out += fmt::format("{:>9.4g} {:>11.3e} [{:9.3e}, {:9.3e}] {:>10} {:>9} {:>8.1f}  {}\n",
                        p.parameter, e.fer, s.fer.low, s.fer.high, p.frames, hits, e.ess,
-                       e.reliable ? "lower estimate"
+                       e.reliable  ? "lower estimate"
                        : e.fer > 0 ? fmt::format("UNRELIABLE (ESS below {:g})", min_ess)
                        : hits > 0  ? "UNRELIABLE (weights below double precision)"
                                    : "UNRELIABLE (no failure on a listed structure)");
@@ -203,19 +203,21 @@ void estimate(EstimateCommand& o) {
     if (!o.quiet) fmt::print("{}", search_heading(o.search.input.code, *code, ss, r));
     list = r.all();
     if (list.empty())
-      throw Error("floor estimate: the search found no structure to bias toward; try --impulses 2 "
-                  "or more --amplitudes");
+      throw Error(
+          "floor estimate: the search found no structure to bias toward; try --impulses 2 "
+          "or more --amplitudes");
   }
   if (!o.quiet) {
-    fmt::print("importance sampling: {} candidate structures, up to {} per point, {} biased frames "
-               "each; decoder {}; seed {}\n",
-               list.size(), s.max_structures, s.frames,
-               describe(resolve_kernel(s.decoder, *code)), s.seed);
+    fmt::print(
+        "importance sampling: {} candidate structures, up to {} per point, {} biased frames "
+        "each; decoder {}; seed {}\n",
+        list.size(), s.max_structures, s.frames, describe(resolve_kernel(s.decoder, *code)),
+        s.seed);
     std::fflush(stdout);
   }
   StageLine line(shown);
-  const auto points =
-      floor_estimate(code, list, s, [&](std::size_t point, std::uint64_t done, std::uint64_t total) {
+  const auto points = floor_estimate(
+      code, list, s, [&](std::size_t point, std::uint64_t done, std::uint64_t total) {
         line.show(fmt::format("Eb/N0 {:g} dB: {}/{} biased frames", s.sweep[point], done, total));
       });
   line.finish();
@@ -236,8 +238,9 @@ void estimate(EstimateCommand& o) {
 
 void add_floor(CLI::App& app) {
   auto* floor = app.add_subcommand(
-      "floor", "Error floors: the small structures that make a code fail, and its FER far below "
-               "what plain simulation reaches");
+      "floor",
+      "Error floors: the small structures that make a code fail, and its FER far below "
+      "what plain simulation reaches");
   floor->require_subcommand(1);
 
   auto so = std::make_shared<SearchCommand>();

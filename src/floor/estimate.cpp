@@ -18,14 +18,14 @@ namespace tannery {
 
 namespace {
 
-constexpr std::size_t kBatch = 64;            // frames per task
-constexpr std::size_t kCandidates = 64;       // structures whose shift is looked for
-constexpr double kMaxShift = 3;               // bisection range of the shift
-constexpr int kBisectionSteps = 14;           // shift to 3 / 2^14
+constexpr std::size_t kBatch = 64;                // frames per task
+constexpr std::size_t kCandidates = 64;           // structures whose shift is looked for
+constexpr double kMaxShift = 3;                   // bisection range of the shift
+constexpr int kBisectionSteps = 14;               // shift to 3 / 2^14
 constexpr std::size_t kMaxStructures = 1u << 20;  // structure index in the noise stream id
-constexpr double kLeadingShare = 0.05;        // structures that must be reliable
-constexpr int kCrossEntropyRounds = 3;        // refinements of the shifts before the estimate
-constexpr double kSmoothing = 0.7;            // weight of a round's update
+constexpr double kLeadingShare = 0.05;            // structures that must be reliable
+constexpr int kCrossEntropyRounds = 3;            // refinements of the shifts before the estimate
+constexpr double kSmoothing = 0.7;                // weight of a round's update
 
 // Every member of the sampled structures' orbits, and for each bit the members holding it.
 class Attribution {
@@ -164,8 +164,8 @@ std::vector<FloorEstimatePoint> floor_estimate(std::shared_ptr<const Code> share
       }
       if (bias.shift) {
         const double a = static_cast<double>(sets[i].size());
-        bias.proxy = static_cast<double>(multiplicity[i]) *
-                     normal_tail(*bias.shift * std::sqrt(a) / sigma);
+        bias.proxy =
+            static_cast<double>(multiplicity[i]) * normal_tail(*bias.shift * std::sqrt(a) / sigma);
       }
     });
     // Step 2: the most likely ones by the proxy (ties: the list's order).
@@ -273,7 +273,8 @@ std::vector<FloorEstimatePoint> floor_estimate(std::shared_ptr<const Code> share
     const std::uint64_t pilot_tasks = (pilot + kBatch - 1) / kBatch;
     const std::uint64_t tasks_per = (settings.frames + kBatch - 1) / kBatch;
     const std::uint64_t total_tasks = tasks_per * order.size();
-    const std::uint64_t work = (settings.shift ? 0 : kCrossEntropyRounds * pilot_tasks * order.size()) + total_tasks;
+    const std::uint64_t work =
+        (settings.shift ? 0 : kCrossEntropyRounds * pilot_tasks * order.size()) + total_tasks;
     std::atomic<std::uint64_t> done{0};
     auto tick = [&] {
       if (progress) progress(pi, done.load() * kBatch, work * kBatch);
@@ -334,7 +335,8 @@ std::vector<FloorEstimatePoint> floor_estimate(std::shared_ptr<const Code> share
         total.coded_bit_errors += x.coded_bit_errors, total.iterations += x.iterations;
         if (p.iteration_histogram.size() < x.histogram.size())
           p.iteration_histogram.resize(x.histogram.size());
-        for (std::size_t h = 0; h < x.histogram.size(); ++h) p.iteration_histogram[h] += x.histogram[h];
+        for (std::size_t h = 0; h < x.histogram.size(); ++h)
+          p.iteration_histogram[h] += x.histogram[h];
       }
       StructureEstimate se;
       se.variables = sets[bias.structure];

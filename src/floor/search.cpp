@@ -160,8 +160,7 @@ void local_search(StructureClassifier& classifier, const Code& code,
 }  // namespace
 
 FloorSearchResult floor_search(std::shared_ptr<const Code> shared,
-                               const FloorSearchSettings& settings,
-                               const FloorProgress& progress) {
+                               const FloorSearchSettings& settings, const FloorProgress& progress) {
   const auto start = std::chrono::steady_clock::now();
   const Code& code = *shared;
   const std::size_t n = code.n();
@@ -180,8 +179,7 @@ FloorSearchResult floor_search(std::shared_ptr<const Code> shared,
   const auto& qc = code.quasi_cyclic();
   result.lifting = qc ? qc->lifting : 0;
   const std::size_t z = qc ? qc->lifting : 1;
-  result.impulse_order =
-      settings.impulse_order ? settings.impulse_order : (n <= 4096 ? 2 : 1);
+  result.impulse_order = settings.impulse_order ? settings.impulse_order : (n <= 4096 ? 2 : 1);
   if (result.impulse_order < 1 || result.impulse_order > 2)
     throw Error("floor search: impulses are single (1) or pairs (2)");
 
@@ -214,7 +212,8 @@ FloorSearchResult floor_search(std::shared_ptr<const Code> shared,
 
   ThreadPool pool(settings.threads);
   std::vector<std::unique_ptr<Decoder>> decoders;
-  for (unsigned t = 0; t < pool.size(); ++t) decoders.push_back(make_decoder(shared, settings.decoder));
+  for (unsigned t = 0; t < pool.size(); ++t)
+    decoders.push_back(make_decoder(shared, settings.decoder));
 
   std::vector<ImpulseState> states(impulses.size());
   for (auto& st : states) st.high = settings.amplitudes.size();
@@ -238,8 +237,7 @@ FloorSearchResult floor_search(std::shared_ptr<const Code> shared,
         tasks,
         [&](std::size_t task, unsigned worker) {
           Scratch& s = scratch[worker];
-          const std::size_t first = task * kBatch,
-                            count = std::min(kBatch, active.size() - first);
+          const std::size_t first = task * kBatch, count = std::min(kBatch, active.size() - first);
           s.llr.resize(count * n);
           s.hard.resize(count * n);
           s.outcome.resize(count);
@@ -304,7 +302,8 @@ FloorSearchResult floor_search(std::shared_ptr<const Code> shared,
       if (!st.too_large) ++result.unbroken;
       continue;
     }
-    const auto origin = impulses[i].second == kNone ? StructureOrigin::impulse : StructureOrigin::pair;
+    const auto origin =
+        impulses[i].second == kNone ? StructureOrigin::impulse : StructureOrigin::pair;
     catalogue.add(st.wrong, origin, st.amplitude);
     if (!st.converged) add_seed(st.wrong);
   }
@@ -347,8 +346,7 @@ FloorSearchResult floor_search(std::shared_ptr<const Code> shared,
   };
   std::sort(result.codewords.begin(), result.codewords.end(), order);
   std::sort(result.trapping_sets.begin(), result.trapping_sets.end(), order);
-  result.seconds =
-      std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
+  result.seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
   return result;
 }
 

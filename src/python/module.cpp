@@ -411,7 +411,8 @@ py::dict py_threshold(std::optional<py::object> code,
                       std::optional<std::pair<std::size_t, std::size_t>> regular,
                       const std::string& channel, const std::string& method,
                       const py::kwargs& settings) {
-  const DecoderSettings d = decoder_keywords("threshold", settings, "code, regular, channel, method, ");
+  const DecoderSettings d =
+      decoder_keywords("threshold", settings, "code, regular, channel, method, ");
   if (code.has_value() == regular.has_value())
     throw Error("threshold: give either a code (its degree distribution) or regular=(dv, dc)");
   const Ensemble e = regular ? Ensemble::regular(regular->first, regular->second)
@@ -474,7 +475,8 @@ py::object py_floor_estimate(PyCode& c, const py::object& structures, std::vecto
   s.min_ess = min_ess;
   s.seed = seed;
   s.threads = threads;
-  if (!(confidence > 0 && confidence < 1)) throw Error("floor_estimate: confidence must be in (0, 1)");
+  if (!(confidence > 0 && confidence < 1))
+    throw Error("floor_estimate: confidence must be in (0, 1)");
   // A floor_search result (a dict), or lists of positions.
   std::vector<FoundStructure> list;
   if (py::isinstance<py::dict>(structures)) {
@@ -597,15 +599,14 @@ PYBIND11_MODULE(tannery, m) {
   m.def("floor_search", &py_floor_search, py::arg("code"), py::kw_only(), py::arg("threads") = 0,
         py::arg("seed") = 1, py::arg("impulses") = 0, py::arg("amplitudes") = py::none(),
         py::arg("background") = 2.0, py::arg("local_steps") = 6, py::arg("beam") = 16,
-        py::arg("max_size") = 40,
-        py::arg("failures") = py::none(),
+        py::arg("max_size") = 40, py::arg("failures") = py::none(),
         "Low-weight codewords (error impulses) and trapping sets of the code, as 'tannery floor "
         "search --json' gives them: a dict with smallest_codeword_weight (an upper bound on "
         "d_min), classes and structures (variables, a, b, multiplicity, absorbing, ...). "
         "failures: lists of positions (e.g. a simulation's failure_classes examples) seeding "
         "the trapping-set search. Decoder settings as keywords.");
-  m.def("floor_estimate", &py_floor_estimate, py::arg("code"), py::arg("structures"),
-        py::kw_only(), py::arg("sweep"), py::arg("frames") = 20000, py::arg("per_point") = 8,
+  m.def("floor_estimate", &py_floor_estimate, py::arg("code"), py::arg("structures"), py::kw_only(),
+        py::arg("sweep"), py::arg("frames") = 20000, py::arg("per_point") = 8,
         py::arg("shift") = py::none(), py::arg("min_ess") = 30.0, py::arg("seed") = 1,
         py::arg("threads") = 0, py::arg("confidence") = 0.95,
         "Importance-sampled FER at each Eb/N0 of sweep (BPSK, AWGN) toward the structures "

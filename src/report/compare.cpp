@@ -320,8 +320,9 @@ Comparison compare_runs(const RunRecord& cur, const RunRecord& ref, const Compar
 
 namespace {
 bool estimated_text(const Comparison& c) {
-  return std::any_of(c.points.begin(), c.points.end(),
-                     [](const auto& pc) { return pc.current.importance || pc.reference.importance; });
+  return std::any_of(c.points.begin(), c.points.end(), [](const auto& pc) {
+    return pc.current.importance || pc.reference.importance;
+  });
 }
 }  // namespace
 

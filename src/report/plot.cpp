@@ -284,8 +284,9 @@ std::string plot_svg(const std::vector<PlotRun>& runs, const PlotOptions& option
       if ((metric == 0 && !options.fer) || (metric == 1 && !options.ber)) continue;
       const char* c = kColours[colour++ % std::size(kColours)];
       // Importance-sampled runs: dashed line, hollow diamonds, '?' beside an unreliable point.
-      const bool sampled = std::any_of(r.run.points.begin(), r.run.points.end(),
-                                       [](const PointResult& p) { return p.importance.has_value(); });
+      const bool sampled =
+          std::any_of(r.run.points.begin(), r.run.points.end(),
+                      [](const PointResult& p) { return p.importance.has_value(); });
       std::string line, marks;
       for (const auto& p : r.run.points) {
         const PointStats s = point_stats(p, r.run.config.confidence);
@@ -305,8 +306,8 @@ std::string plot_svg(const std::vector<PlotRun>& runs, const PlotOptions& option
               x, y - 5, x + 5, y, y + 5, x - 5, c);
           if (!p.importance->reliable)
             marks += fmt::format(
-                "<text x=\"{:.1f}\" y=\"{:.1f}\" font-size=\"11\" fill=\"{}\">?</text>\n",
-                x + 6, y + 4, c);
+                "<text x=\"{:.1f}\" y=\"{:.1f}\" font-size=\"11\" fill=\"{}\">?</text>\n", x + 6,
+                y + 4, c);
           continue;
         }
         marks +=

@@ -143,8 +143,9 @@ ImportanceEstimate parse_importance(const json& j, std::size_t n, const Bad& bad
     se.ess = number(sj, "ess", false);
     const json& vars = sj.value("variables", json());
     if (!vars.is_array() || vars.size() != a ||
-        !std::all_of(vars.begin(), vars.end(),
-                     [&](const json& v) { return v.is_number_unsigned() && v.get<std::uint64_t>() < n; }))
+        !std::all_of(vars.begin(), vars.end(), [&](const json& v) {
+          return v.is_number_unsigned() && v.get<std::uint64_t>() < n;
+        }))
       bad("importance_sampled: a structure's variables are not its a positions below n");
     if (b > a * 64 || se.hits > se.frames || se.multiplicity == 0)
       bad("importance_sampled: a structure's counts are inconsistent");
@@ -203,8 +204,12 @@ json point_json(const PointResult& p, const RunRecord& run, std::size_t edges) {
                             {"ess", se.ess},
                             {"variables", se.variables}});
     }
-    j["importance_sampled"] = {{"fer", e.fer},       {"fer_sd", e.fer_sd}, {"ber", e.ber},
-                               {"ber_sd", e.ber_sd}, {"ess", e.ess},       {"reliable", e.reliable},
+    j["importance_sampled"] = {{"fer", e.fer},
+                               {"fer_sd", e.fer_sd},
+                               {"ber", e.ber},
+                               {"ber_sd", e.ber_sd},
+                               {"ess", e.ess},
+                               {"reliable", e.reliable},
                                {"structures", structures}};
   }
   return j;
@@ -558,7 +563,8 @@ RunRecord parse_results(const json& j, const std::string& source, std::string_vi
       if (const std::string problem = failure_anatomy_problem(p, r.code.n); !problem.empty())
         bad(problem);
     }
-    if (pj.contains("importance_sampled")) p.importance = parse_importance(pj["importance_sampled"], r.code.n, bad);
+    if (pj.contains("importance_sampled"))
+      p.importance = parse_importance(pj["importance_sampled"], r.code.n, bad);
     r.points.push_back(std::move(p));
   }
   return r;

@@ -124,9 +124,10 @@ StructuresRecord parse_structures_json(std::string_view text, const std::string&
     throw Error(fmt::format("{}: not JSON (byte {}): {}", source, e.byte, e.what()));
   }
   if (!j.is_object() || j.value("format", "") != "tannery-structures")
-    throw Error(fmt::format("{}: not a tannery structures file (no \"format\": "
-                            "\"tannery-structures\")",
-                            source));
+    throw Error(
+        fmt::format("{}: not a tannery structures file (no \"format\": "
+                    "\"tannery-structures\")",
+                    source));
   if (!j.contains("version") || !j["version"].is_number_integer() ||
       j["version"].get<std::int64_t>() != kStructuresVersion)
     throw Error(fmt::format("{}: structures version {} is not supported (this tool reads {})",
@@ -163,9 +164,10 @@ StructuresRecord parse_structures_json(std::string_view text, const std::string&
         !std::all_of(vars.begin(), vars.end(), [&](const json& v) {
           return v.is_number_unsigned() && v.get<std::uint64_t>() < code.n();
         }))
-      throw Error(fmt::format("{}: structure {}: 'variables' must be a list of positions below n "
-                              "= {}",
-                              source, i + 1, code.n()));
+      throw Error(
+          fmt::format("{}: structure {}: 'variables' must be a list of positions below n "
+                      "= {}",
+                      source, i + 1, code.n()));
     FoundStructure f;
     f.variables = vars.get<std::vector<std::uint32_t>>();
     std::sort(f.variables.begin(), f.variables.end());

@@ -51,12 +51,12 @@ struct StructureBias {
 };
 
 struct FloorEstimatePoint {
-  PointResult point;                // parameter, counts and importance
+  PointResult point;                  // parameter, counts and importance
   std::vector<StructureBias> biases;  // every structure, in the list's order
 };
 
-using EstimateProgress = std::function<void(std::size_t point, std::uint64_t done,
-                                            std::uint64_t total)>;
+using EstimateProgress =
+    std::function<void(std::size_t point, std::uint64_t done, std::uint64_t total)>;
 
 // structures: the candidates (e.g. a search's codewords and trapping sets); each sampled one
 // becomes a StructureEstimate of the point. Throws Error for an empty list, a set with a bit

@@ -14,9 +14,9 @@
 // a clean 1). For each impulse the smallest amplitude of the ladder at which decoding fails is
 // found by bisection (about log2 of the ladder's length decodes, taking failure to persist at
 // larger amplitudes, as the method does); the wrong bits there (undecided included) are a
-// codeword when the decoder converged to it, else a trapping-set candidate. For a quasi-cyclic code every structure stands
-// for its orbit under the code's cyclic shifts (all blocks shifted alike), counted in its
-// multiplicity, and impulses are placed at one position per block column only.
+// codeword when the decoder converged to it, else a trapping-set candidate. For a quasi-cyclic code
+// every structure stands for its orbit under the code's cyclic shifts (all blocks shifted alike),
+// counted in its multiplicity, and impulses are placed at one position per block column only.
 #pragma once
 
 #include <cstdint>
@@ -104,9 +104,11 @@ class CyclicOrbits {
 };
 
 // done of total work items (impulses, then seeds); called from the calling thread.
-using FloorProgress = std::function<void(std::uint64_t done, std::uint64_t total, const char* stage)>;
+using FloorProgress =
+    std::function<void(std::uint64_t done, std::uint64_t total, const char* stage)>;
 
-FloorSearchResult floor_search(std::shared_ptr<const Code> code, const FloorSearchSettings& settings,
+FloorSearchResult floor_search(std::shared_ptr<const Code> code,
+                               const FloorSearchSettings& settings,
                                const FloorProgress& progress = {});
 
 }  // namespace tannery
