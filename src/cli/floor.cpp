@@ -174,6 +174,10 @@ std::string estimate_table(const RunRecord& run, const std::vector<FloorEstimate
               static_cast<double>(std::max<std::size_t>(se.shifts.size(), 1)),
           se.hits, se.frames, se.ess);
     }
+    const auto breaking = std::count_if(fp.biases.begin(), fp.biases.end(),
+                                        [](const StructureBias& b) { return b.shift.has_value(); });
+    out += fmt::format("{:>9} {} of {} candidate structures break the decoder without noise\n", "",
+                       breaking, fp.biases.size());
   }
   return out;
 }
@@ -274,6 +278,10 @@ void add_floor(CLI::App& app) {
   est->add_option("--frames", eo->settings.frames, "biased frames per structure and point")
       ->capture_default_str()
       ->check(CLI::Range(2.0, 1e12));
+  est->add_option("--candidates", eo->settings.candidates,
+                  "structures whose noiseless breaking shift is looked for, smallest (a + b) first")
+      ->capture_default_str()
+      ->check(CLI::Range(1, 1000000));
   est->add_option("--per-point", eo->settings.max_structures,
                   "structures sampled per point (the most likely ones)")
       ->capture_default_str()

@@ -6,6 +6,7 @@
 #include <chrono>
 #include <cmath>
 #include <numeric>
+#include <tuple>
 
 #include "tannery/base/stats.hpp"
 #include "tannery/base/thread_pool.hpp"
@@ -19,11 +20,12 @@ namespace tannery {
 namespace {
 
 constexpr std::size_t kBatch = 64;                // frames per task
-constexpr std::size_t kCandidates = 64;           // structures whose shift is looked for
 constexpr double kMaxShift = 3;                   // bisection range of the shift
 constexpr int kBisectionSteps = 14;               // shift to 3 / 2^14
 constexpr std::size_t kMaxStructures = 1u << 20;  // structure index in the noise stream id
 constexpr double kLeadingShare = 0.05;            // structures that must be reliable
+constexpr std::uint64_t kPilotFrames = 256;     // per candidate, to choose the structures
+constexpr std::uint64_t kPilotStart = std::uint64_t{1} << 44;  // frame index of the pilots
 constexpr int kCrossEntropyRounds = 3;            // refinements of the shifts before the estimate
 constexpr double kSmoothing = 0.7;                // weight of a round's update
 
@@ -34,29 +36,35 @@ class Attribution {
   void add_member(std::span<const std::uint32_t> set, std::size_t owner, bool representative) {
     const std::size_t id = owner_.size();
     owner_.push_back(owner);
+    size_.push_back(static_cast<std::uint32_t>(set.size()));
     representative_.push_back(representative);
     for (auto v : set) by_bit_[v].push_back(static_cast<std::uint32_t>(id));
   }
   void finish() { overlap_.assign(owner_.size(), 0); }
   // The share of a failure with these wrong bits attributed to structure `owner`'s
-  // representative: 1 / (members tied for the largest overlap) when it is one of them.
+  // representative: 1 / (members tied for the most similar) when it is one of them, similarity
+  // being |W and T| / |W or T| (Jaccard's index: a failure equal to a member is its alone).
   double share(std::span<const std::uint32_t> wrong, std::size_t owner) {
-    std::uint32_t best = 0;
     for (auto v : wrong) {
       for (auto id : by_bit_[v]) {
         if (overlap_[id]++ == 0) touched_.push_back(id);
-        best = std::max(best, overlap_[id]);
       }
     }
+    auto similarity = [&](std::uint32_t id) {
+      const double common = overlap_[id];
+      return common / (static_cast<double>(wrong.size() + size_[id]) - common);
+    };
+    double best = 0;
+    for (auto id : touched_) best = std::max(best, similarity(id));
     std::size_t ties = 0;
     bool mine = false;
     for (auto id : touched_) {
-      if (overlap_[id] == best) {
+      if (similarity(id) == best) {
         ++ties;
         if (owner_[id] == owner && representative_[id]) mine = true;
       }
-      overlap_[id] = 0;
     }
+    for (auto id : touched_) overlap_[id] = 0;
     touched_.clear();
     return mine ? 1.0 / static_cast<double>(ties) : 0.0;
   }
@@ -64,6 +72,7 @@ class Attribution {
  private:
   std::vector<std::vector<std::uint32_t>> by_bit_;
   std::vector<std::size_t> owner_;
+  std::vector<std::uint32_t> size_;
   std::vector<bool> representative_;
   std::vector<std::uint32_t> overlap_, touched_;
 };
@@ -90,7 +99,8 @@ std::vector<FloorEstimatePoint> floor_estimate(std::shared_ptr<const Code> share
   if (settings.sweep.empty()) throw Error("floor estimate: the sweep is empty");
   if (settings.sweep.size() > 4096) throw Error("floor estimate: at most 4096 sweep points");
   if (settings.frames < 2) throw Error("floor estimate: at least 2 frames per structure");
-  if (settings.max_structures == 0) throw Error("floor estimate: sample at least 1 structure");
+  if (settings.max_structures == 0 || settings.candidates == 0)
+    throw Error("floor estimate: sample at least 1 structure");
   if (settings.shift && !(*settings.shift >= 0 && *settings.shift <= 10))
     throw Error("floor estimate: the shift must be in [0, 10] signal amplitudes");
   validate(settings.decoder, code);
@@ -107,14 +117,28 @@ std::vector<FloorEstimatePoint> floor_estimate(std::shared_ptr<const Code> share
   const auto& qc = code.quasi_cyclic();
   const CyclicOrbits orbits(qc ? qc->lifting : 1);
 
-  // Candidates: the structures with the fewest odd checks, then the fewest bits.
+  // Candidates: half of them the structures with the fewest odd checks (then bits), half the
+  // smallest (fewest bits plus odd checks), in the list's order.
   std::vector<std::size_t> candidates(structures.size());
   std::iota(candidates.begin(), candidates.end(), 0);
-  std::stable_sort(candidates.begin(), candidates.end(), [&](auto x, auto y) {
-    const auto &a = structures[x].shape.cls, &b = structures[y].shape.cls;
-    return std::pair(a.b, a.a) < std::pair(b.b, b.a);
-  });
-  if (candidates.size() > kCandidates && !settings.shift) candidates.resize(kCandidates);
+  if (candidates.size() > settings.candidates && !settings.shift) {
+    auto first = [&](std::size_t count, auto key) {
+      std::vector<std::size_t> all = candidates;
+      std::stable_sort(all.begin(), all.end(), [&](auto x, auto y) {
+        return key(structures[x].shape.cls) < key(structures[y].shape.cls);
+      });
+      all.resize(count);
+      return all;
+    };
+    auto chosen = first(settings.candidates / 2, [](StructureClass c) { return std::tuple(c.b, c.a); });
+    const auto smallest = first(settings.candidates - chosen.size(), [](StructureClass c) {
+      return std::tuple(c.a + c.b, c.b, c.a);
+    });
+    chosen.insert(chosen.end(), smallest.begin(), smallest.end());
+    std::sort(chosen.begin(), chosen.end());
+    chosen.erase(std::unique(chosen.begin(), chosen.end()), chosen.end());
+    candidates = std::move(chosen);
+  }
   std::vector<std::vector<std::uint32_t>> sets(structures.size());
   std::vector<std::uint64_t> multiplicity(structures.size());
   for (auto i : candidates) {
@@ -168,36 +192,31 @@ std::vector<FloorEstimatePoint> floor_estimate(std::shared_ptr<const Code> share
             static_cast<double>(multiplicity[i]) * normal_tail(*bias.shift * std::sqrt(a) / sigma);
       }
     });
-    // Step 2: the most likely ones by the proxy (ties: the list's order).
+    // The structures sampled (biases' indices, by structure), their per-bit shifts and the
+    // attribution of failures among every member of their orbits (one copy per thread).
     std::vector<std::size_t> order;
-    for (std::size_t c = 0; c < biases.size(); ++c) {
-      if (biases[c].shift) order.push_back(c);
-    }
-    std::stable_sort(order.begin(), order.end(),
-                     [&](auto x, auto y) { return biases[x].proxy > biases[y].proxy; });
-    if (order.size() > settings.max_structures) order.resize(settings.max_structures);
-    std::sort(order.begin(), order.end(),
-              [&](auto x, auto y) { return biases[x].structure < biases[y].structure; });
-
-    std::size_t members = 0;
-    for (auto c : order) members += multiplicity[biases[c].structure];
-    Attribution attribution(n, members);
-    for (std::size_t o = 0; o < order.size(); ++o) {
-      const auto& rep = sets[biases[order[o]].structure];
-      for (std::size_t t = 0; t < std::max<std::size_t>(orbits.lifting(), 1); ++t) {
-        auto member = orbits.shifted(rep, t);
-        if (t > 0 && member == rep) break;  // the orbit repeats
-        attribution.add_member(member, o, t == 0);
+    std::vector<std::vector<double>> shifts;
+    std::vector<Attribution> attributions;
+    auto plan = [&](std::vector<std::size_t> chosen) {
+      order = std::move(chosen);
+      std::sort(order.begin(), order.end(),
+                [&](auto x, auto y) { return biases[x].structure < biases[y].structure; });
+      std::size_t members = 0;
+      for (auto c : order) members += multiplicity[biases[c].structure];
+      Attribution attribution(n, members);
+      shifts.assign(order.size(), {});
+      for (std::size_t o = 0; o < order.size(); ++o) {
+        const auto& rep = sets[biases[order[o]].structure];
+        for (std::size_t t = 0; t < std::max<std::size_t>(orbits.lifting(), 1); ++t) {
+          auto member = orbits.shifted(rep, t);
+          if (t > 0 && member == rep) break;  // the orbit repeats
+          attribution.add_member(member, o, t == 0);
+        }
+        shifts[o].assign(rep.size(), *biases[order[o]].shift);
       }
-    }
-    attribution.finish();
-
-    // Step 3: biased frames, task by task: cross-entropy rounds refine each structure's
-    // per-bit shifts from the weighted noise of its hits, then the estimate's frames.
-    std::vector<std::vector<double>> shifts(order.size());
-    for (std::size_t o = 0; o < order.size(); ++o)
-      shifts[o].assign(sets[biases[order[o]].structure].size(), *biases[order[o]].shift);
-    std::vector<Attribution> attributions(pool.size(), attribution);
+      attribution.finish();
+      attributions.assign(pool.size(), attribution);
+    };
     struct Scratch {
       std::vector<double> llr, gauss, logw;
       std::vector<std::uint8_t> hard;
@@ -269,6 +288,35 @@ std::vector<FloorEstimatePoint> floor_estimate(std::shared_ptr<const Code> share
         }
       }
     };
+    // Step 2: a pilot of kPilotFrames frames per breaking candidate at its uniform shift; the
+    // max_structures largest pilot estimates are sampled (ties: the rough proxy, then the list's
+    // order).
+    std::vector<std::size_t> breaking;
+    for (std::size_t c = 0; c < biases.size(); ++c) {
+      if (biases[c].shift) breaking.push_back(c);
+    }
+    plan(breaking);
+    const std::uint64_t pilot_batches = kPilotFrames / kBatch;
+    std::vector<TaskSums> pilot_sums(settings.shift ? 0 : pilot_batches * order.size());
+    pool.run(pilot_sums.size(), [&](std::size_t task, unsigned worker) {
+      run_frames(task / pilot_batches, kPilotStart + (task % pilot_batches) * kBatch, kBatch,
+                 worker, pilot_sums[task], nullptr);
+    });
+    std::vector<double> pilot_estimate(order.size(), 0);
+    for (std::size_t task = 0; task < pilot_sums.size(); ++task)
+      pilot_estimate[task / pilot_batches] += pilot_sums[task].w;
+    std::vector<std::size_t> ranked(order.size());
+    std::iota(ranked.begin(), ranked.end(), 0);
+    std::stable_sort(ranked.begin(), ranked.end(), [&](auto x, auto y) {
+      const double mx = pilot_estimate[x] * static_cast<double>(multiplicity[biases[order[x]].structure]),
+                   my = pilot_estimate[y] * static_cast<double>(multiplicity[biases[order[y]].structure]);
+      return mx != my ? mx > my : biases[order[x]].proxy > biases[order[y]].proxy;
+    });
+    if (ranked.size() > settings.max_structures) ranked.resize(settings.max_structures);
+    std::vector<std::size_t> chosen;
+    for (auto r : ranked) chosen.push_back(order[r]);
+    plan(chosen);
+
     const std::uint64_t pilot = std::max<std::uint64_t>(kBatch, settings.frames / 8);
     const std::uint64_t pilot_tasks = (pilot + kBatch - 1) / kBatch;
     const std::uint64_t tasks_per = (settings.frames + kBatch - 1) / kBatch;

@@ -299,7 +299,15 @@ FloorSearchResult floor_search(std::shared_ptr<const Code> shared,
     const ImpulseState& st = states[i];
     if (st.too_large) ++result.larger_failures;
     if (st.wrong.empty()) {
-      if (!st.too_large) ++result.unbroken;
+      // An impulse the decoder always corrected still seeds the search with its own bits, so
+      // the absorbing sets near every position are looked for whatever the decoder.
+      if (!st.too_large) {
+        ++result.unbroken;
+        std::vector<std::uint32_t> bits{impulses[i].first};
+        if (impulses[i].second != kNone) bits.push_back(impulses[i].second);
+        std::sort(bits.begin(), bits.end());
+        add_seed(bits);
+      }
       continue;
     }
     const auto origin =

@@ -461,15 +461,16 @@ py::object py_floor_search(PyCode& c, unsigned threads, std::uint64_t seed, int 
 }
 
 py::object py_floor_estimate(PyCode& c, const py::object& structures, std::vector<double> sweep,
-                             std::uint64_t frames, std::size_t per_point,
+                             std::uint64_t frames, std::size_t candidates, std::size_t per_point,
                              std::optional<double> shift, double min_ess, std::uint64_t seed,
                              unsigned threads, double confidence, const py::kwargs& settings) {
   FloorEstimateSettings s;
   s.decoder = decoder_keywords("floor_estimate", settings,
-                               "structures, sweep, frames, per_point, shift, min_ess, seed, "
+                               "structures, sweep, frames, candidates, per_point, shift, min_ess, seed, "
                                "threads, confidence, ");
   s.sweep = std::move(sweep);
   s.frames = frames;
+  s.candidates = candidates;
   s.max_structures = per_point;
   s.shift = shift;
   s.min_ess = min_ess;
@@ -606,7 +607,8 @@ PYBIND11_MODULE(tannery, m) {
         "failures: lists of positions (e.g. a simulation's failure_classes examples) seeding "
         "the trapping-set search. Decoder settings as keywords.");
   m.def("floor_estimate", &py_floor_estimate, py::arg("code"), py::arg("structures"), py::kw_only(),
-        py::arg("sweep"), py::arg("frames") = 20000, py::arg("per_point") = 8,
+        py::arg("sweep"), py::arg("frames") = 20000, py::arg("candidates") = 256,
+        py::arg("per_point") = 8,
         py::arg("shift") = py::none(), py::arg("min_ess") = 30.0, py::arg("seed") = 1,
         py::arg("threads") = 0, py::arg("confidence") = 0.95,
         "Importance-sampled FER at each Eb/N0 of sweep (BPSK, AWGN) toward the structures "

@@ -256,8 +256,8 @@ def test_floor_estimate_against_brute_force(tmp_path):
         brute = tannery.simulate(code, sweep=[7], all_zero=True, frame_errors=300,
                                  max_frames=50_000_000, threads=2)
         e, b = est["points"][0], brute["points"][0]
-        assert e["importance_sampled"]["reliable"]
         if overlap:
+            assert e["importance_sampled"]["reliable"]
             assert e["fer_low"] <= b["fer_high"] and b["fer_low"] <= e["fer_high"], (e, b)
         else:
             assert e["fer_high"] < b["fer_low"], (e["fer"], b["fer"])

@@ -3,14 +3,20 @@
 // AWGN channel, the all-zero word sent, and for each structure T (a set of a bits from
 // floor_search) frames whose noise is shifted toward T.
 //
-// For one structure and Eb/N0 (sigma from the code's rate k/n):
-//   1. the shift s: the smallest mean shift (in signal amplitudes, by bisection on [0, 3]) at
-//      which the noiseless word with T's bits at 1 - s fails to decode;
-//   2. N frames with noise n ~ q = N(mu, sigma^2 I), mu = -s on T's bits and 0 elsewhere; each
-//      frame's weight is p(n) / q(n) = exp((a s^2 + 2 s sum_{j in T} n_j) / (2 sigma^2));
-//   3. a failure is attributed to the listed structure (any member of any listed orbit) sharing
-//      the most wrong bits with it, shared equally on ties: I = 1 / ties for T, else 0;
-//   4. P_T = (1/N) sum w I, its standard error from the sample variance of w I, and its effective
+// At each Eb/N0 (sigma from the code's rate k/n):
+//   1. candidates (see `candidates`): for each, the smallest uniform mean shift s (in signal
+//      amplitudes, by bisection on [0, 3]) at which the noiseless word with its bits at 1 - s
+//      fails to decode; candidates that never fail are left out;
+//   2. a pilot of 256 frames per remaining candidate at that shift; the max_structures with the
+//      largest pilot estimates (then the largest proxy) are sampled;
+//   3. three cross-entropy rounds (frames / 8 each) move each bit's shift s_j to the weighted mean
+//      of the noise on that bit over the frames that failed on the structure (smoothing 0.7);
+//   4. N frames with noise n ~ q = N(mu, sigma^2 I), mu_j = -s_j on T's bits and 0 elsewhere,
+//      each weighted by p(n) / q(n) = exp((sum s_j^2 + 2 sum s_j n_j) / (2 sigma^2));
+//   5. a failure with wrong bits W is attributed to the sampled structure (any member of any
+//      sampled orbit) most similar to it, |W and T| / |W or T| (Jaccard's index), shared equally
+//      on ties: I = 1 / ties for T, else 0;
+//   6. P_T = (1/N) sum w I, its standard error from the sample variance of w I, and its effective
 //      sample size (sum w I)^2 / sum (w I)^2. The orbit's multiplicity M multiplies both.
 // The events "a failure attributed to T" are disjoint over T, so the sum over structures
 // estimates the probability of a failure on one of them: a lower estimate of the FER. The
@@ -34,7 +40,10 @@ struct FloorEstimateSettings {
   DecoderSettings decoder;
   std::vector<double> sweep;     // Eb/N0 in dB
   std::uint64_t frames = 20000;  // biased frames per structure and point
-  // Structures sampled per point: the most likely ones by the rough proxy
+  // Structures whose shift is looked for (step 1): half with the fewest odd checks b (then a),
+  // half the smallest by a + b.
+  std::size_t candidates = 256;
+  // Structures sampled per point: the most likely candidates by the rough proxy
   // M * Q(s * sqrt(a) / sigma) (the probability of the shifted direction alone).
   std::size_t max_structures = 8;
   std::optional<double> shift;  // one shift for every structure instead of step 1 (0: no bias)

@@ -1,8 +1,9 @@
 // Searching a code for the small structures behind its error floor: low-weight codewords by the
 // error-impulse method (Berrou & Vaton 2002; Hu, Fossorier & Eleftheriou 2004; pairs of impulses
 // as in Declercq & Fossorier 2008) and trapping sets — (a, b) structures the decoder stops in —
-// seeded by the impulse outcomes and by failures kept from simulations, grown and trimmed by a
-// local beam search.
+// seeded by the impulse outcomes (a failure's wrong bits, or the impulse's own bits when the
+// decoder corrected it at every amplitude) and by failures kept from simulations, grown and
+// trimmed by a local beam search.
 //
 //   FloorSearchSettings s;  // sum-product, the default amplitude ladder
 //   FloorSearchResult r = floor_search(load_code("regular-3-6-n2016"), s);
