@@ -6,6 +6,7 @@
 #include <nlohmann/json.hpp>
 #include <thread>
 
+#include "results_document.hpp"
 #include "tannery/error.hpp"
 #include "tannery/report/settings_json.hpp"
 #include "tannery/version.hpp"
@@ -115,14 +116,9 @@ std::string structures_json(const StructuresRecord& r) {
   return j.dump(1) + "\n";
 }
 
-StructuresRecord parse_structures_json(std::string_view text, const std::string& source,
-                                       const Code& code) {
-  json j;
-  try {
-    j = json::parse(text);
-  } catch (const json::parse_error& e) {
-    throw Error(fmt::format("{}: not JSON (byte {}): {}", source, e.byte, e.what()));
-  }
+namespace {
+
+StructuresRecord parse_structures(const json& j, const std::string& source, const Code& code) {
   if (!j.is_object() || j.value("format", "") != "tannery-structures")
     throw Error(
         fmt::format("{}: not a tannery structures file (no \"format\": "
@@ -181,6 +177,18 @@ StructuresRecord parse_structures_json(std::string_view text, const std::string&
   }
   r.result.n = code.n();
   return r;
+}
+
+}  // namespace
+
+StructuresRecord parse_structures_json(std::string_view text, const std::string& source,
+                                       const Code& code) {
+  const json j = parse_json_text(text, source);
+  try {
+    return parse_structures(j, source, code);
+  } catch (const json::exception& e) {  // a field of an unexpected type
+    throw Error(fmt::format("{}: {}", source, e.what()));
+  }
 }
 
 std::string structures_text(const FloorSearchResult& s, std::size_t examples) {

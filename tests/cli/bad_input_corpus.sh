@@ -66,6 +66,9 @@ open("truncated-structures.json", "w").write(json.dumps(good)[:150])
 j = json.loads(json.dumps(good)); j["structures"][0]["variables"] = [1, 1, 2]; json.dump(j, open("repeated.json", "w"))
 j = json.loads(json.dumps(good)); j["structures"][0]["variables"] = [1, 7]; json.dump(j, open("beyond.json", "w"))
 j = json.loads(json.dumps(good)); j["version"] = 99; json.dump(j, open("version-structures.json", "w"))
+j = json.loads(json.dumps(good)); j["format"] = 3; json.dump(j, open("format-structures.json", "w"))
+# Found by fuzz_structures: a number no JSON number type holds ended the reader past its errors.
+open("overflow-structures.json", "w").write('{"a": 6e2611}')
 PY
 mkdir adir
 echo "keep me" > sentinel.out
@@ -169,11 +172,13 @@ construct lift --base ragged.base --lifting 4 -o sentinel.out|ragged.base:2: row
 construct lift --base big.base --lifting 4 -o sentinel.out|big.base:1: base multiplicity 256 is out of range
 simulate --code hamming-7-4 --sweep 1 --replay 0:1x -o sentinel.out --plot ''|--replay expects POINT:FRAME
 decode --code hamming-7-4 --puncture tail.map good.f32 -o sentinel.out|tail.map:1: '3x' is not an index
-floor estimate hamming-7-4 --structures truncated-structures.json --sweep 5 -o sentinel.out|truncated-structures.json: not JSON (byte 151)
+floor estimate hamming-7-4 --structures truncated-structures.json --sweep 5 -o sentinel.out|truncated-structures.json: not valid JSON (byte 151)
 floor estimate hamming-7-4 --structures repeated.json --sweep 5 -o sentinel.out|repeated.json: structure 1: a position is repeated
 floor estimate hamming-7-4 --structures beyond.json --sweep 5 -o sentinel.out|beyond.json: structure 1: 'variables' must be a list of positions below n = 7
 floor estimate hamming-15-11 --structures good-structures.json --sweep 5 -o sentinel.out|good-structures.json: its structures belong to another code
 floor estimate hamming-7-4 --structures version-structures.json --sweep 5 -o sentinel.out|version-structures.json: structures version 99
+floor estimate hamming-7-4 --structures format-structures.json --sweep 5 -o sentinel.out|format-structures.json
+floor estimate hamming-7-4 --structures overflow-structures.json --sweep 5 -o sentinel.out|overflow-structures.json: not valid JSON
 floor estimate hamming-7-4 --structures adir --sweep 5 -o sentinel.out|adir
 floor estimate hamming-7-4 --sweep nan -o sentinel.out|sweep: 'nan' is not a number
 floor estimate hamming-7-4 --sweep 5 --frames 1 -o sentinel.out|--frames
