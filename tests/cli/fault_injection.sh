@@ -39,6 +39,7 @@ for delay in 0.53 0.31 0.70 0.12 0.45 0.66 0.21 0.38 0.59 0.08; do
   [ $((interruptions % 2)) = 0 ] && sig=TERM || sig=INT
   "$T" simulate "${args[@]}" &
   pid=$!
+  wait_for_handlers $pid  # the delay counts from there
   sleep $delay
   kill -$sig $pid 2>/dev/null
   wait $pid

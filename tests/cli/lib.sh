@@ -23,3 +23,15 @@ for p in json.load(open(sys.argv[1]))["points"]:
           p["undetected_errors"], p["bit_error_squares"], p["iteration_histogram"], p["failed_frames"],
           p["chunks"], p["complete"], p["stop_reason"], p["failure_classes"], p["larger_failures"])' "$1"
 }
+# wait_for_handlers PID: returns once the process catches SIGINT and SIGTERM (bits 1 and 14 of
+# SigCgt), at most 5 s. Before that a signal meets the default action whatever the tool does -
+# SIGINT is even ignored by a background job of a script - and a sanitized build on a loaded
+# machine can take longer to load than a test's delay.
+wait_for_handlers() {
+  local mask
+  for _ in $(seq 500); do
+    mask=$(sed -n 's/^SigCgt:\s*//p' "/proc/$1/status" 2>/dev/null)
+    [ -n "$mask" ] && (( (0x$mask & 0x4002) == 0x4002 )) && return 0
+    sleep 0.01
+  done
+}

@@ -57,14 +57,7 @@ interrupted() {
   rm -f "$1"
   "$T" simulate "${RESUME[@]}" --output "$1" --quiet &
   local pid=$! code
-  # The delay counts from the moment the process catches SIGINT and SIGTERM (bits 1 and 14 of
-  # SigCgt): before that a signal meets the default action whatever the tool does (a sanitized
-  # build on a loaded machine can take longer than the delay to load).
-  for _ in $(seq 500); do
-    mask=$(sed -n 's/^SigCgt:\s*//p' "/proc/$pid/status" 2>/dev/null)
-    [ -n "$mask" ] && (( (0x$mask & 0x4002) == 0x4002 )) && break
-    sleep 0.01
-  done
+  wait_for_handlers $pid  # the delay counts from there
   sleep "$2"
   for _ in $(seq "$4"); do kill "-$3" $pid; done
   wait $pid
