@@ -70,7 +70,7 @@ Code build(const ConstructOptions& o, std::string& note) {
   // lift
   if (o.base.empty() || o.lifting == 0)
     throw Error("construct lift needs --base FILE and --lifting Z");
-  const MultiplicityTable base = parse_multiplicity_table(read_text_file(o.base, 1 << 24), o.base);
+  const Protograph base = parse_protograph(read_text_file(o.base, 1 << 24), o.base);
   const std::size_t rows = base.rows, cols = base.cols;
   const std::vector<std::uint8_t>& table = base.cells;
   const std::size_t t = *std::max_element(table.begin(), table.end());

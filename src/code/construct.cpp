@@ -191,25 +191,105 @@ std::vector<std::uint8_t> split_multiplicities(std::size_t rows, std::size_t col
   return pattern;
 }
 
-MultiplicityTable parse_multiplicity_table(std::string_view text, const std::string& source) {
+std::size_t Protograph::variable_degree(std::size_t j) const noexcept {
+  std::size_t d = 0;
+  for (std::size_t i = 0; i < rows; ++i) d += at(i, j);
+  return d;
+}
+std::size_t Protograph::check_degree(std::size_t i) const noexcept {
+  std::size_t d = 0;
+  for (std::size_t j = 0; j < cols; ++j) d += at(i, j);
+  return d;
+}
+std::size_t Protograph::edges() const noexcept {
+  std::size_t d = 0;
+  for (std::uint8_t c : cells) d += c;
+  return d;
+}
+bool Protograph::is_punctured(std::size_t j) const noexcept {
+  return std::binary_search(punctured.begin(), punctured.end(), j);
+}
+double Protograph::design_rate() const noexcept {
+  return (static_cast<double>(cols) - static_cast<double>(rows)) /
+         static_cast<double>(cols - punctured.size());
+}
+void Protograph::validate() const {
+  if (rows == 0 || cols == 0 || cells.size() != rows * cols)
+    throw Error("protograph: the table is empty or not rows x cols");
+  for (std::size_t j = 0; j < cols; ++j) {
+    if (variable_degree(j) == 0)
+      throw Error(fmt::format("protograph: column {} has no edge", j + 1));
+  }
+  for (std::size_t i = 0; i < rows; ++i) {
+    if (check_degree(i) < 2)
+      throw Error(fmt::format("protograph: row {} has degree {} (a check needs 2 or more)", i + 1,
+                              check_degree(i)));
+  }
+  if (punctured.size() >= cols || !(design_rate() > 0 && design_rate() < 1)) {
+    throw Error(fmt::format(
+        "protograph: {} rows, {} columns and {} punctured give design rate {:.4g}, not in (0, 1)",
+        rows, cols, punctured.size(), punctured.size() < cols ? design_rate() : 0.0));
+  }
+}
+
+Protograph parse_protograph(std::string_view text, const std::string& source) {
   detail::reject_binary(text, source);
   detail::TextReader reader(text, source, '#');
-  MultiplicityTable table;
+  Protograph p;
   detail::Line line;
+  std::size_t punctured_line = 0;
+  std::vector<std::int64_t> punctured;
   while (reader.next(line)) {
-    if (table.rows > 0 && line.tokens.size() != table.cols) {
-      reader.fail(line.number, fmt::format("row has {} entries, the first has {}",
-                                           line.tokens.size(), table.cols));
+    if (line.tokens.front() == "punctured") {
+      if (punctured_line != 0)
+        reader.fail(line.number,
+                    fmt::format("second punctured line (the first is line {})", punctured_line));
+      punctured_line = line.number;
+      for (std::size_t t = 1; t < line.tokens.size(); ++t)
+        punctured.push_back(reader.integer_in(line, line.tokens[t], 1, 1 << 20, "column"));
+      continue;
     }
-    table.cols = line.tokens.size();
+    if (p.rows > 0 && line.tokens.size() != p.cols) {
+      reader.fail(line.number,
+                  fmt::format("row has {} entries, the first has {}", line.tokens.size(), p.cols));
+    }
+    p.cols = line.tokens.size();
     for (std::string_view token : line.tokens) {
-      table.cells.push_back(
+      p.cells.push_back(
           static_cast<std::uint8_t>(reader.integer_in(line, token, 0, 255, "base multiplicity")));
     }
-    ++table.rows;
+    ++p.rows;
   }
-  if (table.rows == 0) throw Error(fmt::format("{}: empty base graph", source));
-  return table;
+  if (p.rows == 0) throw Error(fmt::format("{}: empty base graph", source));
+  for (std::int64_t c : punctured) {
+    if (static_cast<std::size_t>(c) > p.cols) {
+      reader.fail(punctured_line,
+                  fmt::format("punctured column {} is beyond the {} columns", c, p.cols));
+    }
+    p.punctured.push_back(static_cast<std::size_t>(c - 1));
+  }
+  std::sort(p.punctured.begin(), p.punctured.end());
+  if (std::adjacent_find(p.punctured.begin(), p.punctured.end()) != p.punctured.end())
+    reader.fail(punctured_line, "a punctured column is listed twice");
+  return p;
+}
+
+std::string protograph_text(const Protograph& p) {
+  std::string out;
+  const int width = p.cells.empty() || *std::max_element(p.cells.begin(), p.cells.end()) < 10
+                        ? 1
+                        : (*std::max_element(p.cells.begin(), p.cells.end()) < 100 ? 2 : 3);
+  for (std::size_t i = 0; i < p.rows; ++i) {
+    for (std::size_t j = 0; j < p.cols; ++j)
+      out += fmt::format("{}{:>{}}", j ? " " : "", p.at(i, j), width);
+    out += '\n';
+  }
+  if (!p.punctured.empty()) {
+    out += "punctured";
+    for (std::size_t c : p.punctured) out += fmt::format(" {}", c + 1);
+    out += '\n';
+  }
+  return out;
 }
 
 std::vector<std::size_t> degree_sequence(const std::map<std::size_t, double>& fractions,

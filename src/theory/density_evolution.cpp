@@ -12,6 +12,7 @@
 #include "tannery/error.hpp"
 #include "tannery/parse.hpp"
 #include "tannery/theory/capacity.hpp"
+#include "threshold_internal.hpp"
 
 namespace tannery {
 
@@ -121,21 +122,11 @@ double poly(const std::map<std::size_t, double>& coefficients, double x) {
   return s;
 }
 
-// Bisection for the largest channel value (worse is larger) at which decodes(value) holds.
-template <class F>
-double bisect(double good, double bad, double tolerance, F decodes) {
-  while (bad - good > tolerance) {
-    const double mid = 0.5 * (good + bad);
-    (decodes(mid) ? good : bad) = mid;
-  }
-  return 0.5 * (good + bad);
-}
-
 }  // namespace
 
 double bec_threshold(const Ensemble& e) {
   e.validate();
-  return bisect(0.0, 1.0, 1e-7, [&](double eps) {
+  return detail::bisect(0.0, 1.0, 1e-7, [&](double eps) {
     double x = eps;
     for (int it = 0; it < 100000; ++it) {
       const double next = eps * poly(e.lambda, 1 - poly(e.rho, 1 - x));
@@ -383,7 +374,7 @@ constexpr double kTarget = 1e-7;
 template <class Evolve>
 void find_threshold(double good, double bad, double tolerance, Evolve evolve, ThresholdResult& r) {
   const double waterfall =
-      bisect(good, bad, tolerance, [&](double x) { return evolve(x).past_waterfall(); });
+      detail::bisect(good, bad, tolerance, [&](double x) { return evolve(x).past_waterfall(); });
   // Just inside the waterfall (the bisection's good side).
   const double inside = std::max(good, waterfall - tolerance);
   const Evolution at = evolve(inside);
@@ -395,7 +386,8 @@ void find_threshold(double good, double bad, double tolerance, Evolve evolve, Th
   r.stalled = true;
   r.waterfall = waterfall;
   r.floor = at.pe;
-  r.threshold = bisect(good, inside, tolerance, [&](double x) { return evolve(x).converged; });
+  r.threshold =
+      detail::bisect(good, inside, tolerance, [&](double x) { return evolve(x).converged; });
 }
 
 // Channel LLR density of BPSK over AWGN: L = 2y/sigma^2 ~ N(2/sigma^2, 4/sigma^2), by bin masses.
@@ -462,19 +454,6 @@ bool gaussian_converges(const Ensemble& e, double sigma) {
   return false;
 }
 
-ThresholdResult finish_awgn(double sigma, double rate, std::string method, double accuracy) {
-  ThresholdResult r;
-  r.threshold = sigma;
-  r.rate = rate;
-  r.ebn0_db = 10 * std::log10(1 / (2 * rate * sigma * sigma));
-  const double limit_db = biawgn_shannon_limit_ebn0_db(rate);
-  r.limit = awgn_sigma(limit_db, SnrMeasure::ebn0, rate);
-  r.gap_db = r.ebn0_db - limit_db;
-  r.method = std::move(method);
-  r.accuracy = accuracy;
-  return r;
-}
-
 void check_algorithm(const DecoderSettings& d) {
   if (d.algorithm == Algorithm::bit_flip || d.algorithm == Algorithm::ml) {
     throw Error(fmt::format("density evolution covers sum-product and the min-sum family, not {}",
@@ -489,23 +468,29 @@ ThresholdResult awgn_threshold(const Ensemble& e, const DecoderSettings& decoder
   e.validate();
   check_algorithm(decoder);
   const double rate = e.design_rate();
+  if (method == ThresholdMethod::exit) {
+    throw Error(
+        "the EXIT method is protograph EXIT analysis: it takes a protograph (--base), not "
+        "a degree distribution; use discretized or gaussian");
+  }
   if (method == ThresholdMethod::gaussian) {
     if (decoder.algorithm != Algorithm::sum_product)
       throw Error("the Gaussian approximation covers sum-product only");
-    const double sigma = bisect(0.3, 2.0, 1e-5, [&](double s) { return gaussian_converges(e, s); });
-    return finish_awgn(sigma, rate, "Gaussian approximation (Chung, Richardson, Urbanke 2001)",
-                       1e-5);
+    const double sigma =
+        detail::bisect(0.3, 2.0, 1e-5, [&](double s) { return gaussian_converges(e, s); });
+    return detail::awgn_threshold_result(
+        sigma, rate, "Gaussian approximation (Chung, Richardson, Urbanke 2001)", 1e-5);
   }
   DensityEvolution de(e, decoder, kStep, grid_limit(decoder));
   ThresholdResult found;
   find_threshold(
       0.3, 2.0, 2e-4,
       [&](double s) { return de.evolve(awgn_channel(de.grid(), s), kIterations, kTarget); }, found);
-  ThresholdResult r =
-      finish_awgn(found.threshold, rate,
-                  fmt::format("discretized density evolution, LLR step {}, range +-{}", kStep,
-                              grid_limit(decoder)),
-                  2e-3);
+  ThresholdResult r = detail::awgn_threshold_result(
+      found.threshold, rate,
+      fmt::format("discretized density evolution, LLR step {}, range +-{}", kStep,
+                  grid_limit(decoder)),
+      2e-3);
   r.target = found.target;
   r.stalled = found.stalled;
   if (r.stalled) {

@@ -42,7 +42,7 @@ extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size
     }
   }
   try {
-    (void)tannery::parse_multiplicity_table(text, "fuzz");
+    (void)tannery::parse_protograph(text, "fuzz");
   } catch (const tannery::Error&) {
   }
   return 0;

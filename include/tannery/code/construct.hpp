@@ -44,14 +44,31 @@ std::vector<std::uint8_t> split_multiplicities(std::size_t rows, std::size_t col
                                                const std::vector<std::uint8_t>& multiplicity,
                                                std::size_t t);
 
-// A protograph as a table of edge multiplicities from text: one line per base row, entries
-// 0..255 separated by blanks or commas, '#' comments, every row as long as the first. source
-// names the text in errors ("file:line: ...").
-struct MultiplicityTable {
+// A protograph: a base matrix of edge multiplicities (rows: check types, columns: variable
+// types) and the variable types that are punctured (in the code but never transmitted).
+struct Protograph {
   std::size_t rows = 0, cols = 0;
-  std::vector<std::uint8_t> cells;  // row-major
+  std::vector<std::uint8_t> cells;     // row-major multiplicities
+  std::vector<std::size_t> punctured;  // 0-based columns, increasing
+
+  std::uint8_t at(std::size_t i, std::size_t j) const noexcept { return cells[i * cols + j]; }
+  std::size_t variable_degree(std::size_t j) const noexcept;
+  std::size_t check_degree(std::size_t i) const noexcept;
+  std::size_t edges() const noexcept;  // sum of the multiplicities
+  bool is_punctured(std::size_t j) const noexcept;
+  // (cols - rows) / (cols - punctured): the rate of a lifted code whose checks are independent.
+  double design_rate() const noexcept;
+  // Throws Error unless every variable type has an edge, every check type has degree >= 2 and the
+  // design rate is in (0, 1).
+  void validate() const;
 };
-MultiplicityTable parse_multiplicity_table(std::string_view text, const std::string& source);
+// A protograph from text: one line per base row, entries 0..255 separated by blanks or commas,
+// '#' comments, every row as long as the first; a line "punctured C1 C2 ..." (1-based columns)
+// marks punctured variable types. source names the text in errors ("file:line: ...").
+Protograph parse_protograph(std::string_view text, const std::string& source);
+// The text parse_protograph reads: a row per line, entries aligned, then the "punctured" line when
+// there is one.
+std::string protograph_text(const Protograph& p);
 // Node fractions (degree -> fraction of the n variables, summing to 1) -> one degree per
 // variable, lowest degrees first, counts rounded so that they add up to n.
 std::vector<std::size_t> degree_sequence(const std::map<std::size_t, double>& fractions,

@@ -36,14 +36,16 @@ std::map<std::size_t, double> parse_degree_map(std::string_view text, std::strin
 std::pair<std::size_t, std::size_t> parse_degree_pair(std::string_view text,
                                                       std::string_view setting);
 
-enum class ThresholdMethod { exact, discretized, gaussian };
+// exit: protograph EXIT analysis (protographs only, see theory/protograph.hpp).
+enum class ThresholdMethod { exact, discretized, gaussian, exit };
 template <>
 struct Names<ThresholdMethod> {
   static constexpr std::string_view setting = "method";
   static constexpr std::pair<ThresholdMethod, std::string_view> table[] = {
       {ThresholdMethod::exact, "exact"},
       {ThresholdMethod::discretized, "discretized"},
-      {ThresholdMethod::gaussian, "gaussian"}};
+      {ThresholdMethod::gaussian, "gaussian"},
+      {ThresholdMethod::exit, "exit"}};
 };
 
 // The threshold is the worst channel at which density evolution drives the error probability of
