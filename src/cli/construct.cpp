@@ -1,15 +1,21 @@
 // tannery construct KIND -o FILE: build a parity-check matrix.
 #include <fmt/format.h>
+#include <unistd.h>
+
 #include <algorithm>
+#include <chrono>
 #include <sstream>
 
 #include "commands.hpp"
 #include "settings_options.hpp"
+#include "stage_line.hpp"
+#include "tannery/base/output_file.hpp"
 #include "tannery/code/analysis.hpp"
 #include "tannery/code/construct.hpp"
 #include "tannery/error.hpp"
 #include "tannery/io/matrix_io.hpp"
 #include "tannery/theory/density_evolution.hpp"
+#include "tannery/theory/protograph.hpp"
 
 namespace tannery::cli {
 
@@ -27,7 +33,61 @@ struct ConstructOptions {
   std::string base;
   std::size_t lifting = 0;
   std::string variable_degrees;
+  // protograph search
+  ProtographSearchSettings search;
+  std::string start;
+  bool quiet = false;
 };
+
+// The command line that repeats a search exactly (the rounds fixed).
+std::string search_command(const ConstructOptions& o, std::size_t rounds) {
+  const ProtographSearchSettings& s = o.search;
+  std::string line = "tannery construct protograph";
+  if (o.start.empty()) {
+    line += fmt::format(" --rate {} --rows {}", o.rate, s.rows);
+    if (s.punctured) line += fmt::format(" --punctured {}", s.punctured);
+  } else {
+    line += fmt::format(" --start {}", o.start);
+  }
+  line += fmt::format(" --max-multiplicity {}", s.max_multiplicity);
+  if (s.encodable) line += " --encodable";
+  return line +
+         fmt::format(" --steps {} --rounds {} --seed {} -o {}", s.steps, rounds, s.seed, o.output);
+}
+
+void run_protograph_search(ConstructOptions o) {
+  o.search.rate = o.rate;
+  if (!o.start.empty())
+    o.search.start = parse_protograph(read_text_file(o.start, 1 << 24), o.start);
+  StageLine line(!o.quiet && isatty(STDERR_FILENO));
+  const auto started = std::chrono::steady_clock::now();
+  const ProtographSearchResult r =
+      search_protograph(o.search, [&](std::size_t rounds, std::size_t evaluations, double best) {
+        line.show(
+            fmt::format("{} rounds, {} candidates, best {:.4f} dB", rounds, evaluations, best));
+      });
+  line.finish();
+  const double seconds =
+      std::chrono::duration<double>(std::chrono::steady_clock::now() - started).count();
+  const ThresholdResult& t = r.threshold;
+  const std::string summary = fmt::format(
+      "# {} x {} protograph, design rate {:.6g}: protograph EXIT threshold Eb/N0 = {:.4f} dB "
+      "(sigma {:.5f}), Shannon limit {:.4f} dB, gap {:.4f} dB\n# made by: {}\n",
+      r.best.rows, r.best.cols, t.rate, t.ebn0_db, t.threshold, t.ebn0_db - t.gap_db, t.gap_db,
+      search_command(o, r.rounds));
+  const std::string text = summary + protograph_text(r.best);
+  write_file_atomically(o.output, text);
+  if (o.output == "-") return;
+  fmt::print("{}", text);
+  fmt::print("search: {} rounds of {} steps, {} candidates in {:.1f} s; best from round {}\n",
+             r.rounds, o.search.steps, r.evaluations, seconds, r.best_round + 1);
+  if (r.start_threshold) {
+    fmt::print("start {} had {:.4f} dB (gap {:.4f} dB): {:.4f} dB better\n", o.start,
+               r.start_threshold->ebn0_db, r.start_threshold->gap_db,
+               r.start_threshold->ebn0_db - t.ebn0_db);
+  }
+  fmt::print(stderr, "wrote {}\n", o.output);
+}
 
 Code build(const ConstructOptions& o, std::string& note) {
   auto need_length = [&] {
@@ -104,14 +164,18 @@ void add_construct(CLI::App& app) {
       "my.tanner\n"
       "  tannery construct lift --base pattern.dense --lifting 54 -o my.qc\n"
       "  tannery construct hamming --length 15 -o h15.tanner\n"
+      "  tannery construct protograph --rate 0.5 --rows 3 --punctured 1 --budget 60 -o "
+      "design.proto\n"
       "  tannery construct peg --length 1008 --rate 0.5 --variable-degrees 2:0.5,3:0.3,8:0.2 "
       "--seed 3 -o peg.alist");
   sub->add_option("KIND", o->kind,
-                  "regular: random (dv,dc)-regular code without 4-cycles; lift: quasi-cyclic "
-                  "lifting of a 0/1 "
-                  "base graph; hamming, repetition, parity: classic codes")
+                  "regular: random (dv,dc)-regular code without 4-cycles; peg: progressive edge "
+                  "growth; lift: quasi-cyclic lifting of a base graph; protograph: search for a "
+                  "protograph of low threshold (writes the base table); hamming, repetition, "
+                  "parity: classic codes")
       ->required()
-      ->check(CLI::IsMember({"peg", "regular", "lift", "hamming", "repetition", "parity"}));
+      ->check(CLI::IsMember(
+          {"peg", "regular", "lift", "protograph", "hamming", "repetition", "parity"}));
   sub->add_option("-o,--output", o->output, "output file ('-' = stdout)")->required();
   sub->add_option("--to", o->to, "output format (default: from the extension)")
       ->check(names_of<MatrixFormat>());
@@ -135,7 +199,44 @@ void add_construct(CLI::App& app) {
                   "base graph to lift: a table of 0/1 or edge multiplicities, a row per line");
   sub->add_option("--lifting", o->lifting, "lifting size Z (circulant size) for lift")
       ->check(CLI::Range(1.0, static_cast<double>(1 << 20)));
+  auto* design = sub->add_option_group("protograph search");
+  design->add_option("--rows", o->search.rows, "check types M of the protograph")
+      ->capture_default_str()
+      ->check(CLI::Range(1, 64));
+  design
+      ->add_option("--max-multiplicity", o->search.max_multiplicity,
+                   "largest base entry T (parallel edges)")
+      ->capture_default_str()
+      ->check(CLI::Range(1, 16));
+  design
+      ->add_option("--punctured", o->search.punctured,
+                   "punctured variable types (the first columns); columns N = (M - R P) / (1 - R)")
+      ->capture_default_str()
+      ->check(CLI::Range(0, 64));
+  design->add_flag("--encodable", o->search.encodable,
+                   "fix the last M columns to a weight-3 column and a dual diagonal (linear-time "
+                   "encoding)");
+  design
+      ->add_option("--budget", o->search.budget_seconds,
+                   "seconds: rounds start until this much time has passed (ignored with --rounds)")
+      ->capture_default_str()
+      ->check(CLI::Range(0.0, 1e6));
+  design
+      ->add_option("--rounds", o->search.rounds,
+                   "annealing rounds, fixed (the result then depends only on the seed)")
+      ->check(CLI::Range(1, 1000000));
+  design->add_option("--steps", o->search.steps, "candidates evaluated per round")
+      ->capture_default_str()
+      ->check(CLI::Range(1, 1000000));
+  design->add_option("--start", o->start,
+                     "start every round from this protograph (its shape replaces --rate, --rows, "
+                     "--punctured)");
+  design->add_option("--threads", o->search.threads, "threads (0 = one per core)")
+      ->capture_default_str();
+  design->add_flag("-q,--quiet", o->quiet, "no progress line");
   sub->callback([o] {
+    o->search.seed = o->seed;
+    if (o->kind == "protograph") return run_protograph_search(*o);
     std::string note;
     const Code code = build(*o, note);
     MatrixFormat format = output_format(o->to, o->output);

@@ -8,6 +8,7 @@
 
 #include "commands.hpp"
 #include "simulate_output.hpp"
+#include "stage_line.hpp"
 #include "tannery/error.hpp"
 #include "tannery/floor/estimate.hpp"
 #include "tannery/io/matrix_io.hpp"
@@ -17,25 +18,6 @@
 namespace tannery::cli {
 
 namespace {
-
-// A progress line on standard error (only on a terminal), ended by finish().
-class StageLine {
- public:
-  explicit StageLine(bool enabled) : enabled_(enabled) {}
-  void show(const std::string& text) {
-    if (!enabled_) return;
-    fmt::print(stderr, "\r  {:<70}", text);
-    std::fflush(stderr);
-    open_ = true;
-  }
-  void finish() {
-    if (open_) fmt::print(stderr, "\n");
-    open_ = false;
-  }
-
- private:
-  bool enabled_, open_ = false;
-};
 
 struct SearchCommand {
   CodeInput input;

@@ -2,7 +2,9 @@
 // density evolution on the BEC.
 #pragma once
 
+#include <functional>
 #include <optional>
+#include <string>
 
 #include "tannery/code/construct.hpp"
 #include "tannery/theory/density_evolution.hpp"
@@ -47,5 +49,51 @@ std::optional<Ensemble> protograph_ensemble(const Protograph& p);
 ThresholdResult protograph_threshold(const Protograph& p, ChannelKind kind,
                                      ThresholdMethod method = ThresholdMethod::exit,
                                      double tolerance = 1e-5);
+
+// ---- design ------------------------------------------------------------------------------------
+
+// Why a protograph breaks the design rules the search keeps, or empty when it keeps them:
+// - every variable type has an edge and every check type degree >= 2; punctured types degree >= 2;
+// - degree-1 variable types only as a precoder: sent, on a check that also joins a punctured type
+//   and holds no other degree-1 type (the accumulator of AR4JA-like designs);
+// - the degree-2 variable types form no cycle among the check types (common practice: a cycle
+//   of degree-2 variables lifts to codewords whose weight grows only slowly with the length);
+// - encodable: the last `rows` columns are the parity part, a weight-3 column (rows 1, the middle
+//   row and the last, each 1) then a dual diagonal (column k in rows k - 1 and k), so the lifted
+//   code encodes in linear time (sum of all block rows, then back substitution) when the lifting
+//   keeps the conditions lift_base_graph states for it.
+std::string protograph_design_violation(const Protograph& p, bool encodable);
+
+struct ProtographSearchSettings {
+  double rate = 0.5;
+  std::size_t rows = 4;              // check types M; columns N = (M - R P) / (1 - R)
+  std::size_t max_multiplicity = 3;  // entries 0..T
+  std::size_t punctured = 0;         // punctured variable types P: the first P columns
+  bool encodable = false;            // fixed parity part (see protograph_design_violation)
+  std::uint64_t seed = 1;
+  std::size_t rounds = 0;           // independent annealing rounds; 0: as many as the budget allows
+  double budget_seconds = 60;       // rounds == 0: rounds start until this much time has passed
+  std::size_t steps = 300;          // candidates evaluated per round
+  unsigned threads = 0;             // 0: one per core; the result does not depend on it
+  std::optional<Protograph> start;  // every round starts here instead of at random
+};
+struct ProtographSearchResult {
+  Protograph best;
+  ThresholdResult threshold;  // of best, to 1e-5 in sigma
+  std::optional<ThresholdResult> start_threshold;
+  std::size_t rounds = 0, evaluations = 0;
+  std::size_t best_round = 0;
+};
+// (rounds done, evaluations, best Eb/N0 so far in dB), after each batch of rounds.
+using ProtographProgress = std::function<void(std::size_t, std::size_t, double)>;
+// Searches protographs of the given shape for the lowest protograph EXIT threshold on BPSK-AWGN
+// by simulated annealing: each round starts from a random protograph that keeps the design rules
+// (or from `start`), changes one entry or moves one edge within a column per step, and accepts a
+// worse threshold with probability exp(-delta / temperature), the temperature falling from 0.3 dB
+// to 0.003 dB over the round. Rounds run in parallel and are seeded by (seed, round), so the
+// result is a function of the seed and the number of rounds (printed, to be given as `rounds`
+// when the budget decided it).
+ProtographSearchResult search_protograph(const ProtographSearchSettings& s,
+                                         const ProtographProgress& progress = {});
 
 }  // namespace tannery

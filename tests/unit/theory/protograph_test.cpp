@@ -98,3 +98,58 @@ TEST_CASE("protographs that cannot decode or are malformed are refused", "[theor
   CHECK(again.cells == p.cells);
   CHECK(again.punctured == p.punctured);
 }
+
+TEST_CASE("protograph design rules", "[theory]") {
+  // AR4JA keeps them: its degree-1 column sits on a check with the punctured column.
+  CHECK(protograph_design_violation(proto(kAr4ja), false).empty());
+  // The same degree-1 column without puncturing is no precoder.
+  Protograph sent = proto(kAr4ja);
+  sent.punctured.clear();
+  CHECK_THAT(protograph_design_violation(sent, false), Catch::Contains("degree 1"));
+  // Degree-2 columns closing a cycle among the checks: rows (1, 2), (2, 3), (1, 3).
+  CHECK_THAT(protograph_design_violation(proto("1 0 1 1 1 1\n1 1 0 1 1 1\n0 1 1 1 1 1\n"), false),
+             Catch::Contains("cycle"));
+  // A double edge on a degree-2 column is a cycle of length 2.
+  CHECK_THAT(protograph_design_violation(proto("2 1 1 1\n0 1 1 1\n"), false),
+             Catch::Contains("cycle"));
+  // Encodable: the last rows columns are a weight-3 column and a dual diagonal.
+  const Protograph encodable = proto("3 1 1 1 1 0\n3 1 1 1 1 1\n3 1 1 1 0 1\n");
+  CHECK(protograph_design_violation(encodable, true).empty());
+  CHECK_THAT(protograph_design_violation(proto("3 1 1 1 1 0\n3 1 1 1 0 1\n3 1 1 1 1 1\n"), true),
+             Catch::Contains("column 5"));
+}
+
+TEST_CASE("the protograph search improves on its start, deterministically for a seed", "[theory]") {
+  ProtographSearchSettings s;
+  s.start = proto("1 1 1 1 1 1\n1 1 1 1 1 1\n1 1 1 1 1 1\n");  // (3,6)-regular: 1.102 dB
+  s.max_multiplicity = 2;
+  s.rounds = 2;
+  s.steps = 40;
+  s.seed = 3;
+  s.threads = 1;
+  const ProtographSearchResult a = search_protograph(s);
+  REQUIRE(a.start_threshold);
+  CHECK(a.threshold.ebn0_db < a.start_threshold->ebn0_db - 0.05);
+  CHECK(a.rounds == 2);
+  CHECK(a.evaluations == 80);
+  CHECK(protograph_design_violation(a.best, false).empty());
+  s.threads = 2;
+  const ProtographSearchResult b = search_protograph(s);
+  CHECK(b.best.cells == a.best.cells);
+  CHECK(b.threshold.threshold == a.threshold.threshold);
+  // A random start of a given shape, encodable: the parity part stays fixed.
+  ProtographSearchSettings r;
+  r.rate = 0.5;
+  r.rows = 3;
+  r.encodable = true;
+  r.rounds = 1;
+  r.steps = 30;
+  const ProtographSearchResult c = search_protograph(r);
+  CHECK(c.best.cols == 6);
+  CHECK(protograph_design_violation(c.best, true).empty());
+  CHECK(c.threshold.gap_db < 1.5);
+  // Shapes the rate cannot have.
+  r.rows = 3;
+  r.rate = 0.6;
+  CHECK_THROWS_WITH(search_protograph(r), Catch::Contains("not a whole number"));
+}
