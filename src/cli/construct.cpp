@@ -14,6 +14,7 @@
 #include "tannery/code/construct.hpp"
 #include "tannery/error.hpp"
 #include "tannery/io/matrix_io.hpp"
+#include "tannery/parse.hpp"
 #include "tannery/theory/density_evolution.hpp"
 #include "tannery/theory/protograph.hpp"
 
@@ -31,7 +32,10 @@ struct ConstructOptions {
   std::size_t check_degree = 0;
   double rate = 0.5;
   std::string base;
-  std::size_t lifting = 0;
+  std::string lifting;
+  int passes = 20, restarts = 4;
+  bool encodable = false;
+  std::string puncture_output;
   std::string variable_degrees;
   // protograph search
   ProtographSearchSettings search;
@@ -128,28 +132,74 @@ Code build(const ConstructOptions& o, std::string& note) {
   if (o.kind == "repetition") return construct_repetition(need_length());
   if (o.kind == "parity") return construct_single_parity(need_length());
   // lift
-  if (o.base.empty() || o.lifting == 0)
-    throw Error("construct lift needs --base FILE and --lifting Z");
+  if (o.base.empty() || o.lifting.empty())
+    throw Error("construct lift needs --base FILE and --lifting Z (or Z1,Z2,... in steps)");
   const Protograph base = parse_protograph(read_text_file(o.base, 1 << 24), o.base);
-  const std::size_t rows = base.rows, cols = base.cols;
-  const std::vector<std::uint8_t>& table = base.cells;
-  const std::size_t t = *std::max_element(table.begin(), table.end());
-  if (t == 0) throw Error(fmt::format("{}: the base graph has no edge", o.base));
-  if (o.lifting % t != 0) {
-    throw Error(
-        fmt::format("multiplicities up to {} need a lifting size divisible by {} (got Z = {})", t,
-                    t, o.lifting));
+  std::vector<std::size_t> steps;
+  std::stringstream items(o.lifting);
+  for (std::string item; std::getline(items, item, ',');) {
+    const auto z = parse_count(item);
+    if (!z || *z < 2 || *z > (1u << 20))
+      throw Error(fmt::format("--lifting: '{}' is not a lifting size 2..{}", item, 1u << 20));
+    steps.push_back(static_cast<std::size_t>(*z));
   }
-  const Lifting lift = lift_base_graph(
-      rows * t, cols * t, split_multiplicities(rows, cols, table, t), o.lifting / t, o.seed);
-  note = fmt::format(
-      " (the shifts avoid every block {}; girth >= {} claimed){}",
-      lift.girth_at_least == 8 ? "4- and 6-cycle" : "4-cycle", lift.girth_at_least,
-      t > 1 ? fmt::format(
-                  "; parallel edges split by copying the base {} times, circulants of size {}", t,
-                  o.lifting / t)
-            : std::string());
-  return Code::from_quasi_cyclic(lift.base);
+  const std::size_t t = *std::max_element(base.cells.begin(), base.cells.end());
+  if (t == 0) throw Error(fmt::format("{}: the base graph has no edge", o.base));
+  if (steps[0] % t != 0) {
+    throw Error(
+        fmt::format("multiplicities up to {} need a first lifting size divisible by {} (got {})", t,
+                    t, steps[0]));
+  }
+  std::vector<ParitySystem> systems;
+  if (o.encodable) {
+    const std::string why = protograph_design_violation(base, true);
+    if (!why.empty()) throw Error(fmt::format("{}: --encodable: {}", o.base, why));
+    ParitySystem s;
+    for (std::size_t k = 0; k < base.rows; ++k) {
+      s.rows.push_back(k);
+      s.cols.push_back(base.cols - base.rows + k);
+    }
+    systems = expand_parity_systems({s}, t);
+  }
+  steps[0] /= t;  // the split into t copies is the first factor's part
+  std::size_t rows = base.rows * t, cols = base.cols * t;
+  std::vector<std::uint8_t> pattern = split_multiplicities(base.rows, base.cols, base.cells, t);
+  LiftOptions options;
+  options.passes = o.passes;
+  options.restarts = o.restarts;
+  Lifting lift;
+  for (std::size_t k = 0; k < steps.size(); ++k) {
+    const bool last = k + 1 == steps.size();
+    LiftOptions step = o.encodable ? parity_lift_options(systems, cols, last) : options;
+    step.passes = options.passes;
+    step.restarts = options.restarts;
+    step.require_no_four_cycles = last;
+    lift = lift_base_graph(rows, cols, pattern, steps[k], o.seed + k, step);
+    if (last) break;
+    const Code stage = Code::from_quasi_cyclic(lift.base);
+    pattern.assign(stage.m() * stage.n(), 0);
+    for (std::size_t c = 0; c < stage.m(); ++c)
+      for (std::uint32_t v : stage.check_variables(c)) pattern[c * stage.n() + v] = 1;
+    rows = stage.m();
+    cols = stage.n();
+    if (o.encodable) systems = expand_parity_systems(systems, steps[k]);
+  }
+  note = fmt::format("; block cycle conditions closed (4/6/8): {}/{}/{}{}", lift.closed[0],
+                     lift.closed[1], lift.closed[2],
+                     t > 1 ? fmt::format("; parallel edges split by copying the base {} times", t)
+                           : std::string());
+  Code code = Code::from_quasi_cyclic(lift.base);
+  if (!o.puncture_output.empty()) {
+    if (base.punctured.empty())
+      throw Error(fmt::format("--puncture-output: {} punctures no column", o.base));
+    const std::size_t per_column = code.n() / base.cols;
+    std::string text =
+        fmt::format("# punctured columns of {} lifted by {}\npunctured", o.base, o.lifting);
+    for (std::size_t j : base.punctured)
+      text += fmt::format(" {}-{}", j * per_column, (j + 1) * per_column - 1);
+    write_file_atomically(o.puncture_output, text + "\n");
+  }
+  return code;
 }
 
 }  // namespace
@@ -197,8 +247,23 @@ void add_construct(CLI::App& app) {
       ->capture_default_str();
   sub->add_option("--base", o->base,
                   "base graph to lift: a table of 0/1 or edge multiplicities, a row per line");
-  sub->add_option("--lifting", o->lifting, "lifting size Z (circulant size) for lift")
-      ->check(CLI::Range(1.0, static_cast<double>(1 << 20)));
+  sub->add_option("--lifting", o->lifting,
+                  "lifting size Z (circulant size) for lift, or Z1,Z2,... to lift in steps (the "
+                  "code's length is the base's times their product; circulants of the last size)");
+  sub->add_option("--passes", o->passes,
+                  "lift: coordinate-descent passes over the shifts (0: the greedy pass alone)")
+      ->capture_default_str()
+      ->check(CLI::Range(0, 1000));
+  sub->add_option("--restarts", o->restarts, "lift: random starts besides the greedy one")
+      ->capture_default_str()
+      ->check(CLI::Range(0, 1000));
+  sub->add_flag("--encodable", o->encodable,
+                "protograph: fix the last M columns to an encodable parity part (a weight-3 "
+                "column, then a dual diagonal; M >= 4); lift: lift that part so that peeling "
+                "encodes the code in linear time");
+  sub->add_option("--puncture-output", o->puncture_output,
+                  "lift: write the punctured positions of the lifted code (a puncture map for "
+                  "simulate) for the base's punctured columns");
   auto* design = sub->add_option_group("protograph search");
   design->add_option("--rows", o->search.rows, "check types M of the protograph")
       ->capture_default_str()
@@ -213,9 +278,6 @@ void add_construct(CLI::App& app) {
                    "punctured variable types (the first columns); columns N = (M - R P) / (1 - R)")
       ->capture_default_str()
       ->check(CLI::Range(0, 64));
-  design->add_flag("--encodable", o->search.encodable,
-                   "fix the last M columns to a weight-3 column and a dual diagonal (linear-time "
-                   "encoding)");
   design
       ->add_option("--budget", o->search.budget_seconds,
                    "seconds: rounds start until this much time has passed (ignored with --rounds)")
@@ -236,6 +298,7 @@ void add_construct(CLI::App& app) {
   design->add_flag("-q,--quiet", o->quiet, "no progress line");
   sub->callback([o] {
     o->search.seed = o->seed;
+    o->search.encodable = o->encodable;
     if (o->kind == "protograph") return run_protograph_search(*o);
     std::string note;
     const Code code = build(*o, note);
@@ -246,7 +309,10 @@ void add_construct(CLI::App& app) {
       const CycleCensus cycles = cycle_census(code);
       fmt::print(stderr, "wrote {} ({} format): n = {}, m = {}, edges = {}, girth = {}{}\n",
                  o->output, name_of(format), code.n(), code.m(), code.edges(),
-                 cycles.girth ? fmt::format("{}", *cycles.girth) : std::string("none"), note);
+                 cycles.girth
+                     ? fmt::format("{} ({} cycles of that length)", *cycles.girth, cycles.count)
+                     : std::string("none"),
+                 note);
     }
   });
 }

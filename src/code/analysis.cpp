@@ -288,6 +288,8 @@ CodeReport inspect_code(const Code& code, std::size_t max_dimension) {
   r.enumerator = weight_enumerator(code, encoder, max_dimension);
   if (r.enumerator) r.distance = minimum_distance(*r.enumerator);
   r.info_positions = encoder.info_positions();
+  r.encoder_dense_checks = encoder.dense_checks();
+  r.encoder_free_bits = encoder.free_bits();
   std::vector<std::uint32_t> first(r.k);
   std::iota(first.begin(), first.end(), 0u);
   try {
@@ -350,6 +352,7 @@ std::string code_report_json(const CodeReport& r, const std::string& source) {
   // positions 0..k-1 could carry them instead (an encoder with the systematic part first).
   j["info_positions"] = r.info_positions;
   j["systematic_first_possible"] = r.systematic_first_possible;
+  j["encoder"] = {{"dense_checks", r.encoder_dense_checks}, {"free_bits", r.encoder_free_bits}};
   return j.dump(2);
 }
 

@@ -3,6 +3,8 @@
 #include <fmt/format.h>
 #include <algorithm>
 #include <cmath>
+#include <numeric>
+#include <tuple>
 
 #include "../io/text_reader.hpp"
 #include "tannery/error.hpp"
@@ -109,67 +111,296 @@ Code construct_single_parity(std::size_t n) {
   return Code::from_checks(n, {all});
 }
 
+namespace {
+
+// A block cycle condition: sum of coefficient * shift over groups of tied entries = 0 mod Z.
+struct Condition {
+  int length_class;                                           // 0, 1, 2: cycles of length 4, 6, 8
+  std::vector<std::pair<std::uint32_t, std::int64_t>> terms;  // (group, coefficient), no zeros
+};
+
+constexpr std::int64_t kWeights[3] = {std::int64_t{1} << 40, std::int64_t{1} << 20, 1};
+
+// Every simple block cycle of length 4, 6, 8 of the pattern (rows r0 < the others, first column
+// below the last, so each once), plus each 4-cycle walked twice, as conditions over entry groups.
+std::vector<Condition> cycle_conditions(std::size_t rows, std::size_t cols,
+                                        const std::vector<std::uint8_t>& pattern,
+                                        const std::vector<std::uint32_t>& group_of) {
+  std::vector<std::vector<std::uint32_t>> row_cols(rows), col_rows(cols);
+  for (std::size_t i = 0; i < rows; ++i)
+    for (std::size_t j = 0; j < cols; ++j)
+      if (pattern[i * cols + j]) {
+        row_cols[i].push_back(static_cast<std::uint32_t>(j));
+        col_rows[j].push_back(static_cast<std::uint32_t>(i));
+      }
+  std::vector<Condition> out;
+  std::vector<std::uint32_t> path_rows, path_cols;
+  std::vector<char> row_used(rows, 0), col_used(cols, 0);
+  auto emit = [&](std::size_t length_class, std::int64_t factor) {
+    Condition c{static_cast<int>(length_class), {}};
+    const std::size_t l = path_cols.size();
+    auto add = [&](std::size_t r, std::size_t col, std::int64_t sign) {
+      const std::uint32_t g = group_of[r * cols + col];
+      auto it = std::find_if(c.terms.begin(), c.terms.end(), [g](auto& t) { return t.first == g; });
+      if (it == c.terms.end())
+        c.terms.push_back({g, sign * factor});
+      else
+        it->second += sign * factor;
+    };
+    for (std::size_t k = 0; k < l; ++k) {
+      add(path_rows[k], path_cols[k], +1);
+      add(path_rows[(k + 1) % l], path_cols[k], -1);
+    }
+    std::erase_if(c.terms, [](auto& t) { return t.second == 0; });
+    out.push_back(std::move(c));
+  };
+  // Depth-first: the path is r0 c0 r1 c1 ... r_k; it closes when a column of r_k meets r0.
+  auto extend = [&](auto&& self) -> void {
+    const std::uint32_t r = path_rows.back(), r0 = path_rows.front();
+    for (std::uint32_t c : row_cols[r]) {
+      if (col_used[c]) continue;
+      path_cols.push_back(c);
+      col_used[c] = 1;
+      for (std::uint32_t next : col_rows[c]) {
+        if (next == r) continue;
+        if (next == r0) {
+          if (path_cols.size() >= 2 && path_cols.front() < path_cols.back()) {
+            emit(path_cols.size() - 2, 1);
+            if (path_cols.size() == 2) emit(2, 2);  // the 4-cycle walked twice: length 8
+          }
+          continue;
+        }
+        if (next < r0 || row_used[next] || path_cols.size() == 4) continue;
+        path_rows.push_back(next);
+        row_used[next] = 1;
+        self(self);
+        row_used[next] = 0;
+        path_rows.pop_back();
+      }
+      col_used[c] = 0;
+      path_cols.pop_back();
+    }
+  };
+  for (std::uint32_t r0 = 0; r0 < rows; ++r0) {
+    path_rows.assign(1, r0);
+    row_used[r0] = 1;
+    extend(extend);
+    row_used[r0] = 0;
+  }
+  return out;
+}
+
+std::int64_t modulo(std::int64_t x, std::int64_t z) {
+  return ((x % z) + z) % z;
+}
+
+// Calls f(x) for every x in [0, z) with k x + rest = 0 mod z.
+template <class F>
+void for_each_solution(std::int64_t k, std::int64_t rest, std::int64_t z, F f) {
+  k = modulo(k, z);
+  const std::int64_t target = modulo(-rest, z);
+  // Extended Euclid: g = gcd(k, z) = k u + z v.
+  std::int64_t g = z, u = 0, g1 = k, u1 = 1;
+  while (g1 != 0) {
+    const std::int64_t q = g / g1;
+    std::tie(g, g1) = std::pair{g1, g - q * g1};
+    std::tie(u, u1) = std::pair{u1, u - q * u1};
+  }
+  if (target % g != 0) return;
+  const std::int64_t period = z / g;
+  const std::int64_t x0 = modulo((target / g) % period * modulo(u, period), period);
+  for (std::int64_t t = 0; t < g; ++t) f(x0 + t * period);
+}
+
+}  // namespace
+
 Lifting lift_base_graph(std::size_t rows, std::size_t cols,
-                        const std::vector<std::uint8_t>& pattern, std::size_t z,
-                        std::uint64_t seed) {
+                        const std::vector<std::uint8_t>& pattern, std::size_t z, std::uint64_t seed,
+                        const LiftOptions& options) {
   if (pattern.size() != rows * cols) throw Error("base pattern size does not match its dimensions");
   if (z < 2) throw Error("lifting size must be at least 2");
-  QuasiCyclic base{rows, cols, z, std::vector<std::int64_t>(rows * cols, -1)};
   const auto zz = static_cast<std::int64_t>(z);
-  auto mod = [zz](std::int64_t x) { return ((x % zz) + zz) % zz; };
-  SplitMix rng(seed);
-  // Counts, for a candidate shift at (i, j), the block 4-cycles and 6-cycles it closes with the
-  // shifts already chosen.
-  auto conflicts = [&](std::size_t i, std::size_t j, std::int64_t s, bool six) {
-    std::size_t count = 0;
-    for (std::size_t i2 = 0; i2 < rows; ++i2) {
-      if (i2 == i || base.shift(i2, j) < 0) continue;
-      for (std::size_t j2 = 0; j2 < cols; ++j2) {
-        if (j2 == j || base.shift(i, j2) < 0) continue;
-        // 4-cycle: (i,j) -> (i2,j) -> (i2,j2) -> (i,j2)
-        if (base.shift(i2, j2) >= 0 &&
-            mod(s - base.shift(i2, j) + base.shift(i2, j2) - base.shift(i, j2)) == 0) {
-          count += 1000000;
-        }
-        if (!six) continue;
-        // 6-cycle through a third block row i3: (i,j) (i2,j) (i2,j3) (i3,j3) (i3,j2) (i,j2)
-        for (std::size_t i3 = 0; i3 < rows; ++i3) {
-          if (i3 == i || i3 == i2 || base.shift(i3, j2) < 0) continue;
-          for (std::size_t j3 = 0; j3 < cols; ++j3) {
-            if (j3 == j || j3 == j2 || base.shift(i2, j3) < 0 || base.shift(i3, j3) < 0) continue;
-            if (mod(s - base.shift(i2, j) + base.shift(i2, j3) - base.shift(i3, j3) +
-                    base.shift(i3, j2) - base.shift(i, j2)) == 0) {
-              ++count;
-            }
-          }
-        }
-      }
-    }
-    return count;
+  // Groups of entries sharing one shift: union-find over the `equal` pairs.
+  std::vector<std::uint32_t> parent(rows * cols);
+  std::iota(parent.begin(), parent.end(), 0u);
+  auto find = [&](std::uint32_t x) {
+    while (parent[x] != x) x = parent[x] = parent[parent[x]];
+    return x;
   };
-  std::size_t six_cycles = 0;
+  auto entry_checked = [&](std::size_t e) {
+    if (e >= rows * cols || !pattern[e])
+      throw Error(fmt::format("lifting condition on entry {} that is not an edge", e));
+    return static_cast<std::uint32_t>(e);
+  };
+  for (auto [a, b] : options.equal) parent[find(entry_checked(a))] = find(entry_checked(b));
+  std::vector<std::uint32_t> group_of(rows * cols);
+  for (std::size_t e = 0; e < rows * cols; ++e) group_of[e] = find(static_cast<std::uint32_t>(e));
+  std::vector<std::int64_t> fixed(rows * cols, -1);  // per group
+  for (auto [e, value] : options.fixed) fixed[group_of[entry_checked(e)]] = modulo(value, zz);
+  std::vector<char> unit_only(rows * cols, 0);  // per group
+  for (std::size_t e : options.units) unit_only[group_of[entry_checked(e)]] = 1;
+  auto allowed = [&](std::uint32_t g, std::int64_t x) {
+    return !unit_only[g] || std::gcd(x, zz) == 1;
+  };
+
+  const std::vector<Condition> conditions = cycle_conditions(rows, cols, pattern, group_of);
+  std::vector<std::vector<std::uint32_t>> conditions_of(rows * cols);
+  for (std::size_t c = 0; c < conditions.size(); ++c)
+    for (auto [g, k] : conditions[c].terms)
+      conditions_of[g].push_back(static_cast<std::uint32_t>(c));
+  // Free groups in column order of their first entry (the greedy pass's order).
+  std::vector<std::uint32_t> order;
+  std::vector<char> seen(rows * cols, 0);
   for (std::size_t j = 0; j < cols; ++j) {
     for (std::size_t i = 0; i < rows; ++i) {
-      if (!pattern[i * cols + j]) continue;
-      const std::int64_t offset = static_cast<std::int64_t>(rng.below(z));
-      std::int64_t best = -1;
-      std::size_t best_count = SIZE_MAX;
-      for (std::int64_t t = 0; t < zz && best_count > 0; ++t) {
-        const std::int64_t s = mod(offset + t);
-        const std::size_t count = conflicts(i, j, s, true);
-        if (count < best_count) best = s, best_count = count;
-      }
-      if (best_count >= 1000000) {
-        throw Error(
-            fmt::format("no circulant shift for base entry ({}, {}) avoids 4-cycles at Z = {}; "
-                        "use a larger lifting size",
-                        i + 1, j + 1, z));
-      }
-      base.shifts[i * cols + j] = best;
-      six_cycles += best_count;
+      const std::uint32_t g = group_of[i * cols + j];
+      if (!pattern[i * cols + j] || seen[g]) continue;
+      seen[g] = 1;
+      if (fixed[g] < 0) order.push_back(g);
     }
   }
-  return Lifting{base, six_cycles == 0 ? std::size_t{8} : std::size_t{6}};
+  auto sum_without = [&](const Condition& c, const std::vector<std::int64_t>& shift,
+                         std::uint32_t skip, std::int64_t& k, bool& complete) {
+    std::int64_t rest = 0;
+    k = 0;
+    complete = true;
+    for (auto [g, coefficient] : c.terms) {
+      if (g == skip) {
+        k = coefficient;
+      } else if (shift[g] < 0) {
+        complete = false;
+      } else {
+        rest += coefficient * shift[g];
+      }
+    }
+    return rest;
+  };
+  auto closed = [&](const Condition& c, const std::vector<std::int64_t>& shift) {
+    std::int64_t sum = 0;
+    for (auto [g, coefficient] : c.terms) sum += coefficient * shift[g];
+    return modulo(sum, zz) == 0;
+  };
+  auto objective = [&](const std::vector<std::int64_t>& shift) {
+    std::int64_t total = 0;
+    for (const Condition& c : conditions)
+      if (closed(c, shift)) total += kWeights[c.length_class];
+    return total;
+  };
+  std::vector<std::int64_t> cost(z);
+  // Coordinate descent: each free group takes the shift closing the fewest conditions (weighted)
+  // given the others; stops when a pass changes nothing.
+  auto descend = [&](std::vector<std::int64_t>& shift, SplitMix& rng) {
+    for (int pass = 0; pass < options.passes; ++pass) {
+      bool changed = false;
+      for (std::size_t a = order.size(); a > 1; --a) std::swap(order[a - 1], order[rng.below(a)]);
+      for (std::uint32_t g : order) {
+        std::fill(cost.begin(), cost.end(), 0);
+        for (std::uint32_t ci : conditions_of[g]) {
+          const Condition& c = conditions[ci];
+          std::int64_t k;
+          bool complete;
+          const std::int64_t rest = sum_without(c, shift, g, k, complete);
+          for_each_solution(k, rest, zz,
+                            [&](std::int64_t x) { cost[x] += kWeights[c.length_class]; });
+        }
+        std::int64_t best = shift[g];
+        for (std::int64_t x = 0; x < zz; ++x)
+          if (cost[x] < cost[best] && allowed(g, x)) best = x;
+        if (best != shift[g]) shift[g] = best, changed = true;
+      }
+      if (!changed) break;
+    }
+  };
+
+  // Start 0: the greedy pass (the shift from a random offset with the fewest 4- and 6-cycle
+  // conditions closed among the entries chosen so far).
+  SplitMix rng(seed);
+  std::vector<std::int64_t> shift = fixed;
+  for (std::uint32_t g : order) {
+    const std::int64_t offset = static_cast<std::int64_t>(rng.below(z));
+    std::int64_t best = -1, best_count = INT64_MAX;
+    for (std::int64_t t = 0; t < zz && best_count > 0; ++t) {
+      const std::int64_t s = modulo(offset + t, zz);
+      if (!allowed(g, s)) continue;
+      shift[g] = s;
+      std::int64_t count = 0;
+      for (std::uint32_t ci : conditions_of[g]) {
+        const Condition& c = conditions[ci];
+        if (c.length_class == 2) continue;
+        std::int64_t k;
+        bool complete;
+        const std::int64_t rest = sum_without(c, shift, g, k, complete);
+        if (complete && modulo(rest + k * s, zz) == 0) count += c.length_class == 0 ? 1000000 : 1;
+      }
+      if (count < best_count) best = s, best_count = count;
+    }
+    shift[g] = best;
+  }
+  SplitMix descent_rng(seed ^ 0x5851f42d4c957f2dull);
+  descend(shift, descent_rng);
+  std::int64_t best_objective = objective(shift);
+  std::vector<std::int64_t> best_shift = shift;
+  for (int restart = 1; restart <= (options.passes > 0 ? options.restarts : 0); ++restart) {
+    SplitMix start_rng(seed + 0x9e3779b97f4a7c15ull * static_cast<std::uint64_t>(restart));
+    shift = fixed;
+    for (std::uint32_t g : order) {
+      do shift[g] = static_cast<std::int64_t>(start_rng.below(z));
+      while (!allowed(g, shift[g]));
+    }
+    descend(shift, start_rng);
+    const std::int64_t value = objective(shift);
+    if (value < best_objective) best_objective = value, best_shift = shift;
+  }
+
+  Lifting lift{QuasiCyclic{rows, cols, z, std::vector<std::int64_t>(rows * cols, -1)}, 6, {}};
+  for (std::size_t e = 0; e < rows * cols; ++e)
+    if (pattern[e]) lift.base.shifts[e] = best_shift[group_of[e]];
+  for (const Condition& c : conditions)
+    if (closed(c, best_shift)) ++lift.closed[static_cast<std::size_t>(c.length_class)];
+  if (lift.closed[0] > 0 && options.require_no_four_cycles) {
+    throw Error(fmt::format(
+        "no circulant shifts avoid every 4-cycle at Z = {} ({} block 4-cycles stay closed); use a "
+        "larger lifting size",
+        z, lift.closed[0]));
+  }
+  lift.girth_at_least = lift.closed[0] > 0 ? 4 : (lift.closed[1] > 0 ? 6 : 8);
+  return lift;
+}
+
+std::vector<ParitySystem> expand_parity_systems(const std::vector<ParitySystem>& systems,
+                                                std::size_t factor) {
+  std::vector<ParitySystem> out;
+  for (const ParitySystem& s : systems) {
+    for (std::size_t a = 0; a < factor; ++a) {
+      ParitySystem copy;
+      for (std::size_t r : s.rows) copy.rows.push_back(r * factor + a);
+      for (std::size_t c : s.cols) copy.cols.push_back(c * factor + a);
+      out.push_back(std::move(copy));
+    }
+  }
+  return out;
+}
+
+LiftOptions parity_lift_options(const std::vector<ParitySystem>& systems, std::size_t cols,
+                                bool final) {
+  LiftOptions o;
+  o.require_no_four_cycles = final;
+  for (const ParitySystem& s : systems) {
+    const std::size_t m = s.rows.size();
+    auto entry = [&](std::size_t k, std::size_t c) { return s.rows[k] * cols + s.cols[c]; };
+    for (std::size_t k = 1; k < m; ++k) {
+      o.fixed.push_back({entry(k - 1, k), 0});
+      o.fixed.push_back({entry(k, k), 0});
+    }
+    if (m < 4) throw Error("an encodable parity part needs at least 4 rows");
+    o.fixed.push_back({entry(0, 0), 0});
+    o.fixed.push_back({entry(m - 2, 0), 0});
+    if (final)
+      o.units.push_back(entry(m - 1, 0));
+    else
+      o.fixed.push_back({entry(m - 1, 0), 0});
+  }
+  return o;
 }
 
 std::vector<std::uint8_t> split_multiplicities(std::size_t rows, std::size_t cols,

@@ -3,6 +3,7 @@
 #include <fmt/format.h>
 #include <algorithm>
 #include <bit>
+#include <numeric>
 
 #include "tannery/error.hpp"
 
@@ -175,10 +176,19 @@ Encoder::Encoder(const Code& code, std::span<const std::uint32_t> information) :
       throw Error(fmt::format("information position {} is out of range or repeated", v));
     wanted[v] = true;
   }
-  // The dense remainder costs O(leftover^2 * free / 64); keep the peeling that leaves less.
+  // The dense remainder costs O(leftover^2 * free / 64); keep the peeling that leaves less. With
+  // no positions asked for, peeling also starts from the first n - m bits known, as for a code
+  // whose parity part comes last (an encodable lifted protograph peels completely but for one
+  // check per parity system that way).
   Triangulation t = peel(code, Stall::widest_column, information);
   if (!t.leftover.empty()) {
     Triangulation other = peel(code, Stall::lowest_row, information);
+    if (other.leftover.size() < t.leftover.size()) t = std::move(other);
+  }
+  if (!t.leftover.empty() && information.empty() && code.n() > code.m()) {
+    std::vector<std::uint32_t> first(code.n() - code.m());
+    std::iota(first.begin(), first.end(), 0u);
+    Triangulation other = peel(code, Stall::widest_column, first);
     if (other.leftover.size() < t.leftover.size()) t = std::move(other);
   }
   pivot_cols_ = std::move(t.cols);

@@ -18,7 +18,7 @@ namespace {
 
 // The fixed parity part of an encodable protograph: column k of the last `rows` columns.
 std::uint8_t parity_entry(std::size_t rows, std::size_t i, std::size_t k) {
-  if (k == 0) return i == 0 || i == rows / 2 || i + 1 == rows;
+  if (k == 0) return i == 0 || i + 2 == rows || i + 1 == rows;
   return i + 1 == k || i == k;
 }
 
@@ -68,7 +68,7 @@ std::string protograph_design_violation(const Protograph& p, bool encodable) {
     }
   }
   if (encodable) {
-    if (p.rows < 3) return "an encodable parity part needs at least 3 rows";
+    if (p.rows < 4) return "an encodable parity part needs at least 4 rows";
     for (std::size_t k = 0; k < p.rows; ++k) {
       for (std::size_t i = 0; i < p.rows; ++i) {
         if (p.at(i, p.cols - p.rows + k) != parity_entry(p.rows, i, k)) {
@@ -246,7 +246,7 @@ ProtographSearchResult search_protograph(const ProtographSearchSettings& s,
   if (s.max_multiplicity < 1 || s.max_multiplicity > 16)
     throw Error("protograph search: --max-multiplicity must be in 1..16");
   if (s.steps < 1) throw Error("protograph search: at least one step per round");
-  if (s.encodable && shape.rows < 3) throw Error("an encodable parity part needs at least 3 rows");
+  if (s.encodable && shape.rows < 4) throw Error("an encodable parity part needs at least 4 rows");
   if (s.encodable && shape.punctured.size() + shape.rows >= shape.cols)
     throw Error("the punctured columns leave no room beside the encodable parity part");
   const QuickThreshold quick(static_cast<double>(shape.cols - shape.rows) /

@@ -68,6 +68,7 @@ struct CodeReport {
   std::optional<std::size_t> distance;
   std::vector<std::uint32_t> info_positions;  // where the default encoder puts information bits
   bool systematic_first_possible = false;     // positions 0..k-1 form an information set
+  std::size_t encoder_dense_checks = 0, encoder_free_bits = 0;  // see Encoder
   std::optional<QuasiCyclic> quasi_cyclic;
   double rate() const { return n ? static_cast<double>(k) / static_cast<double>(n) : 0.0; }
   double design_rate() const {

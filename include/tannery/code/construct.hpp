@@ -1,6 +1,7 @@
 // Constructions of parity-check matrices, deterministic for a given seed.
 #pragma once
 
+#include <array>
 #include <cstddef>
 #include <cstdint>
 #include <map>
@@ -25,16 +26,59 @@ Code construct_repetition(std::size_t n);
 Code construct_single_parity(std::size_t n);
 
 // Lifts a base graph (0/1 pattern, rows x cols, row-major) into a quasi-cyclic code with lifting
-// size z, choosing each circulant shift to avoid 4-cycles (required) and then 6-cycles (attempted),
-// by the block conditions s1 - s2 + s3 - s4 (+ s5 - s6) = 0 mod Z. Throws Error when no shift
-// avoids 4-cycles.
+// size z. A cycle of 2l blocks r0 c0 r1 c1 ... closes in the lifted graph exactly when its shifts
+// satisfy s(r0,c0) - s(r1,c0) + s(r1,c1) - ... = 0 mod Z (Fossorier, IEEE Trans. IT 2004); every
+// simple block cycle of length 4, 6 and 8 (and every 4-cycle walked twice, length 8) is listed
+// and the shifts are chosen to satisfy none of length 4 (required), then as few as possible of
+// length 6, then of length 8. First a greedy pass (each entry in column order takes the first
+// shift from a random offset that closes no 4-cycle with those already chosen and fewest
+// 6-cycles), then `passes` rounds of coordinate descent (each entry in turn takes the shift
+// closing the fewest conditions, weighted 4 >> 6 >> 8, given all others) from the greedy result
+// and from `restarts` random starts; the best is kept. Deterministic for a seed. Throws Error
+// when no shift avoids 4-cycles.
+struct LiftOptions {
+  int passes = 20;   // 0: the greedy pass alone
+  int restarts = 4;  // random starts besides the greedy one
+  // Pattern entries (index i * cols + j) whose shift is fixed, and pairs of entries that must
+  // share their shift (the conditions of an encodable parity part).
+  std::vector<std::pair<std::size_t, std::int64_t>> fixed;
+  std::vector<std::pair<std::size_t, std::size_t>> equal;
+  std::vector<std::size_t> units;  // entries whose shift must be coprime to Z
+  // false: block 4-cycles that fixed shifts close are kept (an intermediate step of a multi-step
+  // lifting); true: any 4-cycle left throws.
+  bool require_no_four_cycles = true;
+};
 struct Lifting {
   QuasiCyclic base;
   std::size_t girth_at_least = 6;  // 8 when no block 6-cycle condition holds either
+  // Block cycle conditions the shifts satisfy, by cycle length 4, 6, 8: each stands for Z cycles
+  // of the lifted graph (fewer when its shifts repeat with a period).
+  std::array<std::size_t, 3> closed{};
 };
 Lifting lift_base_graph(std::size_t rows, std::size_t cols,
-                        const std::vector<std::uint8_t>& pattern, std::size_t z,
-                        std::uint64_t seed);
+                        const std::vector<std::uint8_t>& pattern, std::size_t z, std::uint64_t seed,
+                        const LiftOptions& options = {});
+
+// The parity part of an encodable pattern, one system per copy: M >= 4 rows r[0..M-1] and columns
+// c[0..M-1], c[0] the weight-3 column (rows r[0], r[M-2], r[M-1]) and c[k] in rows r[k-1], r[k]
+// (a dual diagonal). Lifted with shift 0 on the dual diagonal and on c[0] in rows r[0] and
+// r[M-2], and a shift s coprime to Z on c[0] in row r[M-1], such a system encodes by peeling
+// with one freed bit: from a known bit x of c[0] the checks down the staircase determine one bit
+// of every other column and finally bit x + s of c[0], so the chain visits all of c[0]; the one
+// check left (closing the chain) is the system's only dense equation. The block cycle through
+// r[0] .. r[M-2] and c[0] closes (length 2(M-1)), a price of the structure.
+struct ParitySystem {
+  std::vector<std::size_t> rows, cols;
+};
+// The systems after each node became `factor` copies, copy a of node x being x * factor + a,
+// with the parity entries lifted by identity blocks (shift 0), as split_multiplicities does and
+// as parity_lift_options asks of an intermediate step.
+std::vector<ParitySystem> expand_parity_systems(const std::vector<ParitySystem>& systems,
+                                                std::size_t factor);
+// The conditions above for the lifting of a pattern with `cols` columns: final: shifts as above;
+// not final (a step before the last): every parity shift 0, so the next step sees the systems.
+LiftOptions parity_lift_options(const std::vector<ParitySystem>& systems, std::size_t cols,
+                                bool final);
 
 // Removes parallel edges from a protograph given as a multiplicity table (rows x cols, entries
 // >= 0): each node is copied t times (t = the largest entry) and an entry k becomes k cyclic

@@ -63,6 +63,10 @@ class Encoder {
   std::size_t n() const noexcept { return n_; }
   std::size_t k() const noexcept { return info_positions_.size(); }
   std::size_t rank() const noexcept { return n_ - k(); }
+  // Size of the dense part left after peeling: its checks, and the free bits they are solved over.
+  // 0 checks: encoding is linear in the number of edges.
+  std::size_t dense_checks() const noexcept { return gap_cols_.size(); }
+  std::size_t free_bits() const noexcept { return free_cols_.size(); }
   // Codeword positions that carry the information bits verbatim, increasing.
   const std::vector<std::uint32_t>& info_positions() const noexcept { return info_positions_; }
   // Information bits of a decided word (n values 0, 1 or 2 = undecided) that differ from the k

@@ -58,10 +58,9 @@ ThresholdResult protograph_threshold(const Protograph& p, ChannelKind kind,
 //   and holds no other degree-1 type (the accumulator of AR4JA-like designs);
 // - the degree-2 variable types form no cycle among the check types (common practice: a cycle
 //   of degree-2 variables lifts to codewords whose weight grows only slowly with the length);
-// - encodable: the last `rows` columns are the parity part, a weight-3 column (rows 1, the middle
-//   row and the last, each 1) then a dual diagonal (column k in rows k - 1 and k), so the lifted
-//   code encodes in linear time (sum of all block rows, then back substitution) when the lifting
-//   keeps the conditions lift_base_graph states for it.
+// - encodable (4 rows or more): the last `rows` columns are the parity part, a weight-3 column
+//   (rows 1, M-1 and M, each 1) then a dual diagonal (column k in rows k and k + 1, counting from
+//   1), which `construct lift --encodable` lifts so that peeling encodes it in linear time.
 std::string protograph_design_violation(const Protograph& p, bool encodable);
 
 struct ProtographSearchSettings {
