@@ -55,6 +55,8 @@ std::string search_command(const ConstructOptions& o, std::size_t rounds) {
   }
   line += fmt::format(" --max-multiplicity {}", s.max_multiplicity);
   if (s.encodable) line += " --encodable";
+  if (s.max_variable_degree)
+    line += fmt::format(" --max-variable-degree {}", s.max_variable_degree);
   return line +
          fmt::format(" --steps {} --rounds {} --seed {} -o {}", s.steps, rounds, s.seed, o.output);
 }
@@ -134,7 +136,6 @@ Code build(const ConstructOptions& o, std::string& note) {
   // lift
   if (o.base.empty() || o.lifting.empty())
     throw Error("construct lift needs --base FILE and --lifting Z (or Z1,Z2,... in steps)");
-  const Protograph base = parse_protograph(read_text_file(o.base, 1 << 24), o.base);
   std::vector<std::size_t> steps;
   std::stringstream items(o.lifting);
   for (std::string item; std::getline(items, item, ',');) {
@@ -143,6 +144,7 @@ Code build(const ConstructOptions& o, std::string& note) {
       throw Error(fmt::format("--lifting: '{}' is not a lifting size 2..{}", item, 1u << 20));
     steps.push_back(static_cast<std::size_t>(*z));
   }
+  const Protograph base = parse_protograph(read_text_file(o.base, 1 << 24), o.base);
   const std::size_t t = *std::max_element(base.cells.begin(), base.cells.end());
   if (t == 0) throw Error(fmt::format("{}: the base graph has no edge", o.base));
   if (steps[0] % t != 0) {
@@ -278,6 +280,12 @@ void add_construct(CLI::App& app) {
                    "punctured variable types (the first columns); columns N = (M - R P) / (1 - R)")
       ->capture_default_str()
       ->check(CLI::Range(0, 64));
+  design
+      ->add_option("--max-variable-degree", o->search.max_variable_degree,
+                   "largest column degree allowed (0: no bound); low bounds suit short codes, "
+                   "whose cycles high degrees crowd")
+      ->capture_default_str()
+      ->check(CLI::Range(0, 1000));
   design
       ->add_option("--budget", o->search.budget_seconds,
                    "seconds: rounds start until this much time has passed (ignored with --rounds)")

@@ -1,6 +1,7 @@
 // tannery plot RESULT.json... -o FILE.svg
 #include <fmt/format.h>
 #include <unistd.h>
+#include <cmath>
 #include <cstdio>
 #include <filesystem>
 
@@ -22,8 +23,33 @@ struct PlotCommand {
   bool normal_approximation = false;
   bool failure_classes = false;
   std::optional<double> threshold;
+  std::optional<double> at_fer;
   std::string title;
 };
+
+// --at-fer: one line per run, where its FER crosses the target and how far that is from the
+// finite-length and capacity limits.
+void print_crossings(const std::vector<PlotRun>& runs, const std::vector<std::string>& inputs,
+                     double fer) {
+  for (std::size_t i = 0; i < runs.size(); ++i) {
+    const RunRecord& r = runs[i].run;
+    const FerCrossing c = fer_crossing(r, fer);
+    const std::string unit = snr_swept(r.config.channel.kind) ? " dB" : "";
+    std::string line = fmt::format("{}: FER {:g} ", inputs[i], fer);
+    if (!c.at) {
+      fmt::print("{}not crossed within the sweep\n", line);
+      continue;
+    }
+    line += fmt::format("at {:.3f}{}", *c.at, unit);
+    if (std::isfinite(c.normal_approximation)) {
+      line += fmt::format("; normal approximation (n {}, k {}) {:.3f}{}: {:+.3f}", r.code.n,
+                          r.code.k, c.normal_approximation, unit, *c.at - c.normal_approximation);
+    }
+    if (std::isfinite(c.limit))
+      line += fmt::format("; capacity limit {:.3f}{}: {:+.3f}", c.limit, unit, *c.at - c.limit);
+    fmt::print("{}\n", line);
+  }
+}
 
 }  // namespace
 
@@ -67,8 +93,13 @@ void add_plot(CLI::App& app) {
       "0.75'");
   sub->add_option("RESULT", o->inputs, "results files written by tannery simulate")->required();
   sub->add_option("-o,--output", o->output,
-                  "plot file: .svg ('-' = stdout), or .png / .pdf (rendered by rsvg-convert)")
-      ->required();
+                  "plot file: .svg ('-' = stdout), or .png / .pdf (rendered by rsvg-convert); "
+                  "may be left out with --at-fer");
+  sub->add_option("--at-fer", o->at_fer,
+                  "print, per results file, the sweep value where its FER crosses this value "
+                  "(log-linear interpolation) and its distance to the normal approximation for "
+                  "its n, k and to the capacity limit")
+      ->check(CLI::Range(1e-300, 0.999999));
   sub->add_option("--label", o->labels,
                   "legend label per results file, in order (default: the decoder)");
   sub->add_option("--metric", o->metric, "fer, ber or both")
@@ -87,7 +118,8 @@ void add_plot(CLI::App& app) {
                   "draw a vertical line at this sweep value, e.g. a threshold from tannery "
                   "threshold (dB for AWGN)");
   sub->callback([o] {
-    check_plot_path(o->output);
+    if (o->output.empty() && !o->at_fer) throw Error("plot needs -o FILE (or --at-fer FER)");
+    if (!o->output.empty()) check_plot_path(o->output);
     std::vector<PlotRun> runs;
     for (std::size_t i = 0; i < o->inputs.size(); ++i) {
       RunRecord r = parse_results_json(read_text_file(o->inputs[i]), o->inputs[i]);
@@ -102,7 +134,8 @@ void add_plot(CLI::App& app) {
     options.normal_approximation = o->normal_approximation;
     options.failure_classes = o->failure_classes;
     options.threshold = o->threshold;
-    write_plot(o->output, plot_svg(runs, options));
+    if (o->at_fer) print_crossings(runs, o->inputs, *o->at_fer);
+    if (!o->output.empty()) write_plot(o->output, plot_svg(runs, options));
   });
 }
 

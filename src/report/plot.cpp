@@ -92,6 +92,41 @@ std::pair<double, std::string> capacity_limit(const RunRecord& run) {
 
 }  // namespace
 
+FerCrossing fer_crossing(const RunRecord& run, double fer) {
+  if (!(fer > 0 && fer < 1)) throw Error(fmt::format("FER {} is not in (0, 1)", fer));
+  FerCrossing c;
+  c.limit = capacity_limit(run).first;
+  c.normal_approximation = NAN;
+  std::vector<std::pair<double, double>> curve;  // (parameter, FER), increasing parameter
+  for (const PointResult& p : run.points) curve.emplace_back(p.parameter, p.fer());
+  std::sort(curve.begin(), curve.end());
+  for (std::size_t i = 0; i + 1 < curve.size(); ++i) {
+    const auto [x0, f0] = curve[i];
+    const auto [x1, f1] = curve[i + 1];
+    if (f0 >= fer && f1 < fer && f1 > 0) {
+      c.at = x0 + (x1 - x0) * (std::log(f0 / fer) / std::log(f0 / f1));
+      break;
+    }
+  }
+  const ChannelSpec& spec = run.config.channel;
+  if (binary_awgn(run) && run.code.n > 0 && run.code.k > 0) {
+    // The normal approximation's FER falls as the SNR rises: bisection over 40 dB.
+    auto na = [&](double x) {
+      const double value = awgn_sigma(x, spec.measure, run.rate_for_snr);
+      return normal_approximation_fer(spec.kind, value, run.code.n, run.code.k);
+    };
+    double lo = -10, hi = 30;
+    if (na(lo) >= fer && na(hi) < fer) {
+      for (int i = 0; i < 60; ++i) {
+        const double mid = 0.5 * (lo + hi);
+        (na(mid) >= fer ? lo : hi) = mid;
+      }
+      c.normal_approximation = 0.5 * (lo + hi);
+    }
+  }
+  return c;
+}
+
 std::string run_label(const RunRecord& run) {
   const DecoderSettings& d = run.config.decoder;
   std::string decoder(name_of(d.algorithm));

@@ -117,6 +117,15 @@ struct Shape {
   std::size_t rows, cols, max_multiplicity;
   bool encodable;
   std::vector<std::size_t> punctured;
+  std::size_t max_variable_degree = 0;  // 0: no bound
+
+  bool keeps_rules(const Protograph& p) const {
+    if (max_variable_degree) {
+      for (std::size_t j = 0; j < cols; ++j)
+        if (p.variable_degree(j) > max_variable_degree) return false;
+    }
+    return protograph_design_violation(p, encodable).empty();
+  }
 
   Protograph empty() const {
     Protograph p{rows, cols, std::vector<std::uint8_t>(rows * cols, 0), punctured};
@@ -131,20 +140,22 @@ struct Shape {
 };
 
 Protograph random_start(const Shape& shape, const QuickThreshold& quick, SplitMix& rng) {
-  // Entries nonzero with a probability that gives columns of degree about 3.5 on average.
-  const double mean_entry = (static_cast<double>(shape.max_multiplicity) + 1) / 2;
-  const double nonzero = std::min(0.9, 3.5 / (static_cast<double>(shape.rows) * mean_entry));
+  // Each free column gets a degree uniform in 3..hi (hi: the bound, else 8, at most what the
+  // rows hold) spread over random rows; lower degrees come from the annealing's moves.
+  const std::size_t capacity = shape.rows * shape.max_multiplicity;
+  const std::size_t hi =
+      std::min(capacity, shape.max_variable_degree ? shape.max_variable_degree : std::size_t{8});
+  const std::size_t lo = std::min<std::size_t>(3, hi);
   for (int attempt = 0; attempt < 20000; ++attempt) {
     Protograph p = shape.empty();
-    for (std::size_t i = 0; i < shape.rows; ++i) {
-      for (std::size_t j = 0; j < shape.free_columns(); ++j) {
-        if (uniform(rng) < nonzero)
-          p.cells[i * shape.cols + j] =
-              static_cast<std::uint8_t>(1 + rng.below(shape.max_multiplicity));
+    for (std::size_t j = 0; j < shape.free_columns(); ++j) {
+      std::size_t degree = lo + rng.below(hi - lo + 1);
+      while (degree > 0) {
+        std::uint8_t& cell = p.cells[rng.below(shape.rows) * shape.cols + j];
+        if (cell < shape.max_multiplicity) ++cell, --degree;
       }
     }
-    if (protograph_design_violation(p, shape.encodable).empty() && std::isfinite(quick(p)))
-      return p;
+    if (shape.keeps_rules(p) && std::isfinite(quick(p))) return p;
   }
   throw Error(
       "found no random protograph of this shape that keeps the design rules and decodes; try "
@@ -169,7 +180,7 @@ Protograph neighbour(const Protograph& p, const Shape& shape, SplitMix& rng) {
       --cell;
       ++to;
     }
-    if (protograph_design_violation(q, shape.encodable).empty()) return q;
+    if (shape.keeps_rules(q)) return q;
   }
   return p;
 }
@@ -249,6 +260,9 @@ ProtographSearchResult search_protograph(const ProtographSearchSettings& s,
   if (s.encodable && shape.rows < 4) throw Error("an encodable parity part needs at least 4 rows");
   if (s.encodable && shape.punctured.size() + shape.rows >= shape.cols)
     throw Error("the punctured columns leave no room beside the encodable parity part");
+  shape.max_variable_degree = s.max_variable_degree;
+  if (s.start && !shape.keeps_rules(*s.start))
+    throw Error("the starting protograph has a column above the maximum variable degree");
   const QuickThreshold quick(static_cast<double>(shape.cols - shape.rows) /
                              static_cast<double>(shape.cols - shape.punctured.size()));
 

@@ -31,6 +31,9 @@ printf 'erased 1\n' > word.map
 printf 'punctured 3x\n' > tail.map
 printf '1 2 1\n1 1\n' > ragged.base
 printf '1 256\n' > big.base
+printf '1 1 1\npunctured 4\n' > beyond.proto
+printf '3 3\npunctured 1\npunctured 2\n' > twice.proto
+printf '1 1 0 0\n1 1 1 1\n0 0 1 1\npunctured 1 2\n' > stuck.proto
 printf '10x1\n' > bits.txt
 printf 'code = "hamming-7-4"\n[channel]\nsweep = "1:0:2"\n' > zero-step.toml
 printf 'code = "hamming-7-4"\n[channel]\nsweep = "2"\n[decoder]\niterations = -1\n' > iterations.toml
@@ -170,6 +173,16 @@ threshold --lambda 2:inf --rho 6:1|--lambda: '2:inf' is not DEGREE:VALUE
 construct peg --length 100 --rate 0.5 --variable-degrees 2:-5,3:6 -o sentinel.out|--variable-degrees: '2:-5'
 construct lift --base ragged.base --lifting 4 -o sentinel.out|ragged.base:2: row has 2 entries, the first has 3
 construct lift --base big.base --lifting 4 -o sentinel.out|big.base:1: base multiplicity 256 is out of range
+construct lift --base ragged.base --lifting 4,x -o sentinel.out|--lifting: 'x' is not a lifting size
+construct lift --base beyond.proto --lifting 4 -o sentinel.out|beyond.proto:2: punctured column 4 is beyond the 3 columns
+construct lift --base twice.proto --lifting 4 --encodable -o sentinel.out|twice.proto:3: second punctured line
+threshold --base beyond.proto|beyond.proto:2: punctured column 4
+threshold --base stuck.proto|does not converge
+threshold --base big.base|big.base:1: base multiplicity 256 is out of range
+construct protograph --rate 0.6 --rows 3 -o sentinel.out|not a whole number
+construct protograph --start twice.proto -o sentinel.out|twice.proto:3: second punctured line
+construct protograph --rate 0.5 --rows 3 --encodable -o sentinel.out|at least 4 rows
+plot good.json|plot needs -o FILE
 simulate --code hamming-7-4 --sweep 1 --replay 0:1x -o sentinel.out --plot ''|--replay expects POINT:FRAME
 decode --code hamming-7-4 --puncture tail.map good.f32 -o sentinel.out|tail.map:1: '3x' is not an index
 floor estimate hamming-7-4 --structures truncated-structures.json --sweep 5 -o sentinel.out|truncated-structures.json: not valid JSON (byte 151)

@@ -35,6 +35,19 @@ struct PlotRun {
 // "sum-product/flooding, simd kernel, awgn, regular-3-6-n2016".
 std::string run_label(const RunRecord& run);
 
+// Where a run's FER curve crosses `fer`, beside the limits at that FER, in the run's sweep
+// parameter (dB for AWGN). `at`: log-linear interpolation between the last point at or above
+// `fer` and the next point, both with errors; empty when the curve does not cross within the
+// sweep. `normal_approximation`: where the normal approximation (Polyanskiy, Poor & Verdu 2010)
+// for the run's n and k reaches `fer` (BPSK-AWGN with every bit sent; NaN otherwise). `limit`:
+// the capacity limit at the run's rate, as the plot draws it (NaN when none applies).
+struct FerCrossing {
+  std::optional<double> at;
+  double normal_approximation = 0;
+  double limit = 0;
+};
+FerCrossing fer_crossing(const RunRecord& run, double fer);
+
 // The SVG drawing; throws Error when the runs sweep different quantities (channels, Eb/N0 and
 // Es/N0), which cannot share one axis.
 std::string plot_svg(const std::vector<PlotRun>& runs, const PlotOptions& options);

@@ -65,10 +65,11 @@ std::string protograph_design_violation(const Protograph& p, bool encodable);
 
 struct ProtographSearchSettings {
   double rate = 0.5;
-  std::size_t rows = 4;              // check types M; columns N = (M - R P) / (1 - R)
-  std::size_t max_multiplicity = 3;  // entries 0..T
-  std::size_t punctured = 0;         // punctured variable types P: the first P columns
-  bool encodable = false;            // fixed parity part (see protograph_design_violation)
+  std::size_t rows = 4;                 // check types M; columns N = (M - R P) / (1 - R)
+  std::size_t max_multiplicity = 3;     // entries 0..T
+  std::size_t punctured = 0;            // punctured variable types P: the first P columns
+  bool encodable = false;               // fixed parity part (see protograph_design_violation)
+  std::size_t max_variable_degree = 0;  // bound on column degrees (short codes); 0: none
   std::uint64_t seed = 1;
   std::size_t rounds = 0;           // independent annealing rounds; 0: as many as the budget allows
   double budget_seconds = 60;       // rounds == 0: rounds start until this much time has passed
