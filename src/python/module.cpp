@@ -2,6 +2,7 @@
 // and capacities, as thin bindings of the library. Settings are keyword arguments named as the
 // library's settings tables name them (the keys of scenario files and results JSON), read
 // through the same checks; errors raise tannery.Error (a ValueError) with the library's message.
+#include <fmt/format.h>
 #include <pybind11/complex.h>
 #include <pybind11/functional.h>
 #include <pybind11/numpy.h>
@@ -34,6 +35,7 @@
 #include "tannery/report/structures.hpp"
 #include "tannery/theory/capacity.hpp"
 #include "tannery/theory/density_evolution.hpp"
+#include "tannery/theory/protograph.hpp"
 #include "tannery/version.hpp"
 
 namespace py = pybind11;
@@ -407,6 +409,20 @@ py::object py_simulate(PyCode& c, const std::string& channel,
 
 // ---- theory --------------------------------------------------------------------------------
 
+// A threshold result as the dict both threshold functions return.
+py::dict threshold_dict(const ThresholdResult& r, const std::string& channel) {
+  py::dict out;
+  out["threshold"] = r.threshold;
+  out["parameter"] = channel == "awgn" ? "sigma" : (channel == "bsc" ? "p" : "epsilon");
+  out["ebn0_db"] = channel == "awgn" ? py::object(py::float_(r.ebn0_db)) : py::none();
+  out["rate"] = r.rate;
+  out["limit"] = r.limit;
+  out["gap_db"] = channel == "awgn" ? py::object(py::float_(r.gap_db)) : py::none();
+  out["method"] = r.method;
+  out["accuracy"] = r.accuracy;
+  return out;
+}
+
 py::dict py_threshold(std::optional<py::object> code,
                       std::optional<std::pair<std::size_t, std::size_t>> regular,
                       const std::string& channel, const std::string& method,
@@ -418,18 +434,47 @@ py::dict py_threshold(std::optional<py::object> code,
   const Ensemble e = regular ? Ensemble::regular(regular->first, regular->second)
                              : Ensemble::from_code(degree_profile(*code->cast<PyCode&>().code));
   e.validate();
-  const ThresholdResult r =
-      threshold(e, d, parse_name<ChannelKind>(channel), parse_name<ThresholdMethod>(method));
-  py::dict out;
-  out["threshold"] = r.threshold;
-  out["parameter"] = channel == "awgn" ? "sigma" : (channel == "bsc" ? "p" : "epsilon");
-  out["ebn0_db"] = channel == "awgn" ? py::object(py::float_(r.ebn0_db)) : py::none();
-  out["rate"] = r.rate;
-  out["limit"] = r.limit;
-  out["gap_db"] = channel == "awgn" ? py::object(py::float_(r.gap_db)) : py::none();
-  out["method"] = r.method;
-  out["accuracy"] = r.accuracy;
-  return out;
+  return threshold_dict(
+      threshold(e, d, parse_name<ChannelKind>(channel), parse_name<ThresholdMethod>(method)),
+      channel);
+}
+
+// A protograph from a 2-D table of multiplicities (nested lists or a numpy array) and punctured
+// columns (0-based, as numpy indexes).
+Protograph protograph_of(const std::vector<std::vector<int>>& table,
+                         const std::vector<std::size_t>& punctured) {
+  Protograph p;
+  p.rows = table.size();
+  p.cols = table.empty() ? 0 : table[0].size();
+  for (std::size_t i = 0; i < table.size(); ++i) {
+    if (table[i].size() != p.cols)
+      throw Error(fmt::format("protograph: row {} has {} entries, row 0 has {}", i, table[i].size(),
+                              p.cols));
+    for (int v : table[i]) {
+      if (v < 0 || v > 255)
+        throw Error(fmt::format("protograph: multiplicity {} in row {} is not in 0..255", v, i));
+      p.cells.push_back(static_cast<std::uint8_t>(v));
+    }
+  }
+  p.punctured = punctured;
+  std::sort(p.punctured.begin(), p.punctured.end());
+  for (std::size_t j = 0; j < p.punctured.size(); ++j) {
+    if (p.punctured[j] >= p.cols || (j > 0 && p.punctured[j] == p.punctured[j - 1]))
+      throw Error(
+          fmt::format("protograph: punctured column {} is repeated or beyond the {} columns",
+                      p.punctured[j], p.cols));
+  }
+  p.validate();
+  return p;
+}
+
+py::dict py_protograph_threshold(const std::vector<std::vector<int>>& table,
+                                 const std::vector<std::size_t>& punctured,
+                                 const std::string& channel, const std::string& method) {
+  const Protograph p = protograph_of(table, punctured);
+  return threshold_dict(protograph_threshold(p, parse_name<ChannelKind>(channel),
+                                             parse_name<ThresholdMethod>(method)),
+                        channel);
 }
 
 // ---- floor ---------------------------------------------------------------------------------
@@ -465,9 +510,10 @@ py::object py_floor_estimate(PyCode& c, const py::object& structures, std::vecto
                              std::optional<double> shift, double min_ess, std::uint64_t seed,
                              unsigned threads, double confidence, const py::kwargs& settings) {
   FloorEstimateSettings s;
-  s.decoder = decoder_keywords("floor_estimate", settings,
-                               "structures, sweep, frames, candidates, per_point, shift, min_ess, seed, "
-                               "threads, confidence, ");
+  s.decoder =
+      decoder_keywords("floor_estimate", settings,
+                       "structures, sweep, frames, candidates, per_point, shift, min_ess, seed, "
+                       "threads, confidence, ");
   s.sweep = std::move(sweep);
   s.frames = frames;
   s.candidates = candidates;
@@ -597,6 +643,13 @@ PYBIND11_MODULE(tannery, m) {
         py::arg("method") = "discretized",
         "Density-evolution threshold of a code's degree distribution or of regular=(dv, dc) on "
         "awgn (sigma and Eb/N0), bsc (p) or bec (epsilon), for the decoder the keywords give.");
+  m.def("protograph_threshold", &py_protograph_threshold, py::arg("table"), py::kw_only(),
+        py::arg("punctured") = std::vector<std::size_t>{}, py::arg("channel") = "awgn",
+        py::arg("method") = "exit",
+        "Sum-product threshold of a protograph: table of edge multiplicities (rows: check types), "
+        "punctured columns (0-based), channel awgn (protograph EXIT analysis, or 'discretized' "
+        "density evolution when the protograph is regular) or bec (exact). The same dict as "
+        "threshold().");
   m.def("floor_search", &py_floor_search, py::arg("code"), py::kw_only(), py::arg("threads") = 0,
         py::arg("seed") = 1, py::arg("impulses") = 0, py::arg("amplitudes") = py::none(),
         py::arg("background") = 2.0, py::arg("local_steps") = 6, py::arg("beam") = 16,
@@ -608,9 +661,8 @@ PYBIND11_MODULE(tannery, m) {
         "the trapping-set search. Decoder settings as keywords.");
   m.def("floor_estimate", &py_floor_estimate, py::arg("code"), py::arg("structures"), py::kw_only(),
         py::arg("sweep"), py::arg("frames") = 20000, py::arg("candidates") = 256,
-        py::arg("per_point") = 8,
-        py::arg("shift") = py::none(), py::arg("min_ess") = 30.0, py::arg("seed") = 1,
-        py::arg("threads") = 0, py::arg("confidence") = 0.95,
+        py::arg("per_point") = 8, py::arg("shift") = py::none(), py::arg("min_ess") = 30.0,
+        py::arg("seed") = 1, py::arg("threads") = 0, py::arg("confidence") = 0.95,
         "Importance-sampled FER at each Eb/N0 of sweep (BPSK, AWGN) toward the structures "
         "(a floor_search result, or lists of positions), as 'tannery floor estimate': the results "
         "document, each point with importance_sampled (fer, fer_sd, ess, reliable, structures). "
