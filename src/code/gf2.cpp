@@ -189,7 +189,10 @@ Encoder::Encoder(const Code& code, std::span<const std::uint32_t> information) :
     std::vector<std::uint32_t> first(code.n() - code.m());
     std::iota(first.begin(), first.end(), 0u);
     Triangulation other = peel(code, Stall::widest_column, first);
-    if (other.leftover.size() < t.leftover.size()) t = std::move(other);
+    if (other.leftover.size() < t.leftover.size()) {
+      t = std::move(other);
+      for (std::uint32_t v : first) wanted[v] = true;  // and they stay the information bits
+    }
   }
   pivot_cols_ = std::move(t.cols);
   pivot_start_ = std::move(t.start);

@@ -60,6 +60,23 @@ TEST_CASE("encoder satisfies every check on every shipped code", "[gf2]") {
   }
 }
 
+TEST_CASE("the shipped protograph family encodes by peeling, information first", "[gf2]") {
+  // codes/README.md: the encodable parity part leaves one dense check per parity system (one
+  // for the binary short protographs) and the information bits are the first k positions.
+  for (const char* rate : {"1-2", "2-3", "3-4", "5-6"}) {
+    for (const char* n : {"648", "1944"}) {
+      const std::string file = std::string("pg-") + rate + "-n" + n + ".qc";
+      INFO(file);
+      const Code code = test::shipped(file);
+      const Encoder enc(code);
+      CHECK(enc.dense_checks() == 1);
+      CHECK(enc.k() == code.n() - code.m());
+      for (std::uint32_t i = 0; i < enc.k(); ++i) REQUIRE(enc.info_positions()[i] == i);
+      check_encoder(code, 7, 8);
+    }
+  }
+}
+
 TEST_CASE("repeated and empty rows lower the rank", "[gf2]") {
   const Code code = Code::from_checks(6, {{0, 1, 2}, {}, {0, 1, 2}, {2, 3}, {3, 4, 5}, {0, 1, 3}});
   const Encoder enc(code);
