@@ -5,6 +5,7 @@
 #include <algorithm>
 #include <chrono>
 #include <sstream>
+#include <tuple>
 
 #include "commands.hpp"
 #include "settings_options.hpp"
@@ -13,6 +14,7 @@
 #include "tannery/code/analysis.hpp"
 #include "tannery/code/construct.hpp"
 #include "tannery/error.hpp"
+#include "tannery/floor/search.hpp"
 #include "tannery/io/matrix_io.hpp"
 #include "tannery/parse.hpp"
 #include "tannery/theory/density_evolution.hpp"
@@ -35,6 +37,7 @@ struct ConstructOptions {
   std::string lifting;
   int passes = 20, restarts = 4;
   bool encodable = false;
+  bool trapping_sets = false;
   std::string puncture_output;
   std::string variable_degrees;
   // protograph search
@@ -93,6 +96,60 @@ void run_protograph_search(ConstructOptions o) {
                r.start_threshold->ebn0_db - t.ebn0_db);
   }
   fmt::print(stderr, "wrote {}\n", o.output);
+}
+
+// What the floor search finds on a lifted code, as a score where larger is better: the smallest
+// codeword weight found (none: unbounded), then the smallest absorbing set's class (a, then b),
+// then fewer sets of that class.
+struct FloorScore {
+  std::size_t codeword = SIZE_MAX;
+  StructureClass smallest{UINT32_MAX, UINT32_MAX};
+  std::uint64_t count = 0;
+
+  auto key() const {
+    return std::tuple(codeword, smallest.a, smallest.b, -static_cast<double>(count));
+  }
+  std::string text() const {
+    std::string s = codeword == SIZE_MAX ? std::string("no codeword found")
+                                         : fmt::format("codewords from weight {}", codeword);
+    if (smallest.a != UINT32_MAX)
+      s += fmt::format(", smallest absorbing set ({}, {}) x {}", smallest.a, smallest.b, count);
+    return s;
+  }
+};
+
+FloorScore floor_score(const QuasiCyclic& qc) {
+  FloorSearchSettings settings;
+  settings.impulse_order = 1;  // single impulses: one per block column on a quasi-cyclic code
+  const FloorSearchResult r =
+      floor_search(std::make_shared<const Code>(Code::from_quasi_cyclic(qc)), settings);
+  FloorScore score;
+  if (r.smallest_codeword_weight() > 0) score.codeword = r.smallest_codeword_weight();
+  for (const FoundStructure& f : r.trapping_sets) {
+    if (!f.shape.absorbing) continue;
+    if (f.shape.cls < score.smallest) score.smallest = f.shape.cls, score.count = 0;
+    if (f.shape.cls == score.smallest) score.count += f.multiplicity;
+  }
+  return score;
+}
+
+// --trapping-sets: among the lifting's candidates (the starts' results, fewest closed cycle
+// conditions first), the one whose floor search finds the largest smallest structures; ties keep
+// the one with fewer cycles.
+std::string choose_by_trapping_sets(Lifting& lift) {
+  std::size_t best = 0;
+  std::vector<FloorScore> scores;
+  for (std::size_t i = 0; i < lift.candidates.size(); ++i) {
+    scores.push_back(floor_score(lift.candidates[i]));
+    if (scores[i].key() > scores[best].key()) best = i;
+  }
+  lift.base = lift.candidates[best];
+  lift.closed = lift.candidate_closed[best];
+  lift.girth_at_least = lift.closed[0] > 0 ? 4 : (lift.closed[1] > 0 ? 6 : 8);
+  return fmt::format(
+      "; floor search over {} candidate liftings chose number {}: {} (the one with "
+      "fewest cycles: {})",
+      scores.size(), best + 1, scores[best].text(), scores[0].text());
 }
 
 Code build(const ConstructOptions& o, std::string& note) {
@@ -176,6 +233,7 @@ Code build(const ConstructOptions& o, std::string& note) {
     step.passes = options.passes;
     step.restarts = options.restarts;
     step.require_no_four_cycles = last;
+    if (last && o.trapping_sets) step.candidates = static_cast<std::size_t>(o.restarts) + 1;
     lift = lift_base_graph(rows, cols, pattern, steps[k], o.seed + k, step);
     if (last) break;
     const Code stage = Code::from_quasi_cyclic(lift.base);
@@ -186,10 +244,12 @@ Code build(const ConstructOptions& o, std::string& note) {
     cols = stage.n();
     if (o.encodable) systems = expand_parity_systems(systems, steps[k]);
   }
-  note = fmt::format("; block cycle conditions closed (4/6/8): {}/{}/{}{}", lift.closed[0],
-                     lift.closed[1], lift.closed[2],
-                     t > 1 ? fmt::format("; parallel edges split by copying the base {} times", t)
-                           : std::string());
+  const std::string chosen = o.trapping_sets ? choose_by_trapping_sets(lift) : std::string();
+  note = fmt::format(
+      "; block cycle conditions closed (4/6/8): {}/{}/{}{}{}", lift.closed[0], lift.closed[1],
+      lift.closed[2],
+      t > 1 ? fmt::format("; parallel edges split by copying the base {} times", t) : std::string(),
+      chosen);
   Code code = Code::from_quasi_cyclic(lift.base);
   if (!o.puncture_output.empty()) {
     if (base.punctured.empty())
@@ -263,6 +323,9 @@ void add_construct(CLI::App& app) {
                 "protograph: fix the last M columns to an encodable parity part (a weight-3 "
                 "column, then a dual diagonal; M >= 4); lift: lift that part so that peeling "
                 "encodes the code in linear time");
+  sub->add_flag("--trapping-sets", o->trapping_sets,
+                "lift: run the floor search (single impulses) on each start's result and keep the "
+                "one with the largest smallest codeword, then absorbing set");
   sub->add_option("--puncture-output", o->puncture_output,
                   "lift: write the punctured positions of the lifted code (a puncture map for "
                   "simulate) for the base's punctured columns");

@@ -338,8 +338,9 @@ Lifting lift_base_graph(std::size_t rows, std::size_t cols,
   }
   SplitMix descent_rng(seed ^ 0x5851f42d4c957f2dull);
   descend(shift, descent_rng);
-  std::int64_t best_objective = objective(shift);
-  std::vector<std::int64_t> best_shift = shift;
+  // Every start's result with its objective; stable sort keeps the earlier start on ties.
+  std::vector<std::pair<std::int64_t, std::vector<std::int64_t>>> results;
+  results.emplace_back(objective(shift), shift);
   for (int restart = 1; restart <= (options.passes > 0 ? options.restarts : 0); ++restart) {
     SplitMix start_rng(seed + 0x9e3779b97f4a7c15ull * static_cast<std::uint64_t>(restart));
     shift = fixed;
@@ -348,15 +349,33 @@ Lifting lift_base_graph(std::size_t rows, std::size_t cols,
       while (!allowed(g, shift[g]));
     }
     descend(shift, start_rng);
-    const std::int64_t value = objective(shift);
-    if (value < best_objective) best_objective = value, best_shift = shift;
+    results.emplace_back(objective(shift), shift);
   }
-
-  Lifting lift{QuasiCyclic{rows, cols, z, std::vector<std::int64_t>(rows * cols, -1)}, 6, {}};
-  for (std::size_t e = 0; e < rows * cols; ++e)
-    if (pattern[e]) lift.base.shifts[e] = best_shift[group_of[e]];
-  for (const Condition& c : conditions)
-    if (closed(c, best_shift)) ++lift.closed[static_cast<std::size_t>(c.length_class)];
+  std::stable_sort(results.begin(), results.end(),
+                   [](const auto& a, const auto& b) { return a.first < b.first; });
+  auto table = [&](const std::vector<std::int64_t>& groups) {
+    QuasiCyclic qc{rows, cols, z, std::vector<std::int64_t>(rows * cols, -1)};
+    for (std::size_t e = 0; e < rows * cols; ++e)
+      if (pattern[e]) qc.shifts[e] = groups[group_of[e]];
+    return qc;
+  };
+  auto closed_counts = [&](const std::vector<std::int64_t>& groups) {
+    std::array<std::size_t, 3> counts{};
+    for (const Condition& c : conditions)
+      if (closed(c, groups)) ++counts[static_cast<std::size_t>(c.length_class)];
+    return counts;
+  };
+  const std::vector<std::int64_t>& best_shift = results.front().second;
+  Lifting lift{table(best_shift), 6, closed_counts(best_shift), {}, {}};
+  for (const auto& [value, groups] : results) {
+    if (lift.candidates.size() == options.candidates) break;
+    QuasiCyclic qc = table(groups);
+    if (std::any_of(lift.candidates.begin(), lift.candidates.end(),
+                    [&](const QuasiCyclic& q) { return q.shifts == qc.shifts; }))
+      continue;
+    lift.candidates.push_back(std::move(qc));
+    lift.candidate_closed.push_back(closed_counts(groups));
+  }
   if (lift.closed[0] > 0 && options.require_no_four_cycles) {
     throw Error(fmt::format(
         "no circulant shifts avoid every 4-cycle at Z = {} ({} block 4-cycles stay closed); use a "

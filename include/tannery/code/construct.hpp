@@ -47,6 +47,9 @@ struct LiftOptions {
   // false: block 4-cycles that fixed shifts close are kept (an intermediate step of a multi-step
   // lifting); true: any 4-cycle left throws.
   bool require_no_four_cycles = true;
+  // Keep up to this many of the starts' results, distinct, best first (Lifting::candidates), for
+  // a choice by other criteria (construct lift --trapping-sets); 0: none.
+  std::size_t candidates = 0;
 };
 struct Lifting {
   QuasiCyclic base;
@@ -54,6 +57,10 @@ struct Lifting {
   // Block cycle conditions the shifts satisfy, by cycle length 4, 6, 8: each stands for Z cycles
   // of the lifted graph (fewer when its shifts repeat with a period).
   std::array<std::size_t, 3> closed{};
+  // LiftOptions::candidates > 0: the distinct results of the starts by weighted closed
+  // conditions, best (= base) first, and those counts (4-, 6-, 8-cycle conditions) for each.
+  std::vector<QuasiCyclic> candidates;
+  std::vector<std::array<std::size_t, 3>> candidate_closed;
 };
 Lifting lift_base_graph(std::size_t rows, std::size_t cols,
                         const std::vector<std::uint8_t>& pattern, std::size_t z, std::uint64_t seed,

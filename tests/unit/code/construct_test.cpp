@@ -124,6 +124,21 @@ TEST_CASE("cycle-optimised lifting: block conditions count the lifted cycles exa
   CHECK(*census.girth == 6);
   CHECK(census.count == 7 * small.closed[1]);
   CHECK(lift_base_graph(3, 6, all_ones, 7, 2).base.shifts == small.base.shifts);  // deterministic
+  // The starts' results as candidates: distinct, fewest closed conditions first, the first the
+  // lifting itself.
+  LiftOptions keep;
+  keep.candidates = 5;
+  const Lifting kept = lift_base_graph(3, 6, all_ones, 7, 2, keep);
+  REQUIRE(!kept.candidates.empty());
+  CHECK(kept.candidates.size() <= 5);
+  CHECK(kept.candidates[0].shifts == small.base.shifts);
+  CHECK(kept.candidate_closed[0] == small.closed);
+  for (std::size_t i = 1; i < kept.candidates.size(); ++i) {
+    CHECK(kept.candidates[i].shifts != kept.candidates[0].shifts);
+    const auto& a = kept.candidate_closed[i - 1];
+    const auto& b = kept.candidate_closed[i];
+    CHECK((a[0] << 40) + (a[1] << 20) + a[2] <= (b[0] << 40) + (b[1] << 20) + b[2]);
+  }
 }
 
 TEST_CASE("encodable lifting: peeling encodes with one dense check per parity system",
