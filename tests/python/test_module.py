@@ -246,7 +246,8 @@ def test_floor_estimate_against_brute_force(tmp_path):
     # set - at least one in twenty failures -, (1, 1) sets, weight-4 codewords): the estimate
     # stays below brute force - a lower estimate, as documented.
     (tmp_path / "base.txt").write_text("1 1 1 1 1 1\n" * 3)
-    assert run_cli("construct", "lift", "--base", "base.txt", "--lifting", 8, "--seed", 1, "-o",
+    assert run_cli("construct", "lift", "--base", "base.txt", "--lifting", 8, "--seed", 1,
+                   "--passes", 0, "-o",
                    "small.qc", cwd=tmp_path).returncode == 0
     small = tannery.Code.load(str(tmp_path / "small.qc"))
     hamming = tannery.Code.load("hamming-7-4")
