@@ -5,7 +5,6 @@
 #include <algorithm>
 #include <chrono>
 #include <sstream>
-#include <tuple>
 
 #include "commands.hpp"
 #include "settings_options.hpp"
@@ -98,58 +97,23 @@ void run_protograph_search(ConstructOptions o) {
   fmt::print(stderr, "wrote {}\n", o.output);
 }
 
-// What the floor search finds on a lifted code, as a score where larger is better: the smallest
-// codeword weight found (none: unbounded), then the smallest absorbing set's class (a, then b),
-// then fewer sets of that class.
-struct FloorScore {
-  std::size_t codeword = SIZE_MAX;
-  StructureClass smallest{UINT32_MAX, UINT32_MAX};
-  std::uint64_t count = 0;
-
-  auto key() const {
-    return std::tuple(codeword, smallest.a, smallest.b, -static_cast<double>(count));
-  }
-  std::string text() const {
-    std::string s = codeword == SIZE_MAX ? std::string("no codeword found")
-                                         : fmt::format("codewords from weight {}", codeword);
-    if (smallest.a != UINT32_MAX)
-      s += fmt::format(", smallest absorbing set ({}, {}) x {}", smallest.a, smallest.b, count);
-    return s;
-  }
-};
-
-FloorScore floor_score(const QuasiCyclic& qc) {
-  FloorSearchSettings settings;
-  settings.impulse_order = 1;  // single impulses: one per block column on a quasi-cyclic code
-  const FloorSearchResult r =
-      floor_search(std::make_shared<const Code>(Code::from_quasi_cyclic(qc)), settings);
-  FloorScore score;
-  if (r.smallest_codeword_weight() > 0) score.codeword = r.smallest_codeword_weight();
-  for (const FoundStructure& f : r.trapping_sets) {
-    if (!f.shape.absorbing) continue;
-    if (f.shape.cls < score.smallest) score.smallest = f.shape.cls, score.count = 0;
-    if (f.shape.cls == score.smallest) score.count += f.multiplicity;
-  }
-  return score;
-}
-
-// --trapping-sets: among the lifting's candidates (the starts' results, fewest closed cycle
-// conditions first), the one whose floor search finds the largest smallest structures; ties keep
-// the one with fewer cycles.
+// --trapping-sets: the candidate the floor search prefers becomes the lifting; the note says
+// what it found, and what the candidate with the fewest cycles had.
 std::string choose_by_trapping_sets(Lifting& lift) {
-  std::size_t best = 0;
-  std::vector<FloorScore> scores;
-  for (std::size_t i = 0; i < lift.candidates.size(); ++i) {
-    scores.push_back(floor_score(lift.candidates[i]));
-    if (scores[i].key() > scores[best].key()) best = i;
-  }
-  lift.base = lift.candidates[best];
-  lift.closed = lift.candidate_closed[best];
-  lift.girth_at_least = lift.closed[0] > 0 ? 4 : (lift.closed[1] > 0 ? 6 : 8);
+  const LiftingChoice choice = choose_lifting_by_floor(lift);
+  auto text = [](const FloorScore& s) {
+    std::string out = s.codeword ? fmt::format("codewords from weight {}", s.codeword)
+                                 : std::string("no codeword found");
+    if (s.smallest.a != UINT32_MAX)
+      out += fmt::format(", smallest absorbing set ({}, {}) x {}", s.smallest.a, s.smallest.b,
+                         s.count);
+    return out;
+  };
   return fmt::format(
-      "; floor search over {} candidate liftings chose number {}: {} (the one with "
-      "fewest cycles: {})",
-      scores.size(), best + 1, scores[best].text(), scores[0].text());
+      "; floor search over {} candidate liftings chose number {}: {} (the one with fewest "
+      "cycles: {})",
+      choice.scores.size(), choice.chosen + 1, text(choice.scores[choice.chosen]),
+      text(choice.scores[0]));
 }
 
 Code build(const ConstructOptions& o, std::string& note) {

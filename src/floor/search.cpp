@@ -5,6 +5,7 @@
 #include <chrono>
 #include <map>
 #include <set>
+#include <tuple>
 
 #include "tannery/base/thread_pool.hpp"
 #include "tannery/error.hpp"
@@ -356,6 +357,38 @@ FloorSearchResult floor_search(std::shared_ptr<const Code> shared,
   std::sort(result.trapping_sets.begin(), result.trapping_sets.end(), order);
   result.seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
   return result;
+}
+
+FloorScore floor_score(const Code& code) {
+  FloorSearchSettings settings;
+  settings.impulse_order = 1;  // single impulses: one per block column on a quasi-cyclic code
+  const FloorSearchResult r = floor_search(std::make_shared<const Code>(code), settings);
+  FloorScore score;
+  score.codeword = r.smallest_codeword_weight();
+  for (const FoundStructure& f : r.trapping_sets) {
+    if (!f.shape.absorbing) continue;
+    if (f.shape.cls < score.smallest) score.smallest = f.shape.cls, score.count = 0;
+    if (f.shape.cls == score.smallest) score.count += f.multiplicity;
+  }
+  return score;
+}
+
+LiftingChoice choose_lifting_by_floor(Lifting& lift) {
+  if (lift.candidates.empty()) throw Error("no candidate liftings to choose from");
+  // Larger is better; no codeword found ranks above any weight.
+  auto key = [](const FloorScore& s) {
+    return std::tuple(s.codeword == 0 ? SIZE_MAX : s.codeword, s.smallest.a, s.smallest.b,
+                      -static_cast<double>(s.count));
+  };
+  LiftingChoice choice;
+  for (std::size_t i = 0; i < lift.candidates.size(); ++i) {
+    choice.scores.push_back(floor_score(Code::from_quasi_cyclic(lift.candidates[i])));
+    if (key(choice.scores[i]) > key(choice.scores[choice.chosen])) choice.chosen = i;
+  }
+  lift.base = lift.candidates[choice.chosen];
+  lift.closed = lift.candidate_closed[choice.chosen];
+  lift.girth_at_least = lift.closed[0] > 0 ? 4 : (lift.closed[1] > 0 ? 6 : 8);
+  return choice;
 }
 
 }  // namespace tannery

@@ -27,6 +27,7 @@
 
 #include "tannery/code/analysis.hpp"
 #include "tannery/code/code.hpp"
+#include "tannery/code/construct.hpp"
 #include "tannery/decode/decoder.hpp"
 
 namespace tannery {
@@ -111,5 +112,24 @@ using FloorProgress =
 FloorSearchResult floor_search(std::shared_ptr<const Code> code,
                                const FloorSearchSettings& settings,
                                const FloorProgress& progress = {});
+
+// What a floor search with single impulses finds on a code: the smallest codeword weight (0:
+// none found) and the smallest absorbing set's class, (a, b) lexicographically (a = UINT32_MAX:
+// none), with the number of such sets.
+struct FloorScore {
+  std::size_t codeword = 0;
+  StructureClass smallest{UINT32_MAX, UINT32_MAX};
+  std::uint64_t count = 0;
+};
+FloorScore floor_score(const Code& code);
+// Of a lifting's candidates (LiftOptions::candidates; the fewest closed cycle conditions first),
+// the one whose floor score is best — no codeword found, else the largest smallest codeword;
+// then the largest smallest absorbing set (a, then b); then the fewest of them; ties keep the
+// earlier candidate — becomes the lifting (base, closed, girth_at_least). Deterministic.
+struct LiftingChoice {
+  std::size_t chosen = 0;
+  std::vector<FloorScore> scores;  // per candidate
+};
+LiftingChoice choose_lifting_by_floor(Lifting& lift);
 
 }  // namespace tannery

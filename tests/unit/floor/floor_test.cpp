@@ -120,3 +120,24 @@ TEST_CASE("importance-sampled points survive a results file round trip", "[floor
   CHECK(stats.fer.low < p.importance->fer);
   CHECK(stats.fer.high > p.importance->fer);
 }
+
+TEST_CASE("liftings chosen by their floor: the best score among the candidates", "[floor]") {
+  // A (3,6) all-ones base lifted by 8 has weight-4 codewords at some shifts (the test code of
+  // the estimate tests); the choice takes the candidate whose search finds the heaviest smallest
+  // codeword (none found ranks first), then the largest smallest absorbing set.
+  const std::vector<std::uint8_t> all_ones(3 * 6, 1);
+  LiftOptions options;
+  options.candidates = 5;
+  Lifting lift = lift_base_graph(3, 6, all_ones, 8, 1, options);
+  REQUIRE(lift.candidates.size() >= 2);
+  const LiftingChoice choice = choose_lifting_by_floor(lift);
+  REQUIRE(choice.scores.size() == lift.candidates.size());
+  CHECK(lift.base.shifts == lift.candidates[choice.chosen].shifts);
+  auto weight = [](const FloorScore& s) { return s.codeword == 0 ? SIZE_MAX : s.codeword; };
+  for (const FloorScore& s : choice.scores)
+    CHECK(weight(s) <= weight(choice.scores[choice.chosen]));
+  // The score is the floor search's own finding on the chosen code.
+  const FloorScore again = floor_score(Code::from_quasi_cyclic(lift.base));
+  CHECK(again.codeword == choice.scores[choice.chosen].codeword);
+  CHECK(again.smallest == choice.scores[choice.chosen].smallest);
+}
