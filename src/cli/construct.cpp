@@ -59,6 +59,7 @@ std::string search_command(const ConstructOptions& o, std::size_t rounds) {
   if (s.encodable) line += " --encodable";
   if (s.max_variable_degree)
     line += fmt::format(" --max-variable-degree {}", s.max_variable_degree);
+  if (s.min_weight) line += fmt::format(" --min-weight {}", s.min_weight);
   return line +
          fmt::format(" --steps {} --rounds {} --seed {} -o {}", s.steps, rounds, s.seed, o.output);
 }
@@ -80,8 +81,11 @@ void run_protograph_search(ConstructOptions o) {
   const ThresholdResult& t = r.threshold;
   const std::string summary = fmt::format(
       "# {} x {} protograph, design rate {:.6g}: protograph EXIT threshold Eb/N0 = {:.4f} dB "
-      "(sigma {:.5f}), Shannon limit {:.4f} dB, gap {:.4f} dB\n# made by: {}\n",
+      "(sigma {:.5f}), Shannon limit {:.4f} dB, gap {:.4f} dB{}\n# made by: {}\n",
       r.best.rows, r.best.cols, t.rate, t.ebn0_db, t.threshold, t.ebn0_db - t.gap_db, t.gap_db,
+      o.search.encodable
+          ? fmt::format("; encodable weight bound {}", encodable_weight_bound(r.best))
+          : std::string(),
       search_command(o, r.rounds));
   const std::string text = summary + protograph_text(r.best);
   write_file_atomically(o.output, text);
@@ -210,9 +214,12 @@ Code build(const ConstructOptions& o, std::string& note) {
   }
   const std::string chosen = o.trapping_sets ? choose_by_trapping_sets(lift) : std::string();
   note = fmt::format(
-      "; block cycle conditions closed (4/6/8): {}/{}/{}{}{}", lift.closed[0], lift.closed[1],
+      "; block cycle conditions closed (4/6/8): {}/{}/{}{}{}{}", lift.closed[0], lift.closed[1],
       lift.closed[2],
       t > 1 ? fmt::format("; parallel edges split by copying the base {} times", t) : std::string(),
+      o.encodable
+          ? fmt::format("; d_min <= {} (encodable weight bound)", encodable_weight_bound(base))
+          : std::string(),
       chosen);
   Code code = Code::from_quasi_cyclic(lift.base);
   if (!o.puncture_output.empty()) {
@@ -313,6 +320,12 @@ void add_construct(CLI::App& app) {
                    "whose cycles high degrees crowd")
       ->capture_default_str()
       ->check(CLI::Range(0, 1000));
+  design
+      ->add_option("--min-weight", o->search.min_weight,
+                   "with --encodable: smallest bound allowed on the weight of the codewords one "
+                   "information bit makes in any lifting (0: no bound); long codes need it large")
+      ->capture_default_str()
+      ->check(CLI::Range(0, 100000));
   design
       ->add_option("--budget", o->search.budget_seconds,
                    "seconds: rounds start until this much time has passed (ignored with --rounds)")

@@ -2,6 +2,7 @@
 #include <fmt/format.h>
 #include <map>
 #include <nlohmann/json.hpp>
+#include <optional>
 #include <sstream>
 
 #include "commands.hpp"
@@ -131,12 +132,16 @@ void run_protograph(const ThresholdOptions& o, const CLI::App& sub) {
   p.validate();
   const ThresholdResult r = protograph_threshold(
       p, o.channel, sub.get_option("--method")->count() ? o.method : ThresholdMethod::exit);
+  // Protographs with the encodable parity part: the bound on their liftings' minimum distance.
+  std::optional<std::size_t> bound;
+  if (protograph_design_violation(p, true).empty()) bound = encodable_weight_bound(p);
   if (o.json) {
     nlohmann::json j = threshold_json(r, o.channel, "sum-product");
     j["protograph"] = {{"rows", p.rows},
                        {"columns", p.cols},
                        {"edges", p.edges()},
-                       {"punctured", p.punctured.size()}};
+                       {"punctured", p.punctured.size()},
+                       {"encodable_weight_bound", bound ? nlohmann::json(*bound) : nullptr}};
     fmt::print("{}\n", j.dump(2));
     return;
   }
@@ -148,6 +153,12 @@ void run_protograph(const ThresholdOptions& o, const CLI::App& sub) {
              r.rate);
   fmt::print("decoder sum-product on {}; {}\n", name_of(o.channel), r.method);
   print_threshold(r, o.channel);
+  if (bound) {
+    fmt::print(
+        "encodable parity part: in any lifting by construct lift --encodable, one information "
+        "bit makes a codeword of weight <= {} (the minimum distance's bound at every length)\n",
+        *bound);
+  }
 }
 
 void run(const ThresholdOptions& o) {

@@ -472,9 +472,13 @@ py::dict py_protograph_threshold(const std::vector<std::vector<int>>& table,
                                  const std::vector<std::size_t>& punctured,
                                  const std::string& channel, const std::string& method) {
   const Protograph p = protograph_of(table, punctured);
-  return threshold_dict(protograph_threshold(p, parse_name<ChannelKind>(channel),
-                                             parse_name<ThresholdMethod>(method)),
-                        channel);
+  py::dict d = threshold_dict(protograph_threshold(p, parse_name<ChannelKind>(channel),
+                                                   parse_name<ThresholdMethod>(method)),
+                              channel);
+  d["encodable_weight_bound"] = protograph_design_violation(p, true).empty()
+                                    ? py::object(py::int_(encodable_weight_bound(p)))
+                                    : py::object(py::none());
+  return d;
 }
 
 // ---- floor ---------------------------------------------------------------------------------
@@ -649,7 +653,9 @@ PYBIND11_MODULE(tannery, m) {
         "Sum-product threshold of a protograph: table of edge multiplicities (rows: check types), "
         "punctured columns (0-based), channel awgn (protograph EXIT analysis, or 'discretized' "
         "density evolution when the protograph is regular) or bec (exact). The same dict as "
-        "threshold().");
+        "threshold(), plus encodable_weight_bound: for a protograph with the encodable parity "
+        "part, the weight of a codeword one information bit makes in every encodable lifting "
+        "(None otherwise).");
   m.def("floor_search", &py_floor_search, py::arg("code"), py::kw_only(), py::arg("threads") = 0,
         py::arg("seed") = 1, py::arg("impulses") = 0, py::arg("amplitudes") = py::none(),
         py::arg("background") = 2.0, py::arg("local_steps") = 6, py::arg("beam") = 16,

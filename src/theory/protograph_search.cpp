@@ -85,6 +85,27 @@ std::string protograph_design_violation(const Protograph& p, bool encodable) {
 
 namespace {
 
+// encodable_weight_bound of a protograph known to have the encodable parity part.
+std::size_t weight_bound(const Protograph& p) {
+  std::size_t best = std::numeric_limits<std::size_t>::max();
+  for (std::size_t j = 0; j + p.rows < p.cols; ++j) {
+    std::size_t weight = 1;
+    for (std::size_t i = 0; i < p.rows; ++i) weight += p.at(i, j) * (2 * p.rows - 2 - i);
+    best = std::min(best, weight);
+  }
+  return best;
+}
+
+}  // namespace
+
+std::size_t encodable_weight_bound(const Protograph& p) {
+  if (p.cols <= p.rows || !protograph_design_violation(p, true).empty())
+    throw Error("encodable weight bound: the protograph has no encodable parity part");
+  return weight_bound(p);
+}
+
+namespace {
+
 constexpr double kInfinite = std::numeric_limits<double>::infinity();
 
 // Protograph EXIT threshold as Eb/N0 in dB, to about 0.002 dB, for comparing candidates of one
@@ -118,13 +139,15 @@ struct Shape {
   bool encodable;
   std::vector<std::size_t> punctured;
   std::size_t max_variable_degree = 0;  // 0: no bound
+  std::size_t min_weight = 0;           // encodable: 0 = no bound
 
   bool keeps_rules(const Protograph& p) const {
     if (max_variable_degree) {
       for (std::size_t j = 0; j < cols; ++j)
         if (p.variable_degree(j) > max_variable_degree) return false;
     }
-    return protograph_design_violation(p, encodable).empty();
+    if (!protograph_design_violation(p, encodable).empty()) return false;
+    return min_weight == 0 || weight_bound(p) >= min_weight;
   }
 
   Protograph empty() const {
@@ -159,7 +182,7 @@ Protograph random_start(const Shape& shape, const QuickThreshold& quick, SplitMi
   }
   throw Error(
       "found no random protograph of this shape that keeps the design rules and decodes; try "
-      "more rows, a larger --max-multiplicity or fewer punctured columns");
+      "more rows, a larger --max-multiplicity, fewer punctured columns or a lower --min-weight");
 }
 
 // One step: a random free entry set to another value, or one edge moved within its column.
@@ -261,8 +284,14 @@ ProtographSearchResult search_protograph(const ProtographSearchSettings& s,
   if (s.encodable && shape.punctured.size() + shape.rows >= shape.cols)
     throw Error("the punctured columns leave no room beside the encodable parity part");
   shape.max_variable_degree = s.max_variable_degree;
-  if (s.start && !shape.keeps_rules(*s.start))
-    throw Error("the starting protograph has a column above the maximum variable degree");
+  if (s.min_weight && !s.encodable)
+    throw Error("protograph search: a minimum weight bound needs the encodable parity part");
+  shape.min_weight = s.min_weight;
+  if (s.start && !shape.keeps_rules(*s.start)) {
+    throw Error(
+        "the starting protograph has a column above the maximum variable degree or an "
+        "encodable weight bound below the minimum");
+  }
   const QuickThreshold quick(static_cast<double>(shape.cols - shape.rows) /
                              static_cast<double>(shape.cols - shape.punctured.size()));
 

@@ -95,6 +95,17 @@ expect_exit 0 "$T" inspect enc2.qc --json
 import json; j = json.load(open('$WORK/out'))
 assert j['n'] == 480 and j['encoder']['dense_checks'] <= 6, j['encoder']
 " || fail "two-step encodable lifting"
+# The bound on the minimum distance of encodable liftings (the unit test encodes the codewords
+# it counts): kept by the search and recorded, and printed by threshold --base.
+expect_exit 0 "$T" construct protograph --rate 0.5 --rows 4 --encodable --min-weight 16 --rounds 1 \
+  --steps 20 --seed 4 -o bound.proto
+expect_in "made by: tannery construct protograph --rate 0.5 --rows 4 --max-multiplicity 3 --encodable --min-weight 16" bound.proto
+bound=$(sed -n 's/.*; encodable weight bound \([0-9]*\)$/\1/p' bound.proto)
+[ -n "$bound" ] && [ "$bound" -ge 16 ] || fail "the search's weight bound: '$bound'"
+expect_exit 0 "$T" threshold --base bound.proto
+expect_in "one information bit makes a codeword of weight <= $bound" "$WORK/out"
+expect_exit 2 "$T" construct protograph --rate 0.5 --rows 4 --min-weight 16 -o x.proto
+expect_in "needs the encodable parity part" "$WORK/err"
 expect_exit 2 "$T" construct lift --base ar4ja.proto --lifting 30 --encodable -o x.qc
 expect_in "--encodable" "$WORK/err"
 # The punctured columns of a lifted protograph as a puncture map for simulate.

@@ -388,6 +388,11 @@ def test_protograph_threshold_against_an_independent_exit_analysis():
         0.4294, abs=1e-4)
     with pytest.raises(tannery.Error, match="punctured column 7"):
         tannery.protograph_threshold(ar4ja, punctured=[7])
+    # AR4JA has no encodable parity part; one that has: information columns in rows {1,2,4},
+    # {2,3,4} (from 1) weigh 1 + 6 + 5 + 3 and 1 + 5 + 4 + 3 with 4 rows (2M - 2 - i per edge).
+    assert r["encodable_weight_bound"] is None
+    enc = [[1, 0, 1, 1, 0, 0], [1, 1, 0, 1, 1, 0], [0, 1, 1, 0, 1, 1], [1, 1, 1, 0, 0, 1]]
+    assert tannery.protograph_threshold(enc)["encodable_weight_bound"] == 13
 
 def _pam_capacities(levels, sigma):
     """Coded-modulation and BICM capacity (bits per real symbol) of equally likely PAM levels

@@ -63,6 +63,18 @@ ThresholdResult protograph_threshold(const Protograph& p, ChannelKind kind,
 //   1), which `construct lift --encodable` lifts so that peeling encodes it in linear time.
 std::string protograph_design_violation(const Protograph& p, bool encodable);
 
+// An upper bound on the minimum distance of every lifting `construct lift --encodable` makes of
+// an encodable protograph, whatever its length: the weight (punctured bits counted) of a codeword
+// made of one bit of an information column and the parity part's response. The parity part is
+// lifted with shift 0 on the dual diagonal and on the weight-3 column's rows 1 and M-1, so a
+// check defect in parity row i (from 0) is cleared by the dual diagonal down to row M-1
+// (M - 1 - i bits), then one bit of the weight-3 column with the dual diagonal above row M-1
+// (M - 1 bits): 1 + the sum over the column's edges of 2M - 2 - i (parallel edges lie in different
+// copies of the parity part; overlapping responses only cancel). The smallest over the
+// information columns; long codes need it large, hence many rows. Throws Error when the
+// protograph breaks the encodable design rules.
+std::size_t encodable_weight_bound(const Protograph& p);
+
 struct ProtographSearchSettings {
   double rate = 0.5;
   std::size_t rows = 4;                 // check types M; columns N = (M - R P) / (1 - R)
@@ -70,6 +82,7 @@ struct ProtographSearchSettings {
   std::size_t punctured = 0;            // punctured variable types P: the first P columns
   bool encodable = false;               // fixed parity part (see protograph_design_violation)
   std::size_t max_variable_degree = 0;  // bound on column degrees (short codes); 0: none
+  std::size_t min_weight = 0;  // encodable: smallest encodable_weight_bound allowed; 0: none
   std::uint64_t seed = 1;
   std::size_t rounds = 0;           // independent annealing rounds; 0: as many as the budget allows
   double budget_seconds = 60;       // rounds == 0: rounds start until this much time has passed

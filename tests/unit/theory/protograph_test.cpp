@@ -1,6 +1,10 @@
+#include <algorithm>
 #include <catch2/catch.hpp>
 #include <cmath>
 
+#include "tannery/code/code.hpp"
+#include "tannery/code/construct.hpp"
+#include "tannery/code/gf2.hpp"
 #include "tannery/error.hpp"
 #include "tannery/theory/capacity.hpp"
 #include "tannery/theory/protograph.hpp"
@@ -120,6 +124,48 @@ TEST_CASE("protograph design rules", "[theory]") {
       protograph_design_violation(
           proto("1 1 1 1 1 1 0 0\n1 1 1 1 1 1 1 0\n1 1 1 1 1 0 1 1\n1 1 1 1 1 0 0 1\n"), true),
       Catch::Contains("column 5"));
+}
+
+TEST_CASE("the encodable weight bound is the weight of single-bit codewords", "[theory]") {
+  // Information columns in rows {1,2,4}, {2,3,4}, {1,3,4}, {1,2,3} (from 1), M = 4: defects in
+  // row i (from 0) cost 2M - 2 - i = 6, 5, 4, 3 parity bits, so one bit of each column makes a
+  // codeword of weight 15, 13, 14 and 16.
+  const Protograph p =
+      proto("1 0 1 1 1 1 0 0\n1 1 0 1 0 1 1 0\n0 1 1 1 1 0 1 1\n1 1 1 0 1 0 0 1\n");
+  CHECK(encodable_weight_bound(p) == 13);
+  // An encodable lifting (the parity part's conditions of construct lift --encodable) and the
+  // codeword of every single information bit, from the encoder.
+  const std::size_t z = 31;
+  ParitySystem system;
+  for (std::size_t k = 0; k < 4; ++k) system.rows.push_back(k), system.cols.push_back(4 + k);
+  const Lifting lift = lift_base_graph(4, 8, p.cells, z, 1, parity_lift_options({system}, 8, true));
+  const Code code = Code::from_quasi_cyclic(lift.base);
+  std::vector<std::uint32_t> info(4 * z);
+  for (std::uint32_t i = 0; i < info.size(); ++i) info[i] = i;
+  const Encoder encoder(code, info);
+  REQUIRE(encoder.dense_checks() <= 1);
+  const std::size_t expected[4] = {15, 13, 14, 16};
+  std::vector<std::uint8_t> bits(encoder.k()), word(code.n());
+  for (std::size_t i = 0; i < encoder.k(); ++i) {
+    std::fill(bits.begin(), bits.end(), 0);
+    bits[i] = 1;
+    encoder.encode(bits, word);
+    INFO("information bit " << i);
+    CHECK(static_cast<std::size_t>(std::count(word.begin(), word.end(), 1)) == expected[i / z]);
+  }
+  // Only protographs with the encodable parity part have the bound.
+  CHECK_THROWS_AS(encodable_weight_bound(proto(kAr4ja)), Error);
+  // The search keeps a bound: with 4 rows, degree-3 columns in the last rows weigh 10.
+  ProtographSearchSettings s;
+  s.rate = 0.5;
+  s.rows = 4;
+  s.encodable = true;
+  s.rounds = 1;
+  s.steps = 30;
+  s.min_weight = 16;
+  CHECK(encodable_weight_bound(search_protograph(s).best) >= 16);
+  s.encodable = false;
+  CHECK_THROWS_WITH(search_protograph(s), Catch::Contains("encodable"));
 }
 
 TEST_CASE("the protograph search improves on its start, deterministically for a seed", "[theory]") {
