@@ -42,8 +42,8 @@ void print_crossings(const std::vector<PlotRun>& runs, const std::vector<std::st
     }
     line += fmt::format("at {:.3f}{}", *c.at, unit);
     if (std::isfinite(c.normal_approximation)) {
-      line += fmt::format("; normal approximation (n {}, k {}) {:.3f}{}: {:+.3f}", r.code.n,
-                          r.code.k, c.normal_approximation, unit, *c.at - c.normal_approximation);
+      line += fmt::format("; normal approximation (n {}, k {}) {:.3f}{}: {:+.3f}", c.sent_n,
+                          c.sent_k, c.normal_approximation, unit, *c.at - c.normal_approximation);
     }
     if (std::isfinite(c.limit))
       line += fmt::format("; capacity limit {:.3f}{}: {:+.3f}", c.limit, unit, *c.at - c.limit);

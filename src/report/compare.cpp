@@ -121,6 +121,13 @@ double mantel_haenszel_p(const std::vector<PointComparison>& points) {
   return normal_tail(excess / std::sqrt(variance));
 }
 
+// Whether either run has an importance-sampled point (their counts are of biased frames).
+bool any_importance_sampled(const Comparison& c) {
+  return std::any_of(c.points.begin(), c.points.end(), [](const PointComparison& pc) {
+    return pc.current.importance || pc.reference.importance;
+  });
+}
+
 }  // namespace
 
 Comparison compare_runs(const RunRecord& cur, const RunRecord& ref, const CompareOptions& o) {
@@ -167,9 +174,7 @@ Comparison compare_runs(const RunRecord& cur, const RunRecord& ref, const Compar
       same_seed && std::all_of(c.points.begin(), c.points.end(), [](const PointComparison& p) {
         return has_all_failures(p.current) && has_all_failures(p.reference);
       });
-  const bool estimated = std::any_of(c.points.begin(), c.points.end(), [](const auto& pc) {
-    return pc.current.importance || pc.reference.importance;
-  });
+  const bool estimated = any_importance_sampled(c);
   c.mode = o.mode;
   if (estimated && c.mode != CompareMode::automatic && c.mode != CompareMode::unpaired)
     throw Error(
@@ -318,14 +323,6 @@ Comparison compare_runs(const RunRecord& cur, const RunRecord& ref, const Compar
   return c;
 }
 
-namespace {
-bool estimated_text(const Comparison& c) {
-  return std::any_of(c.points.begin(), c.points.end(), [](const auto& pc) {
-    return pc.current.importance || pc.reference.importance;
-  });
-}
-}  // namespace
-
 std::string comparison_text(const Comparison& c, const ChannelSpec& channel,
                             const CompareOptions& o) {
   std::string out;
@@ -338,9 +335,10 @@ std::string comparison_text(const Comparison& c, const ChannelSpec& channel,
           ? "counts must match"
           : (c.mode == CompareMode::paired
                  ? "McNemar on discordant frames"
-                 : (estimated_text(c) ? "z on importance-sampled estimates, Fisher exact on "
-                                        "counted FER, clustered z on BER"
-                                      : "Fisher exact on FER, clustered z on BER")),
+                 : (any_importance_sampled(c)
+                        ? "z on importance-sampled estimates, Fisher exact on "
+                          "counted FER, clustered z on BER"
+                        : "Fisher exact on FER, clustered z on BER")),
       c.level, o.confidence * 100, c.tests);
   out += fmt::format("{:>9}  {:>31}  {:>31}  {:>16}  {:>9}  {:>9}  {}\n",
                      parameter_heading(channel), "current FER [interval]",

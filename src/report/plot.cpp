@@ -48,11 +48,25 @@ struct Axes {
   }
 };
 
-// BPSK over AWGN with every code bit sent: the binary-input references (uncoded BER, normal
-// approximation) apply.
+// BPSK over AWGN with every code bit sent: the uncoded BPSK BER applies.
 bool binary_awgn(const RunRecord& run) {
   const ChannelSpec& c = run.config.channel;
   return c.kind == ChannelKind::awgn && c.modulation == Modulation{} && c.puncture.empty();
+}
+
+// The block the normal approximation compares a run with: the code bits sent per frame and the
+// information bits they carry (puncturing and shortening counted), on a binary-input channel;
+// {0, 0} when it does not apply (other modulations, or a punctured run in a file from before the
+// sent bits were recorded).
+std::pair<std::size_t, std::size_t> sent_block(const RunRecord& run) {
+  const ChannelSpec& c = run.config.channel;
+  const bool binary =
+      c.kind == ChannelKind::awgn ? c.modulation == Modulation{} : !snr_swept(c.kind);
+  if (!binary || run.code.n == 0 || run.code.k == 0) return {0, 0};
+  if (c.puncture.empty()) return {run.code.n, run.code.k};
+  if (run.sent_bits == 0) return {0, 0};
+  return {run.sent_bits, static_cast<std::size_t>(std::llround(
+                             run.effective_rate * static_cast<double>(run.sent_bits)))};
 }
 
 // Capacity limit of the first run, in its own parameter, with a label; NaN when not applicable.
@@ -109,11 +123,12 @@ FerCrossing fer_crossing(const RunRecord& run, double fer) {
     }
   }
   const ChannelSpec& spec = run.config.channel;
-  if (binary_awgn(run) && run.code.n > 0 && run.code.k > 0) {
+  const auto [n, k] = sent_block(run);
+  if (spec.kind == ChannelKind::awgn && n > 0) {
     // The normal approximation's FER falls as the SNR rises: bisection over 40 dB.
     auto na = [&](double x) {
       const double value = awgn_sigma(x, spec.measure, run.rate_for_snr);
-      return normal_approximation_fer(spec.kind, value, run.code.n, run.code.k);
+      return normal_approximation_fer(spec.kind, value, n, k);
     };
     double lo = -10, hi = 30;
     if (na(lo) >= fer && na(hi) < fer) {
@@ -122,6 +137,8 @@ FerCrossing fer_crossing(const RunRecord& run, double fer) {
         (na(mid) >= fer ? lo : hi) = mid;
       }
       c.normal_approximation = 0.5 * (lo + hi);
+      c.sent_n = n;
+      c.sent_k = k;
     }
   }
   return c;
@@ -273,9 +290,8 @@ std::string plot_svg(const std::vector<PlotRun>& runs, const PlotOptions& option
         points);
     legend.emplace_back("stroke=\"#777\" stroke-dasharray=\"6 4\"", "uncoded BPSK BER");
   }
-  if (options.normal_approximation && first.code.n > 0 &&
-      (binary_awgn(first) || !snr_swept(first.config.channel.kind)) &&
-      first.config.channel.puncture.empty()) {
+  const auto [na_n, na_k] = sent_block(first);
+  if (options.normal_approximation && na_n > 0) {
     std::string points;
     for (int i = 0; i <= 200; ++i) {
       const double x = ax.x0 + (ax.x1 - ax.x0) * i / 200;
@@ -283,7 +299,7 @@ std::string plot_svg(const std::vector<PlotRun>& runs, const PlotOptions& option
       double value = x;
       if (spec.kind == ChannelKind::awgn) value = awgn_sigma(x, spec.measure, first.rate_for_snr);
       if (spec.kind != ChannelKind::awgn && (x <= 0 || x >= 1)) continue;
-      const double fer = normal_approximation_fer(spec.kind, value, first.code.n, first.code.k);
+      const double fer = normal_approximation_fer(spec.kind, value, na_n, na_k);
       if (fer <= 0 || std::log10(fer) < ax.y0) continue;
       points += fmt::format("{:.1f},{:.1f} ", ax.px(x), ax.py(fer));
     }
@@ -291,9 +307,8 @@ std::string plot_svg(const std::vector<PlotRun>& runs, const PlotOptions& option
         "<polyline points=\"{}\" fill=\"none\" stroke=\"#444\" stroke-dasharray=\"1 3\" "
         "stroke-width=\"1.5\"/>\n",
         points);
-    legend.emplace_back(
-        "stroke=\"#444\" stroke-dasharray=\"1 3\"",
-        fmt::format("normal approximation FER, n = {}, k = {}", first.code.n, first.code.k));
+    legend.emplace_back("stroke=\"#444\" stroke-dasharray=\"1 3\"",
+                        fmt::format("normal approximation FER, n = {}, k = {}", na_n, na_k));
   }
   if (options.threshold) {
     const double px = ax.px(*options.threshold);

@@ -271,6 +271,7 @@ RunRecord new_run_record(const std::string& source, const Code& code, const Simu
   r.config = sim.config();
   r.rate_for_snr = sim.rate();
   r.effective_rate = sim.effective_rate();
+  r.sent_bits = sim.link().sent();
   r.bits_per_symbol = sim.link().constellation().bits();
   r.threads_used = sim.config().threads;
   return r;
@@ -352,6 +353,7 @@ json results_document(const RunRecord& run, std::string_view format) {
   j["channel"]["parameter"] = parameter_key(c.channel);
   j["channel"]["rate_for_snr"] = run.rate_for_snr;
   j["channel"]["effective_rate"] = run.effective_rate;
+  j["channel"]["sent_bits"] = run.sent_bits;
   j["channel"]["bits_per_symbol"] = run.bits_per_symbol;
   j["run"] = fields_json(c);
   j["run"]["sweep"] = c.sweep;
@@ -470,6 +472,7 @@ RunRecord parse_results(const json& j, const std::string& source, std::string_vi
           : static_cast<double>(r.code.k) / static_cast<double>(std::max<std::size_t>(r.code.n, 1));
   r.bits_per_symbol =
       ch.contains("bits_per_symbol") ? get<unsigned>(ch, "bits_per_symbol", source, "channel") : 1;
+  if (ch.contains("sent_bits")) r.sent_bits = get<std::size_t>(ch, "sent_bits", source, "channel");
   if (c.chunk_frames == 0 || c.chunk_frames > kMaxChunkFrames) {
     throw Error(fmt::format("{}: run: chunk_frames {} is outside 1..{}", source, c.chunk_frames,
                             kMaxChunkFrames));

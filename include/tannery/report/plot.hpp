@@ -39,11 +39,14 @@ std::string run_label(const RunRecord& run);
 // parameter (dB for AWGN). `at`: log-linear interpolation between the last point at or above
 // `fer` and the next point, both with errors; empty when the curve does not cross within the
 // sweep. `normal_approximation`: where the normal approximation (Polyanskiy, Poor & Verdu 2010)
-// for the run's n and k reaches `fer` (BPSK-AWGN with every bit sent; NaN otherwise). `limit`:
+// for the bits the run sends per frame and the information bits they carry (punctured bits are
+// not sent) reaches `fer` (binary-input AWGN; NaN otherwise, and for a punctured run in a file
+// from before the bits sent were recorded). `limit`:
 // the capacity limit at the run's rate, as the plot draws it (NaN when none applies).
 struct FerCrossing {
   std::optional<double> at;
   double normal_approximation = 0;
+  std::size_t sent_n = 0, sent_k = 0;  // the block it is computed for (bits sent, information)
   double limit = 0;
 };
 FerCrossing fer_crossing(const RunRecord& run, double fer);

@@ -39,6 +39,7 @@ struct RunRecord {
   SimulationConfig config;
   double rate_for_snr = 0;    // information bits per symbol in the Eb/N0 conversion
   double effective_rate = 0;  // information bits per sent code bit (puncturing, shortening)
+  std::size_t sent_bits = 0;  // code bits sent per frame (0: a file from before it was recorded)
   unsigned bits_per_symbol = 1;
   unsigned threads_used = 0;  // over all ranks of an MPI job
   unsigned ranks_used = 1;    // processes of an MPI job

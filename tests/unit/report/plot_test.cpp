@@ -1,4 +1,5 @@
 #include <catch2/catch.hpp>
+#include <cmath>
 #include <string>
 
 #include "sample_run.hpp"
@@ -40,6 +41,20 @@ TEST_CASE("plots overlay runs of one channel and refuse others", "[plot]") {
   CHECK(count(svg, "BER first") == 0);
   // The finite-length limit of the code (n = 8, k = 4) is drawn beside the capacity limit.
   CHECK(count(svg, "normal approximation FER, n = 8, k = 4") == 1);
+  // Punctured: the bits sent (6 of 8, rate 4/6) are the block; a file that does not record them
+  // gets no normal approximation rather than the wrong one.
+  RunRecord punctured = a;
+  punctured.config.channel.puncture = "map.txt";
+  punctured.sent_bits = 6;
+  punctured.effective_rate = 4.0 / 6;
+  CHECK(count(plot_svg({PlotRun{"p", punctured}}, fer), "normal approximation FER, n = 6, k = 4") ==
+        1);
+  const FerCrossing sent = fer_crossing(punctured, 0.5);
+  CHECK(sent.sent_n == 6);
+  CHECK(sent.sent_k == 4);
+  punctured.sent_bits = 0;
+  CHECK(count(plot_svg({PlotRun{"p", punctured}}, fer), "normal approximation") == 0);
+  CHECK(std::isnan(fer_crossing(punctured, 0.5).normal_approximation));
   CHECK(run_label(a).find("offset-min-sum") != std::string::npos);
   // A Rayleigh 16-QAM run shares the Eb/N0 axis; the limit drawn is the first run's.
   RunRecord faded = b;

@@ -7,8 +7,10 @@
 using namespace tannery;
 
 TEST_CASE("results JSON round-trips every field a resume or comparison needs", "[report]") {
-  const RunRecord a = test::sample_run();
+  RunRecord a = test::sample_run();
+  a.sent_bits = 6;
   const RunRecord b = parse_results_json(results_json(a), "x.json");
+  CHECK(b.sent_bits == 6);
   CHECK(b.config.decoder == a.config.decoder);
   CHECK(b.config.channel == a.config.channel);
   CHECK(b.config.stop == a.config.stop);
