@@ -19,6 +19,16 @@ Protograph proto(const char* text) {
 // protograph codes", IEEE JSAC 2009; the structure of CCSDS 131.1-O-2's rate-1/2 matrix), written
 // from memory: column 5 is punctured, column 3 the degree-1 accumulator.
 const char* kAr4ja = "0 0 1 0 2\n1 1 0 1 3\n1 2 0 2 1\npunctured 5\n";
+// A quick search: rate-1/2 encodable protographs of 4 rows, one round of 30 steps.
+ProtographSearchSettings quick_encodable_search() {
+  ProtographSearchSettings s;
+  s.rate = 0.5;
+  s.rows = 4;
+  s.encodable = true;
+  s.rounds = 1;
+  s.steps = 30;
+  return s;
+}
 }  // namespace
 
 TEST_CASE("the J function of EXIT analysis", "[theory]") {
@@ -156,12 +166,7 @@ TEST_CASE("the encodable weight bound is the weight of single-bit codewords", "[
   // Only protographs with the encodable parity part have the bound.
   CHECK_THROWS_AS(encodable_weight_bound(proto(kAr4ja)), Error);
   // The search keeps a bound: with 4 rows, degree-3 columns in the last rows weigh 10.
-  ProtographSearchSettings s;
-  s.rate = 0.5;
-  s.rows = 4;
-  s.encodable = true;
-  s.rounds = 1;
-  s.steps = 30;
+  ProtographSearchSettings s = quick_encodable_search();
   s.min_weight = 16;
   CHECK(encodable_weight_bound(search_protograph(s).best) >= 16);
   s.encodable = false;
@@ -187,12 +192,7 @@ TEST_CASE("the protograph search improves on its start, deterministically for a 
   CHECK(b.best.cells == a.best.cells);
   CHECK(b.threshold.threshold == a.threshold.threshold);
   // A random start of a given shape, encodable: the parity part stays fixed.
-  ProtographSearchSettings r;
-  r.rate = 0.5;
-  r.rows = 4;
-  r.encodable = true;
-  r.rounds = 1;
-  r.steps = 30;
+  ProtographSearchSettings r = quick_encodable_search();
   const ProtographSearchResult c = search_protograph(r);
   CHECK(c.best.cols == 8);
   CHECK(protograph_design_violation(c.best, true).empty());
