@@ -123,7 +123,10 @@ FerCrossing fer_crossing(const RunRecord& run, double fer) {
     }
   }
   const ChannelSpec& spec = run.config.channel;
-  const auto [n, k] = sent_block(run);
+  // Plain variables: the lambda below captures them, and clang 14 (the checking build's
+  // compiler) cannot capture structured bindings.
+  const std::pair<std::size_t, std::size_t> block = sent_block(run);
+  const std::size_t n = block.first, k = block.second;
   if (spec.kind == ChannelKind::awgn && n > 0) {
     // The normal approximation's FER falls as the SNR rises: bisection over 40 dB.
     auto na = [&](double x) {
