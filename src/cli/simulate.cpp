@@ -219,7 +219,7 @@ void run_sweep(Prepared& p, RemoteChunks* remote, unsigned ranks, double checkpo
       std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
   record.interrupted = !record.points.empty() && !record.points.back().complete;
   write_outputs(record, o.output, o.csv, o.plot);
-  if (!o.quiet) print_summary(record, wall, o.output);
+  if (!o.quiet) print_summary(record, wall, sim.lane_use(), o.output);
   if (after_summary) after_summary();
   if (!o.quiet) {
     for (const auto* f : {&o.output, &o.csv, &o.plot}) {

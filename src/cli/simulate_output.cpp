@@ -76,16 +76,21 @@ void write_outputs(const RunRecord& record, const std::string& json_path,
   if (plot_failed) std::rethrow_exception(plot_failed);
 }
 
-void print_summary(const RunRecord& record, double seconds, const std::string& resume_path) {
+void print_summary(const RunRecord& record, double seconds, LaneUse lanes,
+                   const std::string& resume_path) {
   fmt::print("\n{}{}", results_table(record), failure_anatomy_text(record));
   const Throughput t = throughput(record, seconds);
   fmt::print(
       "throughput: {:.0f} frames/s, {:.3f} coded Mbit/s, {:.3f} information Mbit/s, {:.3g} "
-      "edge-updates/s ({:.3g} per thread, {})\n",
+      "edge-updates/s ({:.3g} per thread, {}){}\n",
       t.frames_per_second, t.coded_bits_per_second / 1e6, t.info_bits_per_second / 1e6,
       t.edge_updates_per_second, t.edge_updates_per_thread,
       count_of(record.threads_used, "thread") +
-          (record.ranks_used > 1 ? fmt::format(" on {} ranks", record.ranks_used) : ""));
+          (record.ranks_used > 1 ? fmt::format(" on {} ranks", record.ranks_used) : ""),
+      lanes.total > 0
+          ? fmt::format(", SIMD lanes busy {:.1f}%",
+                        100.0 * static_cast<double>(lanes.busy) / static_cast<double>(lanes.total))
+          : "");
   if (record.interrupted) {
     fmt::print("interrupted: results so far saved; continue with --resume {}\n", resume_path);
   } else if (!record.points.empty() && record.points.size() < record.config.sweep.size()) {

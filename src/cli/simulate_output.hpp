@@ -41,8 +41,10 @@ void print_heading(const RunRecord& record);
 // rest (its error is thrown after).
 void write_outputs(const RunRecord& record, const std::string& json_path,
                    const std::string& csv_path, const std::string& plot_path);
-// The table, the throughput and why the sweep ended.
-void print_summary(const RunRecord& record, double seconds, const std::string& resume_path);
+// The table, the throughput (with the lane utilization of batched decoders, when they ran) and
+// why the sweep ended.
+void print_summary(const RunRecord& record, double seconds, LaneUse lanes,
+                   const std::string& resume_path);
 // A replayed frame: how it decoded; its channel LLRs written to llr_path when not empty.
 void print_replay(const Simulator& sim, std::size_t point, std::uint64_t frame,
                   const std::string& llr_path);

@@ -114,6 +114,7 @@ class Batched final : public Decoder, public LaneDecoder {
 
   LaneDecoder* lane_decoder() noexcept override { return this; }
   std::size_t lanes() const noexcept override { return lanes_; }
+  LaneUse lane_use() const noexcept override { return use_; }
 
   void begin(std::size_t frames) override {
     frames_ = frames;
@@ -137,12 +138,15 @@ class Batched final : public Decoder, public LaneDecoder {
                             i % lanes_));
   }
 
-  void decode(LaneResults& results, bool want_posterior) override {
+  void decode(LaneResults& results, bool want_posterior, bool want_before) override {
     const std::size_t n = code_.n(), masks = groups_.size() / lanes_;
+    const bool before = want_before && settings_.iterations >= 2;
     results.hard.assign(masks, 0);
     results.undecided.assign(masks, 0);
     results.outcome.resize(frames_);
     results.posterior.resize(want_posterior ? frames_ * n : 0);
+    results.hard_before.assign(before ? masks : 0, 0);
+    results.undecided_before.assign(before ? masks : 0, 0);
     stream(results);
   }
 
@@ -168,7 +172,7 @@ class Batched final : public Decoder, public LaneDecoder {
       }
       load(g, group_llr_);
     }
-    decode(results_, !posterior.empty());
+    decode(results_, !posterior.empty(), false);
     for (std::size_t f = 0; f < frames; ++f) {
       const std::uint64_t* decided = results_.hard.data() + f / lanes_ * n;
       const std::uint64_t* zero = results_.undecided.data() + f / lanes_ * n;
@@ -203,13 +207,24 @@ class Batched final : public Decoder, public LaneDecoder {
     std::vector<const T*> refill_rows;  // one per group that gives frames this iteration
     std::vector<std::uint64_t> refill_lanes;
     while (active) {
+      use_.busy += static_cast<std::uint64_t>(std::popcount(active));
+      use_.total += lanes_;
       iterate(args_, fresh, ~active & all_lanes());
       fresh = 0;
       bool at_limit = false;
-      for (std::uint64_t a = active; a; a &= a - 1)
-        at_limit |= ++iterations[std::countr_zero(a)] == max_iterations;
-      if (!settings_.early_stop && !at_limit) continue;
+      std::uint64_t one_short = 0;  // lanes one iteration before the limit
+      for (std::uint64_t a = active; a; a &= a - 1) {
+        const int l = std::countr_zero(a), it = ++iterations[l];
+        at_limit |= it == max_iterations;
+        if (it == max_iterations - 1) one_short |= bit(static_cast<std::size_t>(l));
+      }
+      if (results.hard_before.empty()) one_short = 0;
+      if (!settings_.early_stop && !at_limit && !one_short) continue;
       sign_masks(args_, masks_.data(), zeros_.data());
+      if (one_short) {
+        record_masks(one_short, frame_of, results.hard_before, results.undecided_before);
+        if (!settings_.early_stop && !at_limit) continue;
+      }
       std::uint64_t undecided = 0;
       for (std::uint64_t z : zeros_) undecided |= z;
       const std::uint64_t unsat = unsatisfied() | undecided;
@@ -256,12 +271,12 @@ class Batched final : public Decoder, public LaneDecoder {
     }
   }
 
-  // The decisions of the finished lanes into their groups' masks (one pass over the positions
-  // per group among them), their outcomes and, when asked for, their posteriors.
-  void record(std::uint64_t finished, const std::array<std::size_t, 64>& frame_of,
-              const std::array<FrameOutcome, 64>& outcome, LaneResults& results) const {
+  // The decisions of the lanes in `which` (masks_, zeros_) into their groups' masks `decided`
+  // and `zero` (groups x n): one pass over the positions per group among them.
+  void record_masks(std::uint64_t which, const std::array<std::size_t, 64>& frame_of,
+                    std::vector<std::uint64_t>& decided, std::vector<std::uint64_t>& zero) const {
     const std::size_t n = code_.n();
-    for (std::uint64_t left = finished; left;) {
+    for (std::uint64_t left = which; left;) {
       const std::size_t g = frame_of[static_cast<std::size_t>(std::countr_zero(left))] / lanes_;
       std::uint64_t in = 0;
       for (std::uint64_t a = left; a; a &= a - 1) {
@@ -269,13 +284,20 @@ class Batched final : public Decoder, public LaneDecoder {
         if (frame_of[l] / lanes_ == g) in |= bit(l);
       }
       left &= ~in;
-      std::uint64_t* decided = results.hard.data() + g * n;
-      std::uint64_t* zero = results.undecided.data() + g * n;
+      std::uint64_t* d = decided.data() + g * n;
+      std::uint64_t* z = zero.data() + g * n;
       for (std::size_t v = 0; v < n; ++v) {
-        decided[v] |= masks_[v] & in;
-        zero[v] |= zeros_[v] & in;
+        d[v] |= masks_[v] & in;
+        z[v] |= zeros_[v] & in;
       }
     }
+  }
+
+  // The finished lanes' decisions, outcomes and, when asked for, posteriors.
+  void record(std::uint64_t finished, const std::array<std::size_t, 64>& frame_of,
+              const std::array<FrameOutcome, 64>& outcome, LaneResults& results) const {
+    const std::size_t n = code_.n();
+    record_masks(finished, frame_of, results.hard, results.undecided);
     const double scale =
         settings_.quantization ? std::ldexp(1.0, -settings_.quantization->fraction_bits) : 1.0;
     for (std::uint64_t a = finished; a; a &= a - 1) {
@@ -331,6 +353,7 @@ class Batched final : public Decoder, public LaneDecoder {
   std::vector<T> groups_;  // channel values of the frames being decoded, in groups
   std::vector<std::uint64_t> masks_, zeros_;  // per variable: negative, zero posterior lanes
   std::size_t frames_ = 0;                    // of the batch begun
+  LaneUse use_;
   std::vector<double> group_llr_;
   LaneResults results_;  // of decode_batch
   LayeredArgs<T> args_;

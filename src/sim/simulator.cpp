@@ -213,13 +213,15 @@ void Simulator::run_frames(Worker& w, std::size_t index, const ChannelPoint& cha
         if (sent[i] != got[i]) w.wrong.push_back(static_cast<std::uint32_t>(i));
       }
     }
-    record(
-        first + f, coded, info_errors, w.outcomes[f],
-        [&] {
-          return std::pair(std::span<const double>(w.llr).subspan(f * n, n),
-                           std::span<const std::uint8_t>(w.codewords).subspan(f * n, n));
-        },
-        std::span<const std::uint32_t>(w.wrong));
+    const auto sent_frame = [&] {
+      return std::pair(std::span<const double>(w.llr).subspan(f * n, n),
+                       std::span<const std::uint8_t>(w.codewords).subspan(f * n, n));
+    };
+    record(first + f, coded, info_errors, w.outcomes[f], sent_frame,
+           std::span<const std::uint32_t>(w.wrong), [&] {
+             const auto sent_now = sent_frame();
+             return oscillates(w, first + f, sent_now.first, sent_now.second, w.wrong);
+           });
   }
 }
 
@@ -272,7 +274,7 @@ void Simulator::run_lanes(Worker& w, LaneDecoder& decoder, std::size_t index,
     }
     decoder.load(g, w.llr);
   }
-  decoder.decode(w.lane_results);
+  decoder.decode(w.lane_results, false, checks_oscillation());
   // Errors per frame: lane l of group g holds frame g * lanes + l, whose sent bits are bit l of
   // that group's masks. An undecided bit is an error whatever was sent.
   // wrong_bits(fn): fn(frame, position) for every wrong bit of every frame of the chunk, by
@@ -317,6 +319,21 @@ void Simulator::run_lanes(Worker& w, LaneDecoder& decoder, std::size_t index,
   for (std::size_t f = 0; f < count; ++f) {
     const std::span<const std::uint32_t> wrong(w.wrong.data() + w.wrong_start[f],
                                                w.wrong_start[f + 1] - w.wrong_start[f]);
+    // Oscillating: a wrong set one iteration before the last that differs from the last one.
+    const auto oscillated = [&] {
+      const std::size_t g = f / lanes, l = f % lanes;
+      const std::uint64_t* sent = w.codeword_masks.data() + g * n;
+      const std::uint64_t* decided = w.lane_results.hard.data() + g * n;
+      const std::uint64_t* zero = w.lane_results.undecided.data() + g * n;
+      const std::uint64_t* decided_before = w.lane_results.hard_before.data() + g * n;
+      const std::uint64_t* zero_before = w.lane_results.undecided_before.data() + g * n;
+      for (std::size_t v = 0; v < n; ++v) {
+        const std::uint64_t now = (decided[v] ^ sent[v]) | zero[v];
+        const std::uint64_t before = (decided_before[v] ^ sent[v]) | zero_before[v];
+        if (((now ^ before) >> l) & 1u) return true;
+      }
+      return false;
+    };
     record(
         first + f, w.errors[2 * f], w.errors[2 * f + 1], outcomes[f],
         [&] {
@@ -330,8 +347,12 @@ void Simulator::run_lanes(Worker& w, LaneDecoder& decoder, std::size_t index,
           return std::pair(std::span<const double>(w.frame_llr),
                            std::span<const std::uint8_t>(w.codewords));
         },
-        wrong);
+        wrong, oscillated);
   }
+}
+
+bool Simulator::checks_oscillation() const noexcept {
+  return config_.decoder.algorithm != Algorithm::ml && config_.decoder.iterations >= 2;
 }
 
 ChunkResult Simulator::compute_chunk(Worker& w, std::size_t index, const ChannelPoint& channel,
@@ -349,11 +370,12 @@ ChunkResult Simulator::compute_chunk(Worker& w, std::size_t index, const Channel
   c.coded_bits = count * n;
   c.chunks = 1;
   // One frame's counts; sent() gives its channel LLRs and codeword, asked for only when it
-  // failed and is kept or checked for oscillation (iterative decoders with 2 iterations or more).
-  const bool check_oscillation =
-      config_.decoder.algorithm != Algorithm::ml && config_.decoder.iterations >= 2;
+  // failed and is kept; oscillated() whether it oscillates, asked for only when it failed at the
+  // iteration limit with a small wrong set (checks_oscillation).
+  const bool check_oscillation = checks_oscillation();
   auto record = [&](std::uint64_t frame, std::uint64_t coded, std::uint64_t info_errors,
-                    const FrameOutcome& o, const auto& sent, std::span<const std::uint32_t> wrong) {
+                    const FrameOutcome& o, const auto& sent, std::span<const std::uint32_t> wrong,
+                    const auto& oscillated) {
     c.iterations += static_cast<std::uint64_t>(o.iterations);
     const auto it = static_cast<std::size_t>(o.iterations);
     if (c.iteration_histogram.size() <= it) c.iteration_histogram.resize(it + 1, 0);
@@ -368,10 +390,8 @@ ChunkResult Simulator::compute_chunk(Worker& w, std::size_t index, const Channel
     if (coded <= kAnatomyMaxBits) {
       FailureClassCount& cls = c.failure_classes[w.classifier->classify(wrong)];
       ++cls.frames;
-      if (check_oscillation && !o.converged && o.iterations == config_.decoder.iterations) {
-        const auto [llr, codeword] = sent();
-        cls.oscillating += oscillates(w, frame, llr, codeword, wrong) ? 1 : 0;
-      }
+      if (check_oscillation && !o.converged && o.iterations == config_.decoder.iterations)
+        cls.oscillating += oscillated() ? 1 : 0;
       if (cls.examples.size() < kAnatomyExamples)
         cls.examples.emplace_back(wrong.begin(), wrong.end());
     } else {
@@ -570,6 +590,12 @@ PointResult Simulator::run_point(std::size_t index, PointResult total,
         report();
       });
   if (remote_error) std::rethrow_exception(remote_error);
+  for (const auto& w : workers) {
+    if (const LaneDecoder* lanes = w->decoder->lane_decoder()) {
+      lane_use_.busy += lanes->lane_use().busy;
+      lane_use_.total += lanes->lane_use().total;
+    }
+  }
   if (remote) remote->cancel(index);
   report();
   total.seconds += seconds_since(start);
@@ -583,6 +609,7 @@ std::vector<PointResult> Simulator::run(std::vector<PointResult> previous,
                                         const std::function<void(const Progress&)>& progress,
                                         const std::atomic<bool>* interrupt, RemoteChunks* remote) {
   kept_.clear();
+  lane_use_ = {};
   std::vector<PointResult> results;
   for (std::size_t i = 0; i < config_.sweep.size(); ++i) {
     PointResult start;
@@ -616,6 +643,7 @@ std::vector<ShardPoint> Simulator::run_shard(const ShardPlan& plan,
   if (plan.frames == 0 || plan.frame_errors == 0)
     throw Error("shard: the frame budget and the frame-error target must be at least 1");
   kept_.clear();
+  lane_use_ = {};
   std::vector<ShardPoint> points;
   std::vector<PointResult> earlier;
   for (std::size_t i = 0; i < config_.sweep.size(); ++i) {

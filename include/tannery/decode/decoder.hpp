@@ -154,6 +154,17 @@ struct LaneResults {
   std::vector<std::uint64_t> undecided;  // groups x n: ... posterior exactly zero
   std::vector<FrameOutcome> outcome;     // per frame
   std::vector<double> posterior;         // frames x n (frame layout), when asked for
+  // When asked for, the decisions one iteration before the last, like hard and undecided: set
+  // for the frames that ran out of iterations (outcome.iterations == the limit, at least 2),
+  // unspecified for the others. (A frame that changes its decisions in its last iteration
+  // oscillates; decoding it again with one iteration less would give the same.)
+  std::vector<std::uint64_t> hard_before, undecided_before;
+};
+
+// Lane-iterations of a batched decoder: `busy` lanes decoding a frame, of `total` (lanes x
+// iterations run); busy / total is its lane utilization.
+struct LaneUse {
+  std::uint64_t busy = 0, total = 0;
 };
 
 class LaneDecoder {
@@ -165,8 +176,12 @@ class LaneDecoder {
   // Group g's n x lanes() channel LLRs in lane layout; Error for a NaN (naming group, position
   // and lane) or a wrong size.
   virtual void load(std::size_t group, std::span<const double> llr) = 0;
-  // Decodes the batch (every group loaded) into results, posteriors only when asked for.
-  virtual void decode(LaneResults& results, bool want_posterior = false) = 0;
+  // Decodes the batch (every group loaded) into results, posteriors and the decisions before the
+  // last iteration only when asked for.
+  virtual void decode(LaneResults& results, bool want_posterior = false,
+                      bool want_before = false) = 0;
+  // Lane-iterations since the decoder was made.
+  virtual LaneUse lane_use() const noexcept = 0;
 };
 
 // One decoded frame.

@@ -249,6 +249,8 @@ class Simulator {
                                     const std::atomic<bool>* interrupt);
   // Frames kept by keep_failures during the last run, by point then frame index.
   const std::vector<KeptFrame>& kept_frames() const noexcept { return kept_; }
+  // Lane-iterations of this process's batched decoders during the last run (zero without them).
+  LaneUse lane_use() const noexcept { return lane_use_; }
 
   FrameData replay(std::size_t point, std::uint64_t frame) const;
 
@@ -276,8 +278,12 @@ class Simulator {
 
  private:
   std::unique_ptr<Worker> make_worker() const;
+  // Whether failures at the iteration limit are checked for oscillation (iterative decoders with
+  // 2 iterations or more).
+  bool checks_oscillation() const noexcept;
   // Whether a failed frame's wrong bits one iteration before the last differ from `wrong` (the
-  // frame decoded again, alone, with one iteration less).
+  // frame decoded again, alone, with one iteration less; batched decoders record those decisions
+  // instead).
   bool oscillates(Worker& w, std::uint64_t frame, std::span<const double> llr,
                   std::span<const std::uint8_t> codeword,
                   std::span<const std::uint32_t> wrong) const;
@@ -304,6 +310,7 @@ class Simulator {
   std::vector<std::uint8_t> is_info_;  // 1 at the information positions (not shortened)
   Link link_;
   std::vector<KeptFrame> kept_;
+  LaneUse lane_use_;
 };
 
 // Generates frame id: information bits (stream 0; zeros when all_zero, and at the link's

@@ -285,6 +285,38 @@ TEST_CASE("a decoder is reusable and batches equal single frames", "[decode]") {
   }
 }
 
+TEST_CASE("a batched decoder counts its busy lane-iterations", "[decode]") {
+  // Without early stop every frame takes the full iterations: with two frames per lane no lane
+  // ever idles. With early stop and one slow frame, the others' lanes wait for it.
+  const Code code = test::shipped("qc-rate-half-z54.qc");
+  DecoderSettings s = settings(Algorithm::min_sum, Schedule::layered, 7, false);
+  s.kernel = Kernel::simd;
+  auto fixed = make_decoder(code, s);
+  LaneDecoder* lanes = fixed->lane_decoder();
+  REQUIRE(lanes != nullptr);
+  const std::size_t width = lanes->lanes();
+  std::vector<double> llr(code.n() * width, 4.0);
+  LaneResults results;
+  lanes->begin(2 * width);
+  lanes->load(0, llr);
+  lanes->load(1, llr);
+  lanes->decode(results);
+  CHECK(lanes->lane_use().busy == 2 * 7 * width);
+  CHECK(lanes->lane_use().total == 2 * 7 * width);
+  s.early_stop = true;
+  auto early = make_decoder(code, s);
+  lanes = early->lane_decoder();
+  for (std::size_t v = 0; v < code.n(); ++v) llr[v * width] = v % 2 ? -0.5 : 0.5;  // lane 0: noisy
+  lanes->begin(width);
+  lanes->load(0, llr);
+  lanes->decode(results);
+  const int slow = results.outcome[0].iterations;
+  REQUIRE(slow > 1);
+  CHECK(results.outcome[1].iterations == 1);  // all +4: converged at once
+  CHECK(lanes->lane_use().total == static_cast<std::uint64_t>(slow) * width);
+  CHECK(lanes->lane_use().busy == static_cast<std::uint64_t>(slow) + (width - 1));
+}
+
 TEST_CASE("an empty batch decodes to nothing with every kernel", "[decode]") {
   const Code code = test::shipped("hamming-7-4.tanner");
   for (Kernel kernel : {Kernel::reference, Kernel::simd}) {

@@ -328,12 +328,17 @@ TEST_CASE("the lane pipeline of the batched decoders counts exactly as frame by 
     ChannelSpec spec;
     std::vector<double> sweep;
     std::uint32_t chunk;
+    bool early_stop = true;
   };
+  // Failures at the iteration limit checked for oscillation (frame by frame: decoded again with
+  // one iteration less; in lanes: the decisions recorded one iteration before the limit).
+  std::uint64_t oscillating = 0;
   for (const Case& k :
        {Case{plain(ChannelKind::awgn), {1.5, 2.25}, 64}, Case{plain(ChannelKind::awgn), {2}, 45},
-        Case{plain(ChannelKind::awgn), {2}, 200}, Case{plain(ChannelKind::bsc), {0.07}, 200},
-        Case{plain(ChannelKind::bec), {0.4}, 200}, Case{qam16, {4}, 45}, Case{faded, {11}, 200},
-        Case{punctured_bpsk, {2.5}, 200}, Case{punctured_bec, {0.35}, 200}}) {
+        Case{plain(ChannelKind::awgn), {2}, 200}, Case{plain(ChannelKind::awgn), {2.5}, 200, false},
+        Case{plain(ChannelKind::bsc), {0.07}, 200}, Case{plain(ChannelKind::bec), {0.4}, 200},
+        Case{qam16, {4}, 45}, Case{faded, {11}, 200}, Case{punctured_bpsk, {2.5}, 200},
+        Case{punctured_bec, {0.35}, 200}}) {
     SimulationConfig c = config(k.spec.kind, k.sweep, 2000, 60);
     c.channel = k.spec;
     const std::uint32_t chunk = k.chunk;
@@ -342,8 +347,12 @@ TEST_CASE("the lane pipeline of the batched decoders counts exactly as frame by 
     c.decoder.algorithm = Algorithm::offset_min_sum;
     c.decoder.schedule = Schedule::layered;
     c.decoder.quantization = parse_quantization("6.2");
+    c.decoder.early_stop = k.early_stop;
     Simulator frames(code, c);
     const auto expected = frames.run({}, {}, nullptr);
+    for (const PointResult& p : expected) {
+      for (const auto& [cls, count] : p.failure_classes) oscillating += count.oscillating;
+    }
     c.decoder.kernel = Kernel::simd;
     for (const auto& target : simd_targets()) {
       force_simd_target(target);
@@ -362,6 +371,7 @@ TEST_CASE("the lane pipeline of the batched decoders counts exactly as frame by 
         CHECK(lanes.kept_frames()[i].llr == frames.kept_frames()[i].llr);
     }
   }
+  CHECK(oscillating > 0);  // the oscillation counts compared above are not all zero
 }
 
 TEST_CASE("replay regenerates a frame exactly", "[sim]") {
