@@ -219,12 +219,12 @@ class Batched final : public Decoder, public LaneDecoder {
         if (it == max_iterations - 1) one_short |= bit(static_cast<std::size_t>(l));
       }
       if (results.hard_before.empty()) one_short = 0;
-      if (!settings_.early_stop && !at_limit && !one_short) continue;
+      const bool may_finish = settings_.early_stop || at_limit;
+      if (!may_finish && !one_short) continue;
       sign_masks(args_, masks_.data(), zeros_.data());
-      if (one_short) {
+      if (one_short)
         record_masks(one_short, frame_of, results.hard_before, results.undecided_before);
-        if (!settings_.early_stop && !at_limit) continue;
-      }
+      if (!may_finish) continue;
       std::uint64_t undecided = 0;
       for (std::uint64_t z : zeros_) undecided |= z;
       const std::uint64_t unsat = unsatisfied() | undecided;
