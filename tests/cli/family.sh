@@ -1,7 +1,7 @@
 # The shipped protograph family (codes/README.md): each code is rebuilt from its recorded command
 # and must equal the shipped file byte for byte; unless the second argument is "quick" (the
 # checking build), the long codes too, and the short codes' protographs are searched again from
-# their commands (the long codes' searches, 8 minutes, are left to scripts/build-family). Every
+# their commands (the long codes' searches, 7 minutes, are left to scripts/build-family). Every
 # code's girth and shortest-cycle count and its encoder's dense part (one check per parity
 # system) are checked by inspect against the table.
 . "$(dirname "$0")/lib.sh"
