@@ -100,7 +100,7 @@ class Batched final : public Decoder, public LaneDecoder {
       messages_ = hwy::AllocateAligned<T>(edges * lanes_);
       args_.messages = messages_.get();
     }
-    scratch_ = hwy::AllocateAligned<T>(5 * args_.max_degree * lanes_);
+    scratch_ = hwy::AllocateAligned<T>(4 * args_.max_degree * lanes_);
     if (args_.flooding) {
       v2c_ = hwy::AllocateAligned<T>(edges * lanes_);
       args_.v2c = v2c_.get();

@@ -61,7 +61,7 @@ HWY_INLINE hn::Vec<D> Horner(D d, const float (&c)[kTerms], hn::Vec<D> x) {
 // certainty: an error probability under 1e-18) and its products of such terms stay normal
 // float32 numbers (no slow subnormal arithmetic).
 constexpr float kExpFloorLog2 = -60.0f;
-constexpr float kMessageCap = 41.588830833596716f;  // 60 ln 2
+constexpr float kMessageCap = static_cast<float>(-double{kExpFloorLog2} * 0.6931471805599453);
 
 // e^-x for float x >= 0 as 2^k 2^f, k = round(-x log2 e) (at least kExpFloorLog2) and f in
 // [-1/2, 1/2].

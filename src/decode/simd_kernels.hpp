@@ -41,7 +41,7 @@ struct LayeredArgs {
   T* messages = nullptr;               // edges x lanes (sum-product, flooding)
   T* check_magnitudes = nullptr;       // m x 2 x lanes (layered min-sum)
   std::uint8_t* edge_marks = nullptr;  // edges x 2 x mask_bytes(lanes) (layered min-sum)
-  T* scratch = nullptr;                // 5 x max_degree x lanes
+  T* scratch = nullptr;                // 4 x max_degree x lanes
 };
 
 // Bytes of a lane mask (one bit per lane).
