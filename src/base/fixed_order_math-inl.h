@@ -1,10 +1,9 @@
-// Logarithm, exponential and fused multiply-add of doubles (exponential and log-ratio of floats)
-// for every Highway target, from IEEE
-// add, subtract, multiply, divide and correctly rounded fused multiply-add in a fixed order, so
-// that each lane gives the same bits on every target and machine (the C library's exp and log may
-// differ in the last bit between machines). Included by the kernels that must be reproducible:
-// the noise generator and the demapper. Compile without floating-point contraction.
-// Per-target include guard (Highway's convention for code included once per target).
+// Fused multiply-add, and the exponential, logarithm and log-ratio of floats, for every Highway
+// target, from IEEE add, subtract, multiply, divide and correctly rounded fused multiply-add in
+// a fixed order, so that each lane gives the same bits on every target and machine (the C
+// library's exp and log may differ in the last bit between machines). Included by the kernels that
+// must be reproducible: the noise generator and the demapper. Compile without floating-point
+// contraction. Per-target include guard (Highway's convention for code included once per target).
 #if defined(TANNERY_BASE_FIXED_ORDER_MATH_INL_H_) == defined(HWY_TARGET_TOGGLE)
 #ifdef TANNERY_BASE_FIXED_ORDER_MATH_INL_H_
 #undef TANNERY_BASE_FIXED_ORDER_MATH_INL_H_
@@ -23,9 +22,6 @@ namespace tannery::detail::HWY_NAMESPACE {
 namespace hn = hwy::HWY_NAMESPACE;
 
 namespace fixed_order {
-using DD = hn::ScalableTag<double>;
-using DU = hn::RebindToUnsigned<DD>;
-using VD = hn::Vec<DD>;
 using DF = hn::ScalableTag<float>;
 using DFU = hn::RebindToUnsigned<DF>;
 using VF = hn::Vec<DF>;
@@ -58,70 +54,9 @@ HWY_INLINE V Fma(V a, V b, V c) {
 #endif
 }
 
-// Natural logarithm of positive normal numbers x, K vectors at a time (independent chains
-// overlap), in place: x = 2^k m with m in [sqrt(1/2), sqrt(2)), log m = 2 atanh(s),
-// s = (m - 1)/(m + 1), |s| < 0.172, by its series to s^21 (truncation below 1e-18 relative);
-// k log 2 with log 2 split in two (the fdlibm constants).
-template <std::size_t K>
-HWY_INLINE void Ln(fixed_order::VD (&x)[K]) {
-  using fixed_order::VD;
-  const fixed_order::DU du;
-  const fixed_order::DD dd;
-  VD s[K], k[K], p[K];
-  for (std::size_t j = 0; j < K; ++j) {
-    const auto bits = hn::BitCast(du, x[j]);
-    VD m = hn::BitCast(dd, hn::Or(hn::And(bits, hn::Set(du, 0x000FFFFFFFFFFFFFull)),
-                                  hn::Set(du, 0x3FF0000000000000ull)));
-    // The biased exponent as a double, exactly: 2^52 + e read back, minus 2^52 + 1023.
-    k[j] = hn::Sub(
-        hn::BitCast(dd, hn::Or(hn::ShiftRight<52>(bits), hn::Set(du, 0x4330000000000000ull))),
-        hn::Set(dd, 4503599627371519.0));
-    const auto big = hn::Gt(m, hn::Set(dd, 1.4142135623730951));
-    m = hn::IfThenElse(big, hn::Mul(m, hn::Set(dd, 0.5)), m);
-    k[j] = hn::Add(k[j], hn::IfThenElseZero(big, hn::Set(dd, 1.0)));
-    s[j] = hn::Div(hn::Sub(m, hn::Set(dd, 1.0)), hn::Add(m, hn::Set(dd, 1.0)));
-    x[j] = hn::Mul(s[j], s[j]);  // z = s^2
-    p[j] = hn::Set(dd, 1.0 / 21);
-  }
-  for (int i = 9; i >= 0; --i) {
-    for (std::size_t j = 0; j < K; ++j) p[j] = Fma(p[j], x[j], hn::Set(dd, 1.0 / (2 * i + 1)));
-  }
-  for (std::size_t j = 0; j < K; ++j) {
-    const VD log_m = hn::Mul(hn::Add(s[j], s[j]), p[j]);
-    x[j] = Fma(k[j], hn::Set(dd, 6.93147180369123816490e-01),
-               Fma(k[j], hn::Set(dd, 1.90821492927058770002e-10), log_m));
-  }
-}
-
-HWY_INLINE fixed_order::VD Ln(fixed_order::VD x) {
-  fixed_order::VD one[1] = {x};
-  Ln(one);
-  return one[0];
-}
-
-// e^x for x in [-708, 0] (callers clamp): x = k log 2 + r with k = round(x / log 2) and
-// |r| <= log(2)/2, e^r by its Taylor series to r^13 (truncation below 4e-18 relative), times 2^k
-// built in the exponent bits (k >= -1022: a normal number).
-HWY_INLINE fixed_order::VD Exp(fixed_order::VD x) {
-  using fixed_order::VD;
-  const fixed_order::DD dd;
-  const fixed_order::DU du;
-  // Rounds to nearest exactly: 1.5 * 2^52 added and subtracted.
-  const VD shifter = hn::Set(dd, 6755399441055744.0);
-  const VD k = hn::Sub(hn::Add(hn::Mul(x, hn::Set(dd, 1.4426950408889634)), shifter), shifter);
-  VD r = Fma(hn::Neg(k), hn::Set(dd, 6.93147180369123816490e-01), x);
-  r = Fma(hn::Neg(k), hn::Set(dd, 1.90821492927058770002e-10), r);
-  VD p = hn::Set(dd, fixed_order::inverse_factorial<double>(13));
-  for (int i = 12; i >= 0; --i)
-    p = Fma(p, r, hn::Set(dd, fixed_order::inverse_factorial<double>(i)));
-  // 2^k: (k + 1023) << 52, k + 1023 read from the low bits of k + 2^52 + 1023.
-  const auto biased = hn::BitCast(du, hn::Add(k, hn::Set(dd, 4503599627371519.0)));
-  const VD scale = hn::BitCast(dd, hn::ShiftLeft<52>(biased));
-  return hn::Mul(p, scale);
-}
-
-// Single precision: e^x for x in [-87, 0] (callers clamp), as Exp with the Taylor series to r^7
-// (truncation below 6e-9 relative) and 2^k for k >= -126 (a normal float).
+// e^x for x in [-87, 0] (callers clamp): x = k log 2 + r with k = round(x / log 2) and
+// |r| <= log(2)/2, e^r by its Taylor series to r^7 (truncation below 6e-9 relative), times 2^k
+// built in the exponent bits (k >= -126: a normal float).
 HWY_INLINE fixed_order::VF Exp(fixed_order::VF x) {
   using fixed_order::VF;
   const fixed_order::DF df;
@@ -138,33 +73,57 @@ HWY_INLINE fixed_order::VF Exp(fixed_order::VF x) {
   return hn::Mul(p, hn::BitCast(df, hn::ShiftLeft<23>(biased)));
 }
 
-// Single precision: log(num / den) of positive normal floats with one division: the exponents
-// and significands split as in Ln (double), num / den = 2^k (m_num / m_den), the significand ratio
-// brought into [sqrt(1/2), sqrt(2)) and s = (m_num - m_den) / (m_num + m_den).
-HWY_INLINE fixed_order::VF LnRatio(fixed_order::VF num, fixed_order::VF den) {
-  using fixed_order::VF;
+// The exponent field of positive normal floats as 2^23 + biased exponent (a float, exact), and
+// their significands m in [1, 2).
+HWY_INLINE fixed_order::VF SplitFloat(fixed_order::VF x, fixed_order::VF& m) {
   const fixed_order::DFU du;
   const fixed_order::DF df;
-  auto split = [&](VF x, VF& m) {
-    const auto bits = hn::BitCast(du, x);
-    m = hn::BitCast(df, hn::Or(hn::And(bits, hn::Set(du, 0x007FFFFFu)), hn::Set(du, 0x3F800000u)));
-    return hn::BitCast(df, hn::Or(hn::ShiftRight<23>(bits), hn::Set(du, 0x4B000000u)));
-  };
+  const auto bits = hn::BitCast(du, x);
+  m = hn::BitCast(df, hn::Or(hn::And(bits, hn::Set(du, 0x007FFFFFu)), hn::Set(du, 0x3F800000u)));
+  return hn::BitCast(df, hn::Or(hn::ShiftRight<23>(bits), hn::Set(du, 0x4B000000u)));
+}
+
+// k log 2 + log((1 + s) / (1 - s)) for |s| < 0.172 and integer k, |k| < 512: 2 atanh(s) by its
+// series to s^11 (truncation below 1e-10 relative), log 2 split so that k times its high part
+// (9 trailing zero bits) is exact.
+HWY_INLINE fixed_order::VF LnOfParts(fixed_order::VF k, fixed_order::VF s) {
+  using fixed_order::VF;
+  const fixed_order::DF df;
+  const VF z = hn::Mul(s, s);
+  VF p = hn::Set(df, 1.0f / 11);
+  for (int i = 4; i >= 0; --i) p = Fma(p, z, hn::Set(df, 1.0f / static_cast<float>(2 * i + 1)));
+  const VF log_m = hn::Mul(hn::Add(s, s), p);
+  return Fma(k, hn::Set(df, 0.693145751953125f), Fma(k, hn::Set(df, 1.42860677e-06f), log_m));
+}
+
+// Natural logarithm of positive normal floats: x = 2^k m with m in [sqrt(1/2), sqrt(2)),
+// s = (m - 1) / (m + 1).
+HWY_INLINE fixed_order::VF Ln(fixed_order::VF x) {
+  using fixed_order::VF;
+  const fixed_order::DF df;
+  VF m;
+  VF k = hn::Sub(SplitFloat(x, m), hn::Set(df, 8388735.0f));  // 2^23 + 127
+  const auto big = hn::Gt(m, hn::Set(df, 1.41421356f));
+  m = hn::IfThenElse(big, hn::Mul(m, hn::Set(df, 0.5f)), m);
+  k = hn::Add(k, hn::IfThenElseZero(big, hn::Set(df, 1.0f)));
+  return LnOfParts(k, hn::Div(hn::Sub(m, hn::Set(df, 1.0f)), hn::Add(m, hn::Set(df, 1.0f))));
+}
+
+// log(num / den) of positive normal floats with one division: num / den = 2^k (m_num / m_den),
+// the significand ratio brought into [sqrt(1/2), sqrt(2)) and s = (m_num - m_den) /
+// (m_num + m_den).
+HWY_INLINE fixed_order::VF LnRatio(fixed_order::VF num, fixed_order::VF den) {
+  using fixed_order::VF;
+  const fixed_order::DF df;
   VF mn, md;
-  const VF en = split(num, mn), ed = split(den, md);
-  VF k = hn::Sub(en, ed);  // exact: both are 2^23 + a biased exponent
+  VF k = hn::Sub(SplitFloat(num, mn), SplitFloat(den, md));  // exact
   const auto big = hn::Gt(mn, hn::Mul(md, hn::Set(df, 1.41421356f)));
   const auto small = hn::Lt(mn, hn::Mul(md, hn::Set(df, 0.707106781f)));
   mn = hn::IfThenElse(big, hn::Mul(mn, hn::Set(df, 0.5f)),
                       hn::IfThenElse(small, hn::Add(mn, mn), mn));
   k = hn::Add(
       k, hn::IfThenElse(big, hn::Set(df, 1.0f), hn::IfThenElseZero(small, hn::Set(df, -1.0f))));
-  const VF s = hn::Div(hn::Sub(mn, md), hn::Add(mn, md));
-  const VF z = hn::Mul(s, s);
-  VF p = hn::Set(df, 1.0f / 11);
-  for (int i = 4; i >= 0; --i) p = Fma(p, z, hn::Set(df, 1.0f / static_cast<float>(2 * i + 1)));
-  const VF log_m = hn::Mul(hn::Add(s, s), p);
-  return Fma(k, hn::Set(df, 0.693145751953125f), Fma(k, hn::Set(df, 1.42860677e-06f), log_m));
+  return LnOfParts(k, hn::Div(hn::Sub(mn, md), hn::Add(mn, md)));
 }
 
 }  // namespace tannery::detail::HWY_NAMESPACE

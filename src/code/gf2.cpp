@@ -4,6 +4,7 @@
 #include <algorithm>
 #include <bit>
 #include <numeric>
+#include <type_traits>
 
 #include "tannery/error.hpp"
 
@@ -234,24 +235,44 @@ Encoder::Encoder(const Code& code, std::span<const std::uint32_t> information) :
       }
     }
   }
+  const BitMatrix unreduced = dense;
   const std::vector<std::size_t> gap_pivots = dense.reduce();
-  gap_rows_ = BitMatrix(gap_pivots.size(), free_cols_.size());
   std::vector<bool> is_gap(free_cols_.size(), false);
-  for (std::size_t j = 0; j < gap_pivots.size(); ++j) {
-    std::copy_n(dense.row(j), dense.words_per_row(), gap_rows_.row(j));
-    gap_rows_.flip(j, gap_pivots[j]);  // keep only the other free bits of the equation
-    gap_cols_.push_back(free_cols_[gap_pivots[j]]);
-    is_gap[gap_pivots[j]] = true;
+  for (std::size_t f : gap_pivots) {
+    gap_cols_.push_back(free_cols_[f]);
+    is_gap[f] = true;
+  }
+  // [the leftover checks' columns of the gap bits | identity] in reduced row-echelon form: the
+  // gap columns are independent, so its first rows are [identity | gap_solve_].
+  const std::size_t gap = gap_pivots.size(), rows = leftover.size();
+  if (gap > 0) {
+    BitMatrix solve(rows, gap + rows);
+    for (std::size_t r = 0; r < rows; ++r) {
+      for (std::size_t j = 0; j < gap; ++j) {
+        if (unreduced.get(r, gap_pivots[j])) solve.set(r, j);
+      }
+      solve.set(r, gap + r);
+    }
+    const std::vector<std::size_t> pivots = solve.reduce();
+    gap_solve_ = BitMatrix(gap, rows);
+    for (std::size_t j = 0; j < gap; ++j) {
+      TANNERY_ASSERT(pivots[j] == j);
+      for (std::size_t r = 0; r < rows; ++r) {
+        if (solve.get(j, gap + r)) gap_solve_.set(j, r);
+      }
+    }
+    leftover_start_.push_back(0);
+    for (std::uint32_t c : leftover) {
+      for (std::uint32_t v : code.check_variables(c)) leftover_vars_.push_back(v);
+      leftover_start_.push_back(static_cast<std::uint32_t>(leftover_vars_.size()));
+    }
   }
   std::vector<std::pair<std::uint32_t, std::uint32_t>> info;  // (position, free index)
   for (std::size_t f = 0; f < free_cols_.size(); ++f) {
     if (!is_gap[f]) info.emplace_back(free_cols_[f], static_cast<std::uint32_t>(f));
   }
   std::sort(info.begin(), info.end());
-  for (auto [position, f] : info) {
-    info_positions_.push_back(position);
-    info_free_index_.push_back(f);
-  }
+  for (auto [position, f] : info) info_positions_.push_back(position);
   if (!information.empty()) {
     std::size_t outside = 0;
     for (std::uint32_t p : info_positions_) outside += !wanted[p];
@@ -276,29 +297,58 @@ std::size_t Encoder::info_errors(std::span<const std::uint8_t> decided,
   return errors;
 }
 
-void Encoder::encode(std::span<const std::uint8_t> info, std::span<std::uint8_t> codeword) const {
-  TANNERY_ASSERT(info.size() == k() && codeword.size() == n_);
-  std::fill(codeword.begin(), codeword.end(), std::uint8_t{0});
-  for (std::size_t i = 0; i < info.size(); ++i) codeword[info_positions_[i]] = info[i] & 1u;
-  // Gap bits depend on information bits only (row-echelon form has zeros at other pivots):
-  // each is the parity of a dense row ANDed with the information bits packed by free index.
-  thread_local std::vector<std::uint64_t> packed;
-  packed.assign(gap_rows_.words_per_row(), 0);
-  for (std::size_t i = 0; i < info.size(); ++i) {
-    packed[info_free_index_[i] >> 6] |= std::uint64_t{info[i] & 1u} << (info_free_index_[i] & 63);
-  }
-  for (std::size_t j = 0; j < gap_cols_.size(); ++j) {
-    const std::uint64_t* row = gap_rows_.row(j);
-    std::uint64_t acc = 0;
-    for (std::size_t w = 0; w < packed.size(); ++w) acc ^= row[w] & packed[w];
-    codeword[gap_cols_[j]] = static_cast<std::uint8_t>(std::popcount(acc) & 1);
-  }
+template <class Word>
+void Encoder::substitute(std::span<Word> codeword) const {
   for (std::size_t i = 0; i < pivot_cols_.size(); ++i) {
-    std::uint8_t parity = 0;
+    Word parity = 0;
     for (std::uint32_t j = pivot_start_[i]; j < pivot_start_[i + 1]; ++j)
       parity ^= codeword[pivot_others_[j]];
     codeword[pivot_cols_[i]] = parity;
   }
+}
+
+template <class Word>
+void Encoder::complete(std::span<Word> codeword) const {
+  substitute(codeword);
+  if (gap_cols_.empty()) return;
+  // With the gap bits at 0 the leftover checks' syndromes are what the gap bits must cancel.
+  thread_local std::vector<Word> syndrome;
+  syndrome.assign(leftover_start_.size() - 1, 0);
+  for (std::size_t r = 0; r + 1 < leftover_start_.size(); ++r) {
+    for (std::uint32_t j = leftover_start_[r]; j < leftover_start_[r + 1]; ++j)
+      syndrome[r] ^= codeword[leftover_vars_[j]];
+  }
+  if constexpr (std::is_same_v<Word, std::uint8_t>) {
+    // One frame: the syndromes packed 64 to a word, each gap bit the parity of a row AND them.
+    thread_local std::vector<std::uint64_t> packed;
+    packed.assign(gap_solve_.words_per_row(), 0);
+    for (std::size_t r = 0; r < syndrome.size(); ++r)
+      packed[r >> 6] |= std::uint64_t{syndrome[r] & 1u} << (r & 63);
+    for (std::size_t j = 0; j < gap_cols_.size(); ++j) {
+      const std::uint64_t* row = gap_solve_.row(j);
+      std::uint64_t acc = 0;
+      for (std::size_t w = 0; w < packed.size(); ++w) acc ^= row[w] & packed[w];
+      codeword[gap_cols_[j]] = static_cast<std::uint8_t>(std::popcount(acc) & 1);
+    }
+  } else {
+    for (std::size_t j = 0; j < gap_cols_.size(); ++j) {
+      const std::uint64_t* row = gap_solve_.row(j);
+      Word acc = 0;
+      for (std::size_t w = 0; w < gap_solve_.words_per_row(); ++w) {
+        for (std::uint64_t bits = row[w]; bits; bits &= bits - 1)
+          acc ^= syndrome[w * 64 + static_cast<std::size_t>(std::countr_zero(bits))];
+      }
+      codeword[gap_cols_[j]] = acc;
+    }
+  }
+  substitute(codeword);
+}
+
+void Encoder::encode(std::span<const std::uint8_t> info, std::span<std::uint8_t> codeword) const {
+  TANNERY_ASSERT(info.size() == k() && codeword.size() == n_);
+  std::fill(codeword.begin(), codeword.end(), std::uint8_t{0});
+  for (std::size_t i = 0; i < info.size(); ++i) codeword[info_positions_[i]] = info[i] & 1u;
+  complete(codeword);
 }
 
 void Encoder::encode_lanes(std::span<const std::uint64_t> info,
@@ -306,25 +356,7 @@ void Encoder::encode_lanes(std::span<const std::uint64_t> info,
   TANNERY_ASSERT(info.size() == k() && codeword.size() == n_);
   std::fill(codeword.begin(), codeword.end(), std::uint64_t{0});
   for (std::size_t i = 0; i < info.size(); ++i) codeword[info_positions_[i]] = info[i];
-  // By free index, so a gap row's set bits select information words directly.
-  thread_local std::vector<std::uint64_t> by_free;
-  by_free.assign(free_cols_.size(), 0);
-  for (std::size_t i = 0; i < info.size(); ++i) by_free[info_free_index_[i]] = info[i];
-  for (std::size_t j = 0; j < gap_cols_.size(); ++j) {
-    const std::uint64_t* row = gap_rows_.row(j);
-    std::uint64_t acc = 0;
-    for (std::size_t w = 0; w < gap_rows_.words_per_row(); ++w) {
-      for (std::uint64_t bits = row[w]; bits; bits &= bits - 1)
-        acc ^= by_free[w * 64 + static_cast<std::size_t>(std::countr_zero(bits))];
-    }
-    codeword[gap_cols_[j]] = acc;
-  }
-  for (std::size_t i = 0; i < pivot_cols_.size(); ++i) {
-    std::uint64_t parity = 0;
-    for (std::uint32_t j = pivot_start_[i]; j < pivot_start_[i + 1]; ++j)
-      parity ^= codeword[pivot_others_[j]];
-    codeword[pivot_cols_[i]] = parity;
-  }
+  complete(codeword);
 }
 
 }  // namespace tannery

@@ -1,15 +1,15 @@
 // Philox4x32-10 and the Box-Muller transform in SIMD, compiled for every Highway target. The
 // arithmetic is IEEE add, subtract, multiply, fused multiply-add, divide and square root in a
 // fixed order (this file is compiled without floating-point contraction; targets without an FMA
-// instruction use the C library's correctly rounded fma), plus integer and bit operations, so
-// every target gives the same bits, and a frame's samples do not depend on how frames are
-// batched.
+// instruction use the C library's correctly rounded fma), conversions of integers below 2^31 to
+// floats rounded to nearest, and integer and bit operations, so every target gives the same
+// bits, and a frame's samples do not depend on how frames are batched.
 #undef HWY_TARGET_INCLUDE
 #define HWY_TARGET_INCLUDE "src/sim/noise_kernels.cpp"
 #include <hwy/foreach_target.h>  // IWYU pragma: keep
 
 #include <hwy/highway.h>
-#include <cmath>
+#include <algorithm>
 #include <cstring>
 
 #include "src/base/fixed_order_math-inl.h"
@@ -25,11 +25,11 @@ using DD = hn::Rebind<double, DU>;
 using VU = hn::Vec<DU>;
 using VD = hn::Vec<DD>;
 
-// Every step below works on K independent vectors at a time, so the long dependency chains of
-// Philox and of the polynomials overlap (the arithmetic of each lane is unchanged). K = 2: 1.2x
-// the samples/s of K = 1 in tests/bench/pipeline_bench; K = 3 or 4 run out of registers and
-// halve it.
-constexpr std::size_t K = 2;
+// Every step below works on K independent vectors of 64-bit lanes at a time, so the long
+// dependency chains of Philox and of the polynomials overlap (the arithmetic of each lane is
+// unchanged). tests/bench/pipeline_bench, group of 64 frames: K = 4 gives 1.64 G samples/s,
+// K = 2 1.46 G, K = 6 1.55 G and K = 8 1.35 G.
+constexpr std::size_t K = 4;
 
 // The 64-bit product of the low 32 bits of each lane and m (the high 32 bits are ignored).
 template <std::uint64_t m>
@@ -68,76 +68,137 @@ HWY_INLINE void Philox(VU (&c)[4][K], std::uint64_t seed) {
   }
 }
 
-// A double in [1, 2) whose 52 fraction bits are the top 52 bits of x.
-HWY_INLINE VD OneToTwo(VU x) {
-  return hn::BitCast(DD(), hn::Or(hn::ShiftRight<12>(x), hn::Set(DU(), 0x3FF0000000000000ull)));
+// The Gaussians are computed in float32, twice as many lanes as the 64-bit Philox lanes: the
+// low words of the K = 2 Philox vectors packed into KF float vectors (one on SIMD targets, whose
+// lanes 0..N-1 come from Philox vector 0 and N..2N-1 from vector 1; two of one lane on the scalar
+// target).
+#if HWY_TARGET == HWY_SCALAR
+constexpr std::size_t KF = K;
+using DF = hn::Rebind<float, DU>;
+#else
+constexpr std::size_t KF = K / 2;
+using DF = hn::Repartition<float, DU>;
+#endif
+using DF32 = hn::RebindToUnsigned<DF>;
+using DI32 = hn::RebindToSigned<DF>;
+using VF = hn::Vec<DF>;
+using VF32 = hn::Vec<DF32>;
+
+// The low 32 bits of the lanes of w[0..K-1], packed.
+HWY_INLINE void Pack(const VU (&w)[K], VF32 (&out)[KF]) {
+  const DF32 d32;
+#if HWY_TARGET == HWY_SCALAR
+  for (std::size_t j = 0; j < K; ++j) out[j] = hn::TruncateTo(d32, w[j]);
+#else
+  for (std::size_t f = 0; f < KF; ++f)
+    out[f] = hn::ConcatEven(d32, hn::BitCast(d32, w[2 * f + 1]), hn::BitCast(d32, w[2 * f]));
+#endif
+}
+
+// The lanes of Philox vector j (0..K-1) in g, as doubles (exact).
+HWY_INLINE VD Widen(const VF (&g)[KF], std::size_t j) {
+  const DD dd;
+#if HWY_TARGET == HWY_SCALAR
+  return hn::PromoteTo(dd, g[j]);
+#else
+  return j % 2 == 0 ? hn::PromoteTo(dd, hn::LowerHalf(g[j / 2]))
+                    : hn::PromoteTo(dd, hn::UpperHalf(hn::Half<DF>(), g[j / 2]));
+#endif
+}
+
+// Non-negative integers below 2^31 as floats, rounded to nearest (exact below 2^24).
+HWY_INLINE VF ToFloat(VF32 x) {
+  return hn::ConvertTo(DF(), hn::BitCast(DI32(), x));
 }
 
 // Taylor coefficient of a^i in sin (odd i) or cos (even i): (-1)^(i/2) / i!.
-constexpr double TaylorCoefficient(int i) {
+constexpr float TaylorCoefficient(int i) {
   double c = 1;
   for (int j = 2; j <= i; ++j) c /= j;
-  return (i / 2) % 2 ? -c : c;
+  return static_cast<float>((i / 2) % 2 ? -c : c);
 }
 
-// sin a and cos a for a in [0, pi/4] by their Taylor series to a^17 and a^18 (truncation below
-// 1e-16).
-HWY_INLINE void SinCos(const VD (&a)[K], VD (&sin_a)[K], VD (&cos_a)[K]) {
-  const DD dd;
-  VD z[K];
-  for (std::size_t j = 0; j < K; ++j) {
-    z[j] = hn::Mul(a[j], a[j]);
-    sin_a[j] = hn::Set(dd, TaylorCoefficient(17));
-    cos_a[j] = hn::Set(dd, TaylorCoefficient(18));
+// sin a and cos a for a in [0, pi/4] by their Taylor series to a^9 and a^10 (truncation below
+// 2e-9, under float32's 6e-8).
+HWY_INLINE void SinCos(VF a, VF& sin_a, VF& cos_a) {
+  const DF df;
+  const VF z = hn::Mul(a, a);
+  sin_a = hn::Set(df, TaylorCoefficient(9));
+  cos_a = hn::Set(df, TaylorCoefficient(10));
+  for (int i = 8; i >= 2; i -= 2) {
+    sin_a = Fma(sin_a, z, hn::Set(df, TaylorCoefficient(i - 1)));
+    cos_a = Fma(cos_a, z, hn::Set(df, TaylorCoefficient(i)));
   }
-  for (int i = 16; i >= 2; i -= 2) {
-    for (std::size_t j = 0; j < K; ++j) {
-      sin_a[j] = Fma(sin_a[j], z[j], hn::Set(dd, TaylorCoefficient(i - 1)));
-      cos_a[j] = Fma(cos_a[j], z[j], hn::Set(dd, TaylorCoefficient(i)));
-    }
-  }
-  for (std::size_t j = 0; j < K; ++j) {
-    sin_a[j] = hn::Mul(sin_a[j], a[j]);
-    cos_a[j] = Fma(cos_a[j], z[j], hn::Set(dd, TaylorCoefficient(0)));
-  }
-}
-
-// Two standard normal samples per lane from one Philox output r: radius from the first 64 bits,
-// angle from the second (three bits pick the octant, 52 the position inside it).
-HWY_INLINE void BoxMuller(const VU (&r)[4][K], VD (&g0)[K], VD (&g1)[K]) {
-  const DU du;
-  const DD dd;
-  VD radius[K], angle[K], s[K], c[K];
-  VU octant[K];
-  for (std::size_t j = 0; j < K; ++j) {
-    const VU a = hn::Or(hn::ShiftLeft<32>(r[0][j]), r[1][j]);
-    const VU b = hn::Or(hn::ShiftLeft<32>(r[2][j]), r[3][j]);
-    radius[j] = hn::Sub(hn::Set(dd, 2.0), OneToTwo(a));  // 1 - u in (0, 1], exact
-    octant[j] = hn::ShiftRight<61>(b);
-    const VD frac = hn::Sub(OneToTwo(hn::ShiftLeft<3>(b)), hn::Set(dd, 1.0));  // exact
-    const auto odd = hn::RebindMask(dd, hn::Ne(hn::And(octant[j], hn::Set(du, 1)), hn::Zero(du)));
-    const VD x = hn::IfThenElse(odd, hn::Sub(hn::Set(dd, 1.0), frac), frac);
-    angle[j] = hn::Mul(x, hn::Set(dd, 0.78539816339744830962));
-  }
-  Ln(radius);
-  SinCos(angle, s, c);
-  for (std::size_t j = 0; j < K; ++j) {
-    radius[j] = hn::Sqrt(hn::Mul(hn::Set(dd, -2.0), radius[j]));
-    // Octant q: angle q pi/4 + x pi/4 (q even) or (q + 1) pi/4 - x pi/4 (q odd).
-    const auto swap = hn::RebindMask(
-        dd, hn::Ne(hn::And(hn::Add(octant[j], hn::Set(du, 1)), hn::Set(du, 2)), hn::Zero(du)));
-    const VU cos_sign =
-        hn::ShiftLeft<61>(hn::And(hn::Add(octant[j], hn::Set(du, 2)), hn::Set(du, 4)));
-    const VU sin_sign = hn::ShiftLeft<61>(hn::And(octant[j], hn::Set(du, 4)));
-    const VD cos_t = hn::Xor(hn::IfThenElse(swap, s[j], c[j]), hn::BitCast(dd, cos_sign));
-    const VD sin_t = hn::Xor(hn::IfThenElse(swap, c[j], s[j]), hn::BitCast(dd, sin_sign));
-    g0[j] = hn::Mul(radius[j], cos_t);
-    g1[j] = hn::Mul(radius[j], sin_t);
-  }
+  sin_a = hn::Mul(sin_a, a);
+  cos_a = Fma(cos_a, z, hn::Set(df, TaylorCoefficient(0)));
 }
 
 HWY_INLINE VU Splat32(std::uint64_t x) {
   return hn::Set(DU(), x & 0xFFFFFFFFull);
+}
+
+// Four standard normal samples per lane from the Philox output of each counter (its words w0..w3;
+// the counters' first words are below 2^31): two Box-Muller pairs, radius from w0 (w2) and angle
+// from w1 (w3), computed in float32 and returned as doubles in g[t][j] (sample t of the counters
+// in vector j). Radius sqrt(-2 ln u) with u = (v + 1/2) 2^-30, v = w0 >> 2; where v < 2^7
+// (probability 2^-23) the uniform is refined with 23 more bits e from the Philox output of the
+// same counter with bit 31 of its first word set, u = (v 2^23 + e + 1/2) 2^-53, so u >= 2^-54 and
+// |sample| < 8.65. Angle: three bits pick the octant, the next 23 the position x = (p + 1/2) 2^-23
+// inside it.
+HWY_INLINE void BoxMuller(const VU (&counter)[4][K], std::uint64_t seed, VD (&g)[4][K]) {
+  const DF df;
+  const DF32 du;
+  VU r[4][K];
+  for (std::size_t i = 0; i < 4; ++i) {
+    for (std::size_t j = 0; j < K; ++j) r[i][j] = counter[i][j];
+  }
+  Philox(r, seed);
+  VF32 w[4][KF];
+  for (std::size_t i = 0; i < 4; ++i) Pack(r[i], w[i]);
+  VF out[4][KF];
+  for (std::size_t pair = 0; pair < 2; ++pair) {
+    for (std::size_t f = 0; f < KF; ++f) {
+      const VF32 v = hn::ShiftRight<2>(w[2 * pair][f]);
+      VF u = hn::Mul(ToFloat(hn::Add(hn::Add(v, v), hn::Set(du, 1u))), hn::Set(df, 0x1p-31f));
+      const auto deep = hn::Lt(v, hn::Set(du, 1u << 7));
+      if (HWY_UNLIKELY(!hn::AllFalse(du, deep))) {
+        VU x[4][K];
+        for (std::size_t i = 0; i < 4; ++i) {
+          for (std::size_t j = 0; j < K; ++j) x[i][j] = counter[i][j];
+        }
+        for (std::size_t j = 0; j < K; ++j) x[0][j] = hn::Or(x[0][j], hn::Set(DU(), 1ull << 31));
+        Philox(x, seed);
+        VF32 e[KF];
+        Pack(x[pair], e);
+        const VF32 fine = hn::Or(hn::ShiftLeft<23>(v), hn::And(e[f], hn::Set(du, 0x7FFFFFu)));
+        const VF deep_u =
+            hn::Mul(ToFloat(hn::Add(hn::Add(fine, fine), hn::Set(du, 1u))), hn::Set(df, 0x1p-54f));
+        u = hn::IfThenElse(hn::RebindMask(df, deep), deep_u, u);
+      }
+      const VF radius = hn::Sqrt(hn::Mul(hn::Set(df, -2.0f), Ln(u)));
+      const VF32 b = w[2 * pair + 1][f];
+      const VF32 octant = hn::ShiftRight<29>(b);
+      const VF32 position = hn::And(hn::ShiftRight<5>(b), hn::Set(du, 0xFFFFFEu));
+      const VF frac = hn::Mul(ToFloat(hn::Or(position, hn::Set(du, 1u))), hn::Set(df, 0x1p-24f));
+      const auto odd = hn::RebindMask(df, hn::Ne(hn::And(octant, hn::Set(du, 1u)), hn::Zero(du)));
+      const VF x = hn::IfThenElse(odd, hn::Sub(hn::Set(df, 1.0f), frac), frac);  // exact
+      VF s, c;
+      SinCos(hn::Mul(x, hn::Set(df, 0.785398163f)), s, c);
+      // Octant q: angle q pi/4 + x pi/4 (q even) or (q + 1) pi/4 - x pi/4 (q odd).
+      const auto swap = hn::RebindMask(
+          df, hn::Ne(hn::And(hn::Add(octant, hn::Set(du, 1u)), hn::Set(du, 2u)), hn::Zero(du)));
+      const VF32 cos_sign =
+          hn::ShiftLeft<29>(hn::And(hn::Add(octant, hn::Set(du, 2u)), hn::Set(du, 4u)));
+      const VF32 sin_sign = hn::ShiftLeft<29>(hn::And(octant, hn::Set(du, 4u)));
+      const VF cos_t = hn::Xor(hn::IfThenElse(swap, s, c), hn::BitCast(df, cos_sign));
+      const VF sin_t = hn::Xor(hn::IfThenElse(swap, c, s), hn::BitCast(df, sin_sign));
+      out[2 * pair][f] = hn::Mul(radius, cos_t);
+      out[2 * pair + 1][f] = hn::Mul(radius, sin_t);
+    }
+  }
+  for (std::size_t t = 0; t < 4; ++t) {
+    for (std::size_t j = 0; j < K; ++j) g[t][j] = Widen(out[t], j);
+  }
 }
 
 void GaussiansOfFrame(std::uint64_t seed, std::uint32_t point, std::uint64_t frame,
@@ -145,37 +206,29 @@ void GaussiansOfFrame(std::uint64_t seed, std::uint32_t point, std::uint64_t fra
   const DU du;
   const DD dd;
   constexpr std::size_t N = hn::MaxLanes(DU());
-  alignas(64) double a[K][N], b[K][N];
-  for (std::size_t block = 0; 2 * block < count; block += K * N) {
+  alignas(64) double a[4][K * N];
+  for (std::size_t block = 0; 4 * block < count; block += K * N) {
     VU r[4][K];
-    VD g0[K], g1[K];
+    VD g[4][K];
     for (std::size_t j = 0; j < K; ++j) {
       r[0][j] = hn::Iota(du, block + j * N);
       r[1][j] = Splat32(frame);
       r[2][j] = Splat32(frame >> 32);
       r[3][j] = Splat32(point * 2ull + 1);
     }
-    Philox(r, seed);
-    BoxMuller(r, g0, g1);
-    if (2 * (block + K * N) <= count) {  // a whole block: the pairs stored interleaved
+    BoxMuller(r, seed, g);
+    if (4 * (block + K * N) <= count) {  // a whole block: the four samples stored interleaved
       for (std::size_t j = 0; j < K; ++j)
-        hn::StoreInterleaved2(g0[j], g1[j], dd, out + 2 * (block + j * N));
+        hn::StoreInterleaved4(g[0][j], g[1][j], g[2][j], g[3][j], dd, out + 4 * (block + j * N));
       continue;
     }
-    for (std::size_t j = 0; j < K; ++j) {
-      hn::Store(g0[j], dd, a[j]);
-      hn::Store(g1[j], dd, b[j]);
+    for (std::size_t t = 0; t < 4; ++t) {
+      for (std::size_t j = 0; j < K; ++j) hn::Store(g[t][j], dd, a[t] + j * N);
     }
-    for (std::size_t i = 0; i < K * N && 2 * (block + i) < count; ++i) {
-      out[2 * (block + i)] = a[i / N][i % N];
-      if (2 * (block + i) + 1 < count) out[2 * (block + i) + 1] = b[i / N][i % N];
-    }
+    for (std::size_t i = 4 * block; i < count; ++i) out[i] = a[i % 4][i / 4 - block];
   }
 }
 
-// Samples of frames first..first+lanes-1 in lane layout, each passed through out(row, lane
-// offset, lanes mask unused, value vector) before it is stored: identity for the noise itself,
-// the BPSK/AWGN channel for LLRs.
 // A double in [0, 1) from the top 53 bits of (hi << 32 | lo), exactly: the two halves of the
 // 53-bit integer converted by the 2^52 trick, recombined without rounding.
 HWY_INLINE VD Uniform53(VU hi, VU lo) {
@@ -191,54 +244,51 @@ HWY_INLINE VD Uniform53(VU hi, VU lo) {
                  hn::Set(dd, 1.1102230246251565e-16));  // 2^-53
 }
 
-// Values of stream 1 for frames first..first+lanes-1 in lane layout: Gaussian samples, or the
-// uniforms of frame_uniforms (kUniform), each passed through transform(position, first lane,
-// value) before it is stored.
+// Values of stream 1 for frames first..first+lanes-1 in lane layout: Gaussian samples (four per
+// Philox output), or the uniforms of frame_uniforms (kUniform, two per output), each passed
+// through transform(position, first lane, value) before it is stored.
 template <bool kUniform, class Transform>
 HWY_INLINE void OfGroup(std::uint64_t seed, std::uint32_t point, std::uint64_t first,
                         std::size_t lanes, std::size_t count, double* out,
                         const Transform& transform) {
+  constexpr std::size_t P = kUniform ? 2 : 4;
   const DU du;
   const DD dd;
   constexpr std::size_t N = hn::MaxLanes(DU());
   const VU low = hn::Set(du, 0xFFFFFFFFull);
-  alignas(64) double a[N], b[N];
+  alignas(64) double a[N];
   for (std::size_t l0 = 0; l0 < lanes; l0 += N) {
     const VU frame = hn::Iota(du, first + l0);
     const std::size_t width = std::min(N, lanes - l0);
-    for (std::size_t block = 0; 2 * block < count; block += K) {
+    for (std::size_t block = 0; P * block < count; block += K) {
       VU r[4][K];
-      VD g0[K], g1[K];
+      VD g[P][K];
       for (std::size_t j = 0; j < K; ++j) {
         r[0][j] = hn::Set(du, block + j);
         r[1][j] = hn::And(frame, low);
         r[2][j] = hn::ShiftRight<32>(frame);
         r[3][j] = Splat32(point * 2ull + 1);
       }
-      Philox(r, seed);
       if constexpr (kUniform) {
+        Philox(r, seed);
         for (std::size_t j = 0; j < K; ++j) {
-          g0[j] = Uniform53(r[0][j], r[1][j]);
-          g1[j] = Uniform53(r[2][j], r[3][j]);
+          g[0][j] = Uniform53(r[0][j], r[1][j]);
+          g[1][j] = Uniform53(r[2][j], r[3][j]);
         }
       } else {
-        BoxMuller(r, g0, g1);
+        BoxMuller(r, seed, g);
       }
-      for (std::size_t j = 0; j < K && 2 * (block + j) < count; ++j) {
-        const std::size_t row = 2 * (block + j);
-        double* row0 = out + row * lanes + l0;
-        double* row1 = row0 + lanes;
-        const bool second = row + 1 < count;
-        const VD x0 = transform(row, l0, g0[j]);
-        const VD x1 = second ? transform(row + 1, l0, g1[j]) : g1[j];
-        if (width == N) {
-          hn::StoreU(x0, dd, row0);
-          if (second) hn::StoreU(x1, dd, row1);
-        } else {
-          hn::Store(x0, dd, a);
-          hn::Store(x1, dd, b);
-          std::memcpy(row0, a, width * sizeof(double));
-          if (second) std::memcpy(row1, b, width * sizeof(double));
+      for (std::size_t j = 0; j < K; ++j) {
+        for (std::size_t t = 0; t < P; ++t) {
+          const std::size_t row = P * (block + j) + t;
+          if (row >= count) break;
+          const VD x = transform(row, l0, g[t][j]);
+          if (width == N) {
+            hn::StoreU(x, dd, out + row * lanes + l0);
+          } else {
+            hn::Store(x, dd, a);
+            std::memcpy(out + row * lanes + l0, a, width * sizeof(double));
+          }
         }
       }
     }

@@ -18,8 +18,8 @@ expect_in '"regression": false' "$WORK/out"
 # A 0.1 dB degradation at FER ~1e-2: the same frames (seed, point 0, frame i) sent 0.1 dB lower,
 # labelled as the reference's point. Paired McNemar detects it; Fisher's unpaired test does not
 # at these frame counts.
-"$T" simulate "${Q[@]}" --sweep 2.5 --max-frames 2000 --output ref.json || fail "reference run"
-"$T" simulate "${Q[@]}" --sweep 2.4 --max-frames 2000 --output worse.json || fail "degraded run"
+"$T" simulate "${Q[@]}" --sweep 2.5 --max-frames 4000 --output ref.json || fail "reference run"
+"$T" simulate "${Q[@]}" --sweep 2.4 --max-frames 4000 --output worse.json || fail "degraded run"
 /usr/bin/python3 - <<'PY' || fail "relabel"
 import json
 j = json.load(open("worse.json"))

@@ -88,7 +88,7 @@ expect_in "--checkpoint-seconds needs a results file" "$WORK/err"
 # Failure anatomy against the decode command: with the all-zero codeword a failed frame's wrong
 # bits are its decoded ones; decoded again with 49 iterations instead of 50, a different set means
 # the failure oscillated. The sizes and oscillation counts must be those the run recorded.
-AZ=(--code qc-rate-half-z54 --sweep 3.5 --max-frames 100000 --frame-errors 8 --all-zero)
+AZ=(--code qc-rate-half-z54 --sweep 3.5 --max-frames 300000 --frame-errors 8 --all-zero)
 "$T" simulate "${AZ[@]}" -o anatomy.json --plot "" --quiet || fail "anatomy run"
 /usr/bin/python3 - "$T" anatomy.json "${AZ[@]}" <<'PY' || fail "failure anatomy differs from the decode command"
 import json, subprocess, sys

@@ -53,7 +53,8 @@ class BitMatrix {
 // Rank of H, the dimension k = n - rank, and a systematic encoder.
 class Encoder {
  public:
-  // Analyses H; time roughly O(E + dense remainder), memory O(E + remainder rows x free bits).
+  // Analyses H; time roughly O(E + dense remainder), memory O(E + remainder rows x free bits)
+  // while it runs and O(E + remainder rows^2) kept.
   // information: the positions that must carry the information bits (e.g. the first k, where
   // an encoder with the systematic part first puts them); empty: chosen by the analysis. Throws
   // Error when they are no information set (not k of them, or the other columns of H do not
@@ -63,8 +64,9 @@ class Encoder {
   std::size_t n() const noexcept { return n_; }
   std::size_t k() const noexcept { return info_positions_.size(); }
   std::size_t rank() const noexcept { return n_ - k(); }
-  // Size of the dense part left after peeling: its checks, and the free bits they are solved over.
-  // 0 checks: encoding is linear in the number of edges.
+  // Size of the dense part left after peeling: the gap bits it solves for (one per independent
+  // leftover check), and all free bits (information and gap). 0 checks: encoding is linear in
+  // the number of edges; otherwise O(E + gap x leftover checks).
   std::size_t dense_checks() const noexcept { return gap_cols_.size(); }
   std::size_t free_bits() const noexcept { return free_cols_.size(); }
   // Codeword positions that carry the information bits verbatim, increasing.
@@ -75,10 +77,10 @@ class Encoder {
                           std::span<const std::uint8_t> sent) const;
 
   // info: k bytes (0/1) -> codeword: n bytes (0/1) with H c = 0 and c[info_positions[i]] = info[i].
-  // O(E + gap x free / 64); allocates only a per-thread scratch row on first use.
+  // O(E + gap x leftover checks); allocates only a per-thread scratch row on first use.
   void encode(std::span<const std::uint8_t> info, std::span<std::uint8_t> codeword) const;
   // The same for up to 64 frames at once, bit-sliced: bit l of info[i] / codeword[v] belongs to
-  // frame l. O(E + gap x free / 2) word operations for all of them.
+  // frame l. O(E + gap x leftover checks / 2) word operations for all of them.
   void encode_lanes(std::span<const std::uint64_t> info, std::span<std::uint64_t> codeword) const;
 
  private:
@@ -88,11 +90,23 @@ class Encoder {
   std::vector<std::uint32_t> pivot_cols_;
   std::vector<std::uint32_t> pivot_start_;  // pivot i's other variables in pivot_others_
   std::vector<std::uint32_t> pivot_others_;
-  // Dense part: gap_cols_[j] = parity over free bits selected by row j of gap_rows_.
-  std::vector<std::uint32_t> free_cols_;  // all free variables; bit f of a gap row is free_cols_[f]
+  // Dense part (the approximate lower-triangular form of Richardson & Urbanke, "Efficient
+  // encoding of low-density parity-check codes", 2001): the checks left after peeling
+  // (leftover_start_/leftover_vars_, all their variables), evaluated with the gap bits at 0,
+  // give syndromes s; gap bit gap_cols_[j] is the parity of the s selected by row j of
+  // gap_solve_ (the inverse of the leftover checks' dependence on the gap bits).
+  std::vector<std::uint32_t> free_cols_;  // all free variables: information and gap bits
   std::vector<std::uint32_t> gap_cols_;
-  std::vector<std::uint32_t> info_free_index_;  // information bit i is free bit info_free_index_[i]
-  BitMatrix gap_rows_;
+  std::vector<std::uint32_t> leftover_start_;
+  std::vector<std::uint32_t> leftover_vars_;
+  BitMatrix gap_solve_;
+
+  // Codeword from its information bits (one word per position: a bit or 64 bit-sliced frames).
+  template <class Word>
+  void complete(std::span<Word> codeword) const;
+  // Pivot bits from the free bits, in triangular order.
+  template <class Word>
+  void substitute(std::span<Word> codeword) const;
 };
 
 }  // namespace tannery

@@ -19,11 +19,12 @@ struct FrameId {
 
 // Information bits (one byte per bit, 0/1): stream 0 of the frame.
 void frame_bits(const FrameId& id, std::span<std::uint8_t> bits);
-// Standard normal samples, stream 1 of the frame: Box-Muller on one Philox output per pair, the
-// radius sqrt(-2 ln(1 - u)) from the first 64 bits (u with 52-bit resolution, so |x| < 8.5),
-// the angle from the second (octant and 52-bit position). Computed with IEEE add, multiply,
-// fused multiply-add, divide and square root in a fixed order: the same bits on every machine
-// and SIMD target.
+// Standard normal samples, stream 1 of the frame: Box-Muller, four samples (two pairs) per
+// Philox output; for each pair the radius sqrt(-2 ln u) from one 32-bit word, u = (v + 1/2) 2^-30
+// with v its top 30 bits, refined with 23 more bits where v < 2^7 (so u >= 2^-54 and |x| < 8.65),
+// and the angle from the next word (octant and 23-bit position). Computed in float32 with IEEE
+// add, multiply, fused multiply-add, divide and square root in a fixed order: the same bits on
+// every machine and SIMD target.
 void frame_gaussians(const FrameId& id, std::span<double> out);
 // Uniforms in [0, 1) with 53-bit resolution: stream 1 of the frame (BSC flips, BEC erasures).
 void frame_uniforms(const FrameId& id, std::span<double> out);

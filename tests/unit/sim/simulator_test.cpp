@@ -86,6 +86,28 @@ TEST_CASE("frame noise is a pure function of (seed, point, frame) with unit vari
   CHECK(std::abs(squares / count - 1) < 5 * std::sqrt(2.0 / count));
 }
 
+TEST_CASE("frame noise has the normal distribution's tails out to 5.5", "[random]") {
+  // P(|x| > t) = erfc(t / sqrt 2) (Abramowitz & Stegun 26.2.29), counted over 2^26 samples
+  // (64 frames of 2^20) with a 5-sigma binomial bound at each t; about 2.5 samples beyond 5.5
+  // are expected.
+  const std::size_t per_frame = std::size_t{1} << 20, frames = 64;
+  const std::vector<double> t = {1, 2, 3, 4, 4.5, 5, 5.5};
+  std::vector<std::uint64_t> beyond(t.size());
+  std::vector<double> z(per_frame);
+  for (std::uint64_t f = 0; f < frames; ++f) {
+    frame_gaussians(FrameId{5, 0, f}, z);
+    for (double x : z) {
+      for (std::size_t i = 0; i < t.size() && std::abs(x) > t[i]; ++i) ++beyond[i];
+    }
+  }
+  const double total = static_cast<double>(per_frame * frames);
+  for (std::size_t i = 0; i < t.size(); ++i) {
+    const double p = std::erfc(t[i] / std::sqrt(2.0)), expected = p * total;
+    INFO("|x| > " << t[i] << ": " << beyond[i] << " samples, expected " << expected);
+    CHECK(std::abs(static_cast<double>(beyond[i]) - expected) <= 5 * std::sqrt(expected * (1 - p)));
+  }
+}
+
 TEST_CASE("uncoded BPSK over AWGN has BER Q(sqrt(2 Eb/N0))", "[sim]") {
   // Proakis, Digital Communications: coherent BPSK bit error probability Q(sqrt(2 Eb/N0)).
   const Code uncoded = Code::from_checks(128, {});  // no checks: k = n, rate 1
