@@ -267,12 +267,10 @@ Encoder::Encoder(const Code& code, std::span<const std::uint32_t> information) :
       leftover_start_.push_back(static_cast<std::uint32_t>(leftover_vars_.size()));
     }
   }
-  std::vector<std::pair<std::uint32_t, std::uint32_t>> info;  // (position, free index)
   for (std::size_t f = 0; f < free_cols_.size(); ++f) {
-    if (!is_gap[f]) info.emplace_back(free_cols_[f], static_cast<std::uint32_t>(f));
+    if (!is_gap[f]) info_positions_.push_back(free_cols_[f]);
   }
-  std::sort(info.begin(), info.end());
-  for (auto [position, f] : info) info_positions_.push_back(position);
+  std::sort(info_positions_.begin(), info_positions_.end());
   if (!information.empty()) {
     std::size_t outside = 0;
     for (std::uint32_t p : info_positions_) outside += !wanted[p];
