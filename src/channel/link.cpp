@@ -32,14 +32,30 @@ Link::Link(const ChannelSpec& spec, PunctureMap map)
     noise_values_ += 2 * ((symbols_ + spec_.fading_block - 1) / spec_.fading_block);
 }
 
-void Link::mark_unsent(std::span<double> llr, std::size_t stride) const {
-  if (sent_.size() == n()) return;
-  for (std::size_t i = 0; i < n(); ++i) {
-    if (map_.state[i] == PunctureMap::sent) continue;
-    const double value =
-        map_.state[i] == PunctureMap::shortened ? std::numeric_limits<double>::infinity() : 0.0;
-    std::fill_n(llr.begin() + static_cast<std::ptrdiff_t>(i * stride), stride, value);
+namespace {
+
+// Punctured positions of `values` (stride values each) set to 0, shortened ones to `known`.
+template <class T>
+void fill_unsent(const PunctureMap& map, std::span<T> values, std::size_t stride, T known) {
+  for (std::size_t i = 0; i < map.state.size(); ++i) {
+    if (map.state[i] == PunctureMap::sent) continue;
+    std::fill_n(values.begin() + static_cast<std::ptrdiff_t>(i * stride), stride,
+                map.state[i] == PunctureMap::shortened ? known : T{0});
   }
+}
+
+}  // namespace
+
+void Link::mark_unsent(std::span<double> llr, std::size_t stride) const {
+  if (sent_.size() != n()) fill_unsent(map_, llr, stride, std::numeric_limits<double>::infinity());
+}
+void Link::mark_unsent(std::span<std::int8_t> values, std::size_t stride,
+                       std::int8_t saturated) const {
+  if (sent_.size() != n()) fill_unsent(map_, values, stride, saturated);
+}
+void Link::mark_unsent(std::span<std::int16_t> values, std::size_t stride,
+                       std::int16_t saturated) const {
+  if (sent_.size() != n()) fill_unsent(map_, values, stride, saturated);
 }
 
 double Link::snr_rate(std::size_t information_bits) const {

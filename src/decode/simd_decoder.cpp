@@ -8,6 +8,7 @@
 #include <bit>
 #include <cmath>
 #include <optional>
+#include <type_traits>
 #include <vector>
 
 #include "decoders.hpp"
@@ -119,6 +120,26 @@ class Batched final : public Decoder, public LaneDecoder {
   void begin(std::size_t frames) override {
     frames_ = frames;
     groups_.resize((frames + lanes_ - 1) / lanes_ * code_.n() * lanes_);
+  }
+
+  std::optional<FixedPointGroup> fixed_point_group(std::size_t g) override {
+    if constexpr (std::is_floating_point_v<T>) {
+      return std::nullopt;
+    } else {
+      if (g * lanes_ >= frames_) {
+        throw Error(fmt::format("group {} is outside a batch of {} frames in {} lanes", g, frames_,
+                                lanes_));
+      }
+      const std::size_t group = code_.n() * lanes_;
+      FixedPointGroup out{quantize_->scale(), quantize_->limit(), {}, {}};
+      const std::span<T> values(groups_.data() + g * group, group);
+      if constexpr (sizeof(T) == 1) {
+        out.int8 = values;
+      } else {
+        out.int16 = values;
+      }
+      return out;
+    }
   }
 
   void load(std::size_t g, std::span<const double> llr) override {

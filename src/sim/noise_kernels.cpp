@@ -10,6 +10,7 @@
 
 #include <hwy/highway.h>
 #include <algorithm>
+#include <cmath>
 #include <cstring>
 
 #include "src/base/fixed_order_math-inl.h"
@@ -139,13 +140,13 @@ HWY_INLINE VU Splat32(std::uint64_t x) {
 
 // Four standard normal samples per lane from the Philox output of each counter (its words w0..w3;
 // the counters' first words are below 2^31): two Box-Muller pairs, radius from w0 (w2) and angle
-// from w1 (w3), computed in float32 and returned as doubles in g[t][j] (sample t of the counters
-// in vector j). Radius sqrt(-2 ln u) with u = (v + 1/2) 2^-30, v = w0 >> 2; where v < 2^7
-// (probability 2^-23) the uniform is refined with 23 more bits e from the Philox output of the
-// same counter with bit 31 of its first word set, u = (v 2^23 + e + 1/2) 2^-53, so u >= 2^-54 and
-// |sample| < 8.65. Angle: three bits pick the octant, the next 23 the position x = (p + 1/2) 2^-23
-// inside it.
-HWY_INLINE void BoxMuller(const VU (&counter)[4][K], std::uint64_t seed, VD (&g)[4][K]) {
+// from w1 (w3), computed in float32: out[t][f] holds sample t of the counters of Philox vectors
+// 2f and 2f + 1 as Pack lays them out. Radius sqrt(-2 ln u) with u = (v + 1/2) 2^-30, v = w0 >> 2;
+// where v < 2^7 (probability 2^-23) the uniform is refined with 23 more bits e from the Philox
+// output of the same counter with bit 31 of its first word set, u = (v 2^23 + e + 1/2) 2^-53, so u
+// >= 2^-54 and |sample| < 8.65. Angle: three bits pick the octant, the next 23 the position x = (p
+// + 1/2) 2^-23 inside it.
+HWY_INLINE void BoxMullerFloat(const VU (&counter)[4][K], std::uint64_t seed, VF (&out)[4][KF]) {
   const DF df;
   const DF32 du;
   VU r[4][K];
@@ -155,7 +156,6 @@ HWY_INLINE void BoxMuller(const VU (&counter)[4][K], std::uint64_t seed, VD (&g)
   Philox(r, seed);
   VF32 w[4][KF];
   for (std::size_t i = 0; i < 4; ++i) Pack(r[i], w[i]);
-  VF out[4][KF];
   for (std::size_t pair = 0; pair < 2; ++pair) {
     for (std::size_t f = 0; f < KF; ++f) {
       const VF32 v = hn::ShiftRight<2>(w[2 * pair][f]);
@@ -196,6 +196,12 @@ HWY_INLINE void BoxMuller(const VU (&counter)[4][K], std::uint64_t seed, VD (&g)
       out[2 * pair + 1][f] = hn::Mul(radius, sin_t);
     }
   }
+}
+
+// The same samples as doubles (exact): g[t][j] is sample t of the counters in Philox vector j.
+HWY_INLINE void BoxMuller(const VU (&counter)[4][K], std::uint64_t seed, VD (&g)[4][K]) {
+  VF out[4][KF];
+  BoxMullerFloat(counter, seed, out);
   for (std::size_t t = 0; t < 4; ++t) {
     for (std::size_t j = 0; j < K; ++j) g[t][j] = Widen(out[t], j);
   }
@@ -336,6 +342,101 @@ void ChannelOfGroup(std::uint64_t seed, std::uint32_t point, std::uint64_t first
   });
 }
 
+// The values the quantized decoders make of ChannelOfGroup's AWGN LLRs (Channel in
+// src/decode/simd_kernels-inl.h, LlrQuantizer): round(llr * scale) to nearest, ties to even,
+// saturated at +-limit (scale a power of two, limit an integer), straight from the float samples
+// x. y = B x -+ A in float32, with A = magnitude * scale and B = A * value rounded to float, is
+// within 3 * 2^-24 (A + |B x|) of the exact real value and the double path within 3 * 2^-53 of
+// it, so within 2^-21 (A + 8.7 |B|) of the double y (|x| < 8.66). A vector with a lane that
+// close to a half-integer, where the two could round apart, is computed again from the double
+// LLRs lane by lane; every value is the double path's. Frames go to lanes so that a float
+// vector holds consecutive frames of one position: Philox vector j takes frames
+// l0 + j N .. l0 + j N + N - 1, all at the same counter.
+template <class T>
+void FixedChannelOfGroup(std::uint64_t seed, std::uint32_t point, std::uint64_t first,
+                         std::size_t lanes, std::size_t count, const std::uint64_t* codeword,
+                         double value, double magnitude, double scale, double limit, T* out) {
+  const DU du;
+  const DF df;
+  const DI32 di;
+  const hn::Rebind<T, DI32> dt;
+  constexpr std::size_t N = hn::MaxLanes(DU());  // frames per Philox vector
+  constexpr std::size_t F = hn::MaxLanes(DF());  // frames per float vector
+  const double a = magnitude * scale, b = a * value;
+  const VF plus = hn::Set(df, static_cast<float>(a)), minus = hn::Neg(plus);
+  const VF slope = hn::Set(df, static_cast<float>(b)), half = hn::Set(df, 0.5f);
+  const VF close = hn::Set(df, static_cast<float>(0x1p-21 * (a + 8.7 * std::abs(b))));
+  const VF high = hn::Set(df, static_cast<float>(limit)), low = hn::Neg(high);
+  alignas(64) float x[F];
+  alignas(64) std::int32_t q[F];
+  alignas(64) T narrow[F];
+  for (std::size_t l0 = 0; l0 < lanes; l0 += K * N) {
+    VU frame_low[K], frame_high[K];
+    for (std::size_t j = 0; j < K; ++j) {
+      const VU frame = hn::Iota(du, first + l0 + j * N);
+      frame_low[j] = hn::And(frame, hn::Set(du, 0xFFFFFFFFull));
+      frame_high[j] = hn::ShiftRight<32>(frame);
+    }
+    for (std::size_t block = 0; 4 * block < count; ++block) {
+      VU r[4][K];
+      for (std::size_t j = 0; j < K; ++j) {
+        r[0][j] = hn::Set(du, block);
+        r[1][j] = frame_low[j];
+        r[2][j] = frame_high[j];
+        r[3][j] = Splat32(point * 2ull + 1);
+      }
+      VF g[4][KF];
+      BoxMullerFloat(r, seed, g);
+      for (std::size_t t = 0; t < 4 && 4 * block + t < count; ++t) {
+        const std::size_t row = 4 * block + t;
+        for (std::size_t f = 0; f < KF && l0 + f * F < lanes; ++f) {
+          const std::size_t l = l0 + f * F, width = std::min(F, lanes - l);
+          const std::uint64_t bits = codeword[row] >> l;
+          std::uint8_t bytes[8];
+          std::memcpy(bytes, &bits, 8);
+          const VF y = hn::Add(hn::Mul(slope, g[t][f]),
+                               hn::IfThenElse(hn::LoadMaskBits(df, bytes), minus, plus));
+          const VF rounded = hn::Round(y);
+          auto q32 = hn::ConvertTo(di, hn::Min(hn::Max(rounded, low), high));
+          const auto tie = hn::Le(hn::Sub(half, hn::Abs(hn::Sub(y, rounded))), close);
+          if (HWY_UNLIKELY(!hn::AllFalse(df, tie))) {
+            hn::Store(g[t][f], df, x);
+            for (std::size_t i = 0; i < width; ++i) {
+              const double sign = (bits >> i) & 1u ? -1.0 : 1.0;
+              const double yd = magnitude * (sign + value * static_cast<double>(x[i])) * scale;
+              q[i] = static_cast<std::int32_t>(
+                  yd >= limit ? limit : (yd <= -limit ? -limit : std::nearbyint(yd)));
+            }
+            q32 = hn::Load(di, q);
+          }
+          const auto values = hn::DemoteTo(dt, q32);
+          if (width == F) {
+            hn::StoreU(values, dt, out + row * lanes + l);
+          } else {
+            hn::Store(values, dt, narrow);
+            std::memcpy(out + row * lanes + l, narrow, width * sizeof(T));
+          }
+        }
+      }
+    }
+  }
+}
+
+void FixedChannelOfGroup8(std::uint64_t seed, std::uint32_t point, std::uint64_t first,
+                          std::size_t lanes, std::size_t count, const std::uint64_t* codeword,
+                          double value, double magnitude, double scale, double limit,
+                          std::int8_t* out) {
+  FixedChannelOfGroup(seed, point, first, lanes, count, codeword, value, magnitude, scale, limit,
+                      out);
+}
+void FixedChannelOfGroup16(std::uint64_t seed, std::uint32_t point, std::uint64_t first,
+                           std::size_t lanes, std::size_t count, const std::uint64_t* codeword,
+                           double value, double magnitude, double scale, double limit,
+                           std::int16_t* out) {
+  FixedChannelOfGroup(seed, point, first, lanes, count, codeword, value, magnitude, scale, limit,
+                      out);
+}
+
 void BitsOfGroup(std::uint64_t seed, std::uint32_t point, std::uint64_t first, std::size_t lanes,
                  std::size_t count, std::uint64_t* masks) {
   const DU du;
@@ -379,6 +480,8 @@ HWY_EXPORT(GaussiansOfFrame);
 HWY_EXPORT(GaussiansOfGroup);
 HWY_EXPORT(ChannelOfGroup);
 HWY_EXPORT(BitsOfGroup);
+HWY_EXPORT(FixedChannelOfGroup8);
+HWY_EXPORT(FixedChannelOfGroup16);
 
 void gaussians_of_frame(std::uint64_t seed, std::uint32_t point, std::uint64_t frame,
                         std::size_t count, double* out) {
@@ -397,6 +500,20 @@ void channel_of_group(std::uint64_t seed, std::uint32_t point, std::uint64_t fir
 void bits_of_group(std::uint64_t seed, std::uint32_t point, std::uint64_t first, std::size_t lanes,
                    std::size_t count, std::uint64_t* masks) {
   HWY_DYNAMIC_DISPATCH(BitsOfGroup)(seed, point, first, lanes, count, masks);
+}
+void fixed_channel_of_group(std::uint64_t seed, std::uint32_t point, std::uint64_t first,
+                            std::size_t lanes, std::size_t count, const std::uint64_t* codeword,
+                            double value, double magnitude, double scale, double limit,
+                            std::int8_t* out) {
+  HWY_DYNAMIC_DISPATCH(FixedChannelOfGroup8)
+  (seed, point, first, lanes, count, codeword, value, magnitude, scale, limit, out);
+}
+void fixed_channel_of_group(std::uint64_t seed, std::uint32_t point, std::uint64_t first,
+                            std::size_t lanes, std::size_t count, const std::uint64_t* codeword,
+                            double value, double magnitude, double scale, double limit,
+                            std::int16_t* out) {
+  HWY_DYNAMIC_DISPATCH(FixedChannelOfGroup16)
+  (seed, point, first, lanes, count, codeword, value, magnitude, scale, limit, out);
 }
 
 }  // namespace tannery::detail

@@ -21,6 +21,17 @@ void gaussians_of_group(std::uint64_t seed, std::uint32_t point, std::uint64_t f
 void channel_of_group(std::uint64_t seed, std::uint32_t point, std::uint64_t first,
                       std::size_t lanes, std::size_t count, const std::uint64_t* codeword,
                       ChannelKind kind, double value, double magnitude, double* out);
+// The fixed-point values the quantized decoders make of channel_of_group's AWGN LLRs:
+// round(llr * scale) to nearest, ties to even, saturated at +-limit (scale a power of two, limit
+// an integer), bit for bit, without the double LLRs.
+void fixed_channel_of_group(std::uint64_t seed, std::uint32_t point, std::uint64_t first,
+                            std::size_t lanes, std::size_t count, const std::uint64_t* codeword,
+                            double value, double magnitude, double scale, double limit,
+                            std::int8_t* out);
+void fixed_channel_of_group(std::uint64_t seed, std::uint32_t point, std::uint64_t first,
+                            std::size_t lanes, std::size_t count, const std::uint64_t* codeword,
+                            double value, double magnitude, double scale, double limit,
+                            std::int16_t* out);
 // Information bits 0..count-1 (stream 0) of frames first..first+lanes-1 (lanes <= 64) as
 // masks: bit l of masks[i] is bit i of frame first + l.
 void bits_of_group(std::uint64_t seed, std::uint32_t point, std::uint64_t first, std::size_t lanes,

@@ -58,6 +58,22 @@ void group_channel_llrs(const FrameGroup& group, const ChannelPoint& channel,
                            out.data());
 }
 
+void group_channel_values(const FrameGroup& group, const ChannelPoint& channel,
+                          std::span<const std::uint64_t> codeword, const FixedPointGroup& out) {
+  const std::size_t values = codeword.size() * group.lanes;
+  TANNERY_ASSERT(channel.kind() == ChannelKind::awgn && group.lanes > 0 &&
+                 out.int8.size() + out.int16.size() == values);
+  if (!out.int8.empty()) {
+    detail::fixed_channel_of_group(group.seed, group.point, group.first, group.lanes,
+                                   codeword.size(), codeword.data(), channel.value(),
+                                   llr_magnitude(channel), out.scale, out.limit, out.int8.data());
+  } else {
+    detail::fixed_channel_of_group(group.seed, group.point, group.first, group.lanes,
+                                   codeword.size(), codeword.data(), channel.value(),
+                                   llr_magnitude(channel), out.scale, out.limit, out.int16.data());
+  }
+}
+
 void group_gaussians(const FrameGroup& group, std::span<double> out) {
   TANNERY_ASSERT(group.lanes > 0 && out.size() % group.lanes == 0);
   detail::gaussians_of_group(group.seed, group.point, group.first, group.lanes,

@@ -262,6 +262,19 @@ void Simulator::run_lanes(Worker& w, LaneDecoder& decoder, std::size_t index,
       const auto shift = static_cast<unsigned>(g % per * lanes);
       for (std::size_t v = 0; v < n; ++v) sent[v] = (w.wide_codewords[v] >> shift) & keep;
     }
+    if (link_.binary() && channel.kind() == ChannelKind::awgn) {
+      // A quantized decoder's values straight from the Gaussians (the same as from the LLRs).
+      if (const auto fixed = decoder.fixed_point_group(g)) {
+        group_channel_values(group, channel, sent, *fixed);
+        const auto saturated = static_cast<std::int16_t>(fixed->limit);
+        if (!fixed->int8.empty()) {
+          link_.mark_unsent(fixed->int8, lanes, static_cast<std::int8_t>(saturated));
+        } else {
+          link_.mark_unsent(fixed->int16, lanes, saturated);
+        }
+        continue;
+      }
+    }
     if (link_.binary()) {
       group_channel_llrs(group, channel, sent, w.llr);
       link_.mark_unsent(w.llr, lanes);

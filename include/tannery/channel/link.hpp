@@ -43,6 +43,10 @@ class Link {
   // Sets the LLRs of punctured positions to 0 and of shortened ones to +Inf, in a layout with
   // `stride` values per position (1: one frame; the lane count: a group in lane layout).
   void mark_unsent(std::span<double> llr, std::size_t stride) const;
+  // The same for fixed-point channel values: punctured 0, shortened +saturated.
+  void mark_unsent(std::span<std::int8_t> values, std::size_t stride, std::int8_t saturated) const;
+  void mark_unsent(std::span<std::int16_t> values, std::size_t stride,
+                   std::int16_t saturated) const;
   std::size_t n() const noexcept { return map_.state.size(); }
   std::size_t sent() const noexcept { return sent_.size(); }
   std::size_t shortened() const noexcept { return shortened_; }

@@ -167,6 +167,16 @@ struct LaneUse {
   std::uint64_t busy = 0, total = 0;
 };
 
+// A quantized batched decoder's channel values of one group, for a producer that makes them
+// itself instead of passing LLRs to load() (the simulator's AWGN path): what load() would make
+// of LLR L is round(L x scale) to nearest, ties to even, saturated at +-limit. n x lanes() values
+// in lane layout, in `int8` or in `int16` (the other empty) by the decoder's lane type.
+struct FixedPointGroup {
+  double scale = 1, limit = 0;
+  std::span<std::int8_t> int8;
+  std::span<std::int16_t> int16;
+};
+
 class LaneDecoder {
  public:
   virtual ~LaneDecoder() = default;
@@ -176,6 +186,9 @@ class LaneDecoder {
   // Group g's n x lanes() channel LLRs in lane layout; Error for a NaN (naming group, position
   // and lane) or a wrong size.
   virtual void load(std::size_t group, std::span<const double> llr) = 0;
+  // Group g's values to be written in place of load(g, ...), for fixed-point decoders (nothing
+  // for float lanes); Error for a group outside the batch.
+  virtual std::optional<FixedPointGroup> fixed_point_group(std::size_t group) = 0;
   // Decodes the batch (every group loaded) into results, posteriors and the decisions before the
   // last iteration only when asked for.
   virtual void decode(LaneResults& results, bool want_posterior = false,

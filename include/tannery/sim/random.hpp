@@ -8,6 +8,7 @@
 #include <span>
 
 #include "tannery/channel/channel.hpp"
+#include "tannery/decode/decoder.hpp"
 
 namespace tannery {
 
@@ -46,5 +47,9 @@ void group_gaussians(const FrameGroup& group, std::span<double> out);
 // codeword bit l of codeword[i] sent; bit for bit.
 void group_channel_llrs(const FrameGroup& group, const ChannelPoint& channel,
                         std::span<const std::uint64_t> codeword, std::span<double> out);
+// AWGN only: what a quantized decoder's load() makes of those LLRs, written straight into its
+// values (bit for bit the same, without the double LLRs).
+void group_channel_values(const FrameGroup& group, const ChannelPoint& channel,
+                          std::span<const std::uint64_t> codeword, const FixedPointGroup& out);
 
 }  // namespace tannery

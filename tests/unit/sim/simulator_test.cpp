@@ -351,6 +351,7 @@ TEST_CASE("the lane pipeline of the batched decoders counts exactly as frame by 
     std::vector<double> sweep;
     std::uint32_t chunk;
     bool early_stop = true;
+    const char* quantize = "6.2";  // int8 lanes; 6.2:6:12 takes int16 lanes
   };
   // Failures at the iteration limit checked for oscillation (frame by frame: decoded again with
   // one iteration less; in lanes: the decisions recorded one iteration before the limit).
@@ -360,7 +361,7 @@ TEST_CASE("the lane pipeline of the batched decoders counts exactly as frame by 
         Case{plain(ChannelKind::awgn), {2}, 200}, Case{plain(ChannelKind::awgn), {2.5}, 200, false},
         Case{plain(ChannelKind::bsc), {0.07}, 200}, Case{plain(ChannelKind::bec), {0.4}, 200},
         Case{qam16, {4}, 45}, Case{faded, {11}, 200}, Case{punctured_bpsk, {2.5}, 200},
-        Case{punctured_bec, {0.35}, 200}}) {
+        Case{punctured_bpsk, {2.5}, 200, true, "6.2:6:12"}, Case{punctured_bec, {0.35}, 200}}) {
     SimulationConfig c = config(k.spec.kind, k.sweep, 2000, 60);
     c.channel = k.spec;
     const std::uint32_t chunk = k.chunk;
@@ -368,7 +369,8 @@ TEST_CASE("the lane pipeline of the batched decoders counts exactly as frame by 
     c.keep_failures = 5;
     c.decoder.algorithm = Algorithm::offset_min_sum;
     c.decoder.schedule = Schedule::layered;
-    c.decoder.quantization = parse_quantization("6.2");
+    c.decoder.quantization = parse_quantization(k.quantize);
+    REQUIRE(c.decoder.quantization);
     c.decoder.early_stop = k.early_stop;
     Simulator frames(code, c);
     const auto expected = frames.run({}, {}, nullptr);
@@ -381,7 +383,8 @@ TEST_CASE("the lane pipeline of the batched decoders counts exactly as frame by 
       Simulator lanes(code, c);
       const auto got = lanes.run({}, {}, nullptr);
       INFO(channel_model(k.spec) << " " << SettingText<Modulation>::format(k.spec.modulation)
-                                 << " chunk " << chunk << " target " << target);
+                                 << " quantize " << k.quantize << " chunk " << chunk << " target "
+                                 << target);
       REQUIRE(got.size() == expected.size());
       CHECK(expected.back().frame_errors > 0);  // not vacuous
       for (std::size_t i = 0; i < got.size(); ++i) {
