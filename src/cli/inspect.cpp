@@ -139,11 +139,13 @@ void print_text(const InspectOptions& o, const CodeReport& r) {
   s += fmt::format("length n       {}\nchecks m       {}\n", r.n, r.m);
   s += fmt::format("rank           {}   ({} redundant rows)\n", r.rank, r.m - r.rank);
   s += fmt::format("dimension k    {}\n", r.k);
-  s +=
-      r.encoder_dense_checks == 0
-          ? std::string("encoder        peeling alone: linear time\n")
-          : fmt::format("encoder        peeling, then {} checks solved densely over {} free bits\n",
-                        r.encoder_dense_checks, r.encoder_free_bits);
+  s += r.encoder_dense_checks == 0
+           ? std::string("encoder        peeling alone: linear time\n")
+           : fmt::format(
+                 "encoder        peeling, then {} check{} solved densely over {} free "
+                 "bit{}\n",
+                 r.encoder_dense_checks, r.encoder_dense_checks == 1 ? "" : "s",
+                 r.encoder_free_bits, r.encoder_free_bits == 1 ? "" : "s");
   s += fmt::format("rate k/n       {:.6f}   design rate 1 - m/n = {:.6f}\n", r.rate(),
                    r.design_rate());
   s +=
