@@ -250,6 +250,18 @@ HWY_INLINE VD Uniform53(VU hi, VU lo) {
                  hn::Set(dd, 1.1102230246251565e-16));  // 2^-53
 }
 
+// The first `width` lanes of v at out (all of them when width is the vector's length).
+template <class D>
+HWY_INLINE void StoreFirst(D d, hn::Vec<D> v, std::size_t width, hn::TFromD<D>* out) {
+  if (width == hn::Lanes(d)) {
+    hn::StoreU(v, d, out);
+    return;
+  }
+  alignas(64) hn::TFromD<D> a[hn::MaxLanes(D())];
+  hn::Store(v, d, a);
+  std::memcpy(out, a, width * sizeof(hn::TFromD<D>));
+}
+
 // Values of stream 1 for frames first..first+lanes-1 in lane layout: Gaussian samples (four per
 // Philox output), or the uniforms of frame_uniforms (kUniform, two per output), each passed
 // through transform(position, first lane, value) before it is stored.
@@ -262,7 +274,6 @@ HWY_INLINE void OfGroup(std::uint64_t seed, std::uint32_t point, std::uint64_t f
   const DD dd;
   constexpr std::size_t N = hn::MaxLanes(DU());
   const VU low = hn::Set(du, 0xFFFFFFFFull);
-  alignas(64) double a[N];
   for (std::size_t l0 = 0; l0 < lanes; l0 += N) {
     const VU frame = hn::Iota(du, first + l0);
     const std::size_t width = std::min(N, lanes - l0);
@@ -288,13 +299,7 @@ HWY_INLINE void OfGroup(std::uint64_t seed, std::uint32_t point, std::uint64_t f
         for (std::size_t t = 0; t < P; ++t) {
           const std::size_t row = P * (block + j) + t;
           if (row >= count) break;
-          const VD x = transform(row, l0, g[t][j]);
-          if (width == N) {
-            hn::StoreU(x, dd, out + row * lanes + l0);
-          } else {
-            hn::Store(x, dd, a);
-            std::memcpy(out + row * lanes + l0, a, width * sizeof(double));
-          }
+          StoreFirst(dd, transform(row, l0, g[t][j]), width, out + row * lanes + l0);
         }
       }
     }
@@ -369,7 +374,6 @@ void FixedChannelOfGroup(std::uint64_t seed, std::uint32_t point, std::uint64_t 
   const VF high = hn::Set(df, static_cast<float>(limit)), low = hn::Neg(high);
   alignas(64) float x[F];
   alignas(64) std::int32_t q[F];
-  alignas(64) T narrow[F];
   for (std::size_t l0 = 0; l0 < lanes; l0 += K * N) {
     VU frame_low[K], frame_high[K];
     for (std::size_t j = 0; j < K; ++j) {
@@ -409,13 +413,7 @@ void FixedChannelOfGroup(std::uint64_t seed, std::uint32_t point, std::uint64_t 
             }
             q32 = hn::Load(di, q);
           }
-          const auto values = hn::DemoteTo(dt, q32);
-          if (width == F) {
-            hn::StoreU(values, dt, out + row * lanes + l);
-          } else {
-            hn::Store(values, dt, narrow);
-            std::memcpy(out + row * lanes + l, narrow, width * sizeof(T));
-          }
+          StoreFirst(dt, hn::DemoteTo(dt, q32), width, out + row * lanes + l);
         }
       }
     }
