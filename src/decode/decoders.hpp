@@ -20,8 +20,9 @@ std::unique_ptr<Decoder> make_simd(const Code& code, const DecoderSettings& sett
 class LlrQuantizer {
  public:
   explicit LlrQuantizer(const Quantization& q)
-      : scale_(static_cast<double>(1 << q.fraction_bits)),  // exact: a power of two
-        limit_(static_cast<double>((1 << (q.channel_bits - 1)) - 1)) {}
+      : LlrQuantizer(static_cast<double>(1 << q.fraction_bits),  // exact: a power of two
+                     static_cast<double>((1 << (q.channel_bits - 1)) - 1)) {}
+  LlrQuantizer(double scale, double limit) : scale_(scale), limit_(limit) {}
   std::int32_t operator()(double llr) const {
     const double x = llr * scale_;
     if (!(x < limit_)) return static_cast<std::int32_t>(limit_);

@@ -14,6 +14,7 @@
 #include <cstring>
 
 #include "src/base/fixed_order_math-inl.h"
+#include "src/decode/decoders.hpp"
 #include "src/sim/noise_kernels.hpp"
 
 HWY_BEFORE_NAMESPACE();
@@ -367,6 +368,7 @@ void FixedChannelOfGroup(std::uint64_t seed, std::uint32_t point, std::uint64_t 
   const hn::Rebind<T, DI32> dt;
   constexpr std::size_t N = hn::MaxLanes(DU());  // frames per Philox vector
   constexpr std::size_t F = hn::MaxLanes(DF());  // frames per float vector
+  const LlrQuantizer quantize(scale, limit);
   const double a = magnitude * scale, b = a * value;
   const VF plus = hn::Set(df, static_cast<float>(a)), minus = hn::Neg(plus);
   const VF slope = hn::Set(df, static_cast<float>(b)), half = hn::Set(df, 0.5f);
@@ -407,9 +409,7 @@ void FixedChannelOfGroup(std::uint64_t seed, std::uint32_t point, std::uint64_t 
             hn::Store(g[t][f], df, x);
             for (std::size_t i = 0; i < width; ++i) {
               const double sign = (bits >> i) & 1u ? -1.0 : 1.0;
-              const double yd = magnitude * (sign + value * static_cast<double>(x[i])) * scale;
-              q[i] = static_cast<std::int32_t>(
-                  yd >= limit ? limit : (yd <= -limit ? -limit : std::nearbyint(yd)));
+              q[i] = quantize(magnitude * (sign + value * static_cast<double>(x[i])));
             }
             q32 = hn::Load(di, q);
           }
