@@ -7,6 +7,7 @@
 #include <atomic>
 #include <bit>
 #include <cmath>
+#include <limits>
 #include <optional>
 #include <type_traits>
 #include <vector>
@@ -58,7 +59,15 @@ class Batched final : public Decoder, public LaneDecoder {
     args_.var_start = code.variable_starts().data();
     args_.var_edge = code.variable_edge_ids().data();
     args_.check_start = code.check_starts().data();
-    args_.edge_var = code.edge_variables().data();
+    // Where each edge's variable row starts (32-bit offsets keep the kernels' index arrays small).
+    if (code.n() * lanes_ > std::numeric_limits<std::uint32_t>::max())
+      throw Error(
+          fmt::format("the SIMD kernel holds at most {} variables in {} lanes; this code has {}",
+                      std::numeric_limits<std::uint32_t>::max() / lanes_, lanes_, code.n()));
+    edge_row_.reserve(code.edges());
+    for (const std::uint32_t v : code.edge_variables())
+      edge_row_.push_back(static_cast<std::uint32_t>(v * lanes_));
+    args_.edge_row = edge_row_.data();
     args_.n = code.n();
     args_.m = code.m();
     args_.max_degree = std::max<std::size_t>(code.max_check_degree(), 1);
@@ -370,6 +379,7 @@ class Batched final : public Decoder, public LaneDecoder {
   std::optional<LlrQuantizer> quantize_;
   hwy::AlignedFreeUniquePtr<T[]> channel_, posterior_, messages_, check_magnitudes_, scratch_, v2c_;
   hwy::AlignedFreeUniquePtr<std::uint8_t[]> edge_marks_;
+  std::vector<std::uint32_t> edge_row_;  // LayeredArgs::edge_row
   std::vector<std::int32_t> weights_, undecided_;
   std::vector<T> groups_;  // channel values of the frames being decoded, in groups
   std::vector<std::uint64_t> masks_, zeros_;  // per variable: negative, zero posterior lanes

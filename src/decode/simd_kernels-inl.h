@@ -102,7 +102,7 @@ struct Sweep {
       : m(a.m),
         check_start(a.check_start),
         edges(a.check_start[a.m]),
-        edge_var(a.edge_var),
+        edge_row(a.edge_row),
         post(a.posterior),
         msg(a.messages),
         mags(a.check_magnitudes),
@@ -121,7 +121,7 @@ struct Sweep {
   const std::size_t m;
   const std::uint32_t* const check_start;
   const std::uint32_t edges;
-  const std::uint32_t* const edge_var;
+  const std::uint32_t* const edge_row;
   T* const post;
   T* const msg;
   T* const mags;
@@ -132,6 +132,9 @@ struct Sweep {
   const CheckRule rule;
   const int shrink;
   const V init, p_lo, p_hi, alpha, beta;
+
+  // The posterior row of edge e's variable.
+  HWY_INLINE T* RowOf(std::size_t e) const { return post + edge_row[e]; }
 
   // The check's input on edge e from a message kept per edge: the extrinsic P - R (layered) or
   // the variable-to-check message (flooding). With kMasked, lanes outside `stale` hold a new
@@ -160,8 +163,8 @@ struct Sweep {
     }
   }
 
-  // A min-sum check's last message on edge e from its compressed state (old1, old2: the
-  // magnitudes it sent); zero in lanes outside `stale` (kMasked).
+  // A min-sum check's last message on edge e from its compressed state (old1, old2: what it
+  // sent to an edge with a positive input); zero in lanes outside `stale` (kMasked).
   template <bool kMasked>
   HWY_INLINE V Compressed(std::size_t e, V old1, V old2, hn::Mask<D> stale) const {
     const D d;
@@ -233,7 +236,8 @@ struct Sweep {
   template <bool kFlood, bool kMasked, bool kNarrow, bool kCompressed>
   HWY_INLINE void ChecksOf(hn::Mask<D> stale, hn::Mask<D> frozen) const {
     for (std::size_t c = 0; c < m; ++c) {
-      const std::uint32_t b = check_start[c], deg = check_start[c + 1] - b;
+      const std::size_t b = check_start[c];
+      const std::uint32_t deg = check_start[c + 1] - check_start[c];
       if (deg == 0) continue;
       // Checks of the common degrees are compiled for their degree.
       switch (deg) {
@@ -264,7 +268,7 @@ struct Sweep {
   }
 
   template <bool kFlood, bool kMasked, bool kNarrow, bool kCompressed, std::uint32_t kDeg>
-  HWY_INLINE void Check(std::size_t c, std::uint32_t b, hn::Mask<D> stale, hn::Mask<D> frozen,
+  HWY_INLINE void Check(std::size_t c, std::size_t b, hn::Mask<D> stale, hn::Mask<D> frozen,
                         std::uint32_t deg = kDeg) const {
     // Layered: the next check's posteriors are scattered rows; ask for them while this one
     // works: the rows of the next deg edges, which are the next check's when the degrees agree
@@ -272,7 +276,7 @@ struct Sweep {
     if constexpr (!kFlood) {
       if (b + 2 * deg <= edges) {
 #pragma GCC unroll 16
-        for (std::uint32_t i = 0; i < deg; ++i) hwy::Prefetch(post + edge_var[b + deg + i] * L);
+        for (std::size_t i = 0; i < deg; ++i) hwy::Prefetch(RowOf(b + deg + i));
       }
     }
     if constexpr (kFloat && !kCompressed) {
@@ -304,19 +308,54 @@ struct Sweep {
     }
   }
   template <std::uint32_t kDeg>
-  HWY_INLINE T* Row(T* const (&rows)[kDeg ? kDeg : 1], std::uint32_t b, std::uint32_t i) const {
+  HWY_INLINE T* Row(T* const (&rows)[kDeg ? kDeg : 1], std::size_t b, std::uint32_t i) const {
     if constexpr (kDeg != 0) {
       return rows[i];
     } else {
-      return post + edge_var[b + i] * L;
+      return RowOf(b + i);
     }
+  }
+
+  // min1 and min2 lowered to the smallest and second smallest of x (a multiset), by a tree: pairs
+  // ordered, then merged (the two smallest of two pairs are their smaller lows and the smallest
+  // of the larger low and the two highs), fewer operations and a shorter chain than a scan.
+  template <std::size_t N>
+  HWY_INLINE void TwoSmallest(const V (&x)[N], V& min1, V& min2) const {
+    V lo[(N + 1) / 2], hi[(N + 1) / 2];
+    std::size_t count = 0;
+#pragma GCC unroll 16
+    for (std::size_t i = 0; i + 1 < N; i += 2, ++count) {
+      lo[count] = hn::Min(x[i], x[i + 1]);
+      hi[count] = hn::Max(x[i], x[i + 1]);
+    }
+    if constexpr (N % 2 != 0) {
+      lo[count] = x[N - 1];
+      hi[count++] = min2;
+    }
+#pragma GCC unroll 16
+    while (count > 1) {
+      std::size_t j = 0;
+#pragma GCC unroll 16
+      for (std::size_t i = 0; i + 1 < count; i += 2, ++j) {
+        const V low = hn::Min(lo[i], lo[i + 1]);
+        hi[j] = hn::Min(hn::Max(lo[i], lo[i + 1]), hn::Min(hi[i], hi[i + 1]));
+        lo[j] = low;
+      }
+      if (count % 2 != 0) {
+        lo[j] = lo[count - 1];
+        hi[j++] = hi[count - 1];
+      }
+      count = j;
+    }
+    min1 = hn::Min(min1, lo[0]);
+    min2 = hn::Min(min2, hi[0]);
   }
 
   // Min-sum check c starting at edge b, of degree kDeg known at compile time (its extrinsics
   // and magnitudes stay in registers) or, with kDeg = 0, of degree deg; its messages kept one
   // per edge or (kCompressed, layered) compressed.
   template <bool kFlood, bool kMasked, bool kNarrow, bool kCompressed, std::uint32_t kDeg>
-  HWY_INLINE void MinSumCheck(std::size_t c, std::uint32_t b, hn::Mask<D> stale, hn::Mask<D> frozen,
+  HWY_INLINE void MinSumCheck(std::size_t c, std::size_t b, hn::Mask<D> stale, hn::Mask<D> frozen,
                               std::uint32_t deg = kDeg) const {
     const D d;
     constexpr std::uint32_t kHeld = kDeg ? kDeg : 1;
@@ -328,7 +367,7 @@ struct Sweep {
     // the saturated one (both at least the limit) the minima are equal, so pass 2's choice
     // between them cannot change.
     V min1 = init, min2 = init, parity = hn::Zero(d);
-    T* sent = nullptr;  // compressed: the magnitudes check c sent last time, and will send
+    T* sent = nullptr;  // compressed: check c's q1 and q2 (pass 2) of last time, and of now
     V old1 = hn::Zero(d), old2 = hn::Zero(d);
     if constexpr (kCompressed) {
       sent = mags + 2 * c * L;
@@ -337,7 +376,7 @@ struct Sweep {
     }
 #pragma GCC unroll 16
     for (std::uint32_t i = 0; i < deg; ++i) {
-      T* const row = post + edge_var[b + i] * L;
+      T* const row = RowOf(b + i);
       V t;
       if constexpr (kCompressed) {
         t = Minus<kNarrow>(hn::Load(d, row), Compressed<kMasked>(b + i, old1, old2, stale));
@@ -348,53 +387,66 @@ struct Sweep {
       rows[kDeg ? i : 0] = row;
       Put<kDeg>(held_t, 0, i, t);
       Put<kDeg>(held_mag, 1, i, mag);
-      min2 = hn::Min(min2, hn::Max(min1, mag));
-      min1 = hn::Min(min1, mag);
+      if constexpr (kDeg == 0) {
+        min2 = hn::Min(min2, hn::Max(min1, mag));
+        min1 = hn::Min(min1, mag);
+      }
       parity = hn::Xor(parity, t);
     }
+    if constexpr (kDeg != 0) TwoSmallest(held_mag, min1, min2);
     // Pass 2: each edge gets the other edges' smallest magnitude with the sign of the others.
     // The edge holding the smallest gets the second smallest; when several hold it the two are
-    // equal, so no position needs tracking.
+    // equal, so no position needs tracking. The sign of all inputs' parity is applied once per
+    // check (q1, q2: the messages of an edge whose own input is positive); an edge with a
+    // negative input gets -q. Fixed point: its new posterior t + r is then sign(t) (|t| + q),
+    // which saturates where t + r does (|t| + q >= -message_limit never reaches the lower one).
     if (deg == 1) min1 = min2 = init;  // a check with one edge sends the saturation value
-    V mag1 = Shape(min1), mag2 = Shape(min2);
+    V q1 = Shape(min1), q2 = Shape(min2);
     const V sign_bit = hn::Set(d, T(-0.0));  // (float)
+    if constexpr (kFloat) {
+      q1 = hn::Xor(q1, hn::And(parity, sign_bit));
+      q2 = hn::Xor(q2, hn::And(parity, sign_bit));
+    } else {
+      const auto odd = Negative(parity);
+      q1 = hn::IfThenElse(odd, hn::Neg(q1), q1);
+      q2 = hn::IfThenElse(odd, hn::Neg(q2), q2);
+    }
     if constexpr (kCompressed) {
-      hn::Store(mag1, d, sent);
-      hn::Store(mag2, d, sent + L);
-    } else if constexpr (kFloat) {  // the sign of the others' parity, applied once
-      mag1 = hn::Xor(mag1, hn::And(parity, sign_bit));
-      mag2 = hn::Xor(mag2, hn::And(parity, sign_bit));
+      hn::Store(q1, d, sent);
+      hn::Store(q2, d, sent + L);
     }
 #pragma GCC unroll 16
     for (std::uint32_t i = 0; i < deg; ++i) {
       const V t = Get<kDeg>(held_t, 0, i), mag = Get<kDeg>(held_mag, 1, i);
       const auto lowest = hn::Eq(mag, min1);
-      const V r_mag = hn::IfThenElse(lowest, mag2, mag1);
+      const V q = hn::IfThenElse(lowest, q2, q1);
       const std::size_t e = b + i;
-      V r;
       if constexpr (kFloat && !kCompressed) {
-        r = hn::Xor(r_mag, hn::And(t, sign_bit));
+        const V r = hn::Xor(q, hn::And(t, sign_bit));
         hn::Store(r, d, msg + e * L);
-      } else {
-        // (IfNegativeThenElse would be one operation less but is wrong on SSSE3 in Highway
-        // 1.0.3 for int8 lanes.)
-        const auto negative = Negative(hn::Xor(parity, t));
-        r = hn::IfThenElse(negative, hn::Neg(r_mag), r_mag);
-        if constexpr (kCompressed) {
-          std::uint8_t* const mark = marks + e * 2 * kMaskBytes;
-          hn::StoreMaskBits(d, lowest, mark);
-          hn::StoreMaskBits(d, negative, mark + kMaskBytes);
-        } else {
-          hn::Store(r, d, msg + e * L);
-        }
+        if constexpr (!kFlood) Keep<kMasked>(Row<kDeg>(rows, b, i), hn::Add(t, r), frozen);
+        continue;
       }
+      // (IfNegativeThenElse would be one operation less but is wrong on SSSE3 in Highway 1.0.3
+      // for int8 lanes.)
+      const auto negative = Negative(t);
       if constexpr (!kFlood) {
-        T* const row = Row<kDeg>(rows, b, i);
+        V sum;
         if constexpr (kFloat) {
-          Keep<kMasked>(row, hn::Add(t, r), frozen);
+          sum = hn::Add(t, hn::IfThenElse(negative, hn::Neg(q), q));
         } else {
-          Keep<kMasked>(row, Posterior<kNarrow>(hn::SaturatedAdd(t, r)), frozen);
+          sum = hn::SaturatedAdd(mag, q);
+          if constexpr (kNarrow) sum = hn::Min(sum, p_hi);
+          sum = hn::IfThenElse(negative, hn::Neg(sum), sum);
         }
+        Keep<kMasked>(Row<kDeg>(rows, b, i), sum, frozen);
+      }
+      if constexpr (kCompressed) {
+        std::uint8_t* const mark = marks + e * 2 * kMaskBytes;
+        hn::StoreMaskBits(d, lowest, mark);
+        hn::StoreMaskBits(d, negative, mark + kMaskBytes);
+      } else {
+        hn::Store(hn::IfThenElse(negative, hn::Neg(q), q), d, msg + e * L);
       }
     }
   }
@@ -412,12 +464,12 @@ struct Sweep {
   // unchanged (capped the same way), so opposite inputs still cancel to exactly 0 (an undecided
   // bit).
   template <bool kFlood, bool kMasked, std::uint32_t kDeg>
-  HWY_INLINE void SumProductCheck(std::uint32_t b, hn::Mask<D> stale, hn::Mask<D> frozen,
+  HWY_INLINE void SumProductCheck(std::size_t b, hn::Mask<D> stale, hn::Mask<D> frozen,
                                   std::uint32_t deg = kDeg) const {
     const D d;
     if constexpr (kDeg == 2) {
       const V limit = hn::Set(d, T(kMessageCap));
-      T* const row[2] = {post + edge_var[b] * L, post + edge_var[b + 1] * L};
+      T* const row[2] = {RowOf(b), RowOf(b + 1)};
       const V t[2] = {Extrinsic<kFlood, kMasked>(b, row[0], stale),
                       Extrinsic<kFlood, kMasked>(b + 1, row[1], stale)};
       for (std::uint32_t i = 0; i < 2; ++i) {
@@ -446,7 +498,7 @@ struct Sweep {
     V sum = hn::Set(d, T(2)), diff = hn::Zero(d), parity = hn::Zero(d);
 #pragma GCC unroll 16
     for (std::uint32_t i = 0; i < deg; ++i) {
-      T* const row = post + edge_var[b + i] * L;
+      T* const row = RowOf(b + i);
       rows[kDeg ? i : 0] = row;
       const V t = Extrinsic<kFlood, kMasked>(b + i, row, stale);
       put(kT, i, t);
@@ -494,7 +546,7 @@ void Start(D d, const LayeredArgs<hn::TFromD<D>>& a) {
   }
   if (std::is_floating_point_v<hn::TFromD<D>> && a.flooding) {
     for (std::size_t e = 0; e < edges; ++e)
-      hn::Store(hn::Load(d, a.channel + a.edge_var[e] * L), d, a.v2c + e * L);
+      hn::Store(hn::Load(d, a.channel + a.edge_row[e]), d, a.v2c + e * L);
   }
 }
 

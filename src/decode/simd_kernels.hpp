@@ -13,9 +13,10 @@ enum class CheckRule : int { min_sum, normalized, offset, sum_product };
 
 template <class T>
 struct LayeredArgs {
-  // Graph: checks in order, edges check-major; edge_var[e] is the variable of edge e.
+  // Graph: checks in order, edges check-major; edge_row[e] = v x lanes for the variable v of
+  // edge e: where its row starts in the posteriors and channel values.
   const std::uint32_t* check_start = nullptr;
-  const std::uint32_t* edge_var = nullptr;
+  const std::uint32_t* edge_row = nullptr;
   std::size_t n = 0, m = 0, max_degree = 0;
   std::size_t lanes = 0;  // frames in this batch (the kernel's vector width)
   // Flooding (float only): all checks from the variable-to-check messages, then all variables.
@@ -35,9 +36,11 @@ struct LayeredArgs {
   T* channel = nullptr;    // n x lanes
   T* posterior = nullptr;  // n x lanes
   // Check-to-variable messages: sum-product and flooding keep one per edge; layered min-sum
-  // keeps each check's state compressed, as a hardware decoder would: the two magnitudes it
-  // sends (rule applied) and, per edge, two lane masks of mask_bytes(lanes) bytes: the edge
-  // held the smallest input (it was sent the second magnitude), its message was negative.
+  // keeps each check's state compressed, as a hardware decoder would: the two messages it sends
+  // to an edge whose input is positive (rule and the sign of all its inputs applied; an edge
+  // with a negative input gets their negative) and, per edge, two lane masks of
+  // mask_bytes(lanes) bytes: the edge held the smallest input (it was sent the second one), its
+  // input was negative.
   T* messages = nullptr;               // edges x lanes (sum-product, flooding)
   T* check_magnitudes = nullptr;       // m x 2 x lanes (layered min-sum)
   std::uint8_t* edge_marks = nullptr;  // edges x 2 x mask_bytes(lanes) (layered min-sum)
