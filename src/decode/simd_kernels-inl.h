@@ -316,11 +316,12 @@ struct Sweep {
     }
   }
 
-  // min1 and min2 lowered to the smallest and second smallest of x (a multiset), by a tree: pairs
-  // ordered, then merged (the two smallest of two pairs are their smaller lows and the smallest
-  // of the larger low and the two highs), fewer operations and a shorter chain than a scan.
+  // The smallest and second smallest of x (a multiset) and `bound`, each at most `bound`, by a
+  // tree: pairs ordered, then merged (the two smallest of two pairs are their smaller lows and
+  // the smallest of the larger low and the two highs), fewer operations and a shorter chain than
+  // a scan.
   template <std::size_t N>
-  HWY_INLINE void TwoSmallest(const V (&x)[N], V& min1, V& min2) const {
+  HWY_INLINE void TwoSmallest(const V (&x)[N], V bound, V& min1, V& min2) const {
     V lo[(N + 1) / 2], hi[(N + 1) / 2];
     std::size_t count = 0;
 #pragma GCC unroll 16
@@ -330,7 +331,7 @@ struct Sweep {
     }
     if constexpr (N % 2 != 0) {
       lo[count] = x[N - 1];
-      hi[count++] = min2;
+      hi[count++] = bound;
     }
 #pragma GCC unroll 16
     while (count > 1) {
@@ -347,8 +348,8 @@ struct Sweep {
       }
       count = j;
     }
-    min1 = hn::Min(min1, lo[0]);
-    min2 = hn::Min(min2, hi[0]);
+    min1 = hn::Min(bound, lo[0]);
+    min2 = hn::Min(bound, hi[0]);
   }
 
   // Min-sum check c starting at edge b, of degree kDeg known at compile time (its extrinsics
@@ -393,7 +394,7 @@ struct Sweep {
       }
       parity = hn::Xor(parity, t);
     }
-    if constexpr (kDeg != 0) TwoSmallest(held_mag, min1, min2);
+    if constexpr (kDeg != 0) TwoSmallest(held_mag, init, min1, min2);
     // Pass 2: each edge gets the other edges' smallest magnitude with the sign of the others.
     // The edge holding the smallest gets the second smallest; when several hold it the two are
     // equal, so no position needs tracking. The sign of all inputs' parity is applied once per
@@ -430,10 +431,11 @@ struct Sweep {
       // (IfNegativeThenElse would be one operation less but is wrong on SSSE3 in Highway 1.0.3
       // for int8 lanes.)
       const auto negative = Negative(t);
+      const V r = hn::IfThenElse(negative, hn::Neg(q), q);  // (unused: fixed point, compressed)
       if constexpr (!kFlood) {
         V sum;
         if constexpr (kFloat) {
-          sum = hn::Add(t, hn::IfThenElse(negative, hn::Neg(q), q));
+          sum = hn::Add(t, r);
         } else {
           sum = hn::SaturatedAdd(mag, q);
           if constexpr (kNarrow) sum = hn::Min(sum, p_hi);
@@ -446,7 +448,7 @@ struct Sweep {
         hn::StoreMaskBits(d, lowest, mark);
         hn::StoreMaskBits(d, negative, mark + kMaskBytes);
       } else {
-        hn::Store(hn::IfThenElse(negative, hn::Neg(q), q), d, msg + e * L);
+        hn::Store(r, d, msg + e * L);
       }
     }
   }
