@@ -18,7 +18,7 @@ TEST_CASE("BEC thresholds of regular ensembles", "[theory]") {
   CHECK(bec_threshold(Ensemble::regular(4, 8)) == Approx(0.3834).margin(1e-4));
 }
 
-TEST_CASE("BIAWGN sum-product threshold of the (3,6) ensemble", "[theory][slow]") {
+TEST_CASE("BIAWGN sum-product threshold of the (3,6) ensemble", "[theory][long]") {
   // Richardson & Urbanke, IEEE Trans. IT 2001, table: sigma* = 0.8809 for (3,6).
   const ThresholdResult r =
       awgn_threshold(Ensemble::regular(3, 6), sum_product(), ThresholdMethod::discretized);
@@ -27,14 +27,14 @@ TEST_CASE("BIAWGN sum-product threshold of the (3,6) ensemble", "[theory][slow]"
   CHECK(r.gap_db == Approx(r.ebn0_db - 0.187).margin(0.002));
 }
 
-TEST_CASE("BIAWGN sum-product threshold of the (4,8) ensemble", "[theory][slow]") {
+TEST_CASE("BIAWGN sum-product threshold of the (4,8) ensemble", "[theory][long]") {
   // Richardson & Urbanke, IEEE Trans. IT 2001, table: sigma* = 0.8376 for (4,8).
   const ThresholdResult r =
       awgn_threshold(Ensemble::regular(4, 8), sum_product(), ThresholdMethod::discretized);
   CHECK(r.threshold == Approx(0.8376).margin(r.accuracy));
 }
 
-TEST_CASE("BSC sum-product threshold of the (3,6) ensemble", "[theory][slow]") {
+TEST_CASE("BSC sum-product threshold of the (3,6) ensemble", "[theory]") {
   // Richardson & Urbanke, IEEE Trans. IT 2001: p* = 0.084 for (3,6).
   const ThresholdResult r = bsc_threshold(Ensemble::regular(3, 6), sum_product());
   CHECK(r.threshold == Approx(0.084).margin(r.accuracy));

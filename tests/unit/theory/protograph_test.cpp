@@ -53,7 +53,8 @@ TEST_CASE("the J function of EXIT analysis", "[theory]") {
   CHECK_THROWS_AS(exit_j_inverse(std::nan("")), Error);
 }
 
-TEST_CASE("protograph EXIT thresholds of regular protographs equal density evolution", "[theory]") {
+TEST_CASE("protograph EXIT thresholds of regular protographs equal density evolution",
+          "[theory][long]") {
   // (3,6): Richardson & Urbanke, IEEE Trans. IT 2001, sigma* = 0.8809 by discretized density
   // evolution; a single-row protograph with multiplicity 3 and the 3 x 6 all-ones protograph
   // are the same ensemble.
