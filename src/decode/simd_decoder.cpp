@@ -10,6 +10,7 @@
 #include <limits>
 #include <optional>
 #include <type_traits>
+#include <utility>
 #include <vector>
 
 #include "decoders.hpp"
@@ -115,8 +116,6 @@ class Batched final : public Decoder, public LaneDecoder {
       v2c_ = hwy::AllocateAligned<T>(edges * lanes_);
       args_.v2c = v2c_.get();
     }
-    weights_.resize(lanes_);
-    undecided_.resize(lanes_);
     args_.channel = channel_.get();
     args_.posterior = posterior_.get();
     args_.scratch = scratch_.get();
@@ -241,42 +240,36 @@ class Batched final : public Decoder, public LaneDecoder {
       use_.total += lanes_;
       iterate(args_, fresh, ~active & all_lanes());
       fresh = 0;
-      bool at_limit = false;
-      std::uint64_t one_short = 0;  // lanes one iteration before the limit
+      std::uint64_t at_limit = 0, one_short = 0;  // lanes at, and one iteration before, the limit
       for (std::uint64_t a = active; a; a &= a - 1) {
         const int l = std::countr_zero(a), it = ++iterations[l];
-        at_limit |= it == max_iterations;
+        if (it == max_iterations) at_limit |= bit(static_cast<std::size_t>(l));
         if (it == max_iterations - 1) one_short |= bit(static_cast<std::size_t>(l));
       }
       if (results.hard_before.empty()) one_short = 0;
       const bool may_finish = settings_.early_stop || at_limit;
       if (!may_finish && !one_short) continue;
       sign_masks(args_, masks_.data(), zeros_.data());
-      if (one_short)
-        record_masks(one_short, frame_of, results.hard_before, results.undecided_before);
-      if (!may_finish) continue;
       std::uint64_t undecided = 0;
       for (std::uint64_t z : zeros_) undecided |= z;
-      const std::uint64_t unsat = unsatisfied() | undecided;
-      std::uint64_t finished = settings_.early_stop ? active & ~unsat : 0;
-      for (std::uint64_t a = active; a; a &= a - 1) {
-        const int l = std::countr_zero(a);
-        if (iterations[l] == max_iterations) finished |= bit(l);
-      }
+      if (one_short)
+        record_masks(one_short, undecided, frame_of, results.hard_before, results.undecided_before);
+      if (!may_finish) continue;
+      // Lanes that stop here: converged (zero syndrome, nothing undecided) with early stop, and
+      // every lane at the limit (its outcome is completed after the batch, outcomes_at_limit).
+      const std::uint64_t unsat =
+          settings_.early_stop ? unsatisfied(active & ~at_limit & ~undecided) | undecided : 0;
+      const std::uint64_t finished = (settings_.early_stop ? active & ~unsat : 0) | at_limit;
       if (!finished) continue;
-      if (finished & unsat) count_unsatisfied(finished & unsat);
-      if (finished & undecided) count_undecided(finished & undecided);
       refill_rows.clear();
       refill_lanes.clear();
       for (std::uint64_t a = finished; a; a &= a - 1) {
         const auto l = static_cast<std::size_t>(std::countr_zero(a));
-        FrameOutcome& o = outcome[l];
-        o.iterations = iterations[l];
-        o.syndrome_weight = unsat & bit(l) ? static_cast<std::uint32_t>(weights_[l]) : 0;
-        o.undecided = undecided & bit(l) ? static_cast<std::uint32_t>(undecided_[l]) : 0;
-        o.converged = o.syndrome_weight == 0 && o.undecided == 0;
+        outcome[l] = {};
+        outcome[l].iterations = iterations[l];
+        outcome[l].converged = !(at_limit & bit(l));
       }
-      record(finished, frame_of, outcome, results);
+      record(finished, undecided, frame_of, outcome, results);
       for (std::uint64_t a = finished; a; a &= a - 1) {
         const auto l = static_cast<std::size_t>(std::countr_zero(a));
         const std::size_t next = frame_of[l] + lanes_;
@@ -299,11 +292,69 @@ class Batched final : public Decoder, public LaneDecoder {
       if (!refill_rows.empty())
         refill(args_, refill_rows.data(), refill_lanes.data(), refill_rows.size());
     }
+    outcomes_at_limit(results);
+  }
+
+  // The outcomes of the frames that ran to the iteration limit, from their recorded decisions:
+  // syndrome weight (undecided bits counted as 0), undecided bits, converged. One pass over the
+  // checks and positions per group that has such frames, instead of one per iteration.
+  void outcomes_at_limit(LaneResults& results) const {
+    const std::size_t n = code_.n();
+    for (std::size_t g = 0; g * lanes_ < frames_; ++g) {
+      std::uint64_t limit = 0;
+      for (std::size_t l = 0; l < lanes_ && g * lanes_ + l < frames_; ++l) {
+        if (results.outcome[g * lanes_ + l].iterations == settings_.iterations) limit |= bit(l);
+      }
+      if (!limit) continue;
+      const std::uint64_t* hard = results.hard.data() + g * n;
+      const std::uint64_t* zero = results.undecided.data() + g * n;
+      const auto weight =
+          lane_counts(limit, code_.m(), [&](std::size_t c) { return parity(c, hard); });
+      const auto undecided = lane_counts(limit, n, [&](std::size_t v) { return zero[v]; });
+      for (std::uint64_t a = limit; a; a &= a - 1) {
+        const auto l = static_cast<std::size_t>(std::countr_zero(a));
+        FrameOutcome& o = results.outcome[g * lanes_ + l];
+        o.syndrome_weight = weight[l];
+        o.undecided = undecided[l];
+        o.converged = o.syndrome_weight == 0 && o.undecided == 0;
+      }
+    }
+  }
+
+  // For each lane l of `lanes`, the number of i < count whose mask_of(i) has bit l set, counted
+  // in bit-sliced counters (bit l of level b is bit b of lane l's count): the four lowest in
+  // registers, the carries out of them (one add in 16 at most) in memory.
+  template <class F>
+  static std::array<std::uint32_t, 64> lane_counts(std::uint64_t lanes, std::size_t count,
+                                                   const F& mask_of) {
+    std::uint64_t c0 = 0, c1 = 0, c2 = 0, c3 = 0;
+    std::array<std::uint64_t, 28> high{};  // levels 4..31
+    for (std::size_t i = 0; i < count; ++i) {
+      std::uint64_t x = mask_of(i) & lanes, t;
+      t = c0 & x, c0 ^= x, x = t;
+      t = c1 & x, c1 ^= x, x = t;
+      t = c2 & x, c2 ^= x, x = t;
+      t = c3 & x, c3 ^= x, x = t;
+      for (std::size_t b = 0; x; ++b) t = high[b] & x, high[b] ^= x, x = t;
+    }
+    std::array<std::uint32_t, 64> out{};
+    for (std::uint64_t a = lanes; a; a &= a - 1) {
+      const int l = std::countr_zero(a);
+      auto level = [&](std::uint64_t c, std::size_t b) {
+        return static_cast<std::uint32_t>((c >> l) & 1u) << b;
+      };
+      std::uint32_t w = level(c0, 0) | level(c1, 1) | level(c2, 2) | level(c3, 3);
+      for (std::size_t b = 0; b < high.size(); ++b) w |= level(high[b], b + 4);
+      out[static_cast<std::size_t>(l)] = w;
+    }
+    return out;
   }
 
   // The decisions of the lanes in `which` (masks_, zeros_) into their groups' masks `decided`
-  // and `zero` (groups x n): one pass over the positions per group among them.
-  void record_masks(std::uint64_t which, const std::array<std::size_t, 64>& frame_of,
+  // and `zero` (groups x n): one pass over the positions per group among them (the zero masks
+  // only for a group with a lane in `undecided`).
+  void record_masks(std::uint64_t which, std::uint64_t undecided,
+                    const std::array<std::size_t, 64>& frame_of,
                     std::vector<std::uint64_t>& decided, std::vector<std::uint64_t>& zero) const {
     const std::size_t n = code_.n();
     for (std::uint64_t left = which; left;) {
@@ -315,19 +366,19 @@ class Batched final : public Decoder, public LaneDecoder {
       }
       left &= ~in;
       std::uint64_t* d = decided.data() + g * n;
+      for (std::size_t v = 0; v < n; ++v) d[v] |= masks_[v] & in;
+      if (!(in & undecided)) continue;
       std::uint64_t* z = zero.data() + g * n;
-      for (std::size_t v = 0; v < n; ++v) {
-        d[v] |= masks_[v] & in;
-        z[v] |= zeros_[v] & in;
-      }
+      for (std::size_t v = 0; v < n; ++v) z[v] |= zeros_[v] & in;
     }
   }
 
   // The finished lanes' decisions, outcomes and, when asked for, posteriors.
-  void record(std::uint64_t finished, const std::array<std::size_t, 64>& frame_of,
+  void record(std::uint64_t finished, std::uint64_t undecided,
+              const std::array<std::size_t, 64>& frame_of,
               const std::array<FrameOutcome, 64>& outcome, LaneResults& results) const {
     const std::size_t n = code_.n();
-    record_masks(finished, frame_of, results.hard, results.undecided);
+    record_masks(finished, undecided, frame_of, results.hard, results.undecided);
     const double scale =
         settings_.quantization ? std::ldexp(1.0, -settings_.quantization->fraction_bits) : 1.0;
     for (std::uint64_t a = finished; a; a &= a - 1) {
@@ -340,37 +391,52 @@ class Batched final : public Decoder, public LaneDecoder {
     }
   }
 
-  // Syndromes of all lanes at once from the hard decisions in masks_: bit l of check c's parity
-  // is lane l's syndrome bit (one XOR of 64-bit masks per edge, where the posteriors themselves
-  // would be a vector row each).
-  std::uint64_t parity(std::size_t c) const noexcept {
-    std::uint64_t p = 0;
-    for (std::uint32_t v : code_.check_variables(c)) p ^= masks_[v];
-    return p;
+  // Syndromes of all lanes at once from hard decisions (`masks`: per position, bit l set where
+  // lane l decided 1): bit l of check c's parity is lane l's syndrome bit. One XOR of 64-bit
+  // masks per edge, where the posteriors themselves would be a vector row each; checks of the
+  // common degrees unrolled.
+  std::uint64_t parity(std::size_t c, const std::uint64_t* masks) const noexcept {
+    const std::uint32_t* start = code_.check_starts().data();
+    const std::uint32_t* v = code_.edge_variables().data() + start[c];
+    switch (start[c + 1] - start[c]) {
+#define TANNERY_DEGREE(k) \
+  case k:                 \
+    return xor_of(v, masks, std::make_index_sequence<k>());
+      TANNERY_DEGREE(2)
+      TANNERY_DEGREE(3)
+      TANNERY_DEGREE(4)
+      TANNERY_DEGREE(5)
+      TANNERY_DEGREE(6)
+      TANNERY_DEGREE(7)
+      TANNERY_DEGREE(8)
+      TANNERY_DEGREE(9)
+      TANNERY_DEGREE(10)
+      TANNERY_DEGREE(11)
+      TANNERY_DEGREE(12)
+#undef TANNERY_DEGREE
+      default:
+        std::uint64_t p = 0;
+        for (std::uint32_t i = start[c]; i < start[c + 1]; ++i) p ^= masks[*v++];
+        return p;
+    }
   }
-  // Lanes with an unsatisfied check.
-  std::uint64_t unsatisfied() const noexcept {
+  template <std::size_t... I>
+  static std::uint64_t xor_of(const std::uint32_t* v, const std::uint64_t* masks,
+                              std::index_sequence<I...>) noexcept {
+    return (masks[v[I]] ^ ...);
+  }
+  // The lanes with an unsatisfied check, exact for the lanes in `need`: the pass ends once each
+  // of them has one.
+  std::uint64_t unsatisfied(std::uint64_t need) const noexcept {
     std::uint64_t any = 0;
-    for (std::size_t c = 0; c < code_.m(); ++c) any |= parity(c);
+    for (std::size_t c = 0; c < code_.m() && (any & need) != need; ++c)
+      any |= parity(c, masks_.data());
     return any;
   }
-  // weights_[l] = unsatisfied checks of lane l, for the lanes in `lanes`.
-  void count_unsatisfied(std::uint64_t lanes) {
-    for (std::uint64_t a = lanes; a; a &= a - 1) weights_[std::countr_zero(a)] = 0;
-    for (std::size_t c = 0; c < code_.m(); ++c) {
-      for (std::uint64_t a = parity(c) & lanes; a; a &= a - 1) ++weights_[std::countr_zero(a)];
-    }
-  }
 
-  // undecided_[l] = zero posteriors of lane l, for the lanes in `lanes`.
-  void count_undecided(std::uint64_t lanes) {
-    for (std::uint64_t a = lanes; a; a &= a - 1) undecided_[std::countr_zero(a)] = 0;
-    for (std::uint64_t z : zeros_) {
-      for (std::uint64_t a = z & lanes; a; a &= a - 1) ++undecided_[std::countr_zero(a)];
-    }
+  static std::uint64_t bit(std::size_t l) noexcept {
+    return std::uint64_t{1} << l;
   }
-
-  static std::uint64_t bit(std::size_t l) noexcept { return std::uint64_t{1} << l; }
   std::uint64_t all_lanes() const noexcept {
     return lanes_ >= 64 ? ~std::uint64_t{0} : (std::uint64_t{1} << lanes_) - 1;
   }
@@ -380,8 +446,7 @@ class Batched final : public Decoder, public LaneDecoder {
   hwy::AlignedFreeUniquePtr<T[]> channel_, posterior_, messages_, check_magnitudes_, scratch_, v2c_;
   hwy::AlignedFreeUniquePtr<std::uint8_t[]> edge_marks_;
   std::vector<std::uint32_t> edge_row_;  // LayeredArgs::edge_row
-  std::vector<std::int32_t> weights_, undecided_;
-  std::vector<T> groups_;  // channel values of the frames being decoded, in groups
+  std::vector<T> groups_;                // channel values of the frames being decoded, in groups
   std::vector<std::uint64_t> masks_, zeros_;  // per variable: negative, zero posterior lanes
   std::size_t frames_ = 0;                    // of the batch begun
   LaneUse use_;
