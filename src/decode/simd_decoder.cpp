@@ -249,9 +249,7 @@ class Batched final : public Decoder, public LaneDecoder {
       if (results.hard_before.empty()) one_short = 0;
       const bool may_finish = settings_.early_stop || at_limit;
       if (!may_finish && !one_short) continue;
-      sign_masks(args_, masks_.data(), zeros_.data());
-      std::uint64_t undecided = 0;
-      for (std::uint64_t z : zeros_) undecided |= z;
+      const std::uint64_t undecided = sign_masks(args_, masks_.data(), zeros_.data());
       if (one_short)
         record_masks(one_short, undecided, frame_of, results.hard_before, results.undecided_before);
       if (!may_finish) continue;

@@ -630,11 +630,13 @@ void Refill(D d, const LayeredArgs<hn::TFromD<D>>& a, const hn::TFromD<D>* const
 }
 
 // Hard decisions: bit l of masks[v] set where lane l of posterior v is negative, of zeros[v]
-// where it is zero (undecided; -0.0 too).
+// where it is zero (undecided; -0.0 too). Returns the lanes with a zero posterior (the OR of
+// zeros).
 template <class D>
-void SignMasks(D d, const LayeredArgs<hn::TFromD<D>>& a, std::uint64_t* masks,
-               std::uint64_t* zeros) {
+std::uint64_t SignMasks(D d, const LayeredArgs<hn::TFromD<D>>& a, std::uint64_t* masks,
+                        std::uint64_t* zeros) {
   constexpr std::size_t L = Sweep<D>::L;
+  std::uint64_t any_zero = 0;
   for (std::size_t v = 0; v < a.n; ++v) {
     const auto x = hn::Load(d, a.posterior + v * L);
     std::uint8_t bytes[8] = {};
@@ -643,7 +645,9 @@ void SignMasks(D d, const LayeredArgs<hn::TFromD<D>>& a, std::uint64_t* masks,
     std::uint8_t zero_bytes[8] = {};
     hn::StoreMaskBits(d, hn::Eq(x, hn::Zero(d)), zero_bytes);
     std::memcpy(&zeros[v], zero_bytes, 8);
+    any_zero |= zeros[v];
   }
+  return any_zero;
 }
 
 // Channel values from LLRs in lane layout (count a multiple of the double vector length):
@@ -689,8 +693,9 @@ bool Channel(const double* llr, std::size_t count, double scale, double clip, T*
                     std::size_t count) {                                                        \
     Refill(hn::ScalableTag<T>(), a, rows, lanes, count);                                        \
   }                                                                                             \
-  void SignMasks##Type(const LayeredArgs<T>& a, std::uint64_t* masks, std::uint64_t* zeros) {   \
-    SignMasks(hn::ScalableTag<T>(), a, masks, zeros);                                           \
+  std::uint64_t SignMasks##Type(const LayeredArgs<T>& a, std::uint64_t* masks,                  \
+                                std::uint64_t* zeros) {                                         \
+    return SignMasks(hn::ScalableTag<T>(), a, masks, zeros);                                    \
   }                                                                                             \
   bool Channel##Type(const double* llr, std::size_t count, double scale, double clip, T* out) { \
     return Channel(llr, count, scale, clip, out);                                               \
@@ -703,30 +708,30 @@ HWY_AFTER_NAMESPACE();
 #ifndef TANNERY_DECODE_SIMD_KERNELS_DISPATCH_
 #define TANNERY_DECODE_SIMD_KERNELS_DISPATCH_
 // The dispatching functions of simd_kernels.hpp for one lane type.
-#define TANNERY_DISPATCH_KERNELS(T, Type)                                                        \
-  HWY_EXPORT(Lanes##Type);                                                                       \
-  HWY_EXPORT(Start##Type);                                                                       \
-  HWY_EXPORT(Iterate##Type);                                                                     \
-  HWY_EXPORT(Refill##Type);                                                                      \
-  HWY_EXPORT(SignMasks##Type);                                                                   \
-  HWY_EXPORT(Channel##Type);                                                                     \
-  std::size_t lane_count(T) {                                                                    \
-    return HWY_DYNAMIC_DISPATCH(Lanes##Type)();                                                  \
-  }                                                                                              \
-  void start(const LayeredArgs<T>& a) {                                                          \
-    HWY_DYNAMIC_DISPATCH(Start##Type)(a);                                                        \
-  }                                                                                              \
-  void iterate(const LayeredArgs<T>& a, std::uint64_t fresh, std::uint64_t frozen) {             \
-    HWY_DYNAMIC_DISPATCH(Iterate##Type)(a, fresh, frozen);                                       \
-  }                                                                                              \
-  void refill(const LayeredArgs<T>& a, const T* const* rows, const std::uint64_t* lanes,         \
-              std::size_t count) {                                                               \
-    HWY_DYNAMIC_DISPATCH(Refill##Type)(a, rows, lanes, count);                                   \
-  }                                                                                              \
-  void sign_masks(const LayeredArgs<T>& a, std::uint64_t* masks, std::uint64_t* zeros) {         \
-    HWY_DYNAMIC_DISPATCH(SignMasks##Type)(a, masks, zeros);                                      \
-  }                                                                                              \
-  bool channel_values(const double* llr, std::size_t count, double scale, double clip, T* out) { \
-    return HWY_DYNAMIC_DISPATCH(Channel##Type)(llr, count, scale, clip, out);                    \
+#define TANNERY_DISPATCH_KERNELS(T, Type)                                                         \
+  HWY_EXPORT(Lanes##Type);                                                                        \
+  HWY_EXPORT(Start##Type);                                                                        \
+  HWY_EXPORT(Iterate##Type);                                                                      \
+  HWY_EXPORT(Refill##Type);                                                                       \
+  HWY_EXPORT(SignMasks##Type);                                                                    \
+  HWY_EXPORT(Channel##Type);                                                                      \
+  std::size_t lane_count(T) {                                                                     \
+    return HWY_DYNAMIC_DISPATCH(Lanes##Type)();                                                   \
+  }                                                                                               \
+  void start(const LayeredArgs<T>& a) {                                                           \
+    HWY_DYNAMIC_DISPATCH(Start##Type)(a);                                                         \
+  }                                                                                               \
+  void iterate(const LayeredArgs<T>& a, std::uint64_t fresh, std::uint64_t frozen) {              \
+    HWY_DYNAMIC_DISPATCH(Iterate##Type)(a, fresh, frozen);                                        \
+  }                                                                                               \
+  void refill(const LayeredArgs<T>& a, const T* const* rows, const std::uint64_t* lanes,          \
+              std::size_t count) {                                                                \
+    HWY_DYNAMIC_DISPATCH(Refill##Type)(a, rows, lanes, count);                                    \
+  }                                                                                               \
+  std::uint64_t sign_masks(const LayeredArgs<T>& a, std::uint64_t* masks, std::uint64_t* zeros) { \
+    return HWY_DYNAMIC_DISPATCH(SignMasks##Type)(a, masks, zeros);                                \
+  }                                                                                               \
+  bool channel_values(const double* llr, std::size_t count, double scale, double clip, T* out) {  \
+    return HWY_DYNAMIC_DISPATCH(Channel##Type)(llr, count, scale, clip, out);                     \
   }
 #endif

@@ -59,7 +59,8 @@ constexpr std::size_t mask_bytes(std::size_t lanes) {
 // `frozen` keep their posteriors. refill: for each k < count (1 to 64), posteriors (flooding:
 // also channel values) of the lanes in lanes[k] from rows[k] (n x lanes, the same layout).
 // sign_masks: bit l of masks[v] set where lane l of posterior v is negative, of zeros[v] where
-// it is zero (the hard decisions and the undecided bits, from which the caller computes syndromes).
+// it is zero (the hard decisions and the undecided bits, from which the caller computes syndromes);
+// returns the lanes with a zero posterior.
 // channel_values: count LLRs in lane layout (count: a multiple of 8) to channel values: float32
 // clipped at +-clip (scale 1), or fixed point round(llr * scale), ties to even, saturated at +-clip
 // (the rule of LlrQuantizer); false when an LLR is NaN.
@@ -69,7 +70,8 @@ constexpr std::size_t mask_bytes(std::size_t lanes) {
   void iterate(const LayeredArgs<T>& args, std::uint64_t fresh, std::uint64_t frozen);      \
   void refill(const LayeredArgs<T>& args, const T* const* rows, const std::uint64_t* lanes, \
               std::size_t count);                                                           \
-  void sign_masks(const LayeredArgs<T>& args, std::uint64_t* masks, std::uint64_t* zeros);  \
+  std::uint64_t sign_masks(const LayeredArgs<T>& args, std::uint64_t* masks,                \
+                           std::uint64_t* zeros);                                           \
   bool channel_values(const double* llr, std::size_t count, double scale, double clip, T* out);
 TANNERY_BATCH_KERNELS(float)
 TANNERY_BATCH_KERNELS(std::int16_t)

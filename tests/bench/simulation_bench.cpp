@@ -27,6 +27,7 @@ struct Case {
   const char* quantize;  // empty: float32
   double ebn0;           // dB
   std::uint64_t frames;  // per simulation (a few chunks; about a second)
+  bool early_stop = true;
 };
 
 const Code& code_of(const Case& c) {
@@ -45,6 +46,7 @@ SimulationConfig config_of(const Case& c) {
   s.decoder.algorithm = c.algorithm;
   s.decoder.schedule = Schedule::layered;
   s.decoder.kernel = Kernel::simd;
+  s.decoder.early_stop = c.early_stop;
   if (c.quantize[0]) s.decoder.quantization = parse_quantization(c.quantize);
   s.sweep = {c.ebn0};
   s.stop.max_frames = c.frames;
@@ -133,6 +135,18 @@ void kernel(benchmark::State& state, const Case& c) {
   }                                                                                     \
   BENCHMARK(BM_kernel_##name)->Unit(benchmark::kMillisecond)->UseRealTime()->MinTime(0.5)
 
+// The same simulation with every frame decoded to the iteration limit (early stop off), to hold
+// against BM_sim_<name>: early stop must not be the slower one, also where nearly every frame
+// fails.
+#define TANNERY_FIXED_ITERATIONS_BENCH(name, ...)            \
+  void BM_fixed_##name(benchmark::State& state) {            \
+    simulation(state, Case{__VA_ARGS__, false});             \
+  }                                                          \
+  BENCHMARK(BM_fixed_##name)                                 \
+      ->Unit(benchmark::kMillisecond)                        \
+      ->UseRealTime()                                        \
+      ->MinTime(1.0)
+
 // A waterfall point and one further out (FER near 1e-4 on the shipped codes; on the length-64 800
 // code past the waterfall, where these frame counts see no error) for int8 offset min-sum (6.2)
 // and float32 normalized min-sum on both shipped rate-1/2 codes and a (3,6)-regular code of length
@@ -161,5 +175,20 @@ TANNERY_SIMULATION_BENCH(f32_nms_reg64800_1_35dB, "regular-3-6-n64800",
                          Algorithm::normalized_min_sum, "", 1.35, 512);
 TANNERY_SIMULATION_BENCH(f32_nms_reg64800_1_5dB, "regular-3-6-n64800",
                          Algorithm::normalized_min_sum, "", 1.5, 512);
+
+// Early stop against fixed iterations where nearly every frame fails (FER about 0.9 at 1 dB) and
+// at two waterfall points.
+TANNERY_SIMULATION_BENCH(i8_oms_reg2016_1dB, "regular-3-6-n2016.tanner", Algorithm::offset_min_sum,
+                         "6.2", 1.0, 10240);
+TANNERY_FIXED_ITERATIONS_BENCH(i8_oms_reg2016_1dB, "regular-3-6-n2016.tanner",
+                               Algorithm::offset_min_sum, "6.2", 1.0, 10240);
+TANNERY_SIMULATION_BENCH(f32_nms_reg2016_1dB, "regular-3-6-n2016.tanner",
+                         Algorithm::normalized_min_sum, "", 1.0, 4096);
+TANNERY_FIXED_ITERATIONS_BENCH(f32_nms_reg2016_1dB, "regular-3-6-n2016.tanner",
+                               Algorithm::normalized_min_sum, "", 1.0, 4096);
+TANNERY_FIXED_ITERATIONS_BENCH(i8_oms_reg2016_1_75dB, "regular-3-6-n2016.tanner",
+                               Algorithm::offset_min_sum, "6.2", 1.75, 20480);
+TANNERY_FIXED_ITERATIONS_BENCH(i8_oms_reg64800_1_35dB, "regular-3-6-n64800",
+                               Algorithm::offset_min_sum, "6.2", 1.35, 1024);
 
 }  // namespace
