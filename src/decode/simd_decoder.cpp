@@ -215,9 +215,10 @@ class Batched final : public Decoder, public LaneDecoder {
 
  private:
   // Decodes the frames held in groups_: lane l takes frames l, l + lanes, ... in turn, the next
-  // as soon as the previous one is done (converged with early stop, or out of iterations); a
-  // lane with no frame left idles (frozen) until the last one is done. A finished frame's
-  // decisions, outcome and posteriors go to results at once (its lane is refilled next).
+  // as soon as the previous one is done (converged with early stop, or out of iterations), then
+  // frames left in other lanes' columns; a lane with no frame left idles (frozen) until the
+  // last one is done. A finished frame's decisions, outcome and posteriors go to results at once
+  // (its lane is refilled next).
   void stream(LaneResults& results) {
     const std::size_t frames = frames_;
     if (frames == 0) return;
@@ -228,6 +229,17 @@ class Batched final : public Decoder, public LaneDecoder {
     std::array<int, 64> iterations{};
     std::uint64_t active = 0, fresh = 0;
     for (std::size_t l = 0; l < lanes_ && l < frames; ++l) frame_of[l] = l, active |= bit(l);
+    // Column c holds frames c, c + lanes, ...: own_next[c] is the next of them to start, last[c]
+    // the last that no other lane took. A lane whose column is done takes the last frame of the
+    // column with the most left, so the lanes run dry together instead of one column at a time.
+    std::array<std::size_t, 64> own_next{}, last{};
+    for (std::size_t c = 0; c < lanes_; ++c) {
+      own_next[c] = c + lanes_;
+      last[c] = c < frames ? c + (frames - 1 - c) / lanes_ * lanes_ : c;
+    }
+    auto left = [&](std::size_t c) {
+      return own_next[c] <= last[c] ? (last[c] - own_next[c]) / lanes_ + 1 : 0;
+    };
     std::copy(groups_.begin(), groups_.begin() + static_cast<std::ptrdiff_t>(group),
               channel_.get());
     start(args_);  // posteriors = channel, messages zero
@@ -270,13 +282,27 @@ class Batched final : public Decoder, public LaneDecoder {
       record(finished, undecided, frame_of, outcome, results);
       for (std::uint64_t a = finished; a; a &= a - 1) {
         const auto l = static_cast<std::size_t>(std::countr_zero(a));
-        const std::size_t next = frame_of[l] + lanes_;
-        if (next >= frames) {
-          active &= ~bit(l);
-          continue;
+        std::size_t next = 0;
+        if (left(l)) {
+          next = own_next[l];
+          own_next[l] += lanes_;
+        } else {
+          std::size_t most = 0;
+          for (std::size_t c = 0; c < lanes_; ++c) most = left(c) > left(most) ? c : most;
+          if (!left(most)) {
+            active &= ~bit(l);
+            continue;
+          }
+          next = last[most];
+          last[most] -= lanes_;
         }
         frame_of[l] = next;
         iterations[l] = 0;
+        fresh |= bit(l);
+        if (next % lanes_ != l) {
+          refill_lane(l, next);
+          continue;
+        }
         const T* rows = groups_.data() + next / lanes_ * group;
         const auto at = std::find(refill_rows.begin(), refill_rows.end(), rows);
         if (at == refill_rows.end()) {
@@ -285,12 +311,22 @@ class Batched final : public Decoder, public LaneDecoder {
         } else {
           refill_lanes[static_cast<std::size_t>(at - refill_rows.begin())] |= bit(l);
         }
-        fresh |= bit(l);
       }
       if (!refill_rows.empty())
         refill(args_, refill_rows.data(), refill_lanes.data(), refill_rows.size());
     }
     outcomes_at_limit(results);
+  }
+
+  // Lane l takes frame f of another column: its posteriors (and, for flooding, channel values)
+  // one value per position (where refill moves whole rows of a group).
+  void refill_lane(std::size_t l, std::size_t f) {
+    const std::size_t n = code_.n();
+    const T* from = groups_.data() + f / lanes_ * n * lanes_ + f % lanes_;
+    for (std::size_t v = 0; v < n; ++v) posterior_[v * lanes_ + l] = from[v * lanes_];
+    if (std::is_floating_point_v<T> && args_.flooding) {
+      for (std::size_t v = 0; v < n; ++v) channel_[v * lanes_ + l] = from[v * lanes_];
+    }
   }
 
   // The outcomes of the frames that ran to the iteration limit, from their recorded decisions:
@@ -348,21 +384,36 @@ class Batched final : public Decoder, public LaneDecoder {
     return out;
   }
 
-  // The decisions of the lanes in `which` (masks_, zeros_) into their groups' masks `decided`
-  // and `zero` (groups x n): one pass over the positions per group among them (the zero masks
-  // only for a group with a lane in `undecided`).
+  // The decisions of the lanes in `which` (masks_, zeros_) into their frames' bits of the
+  // groups' masks `decided` and `zero` (groups x n, bit j of group g: frame g lanes + j): one
+  // pass over the positions per group among the lanes holding a frame of their own column (the
+  // zero masks only for a group with a lane in `undecided`), one per lane holding another's.
   void record_masks(std::uint64_t which, std::uint64_t undecided,
                     const std::array<std::size_t, 64>& frame_of,
                     std::vector<std::uint64_t>& decided, std::vector<std::uint64_t>& zero) const {
     const std::size_t n = code_.n();
-    for (std::uint64_t left = which; left;) {
-      const std::size_t g = frame_of[static_cast<std::size_t>(std::countr_zero(left))] / lanes_;
+    std::uint64_t own = 0;
+    for (std::uint64_t a = which; a; a &= a - 1) {
+      const auto l = static_cast<std::size_t>(std::countr_zero(a));
+      if (frame_of[l] % lanes_ == l) {
+        own |= bit(l);
+        continue;
+      }
+      const std::size_t g = frame_of[l] / lanes_, j = frame_of[l] % lanes_;
+      std::uint64_t* d = decided.data() + g * n;
+      for (std::size_t v = 0; v < n; ++v) d[v] |= ((masks_[v] >> l) & 1u) << j;
+      if (!(undecided & bit(l))) continue;
+      std::uint64_t* z = zero.data() + g * n;
+      for (std::size_t v = 0; v < n; ++v) z[v] |= ((zeros_[v] >> l) & 1u) << j;
+    }
+    for (std::uint64_t rest = own; rest;) {
+      const std::size_t g = frame_of[static_cast<std::size_t>(std::countr_zero(rest))] / lanes_;
       std::uint64_t in = 0;
-      for (std::uint64_t a = left; a; a &= a - 1) {
+      for (std::uint64_t a = rest; a; a &= a - 1) {
         const auto l = static_cast<std::size_t>(std::countr_zero(a));
         if (frame_of[l] / lanes_ == g) in |= bit(l);
       }
-      left &= ~in;
+      rest &= ~in;
       std::uint64_t* d = decided.data() + g * n;
       for (std::size_t v = 0; v < n; ++v) d[v] |= masks_[v] & in;
       if (!(in & undecided)) continue;
